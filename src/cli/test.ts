@@ -1,0 +1,114 @@
+// `npm test`: a throw-away PostgreSQL and maildev, a fresh build, vitest then Playwright; prints "N passed, N failed".
+import { spawnSync } from 'node:child_process';
+import fs from 'node:fs';
+import os from 'node:os';
+import path from 'node:path';
+import { startCluster, type Cluster } from './lib/postgres';
+import { startMaildev, type MailSink } from './lib/maildev';
+import { freePort } from './lib/proc';
+import { prepareDatabase } from './lib/prepare-db';
+
+const log = (m: string) => console.log(`[test] ${m}`);
+const args = process.argv.slice(2);
+const only = (name: string) => args.length === 0 || args.includes(name);
+
+interface Counts {
+	passed: number;
+	failed: number;
+	skipped: number;
+}
+
+function run(cmd: string[], env: NodeJS.ProcessEnv): number {
+	const r = spawnSync(cmd[0], cmd.slice(1), { stdio: 'inherit', env });
+	return r.status ?? 1;
+}
+
+function readJson(file: string): Record<string, unknown> | null {
+	try {
+		return JSON.parse(fs.readFileSync(file, 'utf8'));
+	} catch {
+		return null;
+	}
+}
+
+async function main(): Promise<number> {
+	const started = performance.now();
+	const tmp = fs.mkdtempSync(path.join(os.tmpdir(), 'momentry-test-'));
+	// The postgres user must be able to enter the folder when we run as root.
+	fs.chmodSync(tmp, 0o755);
+	let cluster: Cluster | null = null;
+	let mail: MailSink | null = null;
+	const total: Counts = { passed: 0, failed: 0, skipped: 0 };
+	try {
+		cluster = await startCluster({ dataDir: path.join(tmp, 'pg'), port: await freePort(), database: 'momentry_e2e', ephemeral: true, quiet: true, log });
+		mail = await startMaildev({ smtpPort: await freePort(), webPort: await freePort(), quiet: true });
+		log(`PostgreSQL on port ${cluster.port}, maildev on ${mail.smtpUrl} / ${mail.webUrl}`);
+		const env: NodeJS.ProcessEnv = {
+			...process.env,
+			DATABASE_URL: cluster.url,
+			TEST_PG_ADMIN_URL: cluster.url.replace(/\/[^/]+$/, '/postgres'),
+			SMTP_URL: mail.smtpUrl,
+			MAILDEV_URL: mail.webUrl,
+			TEST_TMP: tmp,
+			E2E_PORT: String(await freePort())
+		};
+
+		log('building the app …');
+		if (run([process.execPath, 'node_modules/vite/bin/vite.js', 'build', '--logLevel', 'error'], env) !== 0) {
+			total.failed += 1;
+			log('the build failed; no tests were run');
+			return 1;
+		}
+
+		if (only('vitest')) {
+			const out = path.join(tmp, 'vitest.json');
+			run([process.execPath, 'node_modules/vitest/vitest.mjs', 'run', '--reporter=default', '--reporter=json', `--outputFile.json=${out}`], env);
+			const r = readJson(out);
+			if (r) {
+				total.passed += Number(r.numPassedTests ?? 0);
+				total.failed += Number(r.numFailedTests ?? 0) + (r.success === false && !r.numFailedTests ? 1 : 0);
+				total.skipped += Number(r.numPendingTests ?? 0) + Number(r.numTodoTests ?? 0);
+			} else {
+				total.failed += 1;
+				log('vitest wrote no report; counted as one failure');
+			}
+		}
+
+		if (only('e2e')) {
+			await prepareDatabase(cluster.url, { seed: true, log });
+			const out = path.join(tmp, 'playwright.json');
+			run([process.execPath, 'node_modules/@playwright/test/cli.js', 'test', '--reporter=list,json'], {
+				...env,
+				PLAYWRIGHT_JSON_OUTPUT_NAME: out
+			});
+			const r = readJson(out) as { stats?: { expected?: number; unexpected?: number; flaky?: number; skipped?: number }; errors?: unknown[] } | null;
+			if (r?.stats) {
+				total.passed += (r.stats.expected ?? 0) + (r.stats.flaky ?? 0);
+				total.failed += (r.stats.unexpected ?? 0) + (r.errors?.length ?? 0);
+				total.skipped += r.stats.skipped ?? 0;
+			} else {
+				total.failed += 1;
+				log('Playwright wrote no report; counted as one failure');
+			}
+		}
+		return total.failed === 0 && total.passed > 0 ? 0 : 1;
+	} finally {
+		if (mail) await mail.stop();
+		if (cluster) await cluster.stop();
+		fs.rmSync(tmp, { recursive: true, force: true });
+		log(`finished in ${((performance.now() - started) / 1000).toFixed(1)} s`);
+		const line = `${total.passed} passed, ${total.failed} failed` + (total.skipped ? `, ${total.skipped} skipped` : '');
+		fs.mkdirSync('.test-artifacts', { recursive: true });
+		fs.writeFileSync('.test-artifacts/summary.txt', line + '\n');
+		console.log(line);
+	}
+}
+
+main().then(
+	(code) => process.exit(code),
+	(err: Error) => {
+		console.error(`[test] ${err.stack ?? err.message}`);
+		console.log('0 passed, 1 failed');
+		process.exit(1);
+	}
+);

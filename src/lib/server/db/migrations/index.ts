@@ -1,0 +1,7 @@
+// The ordered list of migrations; listed statically so the bundled app and the CLI see the same set.
+import type { Migration } from './types';
+import * as m0001 from './0001-lab-foundation';
+
+export const migrations: { name: string; up: Migration; down: Migration }[] = [
+	{ name: '0001-lab-foundation', ...m0001 }
+];

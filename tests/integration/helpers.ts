@@ -1,0 +1,50 @@
+// Integration-test helpers: a fresh database per test file on the run's PostgreSQL cluster, and maildev's inbox.
+import pg from 'pg';
+import { randomBytes } from 'node:crypto';
+
+function adminUrl(): string {
+	const url = process.env.TEST_PG_ADMIN_URL;
+	if (!url) throw new Error('TEST_PG_ADMIN_URL is not set: run the integration tests through `npm test`');
+	return url;
+}
+
+/** Creates an empty database named after `label` and returns its URL and a function that drops it. */
+export async function freshDatabase(label: string): Promise<{ url: string; drop: () => Promise<void> }> {
+	const name = `t_${label.replace(/\W/g, '_')}_${randomBytes(3).toString('hex')}`;
+	const admin = new pg.Client({ connectionString: adminUrl() });
+	await admin.connect();
+	await admin.query(`CREATE DATABASE ${name}`);
+	await admin.end();
+	return {
+		url: adminUrl().replace(/\/postgres$/, `/${name}`),
+		drop: async () => {
+			const c = new pg.Client({ connectionString: adminUrl() });
+			await c.connect();
+			await c.query(`DROP DATABASE IF EXISTS ${name} WITH (FORCE)`);
+			await c.end();
+		}
+	};
+}
+
+export interface InboxMessage {
+	id: string;
+	subject: string;
+	to: { address: string; name?: string }[];
+	text?: string;
+	html?: string;
+}
+
+/** Polls maildev's REST API until a message to `address` arrives. */
+export async function waitForMail(address: string, timeoutMs = 20_000): Promise<InboxMessage> {
+	const base = process.env.MAILDEV_URL;
+	if (!base) throw new Error('MAILDEV_URL is not set: run the integration tests through `npm test`');
+	const deadline = Date.now() + timeoutMs;
+	for (;;) {
+		const res = await fetch(`${base}/api/email`);
+		const all = (await res.json()) as InboxMessage[];
+		const hit = all.find((m) => m.to?.some((t) => t.address.toLowerCase() === address.toLowerCase()));
+		if (hit) return hit;
+		if (Date.now() > deadline) throw new Error(`no e-mail to ${address} arrived within ${timeoutMs} ms`);
+		await new Promise((r) => setTimeout(r, 200));
+	}
+}

@@ -1,0 +1,41 @@
+// The demo seed loader: run twice, it leaves exactly one copy of the demo data and changes nothing the second time.
+import { afterAll, beforeAll, expect, it } from 'vitest';
+import type { Sequelize } from 'sequelize';
+import { db, closeDb } from '../../src/lib/server/db/index';
+import { migrateUp } from '../../src/lib/server/db/migrate';
+import { Lab, AuditEvent } from '../../src/lib/server/db/models';
+import { databaseIsEmpty, loadDemoSeed } from '../../seeds/index';
+import { freshDatabase } from './helpers';
+
+let sequelize: Sequelize;
+let drop: () => Promise<void>;
+
+beforeAll(async () => {
+	const fresh = await freshDatabase('seed');
+	drop = fresh.drop;
+	sequelize = db(fresh.url);
+	await migrateUp(sequelize);
+});
+afterAll(async () => {
+	await closeDb();
+	await drop();
+});
+
+it('loads the demo once, however often it runs', async () => {
+	expect(await databaseIsEmpty(sequelize)).toBe(true);
+	const first = await loadDemoSeed(sequelize);
+	expect(first.created).toEqual(['lab alder-creek']);
+	expect(await databaseIsEmpty(sequelize)).toBe(false);
+
+	const second = await loadDemoSeed(sequelize);
+	expect(second.created).toEqual([]);
+	expect(await Lab.count()).toBe(1);
+	expect((await Lab.findOne())?.name).toBe('Alder Creek Movement Laboratory');
+	expect(await AuditEvent.count({ where: { action: 'seed.loaded' } })).toBe(1);
+});
+
+it('never overwrites a lab a user has edited', async () => {
+	await Lab.update({ name: 'Renamed by the lab' }, { where: { slug: 'alder-creek' } });
+	await loadDemoSeed(sequelize);
+	expect((await Lab.findOne({ where: { slug: 'alder-creek' } }))?.name).toBe('Renamed by the lab');
+});
