@@ -1,0 +1,84 @@
+// Preallocated scratch arrays for the engine's per-frame loops, so whole recordings run without allocation.
+import type { Model, Vec3 } from './model';
+
+/**
+ * An external load on a body: a force through a body-fixed point plus a free torque.
+ * `frame` says in which axes `force` and `torque` are given: the ground's ('world', default) or the body's.
+ */
+export interface ExternalLoad {
+	body: number;
+	/** Point of application, body-frame coordinates relative to the body's joint point (m). */
+	point: Vec3;
+	force: Vec3;
+	torque?: Vec3;
+	frame?: 'world' | 'body';
+}
+
+export interface Workspace {
+	readonly model: Model;
+	/** Relative rotation of each body, body → parent (row-major). */
+	readonly E: Float64Array;
+	/** cos q, sin q of each plane-rotation joint (model.planar), used instead of E on the fast path. */
+	readonly cs: Float64Array;
+	/** Each body's origin in its parent's frame. */
+	readonly rp: Float64Array;
+	/** Body-frame angular velocity, angular acceleration, origin acceleration (gravity included as −g). */
+	readonly w: Float64Array;
+	readonly al: Float64Array;
+	readonly acc: Float64Array;
+	/** Sums of the children's joint loads, in the parent's frame. */
+	readonly fa: Float64Array;
+	readonly na: Float64Array;
+	/** Joint reaction force and torque on each body at its joint point, body frame. */
+	readonly f: Float64Array;
+	readonly t: Float64Array;
+	/** World orientation of each body (row-major, body → world), filled when world outputs or loads need it. */
+	readonly Rw: Float64Array;
+	readonly Q: Float64Array;
+	/** External loads reduced to each body's joint point, body frame. */
+	readonly loadF: Float64Array;
+	readonly loadT: Float64Array;
+	/** World position of each body's origin (its joint point). */
+	readonly pw: Float64Array;
+	/** Composite-body mass, first moment and rotational inertia about the world origin (mass-matrix pass). */
+	readonly cm: Float64Array;
+	readonly ch: Float64Array;
+	readonly cI: Float64Array;
+	/** Each joint's motion axis as a spatial vector in world coordinates [ω; v at the world origin]. */
+	readonly S: Float64Array;
+	readonly scratchCom: Float64Array;
+	readonly scratchN: Float64Array;
+	readonly scratchN2: Float64Array;
+	readonly scratchNN: Float64Array;
+}
+
+export function createWorkspace(model: Model): Workspace {
+	const n = model.n;
+	const v3 = () => new Float64Array(3 * n);
+	return {
+		model,
+		E: new Float64Array(9 * n),
+		cs: new Float64Array(2 * n),
+		rp: v3(),
+		w: v3(),
+		al: v3(),
+		acc: v3(),
+		fa: v3(),
+		na: v3(),
+		f: v3(),
+		t: v3(),
+		Rw: new Float64Array(9 * n),
+		Q: new Float64Array(n),
+		loadF: v3(),
+		loadT: v3(),
+		pw: v3(),
+		cm: new Float64Array(n),
+		ch: v3(),
+		cI: new Float64Array(9 * n),
+		S: new Float64Array(6 * n),
+		scratchCom: v3(),
+		scratchN: new Float64Array(n),
+		scratchN2: new Float64Array(n),
+		scratchNN: new Float64Array(n * n)
+	};
+}
