@@ -1,6 +1,8 @@
 // Server hooks: security headers on every response, and unexpected errors logged with a reference a person can quote.
 import type { Handle, HandleServerError } from '@sveltejs/kit';
 import { randomUUID } from 'node:crypto';
+// Validates the published anthropometric tables at start-up: a broken table file stops the server with its name.
+import '$lib/anthropometry/tables';
 
 export const handle: Handle = async ({ event, resolve }) => {
 	const response = await resolve(event);

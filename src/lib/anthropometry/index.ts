@@ -1,0 +1,3 @@
+// Anthropometry: the published tables and participant-scaled limb models for the engine.
+export * from './tables';
+export * from './scale';
