@@ -1,9 +1,11 @@
 // `npm run bench:dynamics`: throughput of batch inverse dynamics and cost of M(q) + Cholesky on a 26-DOF tree.
 import { compileModel, createWorkspace, inverseDynamicsBatch, massMatrixInto, choleskyInPlace } from '../lib/dynamics/index';
-import { bilateralLimbTree } from '../lib/dynamics/bench-model';
+import { scaleLimbs } from '../lib/anthropometry/index';
 
 const frames = Number(process.env.BENCH_FRAMES ?? 100_000);
-const model = compileModel(bilateralLimbTree());
+// Both arms and legs of an 80 kg, 1.80 m man scaled from de Leva (1996): 26 DOF.
+const scaled = scaleLimbs({ sex: 'male', bodyMass: 80, stature: 1.8 }, 'de-leva-1996', ['right.leg', 'left.leg', 'right.arm', 'left.arm']);
+const model = compileModel(scaled.model);
 const n = model.n;
 if (n !== 26) throw new Error(`benchmark tree has ${n} DOF, expected 26`);
 
@@ -30,32 +32,48 @@ const ws = createWorkspace(model);
 let peakRss = process.memoryUsage().rss;
 const sample = () => (peakRss = Math.max(peakRss, process.memoryUsage().rss));
 
-function time(label: string, reps: number, fn: () => void): number {
-	fn(); // warm-up: let the JIT compile the loops
-	const runs: number[] = [];
+function median(runs: number[]): number {
+	const r = [...runs].sort((a, b) => a - b);
+	return r[Math.floor(r.length / 2)];
+}
+
+/** Runs the cases interleaved (so machine noise hits each alike) after one warm-up call of each. */
+function timeInterleaved(cases: Record<string, () => void>, reps: number): Record<string, number> {
+	for (const fn of Object.values(cases)) fn(); // warm-up: let the JIT compile the loops
+	const runs: Record<string, number[]> = Object.fromEntries(Object.keys(cases).map((k) => [k, []]));
 	for (let r = 0; r < reps; r++) {
-		const t0 = process.hrtime.bigint();
-		fn();
-		runs.push(Number(process.hrtime.bigint() - t0) / 1e9);
-		sample();
+		for (const [label, fn] of Object.entries(cases)) {
+			const t0 = process.hrtime.bigint();
+			fn();
+			runs[label].push(Number(process.hrtime.bigint() - t0) / 1e9);
+			sample();
+		}
 	}
-	runs.sort((a, b) => a - b);
-	const median = runs[Math.floor(runs.length / 2)];
-	console.log(`${label}: median ${(median * 1000).toFixed(1)} ms of ${reps} runs (best ${(runs[0] * 1000).toFixed(1)} ms)`);
-	return median;
+	const out: Record<string, number> = {};
+	for (const [label, r] of Object.entries(runs)) {
+		out[label] = median(r);
+		console.log(`${label}: median ${(out[label] * 1000).toFixed(1)} ms of ${reps} runs (best ${(Math.min(...r) * 1000).toFixed(1)} ms, worst ${(Math.max(...r) * 1000).toFixed(1)} ms)`);
+	}
+	return out;
 }
 
 console.log(`model: ${model.name}, ${n} DOF, ${frames.toLocaleString('en')} frames; Node ${process.version}`);
-const tQ = time('batch inverse dynamics, Q only', 11, () => inverseDynamicsBatch(model, frames, q, qd, qdd, { Q }, {}, ws));
-const tR = time('batch inverse dynamics, Q + reactions (body axes)', 7, () => inverseDynamicsBatch(model, frames, q, qd, qdd, { Q, force, torque }, {}, ws));
 const mFrames = Math.min(frames, 20_000);
 const M = new Float64Array(n * n);
-const tM = time(`M(q) + Cholesky, ${mFrames.toLocaleString('en')} frames`, 5, () => {
-	for (let k = 0; k < mFrames; k++) {
-		massMatrixInto(model, q, M, ws, k * n);
-		choleskyInPlace(M, n);
-	}
-});
+const t = timeInterleaved(
+	{
+		'batch inverse dynamics, Q only': () => inverseDynamicsBatch(model, frames, q, qd, qdd, { Q }, {}, ws),
+		'batch inverse dynamics, Q + reactions (body axes)': () => inverseDynamicsBatch(model, frames, q, qd, qdd, { Q, force, torque }, {}, ws),
+		[`M(q) + Cholesky, ${mFrames.toLocaleString('en')} frames`]: () => {
+			for (let k = 0; k < mFrames; k++) {
+				massMatrixInto(model, q, M, ws, k * n);
+				choleskyInPlace(M, n);
+			}
+		}
+	},
+	9
+);
+const [tQ, tR, tM] = Object.values(t);
 const rate = (n * frames) / tQ;
 console.log('');
 console.log(`inverse dynamics: ${(rate / 1e6).toFixed(2)} million DOF·frames/s (target ≥ 10), ${((tQ / frames) * 1e6).toFixed(2)} µs per frame`);

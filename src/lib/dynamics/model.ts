@@ -172,8 +172,10 @@ export interface Model {
 	readonly com: Float64Array;
 	/** Inertia about the COM, body frame, row-major 3×3. */
 	readonly inertia: Float64Array;
-	/** 1, 2, 3 when the joint axis is exactly +X, +Y, +Z of the body frame (cheaper rotations); 0 otherwise. */
+	/** 1, 2, 3 when the joint axis is exactly ±X, ±Y, ±Z of the body frame (cheaper rotations); 0 otherwise. */
 	readonly axisCode: Uint8Array;
+	/** +1 or −1: the direction of a coded axis (a rotation by q about −e is one by −q about e). */
+	readonly axisSign: Float64Array;
 	/** axisCode for revolute joints without a fixed rotation (they take the plane-rotation fast path), else 0. */
 	readonly planar: Uint8Array;
 	/** 1 when the joint point coincides with the parent's origin (anchor = 0), as in multi-DOF joint chains. */
@@ -205,6 +207,7 @@ export function compileModel(input: unknown): Model {
 		com: new Float64Array(3 * n),
 		inertia: new Float64Array(9 * n),
 		axisCode: new Uint8Array(n),
+		axisSign: new Float64Array(n),
 		anchorZero: new Uint8Array(n),
 		planar: new Uint8Array(n),
 		source: m
@@ -233,7 +236,8 @@ export function compileModel(input: unknown): Model {
 			}
 		out.mass[i] = b.mass;
 		const [x, y, z] = [0, 1, 2].map((k) => out.axis[3 * i + k]);
-		out.axisCode[i] = y === 0 && z === 0 && x === 1 ? 1 : x === 0 && z === 0 && y === 1 ? 2 : x === 0 && y === 0 && z === 1 ? 3 : 0;
+		out.axisCode[i] = y === 0 && z === 0 && Math.abs(x) === 1 ? 1 : x === 0 && z === 0 && Math.abs(y) === 1 ? 2 : x === 0 && y === 0 && Math.abs(z) === 1 ? 3 : 0;
+		out.axisSign[i] = out.axisCode[i] ? x + y + z : 1;
 		out.anchorZero[i] = b.anchor.every((v) => v === 0) ? 1 : 0;
 		out.planar[i] = out.kind[i] === REVOLUTE && !out.hasRot0[i] ? out.axisCode[i] : 0;
 	});

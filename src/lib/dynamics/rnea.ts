@@ -7,7 +7,7 @@ import { createWorkspace, type ExternalLoad, type Workspace } from './workspace'
  * parent's frame, for the q at offset `o`. Rot is Rodrigues' formula for a right-handed rotation.
  */
 export function relativeTransforms(m: Model, ws: Workspace, q: ArrayLike<number>, o: number, full = true): void {
-	const { n, kind, axis, anchor, rot0, hasRot0, axisCode, planar } = m;
+	const { n, kind, axis, anchor, rot0, hasRot0, axisCode, axisSign, planar } = m;
 	const E = ws.E;
 	const rp = ws.rp;
 	const cs = ws.cs;
@@ -18,7 +18,7 @@ export function relativeTransforms(m: Model, ws: Workspace, q: ArrayLike<number>
 		if (planar[i] !== 0 && !full) {
 			// the Newton–Euler fast path needs only cos q and sin q; the origin stays at the anchor
 			cs[2 * i] = Math.cos(qi);
-			cs[2 * i + 1] = Math.sin(qi);
+			cs[2 * i + 1] = axisSign[i] * Math.sin(qi);
 			rp[i3] = anchor[i3];
 			rp[i3 + 1] = anchor[i3 + 1];
 			rp[i3 + 2] = anchor[i3 + 2];
@@ -34,7 +34,8 @@ export function relativeTransforms(m: Model, ws: Workspace, q: ArrayLike<number>
 			rp[i3 + 2] = anchor[i3 + 2] + E[i9 + 6] * ax + E[i9 + 7] * ay + E[i9 + 8] * az;
 			continue;
 		}
-		const s = Math.sin(qi),
+		const code = axisCode[i];
+		const s = (code !== 0 ? axisSign[i] : 1) * Math.sin(qi),
 			c = Math.cos(qi);
 		cs[2 * i] = c;
 		cs[2 * i + 1] = s;
@@ -47,7 +48,6 @@ export function relativeTransforms(m: Model, ws: Workspace, q: ArrayLike<number>
 			r20 = 0,
 			r21 = 0,
 			r22 = 1;
-		const code = axisCode[i];
 		if (code === 3) {
 			r00 = c;
 			r01 = -s;
@@ -193,7 +193,7 @@ export function rneaFrame(
 	/** Also fill ws.E for plane-rotation joints (needed afterwards for world rotations). */
 	fullTransforms = false
 ): void {
-	const { n, parent, kind, axis, mass, com, inertia, anchorZero, planar } = m;
+	const { n, parent, kind, axis, mass, com, inertia, anchorZero, planar, axisSign } = m;
 	const { E, rp, w, al, acc, fa, na, f, t, cs } = ws;
 	const hasLoads = loads !== null && loads.length > 0;
 	relativeTransforms(m, ws, q, o, hasLoads || fullTransforms);
@@ -245,8 +245,8 @@ export function rneaFrame(
 			lz = acc[p3 + 2] + (apx * ry - apy * rx) + (wpx * uy - wpy * ux);
 			}
 		}
-		const dq = qd === null ? 0 : qd[o + i];
-		const ddq = qdd === null ? 0 : qdd[o + i];
+		const dq0 = qd === null ? 0 : qd[o + i];
+		const ddq0 = qdd === null ? 0 : qdd[o + i];
 		let wx: number, wy: number, wz: number, ax: number, ay: number, az: number, vx: number, vy: number, vz: number;
 		const code = planar[i];
 		if (code !== 0) {
@@ -254,6 +254,9 @@ export function rneaFrame(
 			// α = Eᵀα_p + e q̈ + (Eᵀω_p) × e q̇ has a cross product with a unit vector.
 			const c = cs[2 * i],
 				s = cs[2 * i + 1];
+			// about −e the rates enter with the opposite sign
+			const dq = axisSign[i] * dq0,
+				ddq = axisSign[i] * ddq0;
 			if (code === 3) {
 				wx = c * wpx + s * wpy;
 				wy = c * wpy - s * wpx;
@@ -286,6 +289,8 @@ export function rneaFrame(
 				vy = ly;
 			}
 		} else {
+		const dq = dq0,
+			ddq = ddq0;
 		const e0 = E[i9],
 			e1 = E[i9 + 1],
 			e2 = E[i9 + 2],

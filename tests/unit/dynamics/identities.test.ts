@@ -139,11 +139,12 @@ describe('batch inverse dynamics', () => {
 
 describe('fast paths', () => {
 	it('axis-aligned joints and zero anchors give the same numbers as the general formulas', async () => {
-		const { bilateralLimbTree } = await import('../../../src/lib/dynamics/bench-model');
-		const fast = compileModel(bilateralLimbTree());
+		const { scaleLimbs } = await import('../../../src/lib/anthropometry');
+		const limbs = scaleLimbs({ sex: 'male', bodyMass: 80, stature: 1.8 }, 'de-leva-1996', ['right.leg', 'left.leg', 'right.arm', 'left.arm']);
+		const fast = compileModel(limbs.model);
 		expect(Array.from(fast.planar).filter((c) => c > 0).length).toBe(fast.n);
 		// the same model with every shortcut switched off
-		const general = { ...fast, axisCode: new Uint8Array(fast.n), anchorZero: new Uint8Array(fast.n), planar: new Uint8Array(fast.n) };
+		const general = { ...fast, axisCode: new Uint8Array(fast.n), axisSign: new Float64Array(fast.n).fill(1), anchorZero: new Uint8Array(fast.n), planar: new Uint8Array(fast.n) };
 		const rr = rng(11);
 		for (let k = 0; k < 10; k++) {
 			const q = uniform(rr, -1.5, 1.5, fast.n),

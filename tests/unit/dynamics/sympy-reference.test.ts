@@ -1,0 +1,67 @@
+// Against a general-purpose reference: sympy.physics.mechanics (Kane's method) on a 3-D six-body branched tree.
+// tests/reference/sympy_chain.py derives M, c and Q; the fixture is regenerated when python3 with sympy is present.
+import { describe, expect, it } from 'vitest';
+import { spawnSync } from 'node:child_process';
+import fs from 'node:fs';
+import os from 'node:os';
+import path from 'node:path';
+import { compileModel, inverseDynamics, massMatrix, bias, forwardKinematics, energy, type ExternalLoad, type Vec3 } from '../../../src/lib/dynamics';
+
+interface Fixture {
+	source: string;
+	model: unknown;
+	gravity: Vec3;
+	externalLoads: ExternalLoad[];
+	states: { q: number[]; qd: number[]; qdd: number[]; M: number[][]; c: number[]; Q: number[]; comWorld: Vec3[]; kineticEnergy: number; potentialEnergy: number }[];
+}
+
+const committed = 'tests/fixtures/dynamics/sympy-chain.json';
+
+function loadFixture(): { fixture: Fixture; regenerated: boolean } {
+	// MOMENTRY_SYMPY=off forces the committed fixture (to check that path without uninstalling sympy).
+	const probe = process.env.MOMENTRY_SYMPY === 'off' ? { status: 1 } : spawnSync('python3', ['-c', 'import sympy, numpy'], { encoding: 'utf8' });
+	if (probe.status === 0) {
+		const out = path.join(fs.mkdtempSync(path.join(os.tmpdir(), 'momentry-sympy-')), 'sympy-chain.json');
+		const r = spawnSync('python3', ['tests/reference/sympy_chain.py', '--out', out], { encoding: 'utf8', timeout: 240_000 });
+		if (r.status !== 0) throw new Error(`tests/reference/sympy_chain.py failed:\n${r.stdout}\n${r.stderr}`);
+		return { fixture: JSON.parse(fs.readFileSync(out, 'utf8')), regenerated: true };
+	}
+	return { fixture: JSON.parse(fs.readFileSync(committed, 'utf8')), regenerated: false };
+}
+
+const { fixture, regenerated } = loadFixture();
+const model = compileModel(fixture.model);
+const n = model.n;
+const opts = { gravity: fixture.gravity, loads: fixture.externalLoads };
+
+/** Largest difference relative to the largest reference magnitude. */
+function relErr(got: ArrayLike<number>, want: ArrayLike<number>): number {
+	let d = 0,
+		s = 0;
+	for (let i = 0; i < want.length; i++) {
+		d = Math.max(d, Math.abs(got[i] - want[i]));
+		s = Math.max(s, Math.abs(want[i]));
+	}
+	return d / s;
+}
+
+describe(`sympy reference (${regenerated ? 'regenerated now' : 'committed fixture'}: ${fixture.source})`, () => {
+	it('covers a branched 3-D tree with both joint types', () => {
+		expect(n).toBeGreaterThanOrEqual(5);
+		expect(new Set(Array.from(model.parent)).size).toBeLessThan(n); // some body has two children
+		expect(Array.from(model.kind)).toContain(1);
+		expect(fixture.states.length).toBeGreaterThanOrEqual(5);
+	});
+
+	fixture.states.forEach((s, k) => {
+		it(`state ${k}: M, c, Q, centres of mass and energy match to 1e-9 relative`, () => {
+			expect(relErr(massMatrix(model, s.q), s.M.flat())).toBeLessThan(1e-9);
+			expect(relErr(bias(model, s.q, s.qd, opts), s.c)).toBeLessThan(1e-9);
+			expect(relErr(inverseDynamics(model, s.q, s.qd, s.qdd, opts).Q, s.Q)).toBeLessThan(1e-9);
+			expect(relErr(forwardKinematics(model, s.q).com, s.comWorld.flat())).toBeLessThan(1e-9);
+			const e = energy(model, s.q, s.qd, opts);
+			expect(Math.abs(e.kinetic - s.kineticEnergy) / Math.abs(s.kineticEnergy)).toBeLessThan(1e-9);
+			expect(Math.abs(e.potential - s.potentialEnergy) / Math.abs(s.potentialEnergy)).toBeLessThan(1e-9);
+		});
+	});
+});
