@@ -147,8 +147,15 @@ function reduceLoads(m: Model, ws: Workspace, loads: readonly ExternalLoad[]): v
 		const b = L.body,
 			b3 = 3 * b,
 			b9 = 9 * b;
-		let [fx, fy, fz] = L.force;
-		let [tx, ty, tz] = L.torque ?? [0, 0, 0];
+		// index access, not destructuring: this runs once per frame and must not allocate
+		const F = L.force,
+			T = L.torque;
+		let fx = F[0],
+			fy = F[1],
+			fz = F[2];
+		let tx = T ? T[0] : 0,
+			ty = T ? T[1] : 0,
+			tz = T ? T[2] : 0;
 		if ((L.frame ?? 'world') === 'world') {
 			// body axes = Rᵀ · world axes
 			const gx = R[b9] * fx + R[b9 + 3] * fy + R[b9 + 6] * fz;
@@ -164,7 +171,9 @@ function reduceLoads(m: Model, ws: Workspace, loads: readonly ExternalLoad[]): v
 			ty = hy;
 			tz = hz;
 		}
-		const [px, py, pz] = L.point;
+		const px = L.point[0],
+			py = L.point[1],
+			pz = L.point[2];
 		ws.loadF[b3] += fx;
 		ws.loadF[b3 + 1] += fy;
 		ws.loadF[b3 + 2] += fz;
