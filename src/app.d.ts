@@ -6,7 +6,10 @@ declare global {
 			/** Short id that links the page a person sees to the server log line. */
 			reference?: string;
 		}
-		// interface Locals {}
+		interface Locals {
+			/** The signed-in person, re-checked against the database on every request; null when signed out. */
+			actor: import('$lib/server/access').Actor | null;
+		}
 		// interface PageData {}
 		// interface PageState {}
 		// interface Platform {}

@@ -1,16 +1,52 @@
-// Server hooks: security headers on every response, and unexpected errors logged with a reference a person can quote.
+// Server hooks: sign-in (Auth.js), the signed-in person re-checked on every request, security headers, error references.
 import type { Handle, HandleServerError } from '@sveltejs/kit';
+import { sequence } from '@sveltejs/kit/hooks';
 import { randomUUID } from 'node:crypto';
 // Validates the published anthropometric tables at start-up: a broken table file stops the server with its name.
 import '$lib/anthropometry/tables';
+import { authHandle } from '$lib/server/auth';
+import { loadActor } from '$lib/server/access';
 
-export const handle: Handle = async ({ event, resolve }) => {
-	const response = await resolve(event);
-	response.headers.set('x-content-type-options', 'nosniff');
+const clientAddress: Handle = ({ event, resolve }) => {
+	// Auth.js sees only the Request; pass it the client's address (never trust one the client sent).
+	event.request.headers.delete('x-momentry-client-address');
+	try {
+		event.request.headers.set('x-momentry-client-address', event.getClientAddress());
+	} catch {
+		/* no address when prerendering */
+	}
+	return resolve(event);
+};
+
+const actor: Handle = async ({ event, resolve }) => {
+	event.locals.actor = null;
+	if (!event.url.pathname.startsWith('/api/health')) {
+		try {
+			const session = (await event.locals.auth()) as { userId?: string; sessionVersion?: number } | null;
+			event.locals.actor = await loadActor(session?.userId, session?.sessionVersion);
+		} catch (err) {
+			// database unreachable: treat as signed out; pages that need data fail on their own with a clear page
+			console.error('[auth] could not load the signed-in person:', (err as Error).message);
+		}
+	}
+	return resolve(event);
+};
+
+const headers: Handle = async ({ event, resolve }) => {
+	let response = await resolve(event);
+	try {
+		response.headers.set('x-content-type-options', 'nosniff');
+	} catch {
+		// Response.redirect() (as Auth.js returns it) has immutable headers: copy it first
+		response = new Response(response.body, response);
+		response.headers.set('x-content-type-options', 'nosniff');
+	}
 	response.headers.set('referrer-policy', 'same-origin');
 	response.headers.set('x-frame-options', 'DENY');
 	return response;
 };
+
+export const handle = sequence(headers, clientAddress, authHandle, actor);
 
 export const handleError: HandleServerError = ({ error, event, status }) => {
 	const reference = randomUUID().slice(0, 8);

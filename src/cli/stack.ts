@@ -1,5 +1,7 @@
 // `npm start` / `npm run dev`: PostgreSQL, maildev, migrations and demo seed, the worker and the app, stopped together.
 import { spawnSync } from 'node:child_process';
+import { randomBytes } from 'node:crypto';
+import fs from 'node:fs';
 import path from 'node:path';
 import { startCluster, type Cluster } from './lib/postgres';
 import { startMaildev, type MailSink } from './lib/maildev';
@@ -32,6 +34,18 @@ async function shutdown(code: number): Promise<never> {
 process.on('SIGINT', () => void shutdown(0));
 process.on('SIGTERM', () => void shutdown(0));
 
+/** AUTH_SECRET from the environment, or one generated once into the data folder and reused. */
+function authSecret(): string {
+	if (process.env.AUTH_SECRET) return process.env.AUTH_SECRET;
+	const file = path.join(s.dataDir, 'auth-secret');
+	if (!fs.existsSync(file)) {
+		fs.mkdirSync(s.dataDir, { recursive: true });
+		fs.writeFileSync(file, randomBytes(32).toString('base64url') + '\n', { mode: 0o600 });
+		log(`generated a session secret in ${path.relative(process.cwd(), file)}`);
+	}
+	return fs.readFileSync(file, 'utf8').trim();
+}
+
 async function main() {
 	const started = performance.now();
 	if (!(await portIsFree(s.appPort))) {
@@ -57,7 +71,7 @@ async function main() {
 	}
 
 	const origin = process.env.ORIGIN ?? `http://127.0.0.1:${s.appPort}`;
-	const env = { ...process.env, DATABASE_URL: databaseUrl, SMTP_URL: smtpUrl, ORIGIN: origin, MAIL_INBOX_URL: inbox };
+	const env = { ...process.env, DATABASE_URL: databaseUrl, SMTP_URL: smtpUrl, ORIGIN: origin, MAIL_INBOX_URL: inbox, AUTH_SECRET: authSecret() };
 
 	if (!dev) {
 		log('building the app …');
@@ -92,8 +106,9 @@ async function main() {
     Mail inbox   ${inbox}
     Health       ${origin}/api/health
 
-  Demo: the Alder Creek Movement Laboratory is loaded. Every e-mail the app sends lands in the
-  mail inbox above. Stop with Ctrl-C; your data stays in ${path.relative(process.cwd(), s.dataDir) || s.dataDir}/ for the next start.
+  Demo: the Alder Creek Movement Laboratory is loaded. Sign in as admin@alder-creek.example,
+  pi@…, researcher@…, technician@… or knee.researcher@alder-creek.example with the password
+  momentry-demo-2026, or ask for an e-mailed link: every e-mail lands in the mail inbox above. Stop with Ctrl-C; your data stays in ${path.relative(process.cwd(), s.dataDir) || s.dataDir}/ for the next start.
 `);
 }
 

@@ -1,5 +1,6 @@
 // `npm test`: a throw-away PostgreSQL and maildev, a fresh build, vitest then Playwright; prints "N passed, N failed".
 import { spawnSync } from 'node:child_process';
+import { randomBytes } from 'node:crypto';
 import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
@@ -50,6 +51,7 @@ async function main(): Promise<number> {
 			SMTP_URL: mail.smtpUrl,
 			MAILDEV_URL: mail.webUrl,
 			TEST_TMP: tmp,
+			AUTH_SECRET: randomBytes(32).toString('base64url'),
 			E2E_PORT: String(await freePort())
 		};
 

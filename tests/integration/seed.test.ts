@@ -3,7 +3,7 @@ import { afterAll, beforeAll, expect, it } from 'vitest';
 import type { Sequelize } from 'sequelize';
 import { db, closeDb } from '../../src/lib/server/db/index';
 import { migrateUp } from '../../src/lib/server/db/migrate';
-import { Lab, AuditEvent } from '../../src/lib/server/db/models';
+import { Lab, AuditEvent, User, Study, StudyMember } from '../../src/lib/server/db/models';
 import { databaseIsEmpty, loadDemoSeed } from '../../seeds/index';
 import { freshDatabase } from './helpers';
 
@@ -24,12 +24,17 @@ afterAll(async () => {
 it('loads the demo once, however often it runs', async () => {
 	expect(await databaseIsEmpty(sequelize)).toBe(true);
 	const first = await loadDemoSeed(sequelize);
-	expect(first.created).toEqual(['lab alder-creek']);
+	expect(first.created).toContain('lab alder-creek');
+	expect(first.created).toContain('study SHELF-REACH');
+	expect(first.created).toContain('role KNEE-60:researcher for knee.researcher@alder-creek.example');
 	expect(await databaseIsEmpty(sequelize)).toBe(false);
 
 	const second = await loadDemoSeed(sequelize);
 	expect(second.created).toEqual([]);
 	expect(await Lab.count()).toBe(1);
+	expect(await User.count()).toBe(5);
+	expect(await Study.count()).toBe(2);
+	expect(await StudyMember.count()).toBe(5);
 	expect((await Lab.findOne())?.name).toBe('Alder Creek Movement Laboratory');
 	expect(await AuditEvent.count({ where: { action: 'seed.loaded' } })).toBe(1);
 });

@@ -60,4 +60,113 @@ export function initModels(sequelize: Sequelize): void {
 		},
 		{ sequelize, tableName: 'audit_events', modelName: 'AuditEvent' }
 	);
+	initPeopleModels(sequelize);
+}
+
+export type StudyRole = 'pi' | 'researcher' | 'technician';
+
+/** A person who signs in (never a participant). Columns beyond Auth.js' are ours. */
+export class User extends Model<InferAttributes<User>, InferCreationAttributes<User>> {
+	declare id: CreationOptional<string>;
+	declare name: string | null;
+	declare email: string;
+	declare emailVerified: Date | null;
+	declare image: CreationOptional<string | null>;
+	declare passwordHash: CreationOptional<string | null>;
+	declare isAdmin: CreationOptional<boolean>;
+	declare deactivatedAt: CreationOptional<Date | null>;
+	declare sessionVersion: CreationOptional<number>;
+	declare createdAt: CreationOptional<Date>;
+}
+
+export class Study extends Model<InferAttributes<Study>, InferCreationAttributes<Study>> {
+	declare id: CreationOptional<string>;
+	declare code: string;
+	declare title: string;
+	declare createdAt: CreationOptional<Date>;
+}
+
+export class StudyMember extends Model<InferAttributes<StudyMember>, InferCreationAttributes<StudyMember>> {
+	declare studyId: string;
+	declare userId: string;
+	declare role: StudyRole;
+	declare createdAt: CreationOptional<Date>;
+}
+
+export class OneTimeToken extends Model<InferAttributes<OneTimeToken>, InferCreationAttributes<OneTimeToken>> {
+	declare id: CreationOptional<string>;
+	declare purpose: 'invitation' | 'password-reset';
+	declare tokenHash: string;
+	declare userId: string;
+	declare expiresAt: Date;
+	declare usedAt: CreationOptional<Date | null>;
+	declare createdAt: CreationOptional<Date>;
+}
+
+export class SignInFailure extends Model<InferAttributes<SignInFailure>, InferCreationAttributes<SignInFailure>> {
+	declare id: CreationOptional<string>;
+	declare email: string | null;
+	declare ipAddress: string | null;
+	declare occurredAt: CreationOptional<Date>;
+}
+
+export function initPeopleModels(sequelize: Sequelize): void {
+	User.init(
+		{
+			id: { type: DataTypes.UUID, primaryKey: true, defaultValue: DataTypes.UUIDV4 },
+			name: { type: DataTypes.TEXT, allowNull: true },
+			email: { type: DataTypes.TEXT, allowNull: false, unique: true },
+			emailVerified: { type: DataTypes.DATE, allowNull: true },
+			image: { type: DataTypes.TEXT, allowNull: true },
+			passwordHash: { type: DataTypes.TEXT, allowNull: true },
+			isAdmin: { type: DataTypes.BOOLEAN, allowNull: false, defaultValue: false },
+			deactivatedAt: { type: DataTypes.DATE, allowNull: true },
+			sessionVersion: { type: DataTypes.INTEGER, allowNull: false, defaultValue: 0 },
+			createdAt: { type: DataTypes.DATE, allowNull: false, defaultValue: DataTypes.NOW }
+		},
+		{ sequelize, tableName: 'users', modelName: 'user' }
+	);
+	Study.init(
+		{
+			id: { type: DataTypes.UUID, primaryKey: true, defaultValue: DataTypes.UUIDV4 },
+			code: { type: DataTypes.TEXT, allowNull: false, unique: true },
+			title: { type: DataTypes.TEXT, allowNull: false },
+			createdAt: { type: DataTypes.DATE, allowNull: false, defaultValue: DataTypes.NOW }
+		},
+		{ sequelize, tableName: 'studies', modelName: 'Study' }
+	);
+	StudyMember.init(
+		{
+			studyId: { type: DataTypes.UUID, primaryKey: true },
+			userId: { type: DataTypes.UUID, primaryKey: true },
+			role: { type: DataTypes.TEXT, allowNull: false },
+			createdAt: { type: DataTypes.DATE, allowNull: false, defaultValue: DataTypes.NOW }
+		},
+		{ sequelize, tableName: 'study_members', modelName: 'StudyMember' }
+	);
+	OneTimeToken.init(
+		{
+			id: { type: DataTypes.UUID, primaryKey: true, defaultValue: DataTypes.UUIDV4 },
+			purpose: { type: DataTypes.TEXT, allowNull: false },
+			tokenHash: { type: DataTypes.TEXT, allowNull: false, unique: true },
+			userId: { type: DataTypes.UUID, allowNull: false },
+			expiresAt: { type: DataTypes.DATE, allowNull: false },
+			usedAt: { type: DataTypes.DATE, allowNull: true },
+			createdAt: { type: DataTypes.DATE, allowNull: false, defaultValue: DataTypes.NOW }
+		},
+		{ sequelize, tableName: 'one_time_tokens', modelName: 'OneTimeToken' }
+	);
+	SignInFailure.init(
+		{
+			id: { type: DataTypes.BIGINT, primaryKey: true, autoIncrement: true },
+			email: { type: DataTypes.TEXT, allowNull: true },
+			ipAddress: { type: DataTypes.TEXT, allowNull: true },
+			occurredAt: { type: DataTypes.DATE, allowNull: false, defaultValue: DataTypes.NOW }
+		},
+		{ sequelize, tableName: 'sign_in_failures', modelName: 'SignInFailure' }
+	);
+	StudyMember.belongsTo(User, { foreignKey: 'userId' });
+	StudyMember.belongsTo(Study, { foreignKey: 'studyId' });
+	User.hasMany(StudyMember, { foreignKey: 'userId' });
+	Study.hasMany(StudyMember, { foreignKey: 'studyId' });
 }

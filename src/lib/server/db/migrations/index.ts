@@ -1,7 +1,9 @@
 // The ordered list of migrations; listed statically so the bundled app and the CLI see the same set.
 import type { Migration } from './types';
 import * as m0001 from './0001-lab-foundation';
+import * as m0002 from './0002-people-and-access';
 
 export const migrations: { name: string; up: Migration; down: Migration }[] = [
-	{ name: '0001-lab-foundation', ...m0001 }
+	{ name: '0001-lab-foundation', ...m0001 },
+	{ name: '0002-people-and-access', ...m0002 }
 ];

@@ -1,0 +1,76 @@
+// Signing in and out in Chromium: password, e-mailed link read from maildev's HTTP API, and the failure messages.
+import { test, expect, type Page } from '@playwright/test';
+
+const PASSWORD = 'momentry-demo-2026';
+const inbox = process.env.MAILDEV_URL!;
+
+async function mailTo(address: string, since: number, timeoutMs = 15_000): Promise<{ text: string } | null> {
+	const deadline = Date.now() + timeoutMs;
+	while (Date.now() < deadline) {
+		const all = (await (await fetch(`${inbox}/api/email`)).json()) as { to: { address: string }[]; text: string; time: string }[];
+		const hit = all.find((m) => m.to.some((t) => t.address === address) && new Date(m.time).getTime() >= since - 1000);
+		if (hit) return hit;
+		await new Promise((r) => setTimeout(r, 250));
+	}
+	return null;
+}
+
+async function passwordSignIn(page: Page, email: string, password: string) {
+	await page.goto('/signin');
+	const form = page.locator('form', { has: page.getByRole('heading', { name: 'Sign in with a password' }) });
+	await form.getByLabel('E-mail address').fill(email);
+	await form.getByLabel('Password').fill(password);
+	await form.getByRole('button', { name: 'Sign in' }).click();
+}
+
+test('sign in with a password, then sign out', async ({ page }) => {
+	await passwordSignIn(page, 'pi@alder-creek.example', PASSWORD);
+	await expect(page.getByTestId('signed-in-as')).toHaveText('Tomasz Okafor');
+	const cookies = await page.context().cookies();
+	const session = cookies.find((c) => c.name.includes('authjs.session-token'));
+	expect(session?.httpOnly).toBe(true);
+	await page.getByRole('button', { name: 'Sign out' }).click();
+	await expect(page.getByRole('link', { name: 'Sign in' })).toBeVisible();
+	await expect(page.getByTestId('signed-in-as')).toHaveCount(0);
+});
+
+test('a wrong password is refused without saying whether the account exists', async ({ page }) => {
+	await passwordSignIn(page, 'technician@alder-creek.example', 'not the password');
+	const known = await page.getByRole('alert').textContent();
+	await passwordSignIn(page, 'nobody@alder-creek.example', 'not the password');
+	const unknown = await page.getByRole('alert').textContent();
+	expect(known).toContain('do not match an account that can sign in');
+	expect(unknown).toBe(known);
+});
+
+test('sign in through the e-mailed link, which works only once', async ({ page, browser }) => {
+	const since = Date.now();
+	await page.goto('/signin');
+	const form = page.locator('form', { has: page.getByRole('heading', { name: 'E-mail me a sign-in link' }) });
+	await form.getByLabel('E-mail address').fill('researcher@alder-creek.example');
+	await form.getByRole('button', { name: 'Send link' }).click();
+	await expect(page.getByRole('heading', { name: 'Check your e-mail' })).toBeVisible();
+	const mail = await mailTo('researcher@alder-creek.example', since);
+	expect(mail).not.toBeNull();
+	const link = mail!.text.match(/https?:\/\/\S+/)![0];
+	expect(new URL(link).hostname).toBe('127.0.0.1');
+	await page.goto(link);
+	await expect(page.getByTestId('signed-in-as')).toHaveText('Mei Haraldsen');
+
+	// the same link again, in a fresh browser: refused as used
+	const other = await browser.newContext();
+	const p2 = await other.newPage();
+	await p2.goto(link);
+	await expect(p2.getByRole('alert')).toContainText('expired or has already been used');
+	await other.close();
+});
+
+test('asking a link for an unknown address looks the same and sends nothing', async ({ page }) => {
+	const since = Date.now();
+	await page.goto('/signin');
+	const form = page.locator('form', { has: page.getByRole('heading', { name: 'E-mail me a sign-in link' }) });
+	await form.getByLabel('E-mail address').fill('stranger@alder-creek.example');
+	await form.getByRole('button', { name: 'Send link' }).click();
+	await expect(page.getByRole('heading', { name: 'Check your e-mail' })).toBeVisible();
+	expect(await mailTo('stranger@alder-creek.example', since, 2_000)).toBeNull();
+});
