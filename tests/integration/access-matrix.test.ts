@@ -1,0 +1,100 @@
+// Runs the authorization matrix against the built app, and checks that every route in src/routes has entries.
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import fs from 'node:fs';
+import path from 'node:path';
+import pg from 'pg';
+import { MATRIX, EXEMPT_ACTIONS, type MatrixEntry, type ParamRef } from './access-matrix';
+import { PERSONAS, startApp, type AppUnderTest, type Persona } from './app-under-test';
+
+interface RouteFile {
+	route: string;
+	page: boolean;
+	actions: string[];
+	methods: string[];
+}
+
+/** Every route in src/routes: pages, their form actions and the methods of +server.ts endpoints. */
+export function routeTree(root = 'src/routes'): RouteFile[] {
+	const out = new Map<string, RouteFile>();
+	const walk = (dir: string) => {
+		for (const e of fs.readdirSync(dir, { withFileTypes: true })) {
+			const full = path.join(dir, e.name);
+			if (e.isDirectory()) {
+				walk(full);
+				continue;
+			}
+			const route = '/' + path.relative(root, dir).split(path.sep).filter((s) => s && !/^\(.*\)$/.test(s)).join('/');
+			const r = out.get(route) ?? { route, page: false, actions: [], methods: [] };
+			const src = fs.readFileSync(full, 'utf8');
+			if (e.name === '+page.svelte') r.page = true;
+			if (e.name === '+page.server.ts') {
+				const block = src.match(/export const actions[^=]*=\s*\{([\s\S]*?)\n\};/);
+				if (block) r.actions.push(...[...block[1].matchAll(/^\t(\w+):/gm)].map((m) => m[1]));
+			}
+			if (e.name === '+server.ts') r.methods.push(...[...src.matchAll(/export const (GET|POST|PUT|PATCH|DELETE)\b/g)].map((m) => m[1]));
+			if (/^\+(page|server)/.test(e.name)) out.set(route, r);
+		}
+	};
+	walk(root);
+	return [...out.values()].sort((a, b) => a.route.localeCompare(b.route));
+}
+
+describe('the matrix covers the route tree', () => {
+	const tree = routeTree();
+	const has = (route: string, method: string, action?: string) =>
+		MATRIX.some((e) => e.route === route && e.method === method && (action === undefined || e.action === action));
+	for (const r of tree) {
+		if (r.page) it(`GET ${r.route} has an entry`, () => expect(has(r.route, 'GET')).toBe(true));
+		for (const a of r.actions) {
+			it(`POST ${r.route} ?/${a} has an entry`, () => expect(has(r.route, 'POST', a) || r.route in EXEMPT_ACTIONS).toBe(true));
+		}
+		for (const m of r.methods) it(`${m} ${r.route} has an entry`, () => expect(has(r.route, m)).toBe(true));
+	}
+	it('has no entry for a route that does not exist', () => {
+		const routes = new Set(tree.map((r) => r.route));
+		expect(MATRIX.filter((e) => !routes.has(e.route)).map((e) => e.route)).toEqual([]);
+	});
+});
+
+describe('every route answers each persona as the matrix says', () => {
+	let app: AppUnderTest;
+	const refs = new Map<ParamRef, string>();
+	beforeAll(async () => {
+		app = await startApp('matrix');
+		const c = new pg.Client({ connectionString: app.url });
+		await c.connect();
+		const { rows } = await c.query(`SELECT id, code FROM studies`);
+		refs.set('studyA', rows.find((r) => r.code === 'SHELF-REACH').id);
+		refs.set('studyB', rows.find((r) => r.code === 'KNEE-60').id);
+		await c.end();
+	});
+	afterAll(async () => app?.close());
+
+	const url = (e: MatrixEntry) => {
+		let p = e.route.replace(/\[(\w+)\]/g, (_, name: string) => {
+			const ref = e.params?.[name];
+			if (!ref) throw new Error(`${e.route}: no value for [${name}] in the matrix entry`);
+			return refs.get(ref)!;
+		});
+		if (e.action) p += e.action === 'default' ? '' : `?/${e.action}`;
+		return p;
+	};
+
+	for (const e of MATRIX) {
+		it(`${e.method} ${e.route}${e.action ? ` ?/${e.action}` : ''}`, async () => {
+			const got: Partial<Record<Persona, number>> = {};
+			for (const persona of Object.keys(PERSONAS) as Persona[]) {
+				// accept: text/html makes a form post behave as a browser's (SvelteKit answers other clients with JSON)
+				const headers: Record<string, string> = { cookie: app.cookies[persona], origin: app.base, accept: 'text/html' };
+				let body: URLSearchParams | undefined;
+				if (e.method !== 'GET') {
+					body = new URLSearchParams(e.form ?? {});
+					headers['content-type'] = 'application/x-www-form-urlencoded';
+				}
+				const res = await fetch(app.base + url(e), { method: e.method, headers, body, redirect: 'manual' });
+				got[persona] = res.status;
+			}
+			expect(got).toEqual(e.expect);
+		});
+	}
+});

@@ -1,0 +1,72 @@
+// Starts the built app against a fresh, migrated and seeded database, and signs demo personas in over HTTP.
+import fs from 'node:fs';
+import { freshDatabase } from './helpers';
+import { freePort, start, stop, waitForPort, type Child } from '../../src/cli/lib/proc';
+import { prepareDatabase } from '../../src/cli/lib/prepare-db';
+
+export const DEMO_PASSWORD = 'momentry-demo-2026';
+export const PERSONAS = {
+	anonymous: null,
+	admin: 'admin@alder-creek.example',
+	piA: 'pi@alder-creek.example',
+	researcherA: 'researcher@alder-creek.example',
+	technicianA: 'technician@alder-creek.example',
+	memberB: 'knee.researcher@alder-creek.example'
+} as const;
+export type Persona = keyof typeof PERSONAS;
+
+export interface AppUnderTest {
+	base: string;
+	url: string;
+	app: Child;
+	/** Cookie header of each signed-in persona. */
+	cookies: Record<Persona, string>;
+	close(): Promise<void>;
+}
+
+/** Signs in with the password form; returns the session cookie header. */
+export async function signInAs(base: string, email: string, password = DEMO_PASSWORD): Promise<{ status: number; cookie: string; location: string | null }> {
+	const body = new URLSearchParams({ providerId: 'password', email, password, redirectTo: '/' });
+	const res = await fetch(`${base}/signin?/password`, {
+		method: 'POST',
+		body,
+		redirect: 'manual',
+		headers: { origin: base, 'content-type': 'application/x-www-form-urlencoded', 'x-sveltekit-action': 'false' }
+	});
+	const cookie = res.headers
+		.getSetCookie()
+		.map((c) => c.split(';')[0])
+		.filter((c) => c.includes('session-token') && !c.endsWith('='))
+		.join('; ');
+	return { status: res.status, cookie, location: res.headers.get('location') };
+}
+
+export async function startApp(label: string): Promise<AppUnderTest> {
+	if (!fs.existsSync('build/index.js')) throw new Error('build/index.js is missing: `npm test` builds the app first');
+	const fresh = await freshDatabase(label);
+	await prepareDatabase(fresh.url, { seed: true, log: () => {} });
+	const port = await freePort();
+	const base = `http://127.0.0.1:${port}`;
+	const app = start('app', process.execPath, ['build/index.js'], {
+		quiet: true,
+		env: { ...process.env, DATABASE_URL: fresh.url, HOST: '127.0.0.1', PORT: String(port), ORIGIN: base }
+	});
+	await waitForPort(port, '127.0.0.1', 30_000, app);
+	const cookies = { anonymous: '' } as Record<Persona, string>;
+	for (const [persona, email] of Object.entries(PERSONAS)) {
+		if (!email) continue;
+		const r = await signInAs(base, email);
+		if (!r.cookie) throw new Error(`could not sign in as ${email} (status ${r.status}, location ${r.location})`);
+		cookies[persona as Persona] = r.cookie;
+	}
+	return {
+		base,
+		url: fresh.url,
+		app,
+		cookies,
+		close: async () => {
+			await stop(app);
+			await fresh.drop();
+		}
+	};
+}
