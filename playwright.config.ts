@@ -29,7 +29,7 @@ export default defineConfig({
 		trace: 'retain-on-failure'
 	},
 	webServer: {
-		command: 'node build/index.js',
+		command: `node ${process.env.MOMENTRY_BUILD_DIR ?? 'build'}/index.js`,
 		url: `http://127.0.0.1:${port}/api/health`,
 		reuseExistingServer: false,
 		timeout: 60_000,

@@ -7,7 +7,9 @@ const config = {
 	preprocess: vitePreprocess(),
 	compilerOptions: { runes: true },
 	kit: {
-		adapter: adapter({ out: 'build', precompress: false })
+		// `npm test` builds into a folder of its own, so parallel runs do not overwrite each other's build
+		adapter: adapter({ out: process.env.MOMENTRY_BUILD_DIR ?? 'build', precompress: false }),
+		outDir: process.env.MOMENTRY_KIT_DIR ?? '.svelte-kit'
 	}
 };
 

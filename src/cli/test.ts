@@ -40,6 +40,7 @@ async function main(): Promise<number> {
 	let cluster: Cluster | null = null;
 	let mail: MailSink | null = null;
 	const total: Counts = { passed: 0, failed: 0, skipped: 0 };
+	const runDir = path.join('.test-artifacts', `run-${process.pid}`);
 	try {
 		cluster = await startCluster({ dataDir: path.join(tmp, 'pg'), port: await freePort(), database: 'momentry_e2e', ephemeral: true, quiet: true, log });
 		mail = await startMaildev({ smtpPort: await freePort(), webPort: await freePort(), quiet: true });
@@ -52,7 +53,10 @@ async function main(): Promise<number> {
 			MAILDEV_URL: mail.webUrl,
 			TEST_TMP: tmp,
 			AUTH_SECRET: randomBytes(32).toString('base64url'),
-			E2E_PORT: String(await freePort())
+			E2E_PORT: String(await freePort()),
+			// a build of this run's own inside the repository (so node_modules resolves), removed at the end
+			MOMENTRY_BUILD_DIR: path.join(runDir, 'build'),
+			MOMENTRY_KIT_DIR: path.join(runDir, 'kit')
 		};
 
 		log('building the app …');
@@ -98,6 +102,7 @@ async function main(): Promise<number> {
 		if (mail) await mail.stop();
 		if (cluster) await cluster.stop();
 		fs.rmSync(tmp, { recursive: true, force: true });
+		fs.rmSync(runDir, { recursive: true, force: true });
 		log(`finished in ${((performance.now() - started) / 1000).toFixed(1)} s`);
 		const line = `${total.passed} passed, ${total.failed} failed` + (total.skipped ? `, ${total.skipped} skipped` : '');
 		fs.mkdirSync('.test-artifacts', { recursive: true });

@@ -42,12 +42,13 @@ export async function signInAs(base: string, email: string, password = DEMO_PASS
 }
 
 export async function startApp(label: string): Promise<AppUnderTest> {
-	if (!fs.existsSync('build/index.js')) throw new Error('build/index.js is missing: `npm test` builds the app first');
+	const entry = `${process.env.MOMENTRY_BUILD_DIR ?? 'build'}/index.js`;
+	if (!fs.existsSync(entry)) throw new Error(`${entry} is missing: \`npm test\` builds the app first`);
 	const fresh = await freshDatabase(label);
 	await prepareDatabase(fresh.url, { seed: true, log: () => {} });
 	const port = await freePort();
 	const base = `http://127.0.0.1:${port}`;
-	const app = start('app', process.execPath, ['build/index.js'], {
+	const app = start('app', process.execPath, [entry], {
 		quiet: true,
 		env: { ...process.env, DATABASE_URL: fresh.url, HOST: '127.0.0.1', PORT: String(port), ORIGIN: base }
 	});

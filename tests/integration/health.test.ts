@@ -13,7 +13,8 @@ let dir: string;
 let base: string;
 
 beforeAll(async () => {
-	if (!fs.existsSync('build/index.js')) throw new Error('build/index.js is missing: `npm test` builds the app first');
+	const entry = `${process.env.MOMENTRY_BUILD_DIR ?? 'build'}/index.js`;
+	if (!fs.existsSync(entry)) throw new Error(`${entry} is missing: \`npm test\` builds the app first`);
 	dir = fs.mkdtempSync(path.join(os.tmpdir(), 'momentry-health-'));
 	fs.chmodSync(dir, 0o755);
 	// A cluster of its own: this test stops it, and the rest of the run must keep theirs.
@@ -21,7 +22,7 @@ beforeAll(async () => {
 	await prepareDatabase(cluster.url, { seed: false, log: () => {} });
 	const port = await freePort();
 	base = `http://127.0.0.1:${port}`;
-	app = start('app', process.execPath, ['build/index.js'], {
+	app = start('app', process.execPath, [entry], {
 		quiet: true,
 		env: { ...process.env, DATABASE_URL: cluster.url, HOST: '127.0.0.1', PORT: String(port), ORIGIN: base }
 	});
