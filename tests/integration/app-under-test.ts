@@ -31,7 +31,8 @@ export async function signInAs(base: string, email: string, password = DEMO_PASS
 		method: 'POST',
 		body,
 		redirect: 'manual',
-		headers: { origin: base, 'content-type': 'application/x-www-form-urlencoded', 'x-sveltekit-action': 'false' }
+		// accept: text/html makes it a browser-like form post (SvelteKit answers other clients with JSON)
+		headers: { origin: base, 'content-type': 'application/x-www-form-urlencoded', accept: 'text/html' }
 	});
 	const cookie = res.headers
 		.getSetCookie()

@@ -96,7 +96,8 @@ export const { handle: authHandle, signIn, signOut } = SvelteKitAuth(async (): P
 				// Unknown and deactivated addresses get the same page as real ones, and no e-mail.
 				if (!usable) {
 					await record({ action: 'auth.sign-in-link', actorLabel: normaliseEmail(user.email), outcome: 'denied', details: { reason: existing ? 'deactivated' : 'no such account' } });
-					return '/signin/check-email';
+					// exactly where Auth.js sends a real request (it forwards to pages.verifyRequest from there)
+					return '/auth/verify-request?provider=nodemailer&type=email';
 				}
 				await record({ action: 'auth.sign-in-link', actorLabel: existing.email, actorUserId: existing.id, details: { sent: true } });
 				return true;
