@@ -32,8 +32,42 @@ export const MATRIX: MatrixEntry[] = [
 	{ route: '/signin', method: 'POST', action: 'link', expect: { ...signedIn(303), anonymous: 400 } },
 	{ route: '/signin', method: 'POST', action: 'password', expect: { ...signedIn(303), anonymous: 400 } },
 	{ route: '/signin/check-email', method: 'GET', expect: everyone(200) },
-	{ route: '/signout', method: 'GET', expect: everyone(303) }
+	{ route: '/signout', method: 'GET', expect: everyone(303) },
 	// POST /signout is exercised by its own tests (it ends the persona's session)
+
+	// studies: the list shows one's own studies (administrators: all); a study page is for its team only.
+	// Administrators who hold no role get 404 like any non-member (decision in src/lib/server/studies.ts, readStudy).
+	{ route: '/studies', method: 'GET', expect: signedIn(200) },
+	{ route: '/studies/[id]', method: 'GET', params: { id: 'studyA' }, expect: { anonymous: 303, admin: 404, piA: 200, researcherA: 200, technicianA: 200, memberB: 404 } },
+	{ route: '/studies/[id]', method: 'GET', params: { id: 'studyB' }, expect: { anonymous: 303, admin: 404, piA: 200, researcherA: 404, technicianA: 404, memberB: 200 } },
+	// the audit log and its export: administrators only
+	{ route: '/audit', method: 'GET', expect: { ...signedIn(403), admin: 200 } },
+	{ route: '/audit/export.csv', method: 'GET', expect: { ...signedIn(403), admin: 200 } },
+	// one's own account; an empty password form is refused before any password is checked
+	{ route: '/account', method: 'GET', expect: signedIn(200) },
+	{ route: '/account', method: 'POST', action: 'password', expect: signedIn(400) },
+	// the note after a password change is for the signed-out person; someone signed in is sent to the account page
+	{ route: '/account/password-changed', method: 'GET', expect: { ...signedIn(303), anonymous: 200 } },
+
+	// people: lab administrators only. The matrix has no person to point [id] at, so it gets a study's id, which is
+	// no person: administrators get 404 (the real pages are exercised in tests/integration/people.test.ts)
+	{ route: '/people', method: 'GET', expect: { ...signedIn(403), admin: 200 } },
+	{ route: '/people/invite', method: 'GET', expect: { ...signedIn(403), admin: 200 } },
+	{ route: '/people/invite', method: 'POST', action: 'default', form: { email: 'not-an-address' }, expect: { ...signedIn(403), admin: 400 } },
+	{ route: '/people/[id]', method: 'GET', params: { id: 'studyA' }, expect: { ...signedIn(403), admin: 404 } },
+	{ route: '/people/[id]', method: 'POST', action: 'role', params: { id: 'studyA' }, form: { studyId: 'none', role: 'pi' }, expect: { ...signedIn(403), admin: 404 } },
+	{ route: '/people/[id]', method: 'POST', action: 'admin', params: { id: 'studyA' }, form: { isAdmin: 'maybe' }, expect: { ...signedIn(403), admin: 404 } },
+	{ route: '/people/[id]', method: 'POST', action: 'deactivate', params: { id: 'studyA' }, expect: { ...signedIn(403), admin: 404 } },
+	{ route: '/people/[id]', method: 'POST', action: 'reactivate', params: { id: 'studyA' }, expect: { ...signedIn(403), admin: 404 } },
+	// single-use links need no sign-in; a study's id is no token, so everyone gets the calm "cannot be used" page,
+	// and a form sent to it is refused as gone before its fields matter
+	{ route: '/invitation/[token]', method: 'GET', params: { token: 'studyA' }, expect: everyone(200) },
+	{ route: '/invitation/[token]', method: 'POST', action: 'default', params: { token: 'studyA' }, form: { name: 'Test Person' }, expect: everyone(410) },
+	{ route: '/reset-password/[token]', method: 'GET', params: { token: 'studyA' }, expect: everyone(200) },
+	{ route: '/reset-password/[token]', method: 'POST', action: 'default', params: { token: 'studyA' }, form: { password: 'too short' }, expect: everyone(410) },
+	// asking for a reset link: an address that is no address is refused before anything is looked up
+	{ route: '/signin/forgot', method: 'GET', expect: everyone(200) },
+	{ route: '/signin/forgot', method: 'POST', action: 'default', form: { email: 'not-an-address' }, expect: everyone(400) }
 ];
 
 /** Routes whose form actions are deliberately left out of the generic run, with the reason. */

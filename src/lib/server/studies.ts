@@ -1,0 +1,89 @@
+// Studies as people see them: the list of one's studies and one study's team, each read behind the access check.
+import type { RequestEvent } from '@sveltejs/kit';
+import { error } from '@sveltejs/kit';
+import { db } from './db/index';
+import { Study, StudyMember, User, type StudyRole } from './db/models';
+import { requireActor, requireStudy, type Actor } from './access';
+
+/** The words the UI uses for each role (one name per idea: the stored value stays 'pi', 'researcher', 'technician'). */
+export const ROLE_LABELS: Record<StudyRole, string> = {
+	pi: 'Principal investigator',
+	researcher: 'Researcher',
+	technician: 'Technician'
+};
+const ROLE_ORDER: Record<StudyRole, number> = { pi: 0, researcher: 1, technician: 2 };
+
+const UUID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
+export const isUuid = (s: string | null | undefined): s is string => typeof s === 'string' && UUID.test(s);
+
+export interface StudySummary {
+	id: string;
+	code: string;
+	title: string;
+	/** The signed-in person's role, or null (an administrator looking at a study they are not on). */
+	role: StudyRole | null;
+	roleLabel: string | null;
+	teamSize: number;
+}
+
+export interface StudyDetail {
+	id: string;
+	code: string;
+	title: string;
+	role: StudyRole;
+	roleLabel: string;
+	team: { name: string; role: StudyRole; roleLabel: string; isYou: boolean }[];
+}
+
+/** The studies the person holds a role in, by code; administrators see every study (they manage the list). */
+export async function listStudies(event: RequestEvent): Promise<{ studies: StudySummary[]; seesAll: boolean }> {
+	const actor = requireActor(event);
+	db();
+	const ids = [...actor.roles.keys()];
+	if (!actor.isAdmin && ids.length === 0) return { studies: [], seesAll: false };
+	const studies = await Study.findAll({
+		where: actor.isAdmin ? undefined : { id: ids },
+		include: [{ model: StudyMember, attributes: ['userId'] }],
+		order: [['code', 'ASC']]
+	});
+	return {
+		seesAll: actor.isAdmin,
+		studies: studies.map((s) => {
+			const role = actor.roles.get(s.id) ?? null;
+			const members = (s as unknown as { StudyMembers?: StudyMember[] }).StudyMembers ?? [];
+			return { id: s.id, code: s.code, title: s.title, role, roleLabel: role ? ROLE_LABELS[role] : null, teamSize: members.length };
+		})
+	};
+}
+
+/**
+ * One study with its team. Guarded by requireStudy('study.read'): a malformed id, an unknown id and a study the
+ * person holds no role in all answer 404 (and are audited), so ids cannot be probed.
+ *
+ * Administrators get no exception here: a lab administrator manages people and the list of studies, but the study's
+ * own pages are the team's (they grow to hold participants, sessions and results), so an administrator who is not
+ * on the team gets 404 like anyone else. Team membership stays visible to them through people management.
+ */
+export async function readStudy(event: RequestEvent, rawId: string): Promise<StudyDetail> {
+	// validate before anything is queried; a malformed id is denied like an unknown one (its text stays in the audit row's path)
+	const id = isUuid(rawId) ? rawId.toLowerCase() : null;
+	const actor = await requireStudy(event, 'study.read', id);
+	db();
+	const study = await Study.findByPk(id!, { include: [{ model: StudyMember, include: [{ model: User, attributes: ['id', 'name', 'email'] }] }] });
+	if (!study) error(404, 'Not found');
+	const members = (study as unknown as { StudyMembers?: (StudyMember & { user?: User })[] }).StudyMembers ?? [];
+	const team = members
+		.map((m) => ({ name: m.user?.name ?? m.user?.email ?? 'Unknown person', role: m.role, roleLabel: ROLE_LABELS[m.role], isYou: m.userId === actor.id }))
+		.sort((a, b) => ROLE_ORDER[a.role] - ROLE_ORDER[b.role] || a.name.localeCompare(b.name));
+	const role = actor.roles.get(study.id)!;
+	return { id: study.id, code: study.code, title: study.title, role, roleLabel: ROLE_LABELS[role], team };
+}
+
+/** The person's own roles, with each study's code and title (for the account page). */
+export async function rolesOf(actor: Actor): Promise<{ studyId: string; code: string; title: string; roleLabel: string }[]> {
+	const ids = [...actor.roles.keys()];
+	if (ids.length === 0) return [];
+	db();
+	const studies = await Study.findAll({ where: { id: ids }, order: [['code', 'ASC']] });
+	return studies.map((s) => ({ studyId: s.id, code: s.code, title: s.title, roleLabel: ROLE_LABELS[actor.roles.get(s.id)!] }));
+}

@@ -1,0 +1,29 @@
+// Accepting an invitation (no sign-in needed: the single-use link is the proof): name and an optional password.
+import { fail, redirect } from '@sveltejs/kit';
+import { acceptInvitation, contextOf, invitationFor, PeopleProblem } from '$lib/server/people';
+import { LINK_REFUSED_MESSAGE } from '$lib/server/tokens';
+import type { Actions, PageServerLoad } from './$types';
+
+export const load: PageServerLoad = async ({ params, setHeaders }) => {
+	// the address holds a secret: keep the page out of every cache
+	setHeaders({ 'cache-control': 'no-store' });
+	const invitation = await invitationFor(params.token);
+	if ('refused' in invitation) return { invitation: null, refusedMessage: LINK_REFUSED_MESSAGE };
+	return { invitation, refusedMessage: null };
+};
+
+export const actions: Actions = {
+	default: async (event) => {
+		const form = await event.request.formData();
+		const values = { name: String(form.get('name') ?? '') };
+		let outcome: Awaited<ReturnType<typeof acceptInvitation>>;
+		try {
+			outcome = await acceptInvitation(contextOf(event), event.params.token, form);
+		} catch (err) {
+			if (err instanceof PeopleProblem) return fail(err.status, { values, errors: err.errors });
+			throw err;
+		}
+		if ('refused' in outcome) return fail(410, { values, errors: { form: LINK_REFUSED_MESSAGE } as Record<string, string> });
+		redirect(303, `/signin?done=${outcome.passwordSet ? 'invitation-password' : 'invitation'}`);
+	}
+};

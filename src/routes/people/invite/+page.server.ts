@@ -1,0 +1,27 @@
+// Inviting a person (lab administrators): account if new, study roles, and an e-mailed single-use link.
+import { fail, redirect } from '@sveltejs/kit';
+import { requireLab } from '$lib/server/access';
+import { contextOf, invitePerson, listStudies, parseInvitation, PeopleProblem, ROLE_LABELS, STUDY_ROLES } from '$lib/server/people';
+import { TOKEN_LIFETIME_MS } from '$lib/server/tokens';
+import type { Actions, PageServerLoad } from './$types';
+
+export const load: PageServerLoad = async (event) => {
+	const actor = await requireLab(event, 'people.manage');
+	return { studies: await listStudies(actor), roles: STUDY_ROLES, roleLabels: ROLE_LABELS, linkDays: TOKEN_LIFETIME_MS.invitation / 86_400_000 };
+};
+
+export const actions: Actions = {
+	default: async (event) => {
+		const actor = await requireLab(event, 'people.manage');
+		const form = await event.request.formData();
+		const values = Object.fromEntries([...form.entries()].map(([k, v]) => [k, String(v)]));
+		let result: { userId: string; created: boolean };
+		try {
+			result = await invitePerson(actor, contextOf(event), parseInvitation(form, await listStudies(actor)));
+		} catch (err) {
+			if (err instanceof PeopleProblem) return fail(err.status, { values, errors: err.errors });
+			throw err;
+		}
+		redirect(303, `/people/${result.userId}?done=${result.created ? 'invited' : 'invited-again'}`);
+	}
+};
