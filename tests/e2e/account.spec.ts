@@ -1,14 +1,9 @@
 // The account page in Chromium: sign in with a password, see one's roles, sign out everywhere and land signed out.
 import { test, expect } from '@playwright/test';
-
-const PASSWORD = 'momentry-demo-2026';
+import { PASSWORD, passwordSignIn } from './helpers';
 
 test('open Account after a password sign-in, then sign out everywhere', async ({ page }) => {
-	await page.goto('/signin');
-	const form = page.locator('form', { has: page.getByRole('heading', { name: 'Sign in with a password' }) });
-	await form.getByLabel('E-mail address').fill('pi@alder-creek.example');
-	await form.getByLabel('Password').fill(PASSWORD);
-	await form.getByRole('button', { name: 'Sign in' }).click();
+	await passwordSignIn(page, 'pi@alder-creek.example', PASSWORD);
 	await expect(page.getByTestId('signed-in-as')).toHaveText('Tomasz Okafor');
 
 	await page.getByRole('navigation', { name: 'Main' }).getByRole('link', { name: 'Account', exact: true }).click();

@@ -1,28 +1,7 @@
 // Inviting a person in Chromium: the administrator invites from the UI, the invitee opens the e-mailed link
 // (read from maildev's HTTP API), chooses a password and signs in with it.
-import { test, expect, type Page } from '@playwright/test';
-
-const PASSWORD = 'momentry-demo-2026';
-const inbox = process.env.MAILDEV_URL!;
-
-async function mailTo(address: string, since: number, timeoutMs = 15_000): Promise<{ text: string } | null> {
-	const deadline = Date.now() + timeoutMs;
-	while (Date.now() < deadline) {
-		const all = (await (await fetch(`${inbox}/api/email`)).json()) as { to: { address: string }[]; text: string; time: string }[];
-		const hit = all.find((m) => m.to.some((t) => t.address === address) && new Date(m.time).getTime() >= since - 1000);
-		if (hit) return hit;
-		await new Promise((r) => setTimeout(r, 250));
-	}
-	return null;
-}
-
-async function passwordSignIn(page: Page, email: string, password: string) {
-	await page.goto('/signin');
-	const form = page.locator('form', { has: page.getByRole('heading', { name: 'Sign in with a password' }) });
-	await form.getByLabel('E-mail address').fill(email);
-	await form.getByLabel('Password').fill(password);
-	await form.getByRole('button', { name: 'Sign in' }).click();
-}
+import { test, expect } from '@playwright/test';
+import { PASSWORD, mailTo, passwordSignIn } from './helpers';
 
 test('an administrator invites a person, who sets a password from the e-mailed link and signs in', async ({ page, browser }) => {
 	const email = `new.colleague.${Date.now()}@alder-creek.example`;

@@ -1,0 +1,26 @@
+// Shared steps for the end-to-end tests: the demo password, reading maildev's inbox, the password form.
+import type { Page } from '@playwright/test';
+
+export const PASSWORD = 'momentry-demo-2026';
+const inbox = () => process.env.MAILDEV_URL!;
+
+/** Polls maildev's HTTP API for a message to `address` received after `since` (ms since epoch). */
+export async function mailTo(address: string, since: number, timeoutMs = 15_000): Promise<{ text: string } | null> {
+	const deadline = Date.now() + timeoutMs;
+	while (Date.now() < deadline) {
+		const all = (await (await fetch(`${inbox()}/api/email`)).json()) as { to: { address: string }[]; text: string; time: string }[];
+		const hit = all.find((m) => m.to.some((t) => t.address === address) && new Date(m.time).getTime() >= since - 1000);
+		if (hit) return hit;
+		await new Promise((r) => setTimeout(r, 250));
+	}
+	return null;
+}
+
+/** Fills and submits the password form of /signin. */
+export async function passwordSignIn(page: Page, email: string, password: string): Promise<void> {
+	await page.goto('/signin');
+	const form = page.locator('form', { has: page.getByRole('heading', { name: 'Sign in with a password' }) });
+	await form.getByLabel('E-mail address').fill(email);
+	await form.getByLabel('Password').fill(password);
+	await form.getByRole('button', { name: 'Sign in' }).click();
+}
