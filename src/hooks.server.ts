@@ -6,16 +6,19 @@ import { randomUUID } from 'node:crypto';
 import '$lib/anthropometry/tables';
 import { authHandle } from '$lib/server/auth';
 import { loadActor } from '$lib/server/access';
+import { withRequestContext } from '$lib/server/request-context';
 
 const clientAddress: Handle = ({ event, resolve }) => {
 	// Auth.js sees only the Request; pass it the client's address (never trust one the client sent).
 	event.request.headers.delete('x-momentry-client-address');
+	let ip: string | null = null;
 	try {
-		event.request.headers.set('x-momentry-client-address', event.getClientAddress());
+		ip = event.getClientAddress();
+		event.request.headers.set('x-momentry-client-address', ip);
 	} catch {
 		/* no address when prerendering */
 	}
-	return resolve(event);
+	return withRequestContext(ip, () => resolve(event));
 };
 
 const actor: Handle = async ({ event, resolve }) => {

@@ -51,6 +51,12 @@ describe('password sign-in', () => {
 		expect(rows.at(-1)).toMatchObject({ outcome: 'denied', details: { reason: 'rate limited' } });
 	});
 
+	it('records successful sign-ins with the client address', async () => {
+		await signInAs(app.base, 'admin@alder-creek.example');
+		const { rows } = await sql.query(`SELECT ip_address, details FROM audit_events WHERE action = 'auth.sign-in' AND outcome = 'ok' AND actor_label = 'admin@alder-creek.example' ORDER BY id DESC LIMIT 1`);
+		expect(rows[0]).toMatchObject({ ip_address: '127.0.0.1', details: { method: 'password' } });
+	});
+
 	it('answers an unknown address exactly as a wrong password', async () => {
 		const a = await signInAs(app.base, 'nobody@alder-creek.example', 'whatever-whatever');
 		const b = await signInAs(app.base, 'researcher@alder-creek.example', 'whatever-whatever');

@@ -10,6 +10,7 @@ import { User } from '../db/models';
 import { config } from '../config';
 import { sendMail } from '../mail/index';
 import { record } from '../audit';
+import { currentClientAddress } from '../request-context';
 import { verifyPassword } from './password';
 import { checkThrottle, recordFailure, LIMITS } from './rate-limit';
 
@@ -95,11 +96,11 @@ export const { handle: authHandle, signIn, signOut } = SvelteKitAuth(async (): P
 			if (email?.verificationRequest) {
 				// Unknown and deactivated addresses get the same page as real ones, and no e-mail.
 				if (!usable) {
-					await record({ action: 'auth.sign-in-link', actorLabel: normaliseEmail(user.email), outcome: 'denied', details: { reason: existing ? 'deactivated' : 'no such account' } });
+					await record({ action: 'auth.sign-in-link', actorLabel: normaliseEmail(user.email), outcome: 'denied', ipAddress: currentClientAddress(), details: { reason: existing ? 'deactivated' : 'no such account' } });
 					// exactly where Auth.js sends a real request (it forwards to pages.verifyRequest from there)
 					return '/auth/verify-request?provider=nodemailer&type=email';
 				}
-				await record({ action: 'auth.sign-in-link', actorLabel: existing.email, actorUserId: existing.id, details: { sent: true } });
+				await record({ action: 'auth.sign-in-link', actorLabel: existing.email, actorUserId: existing.id, ipAddress: currentClientAddress(), details: { sent: true } });
 				return true;
 			}
 			return Boolean(usable);
@@ -119,7 +120,13 @@ export const { handle: authHandle, signIn, signOut } = SvelteKitAuth(async (): P
 	},
 	events: {
 		async signIn({ user, account }) {
-			await record({ action: 'auth.sign-in', actorLabel: user.email ?? 'unknown', actorUserId: user.id ?? null, details: { method: account?.provider === 'nodemailer' ? 'e-mail link' : 'password' } });
+			await record({
+				action: 'auth.sign-in',
+				actorLabel: user.email ?? 'unknown',
+				actorUserId: user.id ?? null,
+				ipAddress: currentClientAddress(),
+				details: { method: account?.provider === 'nodemailer' ? 'e-mail link' : 'password' }
+			});
 		}
 	},
 	logger: { error: (e) => { if (!(e instanceof CredentialsSignin)) console.error('[auth]', e.message); }, warn: () => {} }
