@@ -111,3 +111,17 @@ describe('e-mailed sign-in links', () => {
 		expect(audit.rows).toEqual([{ outcome: 'denied' }]);
 	});
 });
+
+// Last in this file: it blocks every password sign-in from 127.0.0.1 for this app instance.
+describe('per-address limit', () => {
+	it('blocks an address that failed for many different accounts', async () => {
+		const { rows } = await sql.query(`SELECT count(*)::int AS n FROM sign_in_failures WHERE ip_address = '127.0.0.1' AND occurred_at > now() - interval '15 minutes'`);
+		for (let k = rows[0].n; k < LIMITS.perAddress; k++) {
+			const r = await signInAs(app.base, `guess${k}@alder-creek.example`, 'wrong password');
+			expect(r.location).toContain('code=credentials');
+		}
+		const blocked = await signInAs(app.base, 'admin@alder-creek.example');
+		expect(blocked.cookie).toBe('');
+		expect(blocked.location).toContain('code=rate_limited');
+	});
+});
