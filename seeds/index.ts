@@ -4,7 +4,7 @@ import path from 'node:path';
 import { fileURLToPath } from 'node:url';
 import type { Sequelize } from 'sequelize';
 import { z } from 'zod';
-import { Lab, Study, StudyMember, User } from '../src/lib/server/db/models';
+import { ConsentFormVersion, Lab, Participant, ParticipantLength, ParticipantPersonal, Study, StudyMember, User } from '../src/lib/server/db/models';
 import { record } from '../src/lib/server/audit';
 import { hashPassword } from '../src/lib/server/auth/password';
 
@@ -23,6 +23,33 @@ const peopleFile = z.object({
 			name: z.string().min(1),
 			isAdmin: z.boolean(),
 			roles: z.record(z.string(), z.enum(['pi', 'researcher', 'technician']))
+		})
+	)
+});
+
+const participantsFile = z.object({
+	studies: z.record(
+		z.string(),
+		z.object({
+			ethicsReference: z.string().min(1),
+			ethicsExpiresOn: z.string().regex(/^\d{4}-\d{2}-\d{2}$/),
+			defaultTable: z.enum(['dempster-winter-2009', 'de-leva-1996', 'zatsiorsky-regression-2002']),
+			participantPrefix: z.string().regex(/^[A-Z]{2,5}$/),
+			consentForm: z.object({ bodyMarkdown: z.string().min(1), confirmations: z.array(z.string().min(1)).min(1) }),
+			participants: z.array(
+				z.object({
+					sex: z.enum(['female', 'male', 'not reported']),
+					birthYear: z.number().int(),
+					bodyMassKg: z.number().min(20).max(300),
+					statureM: z.number().min(0.8).max(2.5),
+					dominantSide: z.enum(['left', 'right']).nullable(),
+					fullName: z.string().min(1),
+					email: z.string().email(),
+					phone: z.string().nullable()
+				})
+			),
+			/** participant: 1-based position in the list above */
+			lengths: z.array(z.object({ participant: z.number().int().min(1), segment: z.string().min(1), lengthM: z.number().positive(), measuredOn: z.string() }))
 		})
 	)
 });
@@ -49,6 +76,7 @@ export interface SeedReport {
 export async function loadDemoSeed(sequelize: Sequelize): Promise<SeedReport> {
 	const { lab } = readJson('lab.json', labFile);
 	const demo = readJson('people.json', peopleFile);
+	const records = readJson('participants.json', participantsFile);
 	// hash outside the transaction: argon2 is deliberately slow
 	const passwordHash = await hashPassword(demo.password);
 	const created: string[] = [];
@@ -73,6 +101,50 @@ export async function loadDemoSeed(sequelize: Sequelize): Promise<SeedReport> {
 				if (!studyId) throw new Error(`seeds/demo/people.json: ${p.email} has a role in unknown study ${code}`);
 				const [, m] = await StudyMember.findOrCreate({ where: { studyId, userId: user.id }, defaults: { studyId, userId: user.id, role }, transaction });
 				if (m) created.push(`role ${code}:${role} for ${p.email}`);
+			}
+		}
+		for (const [code, st] of Object.entries(records.studies)) {
+			const studyId = studyIds.get(code);
+			if (!studyId) throw new Error(`seeds/demo/participants.json: unknown study ${code}`);
+			const study = (await Study.findByPk(studyId, { transaction }))!;
+			// fill only what is still empty: a lab's own settings are never overwritten
+			if (study.participantPrefix === null) {
+				await study.update(
+					{ participantPrefix: st.participantPrefix, ethicsReference: study.ethicsReference ?? st.ethicsReference, ethicsExpiresOn: study.ethicsExpiresOn ?? st.ethicsExpiresOn, defaultTable: st.defaultTable },
+					{ transaction }
+				);
+				created.push(`settings of ${code}`);
+			}
+			const [, formMade] = await ConsentFormVersion.findOrCreate({
+				where: { studyId, version: 1 },
+				defaults: { studyId, version: 1, bodyMarkdown: st.consentForm.bodyMarkdown, confirmations: st.consentForm.confirmations, publishedBy: null },
+				transaction
+			});
+			if (formMade) created.push(`consent form ${code} v1`);
+			const ids: string[] = [];
+			for (const [i, p] of st.participants.entries()) {
+				const n = i + 1;
+				const pcode = `${st.participantPrefix}-${String(n).padStart(3, '0')}`;
+				const [row, made] = await Participant.findOrCreate({
+					where: { code: pcode },
+					defaults: { studyId, code: pcode, sex: p.sex, birthYear: p.birthYear, bodyMassKg: p.bodyMassKg, statureM: p.statureM, dominantSide: p.dominantSide, notes: null },
+					transaction
+				});
+				ids.push(row.id);
+				if (!made) continue;
+				await ParticipantPersonal.create({ participantId: row.id, fullName: p.fullName, email: p.email, phone: p.phone }, { transaction });
+				created.push(`participant ${pcode}`);
+				if (study.nextParticipantNumber <= n) await study.update({ nextParticipantNumber: n + 1 }, { transaction });
+			}
+			for (const l of st.lengths) {
+				const participantId = ids[l.participant - 1];
+				if (!participantId) throw new Error(`seeds/demo/participants.json: ${code} has no participant ${l.participant}`);
+				const [, made] = await ParticipantLength.findOrCreate({
+					where: { participantId, segment: l.segment, measuredOn: l.measuredOn },
+					defaults: { participantId, segment: l.segment, lengthM: l.lengthM, measuredOn: l.measuredOn },
+					transaction
+				});
+				if (made) created.push(`length ${l.segment} of ${code} #${l.participant}`);
 			}
 		}
 		if (created.length) {

@@ -66,6 +66,8 @@ describe('every route answers each persona as the matrix says', () => {
 		const { rows } = await c.query(`SELECT id, code FROM studies`);
 		refs.set('studyA', rows.find((r) => r.code === 'SHELF-REACH').id);
 		refs.set('studyB', rows.find((r) => r.code === 'KNEE-60').id);
+		const participants = await c.query(`SELECT id FROM participants WHERE code = 'ALD-001'`);
+		refs.set('participantA', participants.rows[0].id);
 		await c.end();
 	});
 	afterAll(async () => app?.close());

@@ -3,7 +3,7 @@
 import type { Persona } from './app-under-test';
 
 /** Named records a route parameter can stand for; resolved against the seeded demo database. */
-export type ParamRef = 'studyA' | 'studyB';
+export type ParamRef = 'studyA' | 'studyB' | 'participantA';
 
 export interface MatrixEntry {
 	/** SvelteKit route id, as the folder path under src/routes (e.g. "/studies/[id]"). */
@@ -40,6 +40,22 @@ export const MATRIX: MatrixEntry[] = [
 	{ route: '/studies', method: 'GET', expect: signedIn(200) },
 	{ route: '/studies/[id]', method: 'GET', params: { id: 'studyA' }, expect: { anonymous: 303, admin: 404, piA: 200, researcherA: 200, technicianA: 200, memberB: 404 } },
 	{ route: '/studies/[id]', method: 'GET', params: { id: 'studyB' }, expect: { anonymous: 303, admin: 404, piA: 200, researcherA: 404, technicianA: 404, memberB: 200 } },
+	// a study's settings: its PI only (others on the team 403, everyone else 404); an invalid form is refused with 400
+	{ route: '/studies/[id]/settings', method: 'GET', params: { id: 'studyA' }, expect: { anonymous: 303, admin: 404, piA: 200, researcherA: 403, technicianA: 403, memberB: 404 } },
+	{ route: '/studies/[id]/settings', method: 'POST', action: 'default', params: { id: 'studyA' }, form: { defaultTable: 'none' }, expect: { anonymous: 303, admin: 404, piA: 400, researcherA: 403, technicianA: 403, memberB: 404 } },
+	// consent form versions: the team reads them, the PI publishes (an empty form is refused with 400)
+	{ route: '/studies/[id]/consent-forms', method: 'GET', params: { id: 'studyA' }, expect: { anonymous: 303, admin: 404, piA: 200, researcherA: 200, technicianA: 200, memberB: 404 } },
+	{ route: '/studies/[id]/consent-forms', method: 'POST', action: 'publish', params: { id: 'studyA' }, expect: { anonymous: 303, admin: 404, piA: 400, researcherA: 403, technicianA: 403, memberB: 404 } },
+	// participants: the team sees the list and each participant (personal data by role, checked in participants.test.ts)
+	{ route: '/studies/[id]/participants', method: 'GET', params: { id: 'studyA' }, expect: { anonymous: 303, admin: 404, piA: 200, researcherA: 200, technicianA: 200, memberB: 404 } },
+	{ route: '/studies/[id]/participants', method: 'GET', params: { id: 'studyB' }, expect: { anonymous: 303, admin: 404, piA: 200, researcherA: 404, technicianA: 404, memberB: 200 } },
+	{ route: '/studies/[id]/participants/new', method: 'GET', params: { id: 'studyA' }, expect: { anonymous: 303, admin: 404, piA: 200, researcherA: 403, technicianA: 200, memberB: 404 } },
+	{ route: '/studies/[id]/participants/new', method: 'POST', action: 'default', params: { id: 'studyA' }, form: { sex: 'female', bodyMassKg: '5', statureM: '1.7' }, expect: { anonymous: 303, admin: 404, piA: 400, researcherA: 403, technicianA: 400, memberB: 404 } },
+	{ route: '/studies/[id]/participants/[pid]', method: 'GET', params: { id: 'studyA', pid: 'participantA' }, expect: { anonymous: 303, admin: 404, piA: 200, researcherA: 200, technicianA: 200, memberB: 404 } },
+	// a participant asked for under another study's URL does not exist there, even for someone on both teams
+	{ route: '/studies/[id]/participants/[pid]', method: 'GET', params: { id: 'studyB', pid: 'participantA' }, expect: { anonymous: 303, admin: 404, piA: 404, researcherA: 404, technicianA: 404, memberB: 404 } },
+	{ route: '/studies/[id]/participants/[pid]', method: 'POST', action: 'length', params: { id: 'studyA', pid: 'participantA' }, form: { segment: 'right.thigh', lengthM: '41' }, expect: { anonymous: 303, admin: 404, piA: 400, researcherA: 403, technicianA: 400, memberB: 404 } },
+	{ route: '/studies/[id]/participants/[pid]', method: 'POST', action: 'personal', params: { id: 'studyA', pid: 'participantA' }, form: { email: 'not-an-address' }, expect: { anonymous: 303, admin: 404, piA: 400, researcherA: 403, technicianA: 400, memberB: 404 } },
 	// the audit log and its export: administrators only
 	{ route: '/audit', method: 'GET', expect: { ...signedIn(403), admin: 200 } },
 	{ route: '/audit/export.csv', method: 'GET', expect: { ...signedIn(403), admin: 200 } },

@@ -3,7 +3,7 @@ import { afterAll, beforeAll, expect, it } from 'vitest';
 import type { Sequelize } from 'sequelize';
 import { db, closeDb } from '../../src/lib/server/db/index';
 import { migrateUp } from '../../src/lib/server/db/migrate';
-import { Lab, AuditEvent, User, Study, StudyMember } from '../../src/lib/server/db/models';
+import { Lab, AuditEvent, User, Study, StudyMember, Participant, ParticipantPersonal, ParticipantLength, ConsentFormVersion } from '../../src/lib/server/db/models';
 import { databaseIsEmpty, loadDemoSeed } from '../../seeds/index';
 import { freshDatabase } from './helpers';
 
@@ -35,6 +35,13 @@ it('loads the demo once, however often it runs', async () => {
 	expect(await User.count()).toBe(5);
 	expect(await Study.count()).toBe(2);
 	expect(await StudyMember.count()).toBe(5);
+	expect(await Participant.count()).toBe(8);
+	expect(await ParticipantPersonal.count()).toBe(8);
+	expect(await ParticipantLength.count()).toBe(2);
+	expect(await ConsentFormVersion.count()).toBe(2);
+	const shelf = await Study.findOne({ where: { code: 'SHELF-REACH' } });
+	expect(shelf?.participantPrefix).toBe('ALD');
+	expect(shelf?.nextParticipantNumber).toBe(6);
 	expect((await Lab.findOne())?.name).toBe('Alder Creek Movement Laboratory');
 	expect(await AuditEvent.count({ where: { action: 'seed.loaded' } })).toBe(1);
 });

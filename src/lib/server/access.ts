@@ -17,7 +17,12 @@ export interface Actor {
 export const LAB_ACTIONS = ['people.manage', 'audit.read', 'studies.manage'] as const;
 export const STUDY_ACTIONS = {
 	'study.read': ['pi', 'researcher', 'technician'],
-	'participant.personal.read': ['pi', 'technician']
+	'participant.personal.read': ['pi', 'technician'],
+	'study.edit': ['pi'],
+	'consent.publish': ['pi'],
+	'participant.create': ['pi', 'technician'],
+	'participant.edit': ['pi', 'technician'],
+	'participant.personal.edit': ['pi', 'technician']
 } as const satisfies Record<string, readonly StudyRole[]>;
 export type LabAction = (typeof LAB_ACTIONS)[number];
 export type StudyAction = keyof typeof STUDY_ACTIONS;

@@ -2,8 +2,8 @@
 import type { RequestEvent } from '@sveltejs/kit';
 import { error } from '@sveltejs/kit';
 import { db } from './db/index';
-import { Study, StudyMember, User, type StudyRole } from './db/models';
-import { requireActor, requireStudy, type Actor } from './access';
+import { Participant, Study, StudyMember, User, type StudyRole } from './db/models';
+import { may, requireActor, requireStudy, type Actor } from './access';
 
 /** The words the UI uses for each role (one name per idea: the stored value stays 'pi', 'researcher', 'technician'). */
 export const ROLE_LABELS: Record<StudyRole, string> = {
@@ -32,6 +32,11 @@ export interface StudyDetail {
 	title: string;
 	role: StudyRole;
 	roleLabel: string;
+	ethicsReference: string | null;
+	ethicsExpiresOn: string | null;
+	defaultTable: string;
+	participantCount: number;
+	mayEdit: boolean;
 	team: { name: string; role: StudyRole; roleLabel: string; isYou: boolean }[];
 }
 
@@ -76,7 +81,19 @@ export async function readStudy(event: RequestEvent, rawId: string): Promise<Stu
 		.map((m) => ({ name: m.user?.name ?? m.user?.email ?? 'Unknown person', role: m.role, roleLabel: ROLE_LABELS[m.role], isYou: m.userId === actor.id }))
 		.sort((a, b) => ROLE_ORDER[a.role] - ROLE_ORDER[b.role] || a.name.localeCompare(b.name));
 	const role = actor.roles.get(study.id)!;
-	return { id: study.id, code: study.code, title: study.title, role, roleLabel: ROLE_LABELS[role], team };
+	return {
+		id: study.id,
+		code: study.code,
+		title: study.title,
+		role,
+		roleLabel: ROLE_LABELS[role],
+		ethicsReference: study.ethicsReference ?? null,
+		ethicsExpiresOn: study.ethicsExpiresOn ?? null,
+		defaultTable: study.defaultTable,
+		participantCount: await Participant.count({ where: { studyId: study.id } }),
+		mayEdit: may(actor, 'study.edit', study.id),
+		team
+	};
 }
 
 /** The person's own roles, with each study's code and title (for the account page). */

@@ -83,6 +83,58 @@ export class Study extends Model<InferAttributes<Study>, InferCreationAttributes
 	declare id: CreationOptional<string>;
 	declare code: string;
 	declare title: string;
+	declare ethicsReference: CreationOptional<string | null>;
+	/** ISO date (YYYY-MM-DD). */
+	declare ethicsExpiresOn: CreationOptional<string | null>;
+	declare defaultTable: CreationOptional<'dempster-winter-2009' | 'de-leva-1996' | 'zatsiorsky-regression-2002'>;
+	declare participantPrefix: CreationOptional<string | null>;
+	declare nextParticipantNumber: CreationOptional<number>;
+	declare createdAt: CreationOptional<Date>;
+}
+
+/** One published consent form of a study; never changed after publishing (a change is a new version). */
+export class ConsentFormVersion extends Model<InferAttributes<ConsentFormVersion>, InferCreationAttributes<ConsentFormVersion>> {
+	declare id: CreationOptional<string>;
+	declare studyId: string;
+	declare version: number;
+	declare bodyMarkdown: string;
+	declare confirmations: string[];
+	declare publishedAt: CreationOptional<Date>;
+	declare publishedBy: string | null;
+}
+
+export type Sex = 'female' | 'male' | 'not reported';
+
+/** A participant's research record: pseudonymous code and body data (no personal data here). */
+export class Participant extends Model<InferAttributes<Participant>, InferCreationAttributes<Participant>> {
+	declare id: CreationOptional<string>;
+	declare studyId: string;
+	declare code: string;
+	declare sex: Sex;
+	declare birthYear: number | null;
+	declare bodyMassKg: number;
+	declare statureM: number;
+	declare dominantSide: 'left' | 'right' | null;
+	declare notes: string | null;
+	declare createdAt: CreationOptional<Date>;
+}
+
+/** A participant's personal data, kept apart so that research reads never touch it. */
+export class ParticipantPersonal extends Model<InferAttributes<ParticipantPersonal>, InferCreationAttributes<ParticipantPersonal>> {
+	declare participantId: string;
+	declare fullName: string | null;
+	declare email: string | null;
+	declare phone: string | null;
+}
+
+/** One measurement of one segment's length; the history is kept, the latest per segment is used. */
+export class ParticipantLength extends Model<InferAttributes<ParticipantLength>, InferCreationAttributes<ParticipantLength>> {
+	declare id: CreationOptional<string>;
+	declare participantId: string;
+	declare segment: string;
+	declare lengthM: number;
+	/** ISO date (YYYY-MM-DD). */
+	declare measuredOn: string;
 	declare createdAt: CreationOptional<Date>;
 }
 
@@ -131,9 +183,61 @@ export function initPeopleModels(sequelize: Sequelize): void {
 			id: { type: DataTypes.UUID, primaryKey: true, defaultValue: DataTypes.UUIDV4 },
 			code: { type: DataTypes.TEXT, allowNull: false, unique: true },
 			title: { type: DataTypes.TEXT, allowNull: false },
+			ethicsReference: { type: DataTypes.TEXT, allowNull: true },
+			ethicsExpiresOn: { type: DataTypes.DATEONLY, allowNull: true },
+			defaultTable: { type: DataTypes.TEXT, allowNull: false, defaultValue: 'de-leva-1996' },
+			participantPrefix: { type: DataTypes.TEXT, allowNull: true },
+			nextParticipantNumber: { type: DataTypes.INTEGER, allowNull: false, defaultValue: 1 },
 			createdAt: { type: DataTypes.DATE, allowNull: false, defaultValue: DataTypes.NOW }
 		},
 		{ sequelize, tableName: 'studies', modelName: 'Study' }
+	);
+	ConsentFormVersion.init(
+		{
+			id: { type: DataTypes.UUID, primaryKey: true, defaultValue: DataTypes.UUIDV4 },
+			studyId: { type: DataTypes.UUID, allowNull: false },
+			version: { type: DataTypes.INTEGER, allowNull: false },
+			bodyMarkdown: { type: DataTypes.TEXT, allowNull: false },
+			confirmations: { type: DataTypes.JSONB, allowNull: false, defaultValue: [] },
+			publishedAt: { type: DataTypes.DATE, allowNull: false, defaultValue: DataTypes.NOW },
+			publishedBy: { type: DataTypes.UUID, allowNull: true }
+		},
+		{ sequelize, tableName: 'consent_form_versions', modelName: 'ConsentFormVersion' }
+	);
+	Participant.init(
+		{
+			id: { type: DataTypes.UUID, primaryKey: true, defaultValue: DataTypes.UUIDV4 },
+			studyId: { type: DataTypes.UUID, allowNull: false },
+			code: { type: DataTypes.TEXT, allowNull: false, unique: true },
+			sex: { type: DataTypes.TEXT, allowNull: false },
+			birthYear: { type: DataTypes.INTEGER, allowNull: true },
+			bodyMassKg: { type: DataTypes.DOUBLE, allowNull: false },
+			statureM: { type: DataTypes.DOUBLE, allowNull: false },
+			dominantSide: { type: DataTypes.TEXT, allowNull: true },
+			notes: { type: DataTypes.TEXT, allowNull: true },
+			createdAt: { type: DataTypes.DATE, allowNull: false, defaultValue: DataTypes.NOW }
+		},
+		{ sequelize, tableName: 'participants', modelName: 'Participant' }
+	);
+	ParticipantPersonal.init(
+		{
+			participantId: { type: DataTypes.UUID, primaryKey: true },
+			fullName: { type: DataTypes.TEXT, allowNull: true },
+			email: { type: DataTypes.TEXT, allowNull: true },
+			phone: { type: DataTypes.TEXT, allowNull: true }
+		},
+		{ sequelize, tableName: 'participant_personal', modelName: 'ParticipantPersonal' }
+	);
+	ParticipantLength.init(
+		{
+			id: { type: DataTypes.UUID, primaryKey: true, defaultValue: DataTypes.UUIDV4 },
+			participantId: { type: DataTypes.UUID, allowNull: false },
+			segment: { type: DataTypes.TEXT, allowNull: false },
+			lengthM: { type: DataTypes.DOUBLE, allowNull: false },
+			measuredOn: { type: DataTypes.DATEONLY, allowNull: false },
+			createdAt: { type: DataTypes.DATE, allowNull: false, defaultValue: DataTypes.NOW }
+		},
+		{ sequelize, tableName: 'participant_lengths', modelName: 'ParticipantLength' }
 	);
 	StudyMember.init(
 		{

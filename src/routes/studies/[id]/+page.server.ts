@@ -1,5 +1,9 @@
-// One study: code, title and team, for its members only (others, administrators included, get 404).
+// One study: code, title, ethics approval and team, for its members only (others, administrators included, get 404).
 import { readStudy } from '$lib/server/studies';
+import { ethicsState } from '$lib/server/study-records';
 import type { PageServerLoad } from './$types';
 
-export const load: PageServerLoad = async (event) => ({ study: await readStudy(event, event.params.id) });
+export const load: PageServerLoad = async (event) => {
+	const study = await readStudy(event, event.params.id);
+	return { study, ethics: ethicsState(study.ethicsExpiresOn) };
+};

@@ -1,0 +1,309 @@
+// Participants of a study: research data for the whole team, personal data (name, e-mail, phone) only for
+// roles allowed 'participant.personal.read'; codes are issued from the study's counter in one transaction.
+import type { RequestEvent } from '@sveltejs/kit';
+import { error } from '@sveltejs/kit';
+import { Op, type WhereOptions } from 'sequelize';
+import { z } from 'zod';
+import { db } from './db/index';
+import { Participant, ParticipantLength, ParticipantPersonal, Study, type Sex } from './db/models';
+import { may } from './access';
+import { record } from './audit';
+import { isUuid } from './studies';
+import { contextOf, fieldErrors, FormProblem, guardStudy } from './study-records';
+import { LENGTH_KEYS, participantBodySchema } from '../anthropometry/scale';
+
+export const PAGE_SIZE = 25;
+export const SORTS = ['code', 'created', 'mass', 'stature'] as const;
+export type Sort = (typeof SORTS)[number];
+const SORT_COLUMNS: Record<Sort, string> = { code: 'code', created: 'createdAt', mass: 'bodyMassKg', stature: 'statureM' };
+
+export interface Personal {
+	fullName: string | null;
+	email: string | null;
+	phone: string | null;
+}
+
+export interface ParticipantRow {
+	id: string;
+	code: string;
+	sex: Sex;
+	birthYear: number | null;
+	bodyMassKg: number;
+	statureM: number;
+	createdOn: string;
+	/** Present only for roles that may read personal data. */
+	personal?: Personal;
+}
+
+export interface ListQuery {
+	q: string;
+	sort: Sort;
+	dir: 'asc' | 'desc';
+	page: number;
+}
+
+export function parseListQuery(url: URL): ListQuery {
+	const sort = (SORTS as readonly string[]).includes(url.searchParams.get('sort') ?? '') ? (url.searchParams.get('sort') as Sort) : 'code';
+	const dir = url.searchParams.get('dir') === 'desc' ? 'desc' : 'asc';
+	const page = Math.max(1, Math.min(10_000, Number.parseInt(url.searchParams.get('page') ?? '1', 10) || 1));
+	const q = (url.searchParams.get('q') ?? '').trim().slice(0, 40);
+	return { q, sort, dir, page };
+}
+
+const personalOf = (p: ParticipantPersonal | null | undefined): Personal => ({ fullName: p?.fullName ?? null, email: p?.email ?? null, phone: p?.phone ?? null });
+
+function rowOf(p: Participant, personal: ParticipantPersonal | null | undefined, seesPersonal: boolean): ParticipantRow {
+	const row: ParticipantRow = { id: p.id, code: p.code, sex: p.sex, birthYear: p.birthYear, bodyMassKg: p.bodyMassKg, statureM: p.statureM, createdOn: p.createdAt.toISOString().slice(0, 10) };
+	if (seesPersonal) row.personal = personalOf(personal);
+	return row;
+}
+
+/** The study's participants, searched by code on the server, sorted and paged. */
+export async function listParticipants(event: RequestEvent, rawId: string) {
+	const { actor, study } = await guardStudy(event, 'study.read', rawId);
+	const query = parseListQuery(event.url);
+	const seesPersonal = may(actor, 'participant.personal.read', study.id);
+	const where: WhereOptions<Participant> = { studyId: study.id };
+	if (query.q) Object.assign(where, { code: { [Op.iLike]: `%${query.q.replace(/[\\%_]/g, (c) => '\\' + c)}%` } });
+	const { rows, count } = await Participant.findAndCountAll({
+		where,
+		order: [[SORT_COLUMNS[query.sort], query.dir.toUpperCase()], ['code', 'ASC']],
+		limit: PAGE_SIZE,
+		offset: (query.page - 1) * PAGE_SIZE
+	});
+	const personal = seesPersonal && rows.length ? await ParticipantPersonal.findAll({ where: { participantId: rows.map((r) => r.id) } }) : [];
+	const byId = new Map(personal.map((p) => [p.participantId, p]));
+	return {
+		study: { id: study.id, code: study.code, title: study.title },
+		query,
+		total: count,
+		pages: Math.max(1, Math.ceil(count / PAGE_SIZE)),
+		seesPersonal,
+		mayCreate: may(actor, 'participant.create', study.id),
+		participants: rows.map((p) => rowOf(p, byId.get(p.id), seesPersonal))
+	};
+}
+
+const body = participantBodySchema.shape;
+const optionalText = (max: number, label: string) =>
+	z
+		.string()
+		.trim()
+		.max(max, `Keep ${label} under ${max} characters.`)
+		.transform((v) => v || null);
+const thisYear = new Date().getUTCFullYear();
+const numberField = (label: string) => z.string().trim().min(1, `Enter ${label}.`).transform(Number);
+
+const participantSchema = z.object({
+	sex: body.sex,
+	// the ranges are those of participantBodySchema (the scaling code refuses anything outside them)
+	bodyMassKg: numberField('the body mass in kg').pipe(body.bodyMass),
+	statureM: numberField('the stature in m').pipe(body.stature),
+	birthYear: z
+		.string()
+		.trim()
+		.refine((v) => v === '' || (/^\d{4}$/.test(v) && Number(v) >= 1900 && Number(v) <= thisYear), `Enter a year between 1900 and ${thisYear}, or leave it empty.`)
+		.transform((v) => (v ? Number(v) : null)),
+	dominantSide: z.enum(['', 'left', 'right'], { error: 'Choose left, right or not recorded.' }).transform((v) => v || null),
+	notes: optionalText(2000, 'the notes'),
+	fullName: optionalText(200, 'the name'),
+	email: z
+		.string()
+		.trim()
+		.toLowerCase()
+		.refine((v) => v === '' || z.email().safeParse(v).success, 'Enter an e-mail address such as name@example.org, or leave it empty.')
+		.transform((v) => v || null),
+	phone: z
+		.string()
+		.trim()
+		.refine((v) => v === '' || /^\+?[0-9 ()\-/.]{5,30}$/.test(v), 'Enter a phone number of digits, spaces and + ( ) - only, or leave it empty.')
+		.transform((v) => v || null)
+});
+export type ParticipantInput = z.infer<typeof participantSchema>;
+const FIELDS = Object.keys(participantSchema.shape) as (keyof typeof participantSchema.shape)[];
+
+const personalSchema = participantSchema.pick({ fullName: true, email: true, phone: true });
+
+/** Corrects a participant's personal data; the audit row names the fields that changed, never their values. */
+export async function savePersonal(event: RequestEvent, rawId: string, rawPid: string, form: FormData): Promise<void> {
+	const { actor, study } = await guardStudy(event, 'participant.personal.edit', rawId);
+	const p = await participantIn(study.id, rawPid);
+	const r = personalSchema.safeParse({ fullName: String(form.get('fullName') ?? ''), email: String(form.get('email') ?? ''), phone: String(form.get('phone') ?? '') });
+	if (!r.success) throw new FormProblem(fieldErrors(r.error.issues));
+	await db().transaction(async (transaction) => {
+		const [row] = await ParticipantPersonal.findOrCreate({ where: { participantId: p.id }, defaults: { participantId: p.id, fullName: null, email: null, phone: null }, transaction });
+		const changed = (['fullName', 'email', 'phone'] as const).filter((k) => row[k] !== r.data[k]);
+		if (changed.length === 0) return;
+		await row.update(r.data, { transaction });
+		await record(
+			{
+				action: 'participant.personal.changed',
+				actorUserId: actor.id,
+				actorLabel: actor.email,
+				studyId: study.id,
+				recordType: 'participant',
+				recordId: p.id,
+				ipAddress: contextOf(event).ip,
+				details: { code: p.code, changed }
+			},
+			transaction
+		);
+	});
+}
+
+export function parseParticipant(form: FormData): ParticipantInput {
+	const raw = Object.fromEntries(FIELDS.map((k) => [k, String(form.get(k) ?? '')]));
+	const r = participantSchema.safeParse(raw);
+	if (!r.success) throw new FormProblem(fieldErrors(r.error.issues));
+	return r.data;
+}
+
+export const formatCode = (prefix: string, n: number) => `${prefix}-${String(n).padStart(3, '0')}`;
+
+/** Adds a participant with the next code of the study; personal data goes to its own table. Audited. */
+export async function createParticipant(event: RequestEvent, rawId: string, form: FormData): Promise<{ id: string; code: string }> {
+	const { actor, study } = await guardStudy(event, 'participant.create', rawId);
+	const input = parseParticipant(form);
+	return db().transaction(async (transaction) => {
+		// the row lock makes concurrent additions take turns, so codes stay sequential and unique
+		const locked = (await Study.findByPk(study.id, { transaction, lock: transaction.LOCK.UPDATE }))!;
+		const prefix = locked.participantPrefix ?? locked.code.replace(/[^A-Z]/gi, '').slice(0, 3).toUpperCase();
+		const n = locked.nextParticipantNumber;
+		const code = formatCode(prefix, n);
+		await locked.update({ nextParticipantNumber: n + 1 }, { transaction });
+		const p = await Participant.create(
+			{
+				studyId: study.id,
+				code,
+				sex: input.sex,
+				birthYear: input.birthYear,
+				bodyMassKg: input.bodyMassKg,
+				statureM: input.statureM,
+				dominantSide: input.dominantSide,
+				notes: input.notes
+			},
+			{ transaction }
+		);
+		await ParticipantPersonal.create({ participantId: p.id, fullName: input.fullName, email: input.email, phone: input.phone }, { transaction });
+		await record(
+			{
+				action: 'participant.created',
+				actorUserId: actor.id,
+				actorLabel: actor.email,
+				studyId: study.id,
+				recordType: 'participant',
+				recordId: p.id,
+				ipAddress: contextOf(event).ip,
+				// which personal fields were entered, never their values
+				details: { code, personalFields: (['fullName', 'email', 'phone'] as const).filter((k) => input[k] !== null) }
+			},
+			transaction
+		);
+		return { id: p.id, code };
+	});
+}
+
+export interface LengthView {
+	id: string;
+	segment: string;
+	lengthM: number;
+	measuredOn: string;
+	latest: boolean;
+}
+
+/** One participant of the study in the URL (another study's participant answers 404). */
+async function participantIn(studyId: string, rawPid: string): Promise<Participant> {
+	const p = isUuid(rawPid) ? await Participant.findOne({ where: { id: rawPid.toLowerCase(), studyId } }) : null;
+	if (!p) error(404, 'Not found');
+	return p;
+}
+
+export async function readParticipant(event: RequestEvent, rawId: string, rawPid: string) {
+	const { actor, study } = await guardStudy(event, 'study.read', rawId);
+	const p = await participantIn(study.id, rawPid);
+	const seesPersonal = may(actor, 'participant.personal.read', study.id);
+	const lengths = await ParticipantLength.findAll({ where: { participantId: p.id }, order: [['segment', 'ASC'], ['measuredOn', 'DESC'], ['createdAt', 'DESC']] });
+	const seen = new Set<string>();
+	const history: LengthView[] = lengths.map((l) => {
+		const latest = !seen.has(l.segment);
+		seen.add(l.segment);
+		return { id: l.id, segment: l.segment, lengthM: l.lengthM, measuredOn: l.measuredOn, latest };
+	});
+	let personal: Personal | undefined;
+	if (seesPersonal) {
+		personal = personalOf(await ParticipantPersonal.findByPk(p.id));
+		// reading personal data is itself worth a trace
+		await record({
+			action: 'participant.personal.viewed',
+			actorUserId: actor.id,
+			actorLabel: actor.email,
+			studyId: study.id,
+			recordType: 'participant',
+			recordId: p.id,
+			ipAddress: contextOf(event).ip
+		});
+	}
+	return {
+		study: { id: study.id, code: study.code, title: study.title },
+		participant: {
+			id: p.id,
+			code: p.code,
+			sex: p.sex,
+			birthYear: p.birthYear,
+			bodyMassKg: p.bodyMassKg,
+			statureM: p.statureM,
+			dominantSide: p.dominantSide,
+			notes: p.notes,
+			createdAt: p.createdAt.toISOString()
+		},
+		lengths: history,
+		segments: LENGTH_KEYS as readonly string[],
+		seesPersonal,
+		personal,
+		mayEdit: may(actor, 'participant.edit', study.id),
+		mayEditPersonal: may(actor, 'participant.personal.edit', study.id)
+	};
+}
+
+const lengthSchema = z.object({
+	segment: z.enum(LENGTH_KEYS, { error: 'Choose a segment from the list.' }),
+	lengthM: z
+		.string()
+		.trim()
+		.min(1, 'Enter the length in m.')
+		.transform(Number)
+		.refine((v) => Number.isFinite(v) && v > 0.02 && v <= 1.2, 'Enter a length in metres between 0.02 and 1.2 m (is it in cm?).'),
+	measuredOn: z
+		.string()
+		.trim()
+		.refine((v) => /^\d{4}-\d{2}-\d{2}$/.test(v) && !Number.isNaN(Date.parse(v)), 'Enter the date of the measurement (YYYY-MM-DD).')
+		.refine((v) => v <= new Date().toISOString().slice(0, 10), 'The measurement date cannot be in the future.')
+});
+
+/** Adds one measurement to the history (earlier ones stay). */
+export async function addLength(event: RequestEvent, rawId: string, rawPid: string, form: FormData): Promise<void> {
+	const { actor, study } = await guardStudy(event, 'participant.edit', rawId);
+	const p = await participantIn(study.id, rawPid);
+	const r = lengthSchema.safeParse({
+		segment: String(form.get('segment') ?? ''),
+		lengthM: String(form.get('lengthM') ?? ''),
+		measuredOn: String(form.get('measuredOn') ?? '')
+	});
+	if (!r.success) throw new FormProblem(fieldErrors(r.error.issues));
+	await db().transaction(async (transaction) => {
+		const l = await ParticipantLength.create({ participantId: p.id, ...r.data }, { transaction });
+		await record(
+			{
+				action: 'participant.length.added',
+				actorUserId: actor.id,
+				actorLabel: actor.email,
+				studyId: study.id,
+				recordType: 'participant',
+				recordId: p.id,
+				ipAddress: contextOf(event).ip,
+				details: { lengthId: l.id, segment: l.segment, lengthM: l.lengthM, measuredOn: l.measuredOn }
+			},
+			transaction
+		);
+	});
+}

@@ -1,0 +1,173 @@
+// A study's own records: ethics approval and default segment table (PI settings) and consent form versions.
+import type { RequestEvent } from '@sveltejs/kit';
+import { error } from '@sveltejs/kit';
+import { z } from 'zod';
+import { db } from './db/index';
+import { ConsentFormVersion, Study } from './db/models';
+import { requireStudy, type StudyAction } from './access';
+import { record } from './audit';
+import { isUuid } from './studies';
+import { renderMarkdown } from './markdown';
+
+export const TABLE_IDS = ['dempster-winter-2009', 'de-leva-1996', 'zatsiorsky-regression-2002'] as const;
+export type TableId = (typeof TABLE_IDS)[number];
+
+/** Days before expiry from which the study page warns. */
+export const ETHICS_WARNING_DAYS = 30;
+
+export type EthicsState = 'none' | 'valid' | 'expiring' | 'expired';
+
+/** Where an approval stands on `today` (ISO date strings compare as dates). */
+export function ethicsState(expiresOn: string | null, today = new Date().toISOString().slice(0, 10)): { state: EthicsState; daysLeft: number | null } {
+	if (!expiresOn) return { state: 'none', daysLeft: null };
+	const daysLeft = Math.round((Date.parse(expiresOn) - Date.parse(today)) / 86_400_000);
+	if (daysLeft < 0) return { state: 'expired', daysLeft };
+	return { state: daysLeft <= ETHICS_WARNING_DAYS ? 'expiring' : 'valid', daysLeft };
+}
+
+export class FormProblem extends Error {
+	constructor(
+		public readonly errors: Record<string, string>,
+		public readonly status = 400
+	) {
+		super(Object.values(errors).join('; '));
+	}
+}
+
+/** Field messages from a zod error, first message per field. */
+export function fieldErrors(issues: z.core.$ZodIssue[]): Record<string, string> {
+	const out: Record<string, string> = {};
+	for (const i of issues) {
+		const k = String(i.path[0] ?? 'form');
+		out[k] ??= i.message;
+	}
+	return out;
+}
+
+/** Guards an action on the study in the URL; a malformed id is denied like an unknown one. */
+export async function guardStudy(event: RequestEvent, action: StudyAction, rawId: string) {
+	const id = isUuid(rawId) ? rawId.toLowerCase() : null;
+	const actor = await requireStudy(event, action, id);
+	db();
+	const study = await Study.findByPk(id!);
+	if (!study) error(404, 'Not found');
+	return { actor, study };
+}
+
+export const contextOf = (event: RequestEvent) => ({ ip: event.getClientAddress() });
+
+const ISO_DATE = /^\d{4}-\d{2}-\d{2}$/;
+const settingsSchema = z.object({
+	ethicsReference: z.string().trim().max(200, 'Keep the ethics reference under 200 characters.').transform((v) => v || null),
+	ethicsExpiresOn: z
+		.string()
+		.trim()
+		.refine((v) => v === '' || (ISO_DATE.test(v) && !Number.isNaN(Date.parse(v))), 'Enter the expiry as a date (YYYY-MM-DD), or leave it empty.')
+		.transform((v) => v || null),
+	defaultTable: z.enum(TABLE_IDS, { error: 'Choose one of the listed segment tables.' })
+});
+
+export interface StudySettings {
+	ethicsReference: string | null;
+	ethicsExpiresOn: string | null;
+	defaultTable: TableId;
+}
+
+export function parseSettings(form: FormData): StudySettings {
+	const r = settingsSchema.safeParse({
+		ethicsReference: String(form.get('ethicsReference') ?? ''),
+		ethicsExpiresOn: String(form.get('ethicsExpiresOn') ?? ''),
+		defaultTable: String(form.get('defaultTable') ?? '')
+	});
+	if (!r.success) throw new FormProblem(fieldErrors(r.error.issues));
+	return r.data;
+}
+
+/** The PI changes the ethics approval and default table; the change and its old values are audited. */
+export async function saveSettings(event: RequestEvent, rawId: string, form: FormData): Promise<void> {
+	const { actor, study } = await guardStudy(event, 'study.edit', rawId);
+	const next = parseSettings(form);
+	const before = { ethicsReference: study.ethicsReference ?? null, ethicsExpiresOn: study.ethicsExpiresOn ?? null, defaultTable: study.defaultTable };
+	await db().transaction(async (transaction) => {
+		await study.update(next, { transaction });
+		await record(
+			{
+				action: 'study.settings.changed',
+				actorUserId: actor.id,
+				actorLabel: actor.email,
+				studyId: study.id,
+				recordType: 'study',
+				recordId: study.id,
+				ipAddress: contextOf(event).ip,
+				details: { before, after: next }
+			},
+			transaction
+		);
+	});
+}
+
+export interface ConsentVersionView {
+	id: string;
+	version: number;
+	bodyMarkdown: string;
+	bodyHtml: string;
+	confirmations: string[];
+	publishedAt: string;
+}
+
+export async function listConsentVersions(studyId: string): Promise<ConsentVersionView[]> {
+	db();
+	const rows = await ConsentFormVersion.findAll({ where: { studyId }, order: [['version', 'DESC']] });
+	return rows.map((v) => ({
+		id: v.id,
+		version: v.version,
+		bodyMarkdown: v.bodyMarkdown,
+		bodyHtml: renderMarkdown(v.bodyMarkdown),
+		confirmations: v.confirmations,
+		publishedAt: v.publishedAt.toISOString()
+	}));
+}
+
+const consentSchema = z.object({
+	bodyMarkdown: z.string().trim().min(1, 'Write the text of the consent form.').max(50_000, 'Keep the consent form under 50,000 characters.'),
+	confirmations: z
+		.array(z.string().max(500, 'Keep each confirmation statement under 500 characters.'))
+		.min(1, 'Give at least one confirmation statement, one per line.')
+		.max(20, 'Give at most 20 confirmation statements.')
+});
+
+/** Publishes a new version (the next number); earlier versions are never touched. */
+export async function publishConsentVersion(event: RequestEvent, rawId: string, form: FormData): Promise<number> {
+	const { actor, study } = await guardStudy(event, 'consent.publish', rawId);
+	const r = consentSchema.safeParse({
+		bodyMarkdown: String(form.get('bodyMarkdown') ?? ''),
+		confirmations: String(form.get('confirmations') ?? '')
+			.split(/\r?\n/)
+			.map((l) => l.trim())
+			.filter(Boolean)
+	});
+	if (!r.success) throw new FormProblem(fieldErrors(r.error.issues));
+	return db().transaction(async (transaction) => {
+		// lock the study row so that two PIs publishing at once cannot take the same number
+		await Study.findByPk(study.id, { transaction, lock: transaction.LOCK.UPDATE });
+		const last = (await ConsentFormVersion.max<number, ConsentFormVersion>('version', { where: { studyId: study.id }, transaction })) ?? 0;
+		const v = await ConsentFormVersion.create(
+			{ studyId: study.id, version: last + 1, bodyMarkdown: r.data.bodyMarkdown, confirmations: r.data.confirmations, publishedBy: actor.id },
+			{ transaction }
+		);
+		await record(
+			{
+				action: 'consent_form.published',
+				actorUserId: actor.id,
+				actorLabel: actor.email,
+				studyId: study.id,
+				recordType: 'consent_form_version',
+				recordId: v.id,
+				ipAddress: contextOf(event).ip,
+				details: { version: v.version }
+			},
+			transaction
+		);
+		return v.version;
+	});
+}

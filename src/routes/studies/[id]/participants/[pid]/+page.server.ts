@@ -1,0 +1,39 @@
+// One participant: research data, measured segment lengths (history) and, for PI and technicians, personal data.
+import { fail, redirect } from '@sveltejs/kit';
+import { addLength, readParticipant, savePersonal } from '$lib/server/participants';
+import { FormProblem } from '$lib/server/study-records';
+import type { Actions, PageServerLoad } from './$types';
+
+export const load: PageServerLoad = async (event) => ({
+	...(await readParticipant(event, event.params.id, event.params.pid)),
+	added: event.url.searchParams.get('added'),
+	saved: event.url.searchParams.get('saved'),
+	today: new Date().toISOString().slice(0, 10)
+});
+
+export const actions: Actions = {
+	length: async (event) => {
+		const form = await event.request.formData();
+		try {
+			await addLength(event, event.params.id, event.params.pid, form);
+		} catch (err) {
+			if (err instanceof FormProblem) {
+				return fail(err.status, { personal: false, values: Object.fromEntries([...form.entries()].map(([k, v]) => [k, String(v)])), errors: err.errors });
+			}
+			throw err;
+		}
+		redirect(303, `/studies/${event.params.id}/participants/${event.params.pid}`);
+	},
+	personal: async (event) => {
+		const form = await event.request.formData();
+		try {
+			await savePersonal(event, event.params.id, event.params.pid, form);
+		} catch (err) {
+			if (err instanceof FormProblem) {
+				return fail(err.status, { personal: true, values: Object.fromEntries([...form.entries()].map(([k, v]) => [k, String(v)])), errors: err.errors });
+			}
+			throw err;
+		}
+		redirect(303, `/studies/${event.params.id}/participants/${event.params.pid}?saved=personal`);
+	}
+};
