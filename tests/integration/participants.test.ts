@@ -220,3 +220,15 @@ describe('study settings', () => {
 		expect(html).toContain('Choose one of the listed segment tables.');
 	});
 });
+
+describe('segment model page', () => {
+	it('scales the participant with the chosen table, uses measured lengths, and shows no personal data', async () => {
+		const res = await fetch(`${app.base}/studies/${studyA}/participants/${ald001}/model?table=dempster-winter-2009&limb=right.leg`, { headers: { cookie: app.cookies.researcherA } });
+		expect(res.status).toBe(200);
+		const html = await res.text();
+		expect(html).toContain('Dempster (1955), as tabulated by Winter (2009)');
+		expect(html).toContain('role="img"');
+		expect(html).toContain('Right thigh');
+		for (const secret of personalStrings) expect(html).not.toContain(secret);
+	});
+});

@@ -307,3 +307,23 @@ export async function addLength(event: RequestEvent, rawId: string, rawPid: stri
 		);
 	});
 }
+
+/** What the segment-model page needs: the participant's research fields and latest measured lengths (no personal data). */
+export async function segmentModelInput(event: RequestEvent, rawId: string, rawPid: string) {
+	const { study } = await guardStudy(event, 'study.read', rawId);
+	const p = await participantIn(study.id, rawPid);
+	const lengths = await ParticipantLength.findAll({ where: { participantId: p.id }, order: [['measuredOn', 'DESC'], ['createdAt', 'DESC']] });
+	const measured: Record<string, number> = {};
+	const measuredOn: Record<string, string> = {};
+	for (const l of lengths) {
+		if (l.segment in measured) continue; // the latest measurement of each segment is used
+		measured[l.segment] = l.lengthM;
+		measuredOn[l.segment] = l.measuredOn;
+	}
+	return {
+		study: { id: study.id, code: study.code, title: study.title, defaultTable: study.defaultTable },
+		participant: { id: p.id, code: p.code, sex: p.sex, bodyMassKg: p.bodyMassKg, statureM: p.statureM },
+		measured,
+		measuredOn
+	};
+}
