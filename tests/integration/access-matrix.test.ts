@@ -2,7 +2,6 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import fs from 'node:fs';
 import path from 'node:path';
-import pg from 'pg';
 import { MATRIX, EXEMPT_ACTIONS, type MatrixEntry, type ParamRef } from './access-matrix';
 import { PERSONAS, startApp, type AppUnderTest, type Persona } from './app-under-test';
 
@@ -61,14 +60,7 @@ describe('every route answers each persona as the matrix says', () => {
 	const refs = new Map<ParamRef, string>();
 	beforeAll(async () => {
 		app = await startApp('matrix');
-		const c = new pg.Client({ connectionString: app.url });
-		await c.connect();
-		const { rows } = await c.query(`SELECT id, code FROM studies`);
-		refs.set('studyA', rows.find((r) => r.code === 'SHELF-REACH').id);
-		refs.set('studyB', rows.find((r) => r.code === 'KNEE-60').id);
-		const participants = await c.query(`SELECT id FROM participants WHERE code = 'ALD-001'`);
-		refs.set('participantA', participants.rows[0].id);
-		await c.end();
+		for (const [ref, id] of Object.entries(app.ids)) refs.set(ref as ParamRef, id);
 	});
 	afterAll(async () => app?.close());
 

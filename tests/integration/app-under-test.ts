@@ -1,5 +1,6 @@
 // Starts the built app against a fresh, migrated and seeded database, and signs demo personas in over HTTP.
 import fs from 'node:fs';
+import pg from 'pg';
 import { freshDatabase } from './helpers';
 import { freePort, start, stop, waitForPort, type Child } from '../../src/cli/lib/proc';
 import { prepareDatabase } from '../../src/cli/lib/prepare-db';
@@ -15,10 +16,20 @@ export const PERSONAS = {
 } as const;
 export type Persona = keyof typeof PERSONAS;
 
+/** Ids of the seeded demo records the tests refer to. */
+export interface DemoIds {
+	studyA: string; // SHELF-REACH
+	studyB: string; // KNEE-60
+	participantA: string; // ALD-001 of SHELF-REACH
+}
+
 export interface AppUnderTest {
 	base: string;
 	url: string;
 	app: Child;
+	/** A connected client on the app's database, closed by close(). */
+	sql: pg.Client;
+	ids: DemoIds;
 	/** Cookie header of each signed-in persona. */
 	cookies: Record<Persona, string>;
 	close(): Promise<void>;
@@ -54,6 +65,14 @@ export async function startApp(label: string): Promise<AppUnderTest> {
 		env: { ...process.env, DATABASE_URL: fresh.url, HOST: '127.0.0.1', PORT: String(port), ORIGIN: base }
 	});
 	await waitForPort(port, '127.0.0.1', 30_000, app);
+	const sql = new pg.Client({ connectionString: fresh.url });
+	await sql.connect();
+	const studies = (await sql.query<{ id: string; code: string }>(`SELECT id, code FROM studies`)).rows;
+	const ids: DemoIds = {
+		studyA: studies.find((r) => r.code === 'SHELF-REACH')!.id,
+		studyB: studies.find((r) => r.code === 'KNEE-60')!.id,
+		participantA: (await sql.query<{ id: string }>(`SELECT id FROM participants WHERE code = 'ALD-001'`)).rows[0].id
+	};
 	const cookies = { anonymous: '' } as Record<Persona, string>;
 	for (const [persona, email] of Object.entries(PERSONAS)) {
 		if (!email) continue;
@@ -65,8 +84,11 @@ export async function startApp(label: string): Promise<AppUnderTest> {
 		base,
 		url: fresh.url,
 		app,
+		sql,
+		ids,
 		cookies,
 		close: async () => {
+			await sql.end();
 			await stop(app);
 			await fresh.drop();
 		}

@@ -13,14 +13,10 @@ let studyB: string;
 
 beforeAll(async () => {
 	app = await startApp('audit_studies');
-	dbc = new pg.Client({ connectionString: app.url });
-	await dbc.connect();
-	const { rows } = await dbc.query<{ id: string; code: string }>(`SELECT id, code FROM studies`);
-	studyA = rows.find((r) => r.code === 'SHELF-REACH')!.id;
-	studyB = rows.find((r) => r.code === 'KNEE-60')!.id;
+	dbc = app.sql;
+	({ studyA, studyB } = app.ids);
 });
 afterAll(async () => {
-	await dbc?.end();
 	await app?.close();
 });
 

@@ -19,15 +19,11 @@ let ald001: string;
 
 beforeAll(async () => {
 	app = await startApp('participants');
-	dbc = new pg.Client({ connectionString: app.url });
-	await dbc.connect();
-	const { rows } = await dbc.query<{ id: string; code: string }>(`SELECT id, code FROM studies`);
-	studyA = rows.find((r) => r.code === 'SHELF-REACH')!.id;
-	studyB = rows.find((r) => r.code === 'KNEE-60')!.id;
-	ald001 = (await dbc.query<{ id: string }>(`SELECT id FROM participants WHERE code = 'ALD-001'`)).rows[0].id;
+	dbc = app.sql;
+	({ studyA, studyB } = app.ids);
+	ald001 = app.ids.participantA;
 });
 afterAll(async () => {
-	await dbc?.end();
 	await app?.close();
 });
 

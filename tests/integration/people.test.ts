@@ -320,12 +320,10 @@ describe('over HTTP against the built app', () => {
 
 	beforeAll(async () => {
 		app = await startApp('people_http');
-		client = new pg.Client({ connectionString: app.url });
-		await client.connect();
-		studyA = (await client.query(`SELECT id FROM studies WHERE code = 'SHELF-REACH'`)).rows[0].id;
+		client = app.sql;
+		studyA = app.ids.studyA;
 	});
 	afterAll(async () => {
-		await client?.end();
 		await app?.close();
 	});
 

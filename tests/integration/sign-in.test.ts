@@ -10,11 +10,9 @@ let sql: pg.Client;
 
 beforeAll(async () => {
 	app = await startApp('signin');
-	sql = new pg.Client({ connectionString: app.url });
-	await sql.connect();
+	sql = app.sql;
 });
 afterAll(async () => {
-	await sql?.end();
 	await app?.close();
 });
 
