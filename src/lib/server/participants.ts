@@ -211,6 +211,17 @@ export interface LengthView {
 	latest: boolean;
 }
 
+/** Every measured length, by segment, newest first; `latest` marks the one scaling uses. */
+async function lengthHistory(participantId: string): Promise<LengthView[]> {
+	const lengths = await ParticipantLength.findAll({ where: { participantId }, order: [['segment', 'ASC'], ['measuredOn', 'DESC'], ['createdAt', 'DESC']] });
+	const seen = new Set<string>();
+	return lengths.map((l) => {
+		const latest = !seen.has(l.segment);
+		seen.add(l.segment);
+		return { id: l.id, segment: l.segment, lengthM: l.lengthM, measuredOn: l.measuredOn, latest };
+	});
+}
+
 /** One participant of the study in the URL (another study's participant answers 404). */
 async function participantIn(studyId: string, rawPid: string): Promise<Participant> {
 	const p = isUuid(rawPid) ? await Participant.findOne({ where: { id: rawPid.toLowerCase(), studyId } }) : null;
@@ -222,13 +233,7 @@ export async function readParticipant(event: RequestEvent, rawId: string, rawPid
 	const { actor, study } = await guardStudy(event, 'study.read', rawId);
 	const p = await participantIn(study.id, rawPid);
 	const seesPersonal = may(actor, 'participant.personal.read', study.id);
-	const lengths = await ParticipantLength.findAll({ where: { participantId: p.id }, order: [['segment', 'ASC'], ['measuredOn', 'DESC'], ['createdAt', 'DESC']] });
-	const seen = new Set<string>();
-	const history: LengthView[] = lengths.map((l) => {
-		const latest = !seen.has(l.segment);
-		seen.add(l.segment);
-		return { id: l.id, segment: l.segment, lengthM: l.lengthM, measuredOn: l.measuredOn, latest };
-	});
+	const history = await lengthHistory(p.id);
 	let personal: Personal | undefined;
 	if (seesPersonal) {
 		personal = personalOf(await ParticipantPersonal.findByPk(p.id));
@@ -312,11 +317,10 @@ export async function addLength(event: RequestEvent, rawId: string, rawPid: stri
 export async function segmentModelInput(event: RequestEvent, rawId: string, rawPid: string) {
 	const { study } = await guardStudy(event, 'study.read', rawId);
 	const p = await participantIn(study.id, rawPid);
-	const lengths = await ParticipantLength.findAll({ where: { participantId: p.id }, order: [['measuredOn', 'DESC'], ['createdAt', 'DESC']] });
 	const measured: Record<string, number> = {};
 	const measuredOn: Record<string, string> = {};
-	for (const l of lengths) {
-		if (l.segment in measured) continue; // the latest measurement of each segment is used
+	for (const l of await lengthHistory(p.id)) {
+		if (!l.latest) continue;
 		measured[l.segment] = l.lengthM;
 		measuredOn[l.segment] = l.measuredOn;
 	}

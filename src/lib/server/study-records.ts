@@ -9,8 +9,11 @@ import { record } from './audit';
 import { isUuid } from './studies';
 import { renderMarkdown } from './markdown';
 
-export const TABLE_IDS = ['dempster-winter-2009', 'de-leva-1996', 'zatsiorsky-regression-2002'] as const;
-export type TableId = (typeof TABLE_IDS)[number];
+import { SEGMENT_TABLE_IDS, type SegmentTableId } from '../anthropometry/tables';
+
+// the segment tables a study may choose are the ones the anthropometry module publishes
+export const TABLE_IDS = SEGMENT_TABLE_IDS as [SegmentTableId, ...SegmentTableId[]];
+export type TableId = SegmentTableId;
 
 /** Days before expiry from which the study page warns. */
 export const ETHICS_WARNING_DAYS = 30;
