@@ -22,7 +22,22 @@ export const STUDY_ACTIONS = {
 	'consent.publish': ['pi'],
 	'participant.create': ['pi', 'technician'],
 	'participant.edit': ['pi', 'technician'],
-	'participant.personal.edit': ['pi', 'technician']
+	'participant.personal.edit': ['pi', 'technician'],
+	'participant.import': ['pi', 'technician'],
+	// e-mailed consent: sending invitations and reminders; the PI's decision on results after a withdrawal
+	'consent.invite': ['pi', 'technician'],
+	'consent.decide': ['pi'],
+	// sessions, trials (uploads), column-mapping presets and processing runs
+	'session.create': ['pi', 'technician'],
+	'session.edit': ['pi', 'technician'],
+	'trial.upload': ['pi', 'technician'],
+	'mapping.preset': ['pi', 'technician'],
+	'run.start': ['pi', 'researcher', 'technician'],
+	// review workflow: researchers submit, the PI approves, returns or reopens; exports of approved sessions
+	'session.submit': ['researcher', 'pi'],
+	'session.approve': ['pi'],
+	'session.reopen': ['pi'],
+	'session.export': ['pi', 'researcher']
 } as const satisfies Record<string, readonly StudyRole[]>;
 export type LabAction = (typeof LAB_ACTIONS)[number];
 export type StudyAction = keyof typeof STUDY_ACTIONS;
