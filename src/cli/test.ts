@@ -11,7 +11,12 @@ import { prepareDatabase } from './lib/prepare-db';
 
 const log = (m: string) => console.log(`[test] ${m}`);
 const args = process.argv.slice(2);
-const only = (name: string) => args.length === 0 || args.includes(name);
+// `npm test -- vitest`, `npm test -- e2e`, or test files (`npm test -- tests/integration/x.test.ts tests/e2e/y.spec.ts`)
+const files = args.filter((a) => a !== 'vitest' && a !== 'e2e');
+const vitestFiles = files.filter((f) => f.endsWith('.test.ts'));
+const e2eFiles = files.filter((f) => f.endsWith('.spec.ts'));
+const only = (name: 'vitest' | 'e2e') =>
+	args.length === 0 || args.includes(name) || (name === 'vitest' ? vitestFiles.length > 0 : e2eFiles.length > 0);
 
 interface Counts {
 	passed: number;
@@ -68,7 +73,7 @@ async function main(): Promise<number> {
 
 		if (only('vitest')) {
 			const out = path.join(tmp, 'vitest.json');
-			run([process.execPath, 'node_modules/vitest/vitest.mjs', 'run', '--reporter=default', '--reporter=json', `--outputFile.json=${out}`], env);
+			run([process.execPath, 'node_modules/vitest/vitest.mjs', 'run', '--reporter=default', '--reporter=json', `--outputFile.json=${out}`, ...vitestFiles], env);
 			const r = readJson(out);
 			if (r) {
 				total.passed += Number(r.numPassedTests ?? 0);
@@ -83,7 +88,7 @@ async function main(): Promise<number> {
 		if (only('e2e')) {
 			await prepareDatabase(cluster.url, { seed: true, log });
 			const out = path.join(tmp, 'playwright.json');
-			run([process.execPath, 'node_modules/@playwright/test/cli.js', 'test', '--reporter=list,json'], {
+			run([process.execPath, 'node_modules/@playwright/test/cli.js', 'test', '--reporter=list,json', ...e2eFiles], {
 				...env,
 				PLAYWRIGHT_JSON_OUTPUT_NAME: out
 			});
