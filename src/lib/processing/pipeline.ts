@@ -1,0 +1,296 @@
+// From a parsed recording to joint moments: filter, differentiate, batch inverse dynamics, per-DOF summary.
+import { z } from 'zod';
+import { compileModel, createWorkspace, inverseDynamicsBatch, PRISMATIC, type Vec3 } from '../dynamics/index';
+import type { Recording } from './recording';
+import type { SessionModel } from './session-model';
+import { differentiate, fillGaps, lowPassZeroLag, MIN_SAMPLES_FOR_FILTER, SignalError } from './signal';
+
+const finite = z.number({ error: 'must be a number' }).refine(Number.isFinite, 'must be a finite number');
+const cutoff = finite.refine((v) => v > 0, 'must be a positive frequency in Hz');
+
+export const runOptionsSchema = z.object({
+	/** Low-pass cutoff for every channel, Hz (zero-lag Butterworth); null = no filter. */
+	cutoffHz: cutoff.nullable().default(6),
+	/** Per-channel cutoffs (channel name → Hz), overriding cutoffHz for those channels. */
+	perChannelCutoffHz: z.record(z.string(), cutoff).optional(),
+	/** Fill short gaps (empty cells) by cubic interpolation before filtering. */
+	fillGaps: z.boolean().default(false),
+	/** Gravity in lab axes, m/s²; default the session set-up's. */
+	gravity: z.tuple([finite, finite, finite]).optional()
+});
+export type RunOptions = z.infer<typeof runOptionsSchema>;
+export type RunOptionsInput = z.input<typeof runOptionsSchema>;
+
+export const PIPELINE_STAGES = ['filter', 'differentiate', 'dynamics', 'summary'] as const;
+export type PipelineStage = (typeof PIPELINE_STAGES)[number];
+
+export interface DofSeries {
+	name: string;
+	/** Sign rule of the angle; a positive moment acts on the distal segment in the same rotational sense. */
+	positive: string;
+	/** rad, rad/s, rad/s² (m, m/s, m/s² for a prismatic DOF). */
+	angle: Float64Array;
+	velocity: Float64Array;
+	acceleration: Float64Array;
+	/** Internal joint moment, proximal segment on distal segment, about this DOF's axis: N·m (N for a prismatic DOF). */
+	moment: Float64Array;
+	momentUnit: 'N·m' | 'N';
+	/** moment / body mass, N·m/kg. */
+	momentPerKg: Float64Array;
+	/** moment × angular velocity, W (positive: the joint moment does positive work on the distal segment). */
+	power: Float64Array;
+}
+
+export interface SummaryRow {
+	dof: string;
+	quantity: 'moment' | 'angle' | 'power';
+	peakPositive: number;
+	peakPositiveTime: number;
+	peakNegative: number;
+	peakNegativeTime: number;
+	range: number;
+	mean: number;
+	unit: string;
+}
+
+export interface PipelineResult {
+	time: Float64Array;
+	sampleHz: number;
+	dofs: DofSeries[];
+	/** Prescribed base coordinates (moving bases): kinematics only. */
+	base: { name: string; unit: 'm' | 'rad'; value: Float64Array; velocity: Float64Array; acceleration: Float64Array }[];
+	/** Per joint centre: force the proximal segment (or base) exerts on the distal one, ground axes, interleaved x y z, N. */
+	reactions: { joint: string; force: Float64Array }[];
+	summary: SummaryRow[];
+	/** Milliseconds per stage. */
+	timings: Record<string, number>;
+	/** What was applied, for provenance: cutoff per channel (null = unfiltered), gravity. */
+	applied: { cutoffHz: Record<string, number | null>; gravity: Vec3; filledGaps: Record<string, number> };
+}
+
+export class PipelineError extends Error {
+	constructor(message: string) {
+		super(message);
+		this.name = 'PipelineError';
+	}
+}
+
+const now = () => (typeof performance !== 'undefined' ? performance.now() : Date.now());
+/** Frames per inverse-dynamics block: small interleaved buffers instead of whole-recording copies. */
+const BLOCK = 2048;
+
+/**
+ * Runs the processing chain on a recording whose channels are in `built.expected` order (SI units).
+ * onProgress(fraction 0…1 of the whole run, stage) is called as each stage starts and during the dynamics.
+ */
+export function runPipeline(
+	built: SessionModel,
+	rec: Recording,
+	optionsInput: RunOptionsInput | RunOptions = {},
+	onProgress?: (fraction: number, stage: string) => void
+): PipelineResult {
+	const parsed = runOptionsSchema.safeParse(optionsInput);
+	if (!parsed.success) throw new PipelineError(`run options: ${parsed.error.issues.map((i) => `${i.path.join('.') || 'options'}: ${i.message}`).join('; ')}`);
+	const options = parsed.data;
+	const timings: Record<string, number> = {};
+	const progress = onProgress ?? (() => {});
+	const weights: Record<PipelineStage, [number, number]> = { filter: [0, 0.1], differentiate: [0.1, 0.2], dynamics: [0.2, 0.95], summary: [0.95, 1] };
+	const report = (stage: PipelineStage, within: number) => progress(weights[stage][0] + (weights[stage][1] - weights[stage][0]) * within, stage);
+
+	const frames = rec.time.length;
+	const n = built.dofs.length;
+	if (rec.channels.length !== n)
+		throw new PipelineError(`the recording has ${rec.channels.length} channels; the session model needs ${n} (${built.expected.map((e) => e.name).join(', ')})`);
+	built.expected.forEach((e, j) => {
+		const ch = rec.channels[j];
+		if (ch.name !== e.name) throw new PipelineError(`channel ${j + 1} is "${ch.name}"; the session model expects "${e.name}" there`);
+		if (ch.values.length !== frames) throw new PipelineError(`channel "${ch.name}" has ${ch.values.length} samples; the time column has ${frames}`);
+	});
+	if (!(rec.sampleHz > 0) || !Number.isFinite(rec.sampleHz)) throw new PipelineError(`sampling rate ${rec.sampleHz} Hz is not a positive number`);
+	if (frames < 4) throw new PipelineError(`the recording has ${frames} samples; differentiation needs at least 4`);
+	for (const name of Object.keys(options.perChannelCutoffHz ?? {}))
+		if (!built.dofs.some((d) => d.name === name)) throw new PipelineError(`perChannelCutoffHz names "${name}", which is not a channel of this session (${built.expected.map((e) => e.name).join(', ')})`);
+	const dt = 1 / rec.sampleHz;
+	const nyquist = rec.sampleHz / 2;
+
+	// 1. gaps and filter
+	let t0 = now();
+	report('filter', 0);
+	const cutoffs: Record<string, number | null> = {};
+	const filledGaps: Record<string, number> = {};
+	const angle: Float64Array[] = [];
+	for (let j = 0; j < n; j++) {
+		const name = built.dofs[j].name;
+		let x = rec.channels[j].values;
+		let missing = 0;
+		for (let k = 0; k < frames; k++) if (x[k] !== x[k]) missing++;
+		if (missing) {
+			if (!options.fillGaps) throw new PipelineError(`channel "${name}" has ${missing} missing samples; re-run with gap filling on, or fix the file`);
+			const r = fillGaps(x, 10);
+			if (r.tooLong.length) throw new PipelineError(`channel "${name}": a gap of ${r.tooLong[0].length} samples at sample ${r.tooLong[0].start + 1} is too long to fill`);
+			x = r.filled;
+			for (let k = 0; k < frames; k++)
+				if (x[k] !== x[k]) throw new PipelineError(`channel "${name}": sample ${k + 1} is still missing after gap filling (a gap at the start or end cannot be interpolated)`);
+			filledGaps[name] = missing;
+		}
+		const fc = options.perChannelCutoffHz?.[name] ?? options.cutoffHz;
+		cutoffs[name] = fc;
+		if (fc === null) {
+			angle.push(Float64Array.from(x));
+		} else {
+			if (fc >= nyquist) throw new PipelineError(`cutoff ${fc} Hz for "${name}" must be below half the sampling rate (${nyquist} Hz)`);
+			if (frames < MIN_SAMPLES_FOR_FILTER) throw new PipelineError(`the recording has ${frames} samples; filtering needs at least ${MIN_SAMPLES_FOR_FILTER} (or run without a filter)`);
+			try {
+				angle.push(lowPassZeroLag(x, rec.sampleHz, fc, new Float64Array(frames)));
+			} catch (e) {
+				if (e instanceof SignalError) throw new PipelineError(`channel "${name}": ${e.message}`);
+				throw e;
+			}
+		}
+		report('filter', (j + 1) / n);
+	}
+	timings.filter = now() - t0;
+
+	// 2. derivatives
+	t0 = now();
+	report('differentiate', 0);
+	const velocity: Float64Array[] = [];
+	const acceleration: Float64Array[] = [];
+	for (let j = 0; j < n; j++) {
+		const d = differentiate(angle[j], dt, { velocity: new Float64Array(frames), acceleration: new Float64Array(frames) });
+		velocity.push(d.velocity);
+		acceleration.push(d.acceleration);
+		report('differentiate', (j + 1) / n);
+	}
+	timings.differentiate = now() - t0;
+
+	// 3. inverse dynamics, block by block
+	t0 = now();
+	report('dynamics', 0);
+	const model = compileModel(built.model);
+	const gravity = (options.gravity ?? built.setup.gravity) as Vec3;
+	const ws = createWorkspace(model);
+	const reported = built.dofs.map((d, j) => ({ d, j })).filter(({ d }) => !d.base);
+	const moment = new Map<number, Float64Array>(reported.map(({ j }) => [j, new Float64Array(frames)]));
+	// one reaction per joint centre: the load on the first body of the centre's chain (its massless links pass it on unchanged)
+	const centres: { joint: string; body: number; force: Float64Array }[] = [];
+	for (const d of built.dofs) {
+		if (d.base || centres.some((c) => c.joint === d.jointCentre)) continue;
+		centres.push({ joint: d.jointCentre, body: d.body, force: new Float64Array(3 * frames) });
+	}
+	const B = Math.min(BLOCK, frames);
+	const qB = new Float64Array(B * n),
+		qdB = new Float64Array(B * n),
+		qddB = new Float64Array(B * n),
+		QB = new Float64Array(B * n),
+		fB = new Float64Array(B * n * 3);
+	const mass = built.bodyMass;
+	const perKg = new Map<number, Float64Array>(reported.map(({ j }) => [j, new Float64Array(frames)]));
+	const power = new Map<number, Float64Array>(reported.map(({ j }) => [j, new Float64Array(frames)]));
+	const batchOut = { Q: QB, force: fB };
+	const batchOpts = { gravity, reactionFrame: 'world' as const };
+	for (let k0 = 0; k0 < frames; k0 += B) {
+		const len = Math.min(B, frames - k0);
+		for (let j = 0; j < n; j++) {
+			interleave(angle[j], qB, k0, len, n, j);
+			interleave(velocity[j], qdB, k0, len, n, j);
+			interleave(acceleration[j], qddB, k0, len, n, j);
+		}
+		inverseDynamicsBatch(model, len, qB, qdB, qddB, batchOut, batchOpts, ws);
+		for (const { j } of reported) momentsOut(QB, k0, len, n, j, 1 / mass, velocity[j], moment.get(j)!, perKg.get(j)!, power.get(j)!);
+		for (const c of centres) reactionOut(fB, k0, len, n, c.body, c.force);
+		report('dynamics', (k0 + len) / frames);
+	}
+	const dofs: DofSeries[] = reported.map(({ d, j }) => ({
+		name: d.name,
+		positive: d.positive,
+		angle: angle[j],
+		velocity: velocity[j],
+		acceleration: acceleration[j],
+		moment: moment.get(j)!,
+		momentUnit: model.kind[d.body] === PRISMATIC ? 'N' : 'N·m',
+		momentPerKg: perKg.get(j)!,
+		power: power.get(j)!
+	}));
+	const base = built.dofs
+		.map((d, j) => ({ d, j }))
+		.filter(({ d }) => d.base)
+		.map(({ d, j }) => ({ name: d.name, unit: d.unit, value: angle[j], velocity: velocity[j], acceleration: acceleration[j] }));
+	timings.dynamics = now() - t0;
+
+	// 4. summary
+	t0 = now();
+	report('summary', 0);
+	const summary: SummaryRow[] = [];
+	for (const s of dofs) {
+		const prismatic = s.momentUnit === 'N';
+		summary.push(summarise(s.name, 'moment', s.moment, rec.time, s.momentUnit));
+		summary.push(summarise(s.name, 'angle', s.angle, rec.time, prismatic ? 'm' : 'rad'));
+		summary.push(summarise(s.name, 'power', s.power, rec.time, 'W'));
+	}
+	timings.summary = now() - t0;
+	report('summary', 1);
+
+	return {
+		time: rec.time,
+		sampleHz: rec.sampleHz,
+		dofs,
+		base,
+		reactions: centres.map((c) => ({ joint: c.joint, force: c.force })),
+		summary,
+		timings,
+		applied: { cutoffHz: cutoffs, gravity: [...gravity] as Vec3, filledGaps }
+	};
+}
+
+// Small loops of their own, so the JIT optimises each on its own (one big function deoptimised as a whole).
+
+/** Channel x[k0 … k0+len) into column j of a frames × n row-major block. */
+function interleave(x: Float64Array, block: Float64Array, k0: number, len: number, n: number, j: number): void {
+	for (let k = 0; k < len; k++) block[k * n + j] = x[k0 + k];
+}
+
+/** Column j of the block's Q into the moment, moment per kg and power series. */
+function momentsOut(Q: Float64Array, k0: number, len: number, n: number, j: number, perKgFactor: number, velocity: Float64Array, moment: Float64Array, perKg: Float64Array, power: Float64Array): void {
+	for (let k = 0; k < len; k++) {
+		const m = Q[k * n + j];
+		moment[k0 + k] = m;
+		perKg[k0 + k] = m * perKgFactor;
+		power[k0 + k] = m * velocity[k0 + k];
+	}
+}
+
+/** Body b's reaction force (x, y, z) from the block into an interleaved whole-recording series. */
+function reactionOut(f: Float64Array, k0: number, len: number, n: number, b: number, out: Float64Array): void {
+	const b3 = 3 * b,
+		n3 = 3 * n;
+	for (let k = 0; k < len; k++) {
+		const s = k * n3 + b3,
+			d = 3 * (k0 + k);
+		out[d] = f[s];
+		out[d + 1] = f[s + 1];
+		out[d + 2] = f[s + 2];
+	}
+}
+
+/** Peak positive and negative values (first time each is reached), range and mean of one series. */
+export function summarise(dof: string, quantity: SummaryRow['quantity'], x: Float64Array, time: Float64Array, unit: string): SummaryRow {
+	let hi = -Infinity,
+		lo = Infinity,
+		hiK = 0,
+		loK = 0,
+		sum = 0;
+	for (let k = 0; k < x.length; k++) {
+		const v = x[k];
+		if (v > hi) {
+			hi = v;
+			hiK = k;
+		}
+		if (v < lo) {
+			lo = v;
+			loK = k;
+		}
+		sum += v;
+	}
+	return { dof, quantity, peakPositive: hi, peakPositiveTime: time[hiK], peakNegative: lo, peakNegativeTime: time[loK], range: hi - lo, mean: sum / x.length, unit };
+}

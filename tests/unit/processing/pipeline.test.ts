@@ -1,0 +1,70 @@
+// Pipeline mechanics: progress by stage, summaries and power against closed forms, and precise refusals.
+import { describe, expect, it } from 'vitest';
+import { buildSessionModel } from '../../../src/lib/processing/session-model';
+import { PipelineError, runPipeline, runOptionsSchema } from '../../../src/lib/processing/pipeline';
+import { makeRecording } from './helpers';
+
+const person = { sex: 'male' as const, bodyMass: 80, stature: 1.8 };
+const built = buildSessionModel(person, { table: 'de-leva-1996', limbs: ['right.leg'] });
+// knee: 0.6 + 0.4 sin(2π·0.5 t) over 4 s at 100 Hz; everything else still
+const knee = (t: number) => 0.6 + 0.4 * Math.sin(Math.PI * t);
+const rec = makeRecording(built, 401, 100, (n, t) => (n === 'right.knee.flexion' ? knee(t) : 0));
+
+describe('runPipeline', () => {
+	it('reports progress stage by stage, rising to 1, and times every stage', () => {
+		const calls: [number, string][] = [];
+		const r = runPipeline(built, rec, {}, (f, s) => calls.push([f, s]));
+		const stages = [...new Set(calls.map((c) => c[1]))];
+		expect(stages).toEqual(['filter', 'differentiate', 'dynamics', 'summary']);
+		for (let i = 1; i < calls.length; i++) expect(calls[i][0]).toBeGreaterThanOrEqual(calls[i - 1][0]);
+		expect(calls.at(-1)![0]).toBe(1);
+		expect(Object.keys(r.timings)).toEqual(['filter', 'differentiate', 'dynamics', 'summary']);
+		expect(r.applied.cutoffHz['right.knee.flexion']).toBe(6);
+		expect(r.applied.gravity).toEqual([0, -9.81, 0]);
+	});
+
+	it('summarises the angle of a sinusoid: peaks at the quarter periods, range, mean (closed form)', () => {
+		const r = runPipeline(built, rec, { cutoffHz: null });
+		const row = r.summary.find((s) => s.dof === 'right.knee.flexion' && s.quantity === 'angle')!;
+		expect(row.peakPositive).toBeCloseTo(1.0, 12);
+		expect(row.peakPositiveTime).toBeCloseTo(0.5, 12);
+		expect(row.peakNegative).toBeCloseTo(0.2, 12);
+		expect(row.peakNegativeTime).toBeCloseTo(1.5, 12);
+		expect(row.range).toBeCloseTo(0.8, 12);
+		// mean over 4 whole periods plus one end sample
+		expect(row.mean).toBeCloseTo((0.6 * 401 + 0.4 * Math.sin(0)) / 401, 12);
+		expect(row.unit).toBe('rad');
+		const d = r.dofs.find((x) => x.name === 'right.knee.flexion')!;
+		for (let k = 0; k < 401; k += 13) expect(d.power[k]).toBeCloseTo(d.moment[k] * d.velocity[k], 12);
+		expect(r.summary.filter((s) => s.dof === 'right.knee.flexion').map((s) => `${s.quantity} ${s.unit}`)).toEqual(['moment N·m', 'angle rad', 'power W']);
+	});
+
+	it('takes per-channel cutoffs and a gravity override', () => {
+		const r = runPipeline(built, rec, { cutoffHz: 6, perChannelCutoffHz: { 'right.knee.flexion': 10 }, gravity: [0, 0, 0] });
+		expect(r.applied.cutoffHz['right.knee.flexion']).toBe(10);
+		expect(r.applied.cutoffHz['right.hip.flexion']).toBe(6);
+		const ankle = r.dofs.find((x) => x.name === 'right.ankle.dorsiflexion')!;
+		// no gravity and a still ankle: the ankle carries only the foot's share of the knee's motion, far below its static load
+		expect(Math.max(...ankle.moment.map(Math.abs))).toBeLessThan(1);
+		expect(Math.max(...ankle.moment.map(Math.abs))).toBeGreaterThan(0);
+	});
+
+	it('refuses channels that do not match the model, missing samples and impossible cutoffs, naming each', () => {
+		const wrong = { ...rec, channels: rec.channels.slice(1) };
+		expect(() => runPipeline(built, wrong, {})).toThrow(/has 5 channels; the session model needs 6/);
+		const swapped = { ...rec, channels: [rec.channels[1], rec.channels[0], ...rec.channels.slice(2)] };
+		expect(() => runPipeline(built, swapped, {})).toThrow(/channel 1 is "right.hip.adduction"; the session model expects "right.hip.flexion"/);
+		const holes = { ...rec, channels: rec.channels.map((c, j) => (j === 3 ? { ...c, values: c.values.map((v, k) => (k === 50 ? NaN : v)) } : c)) };
+		expect(() => runPipeline(built, holes, {})).toThrow(PipelineError);
+		expect(() => runPipeline(built, holes, {})).toThrow(/"right.knee.flexion" has 1 missing samples/);
+		const filled = runPipeline(built, holes, { fillGaps: true });
+		expect(filled.applied.filledGaps).toEqual({ 'right.knee.flexion': 1 });
+		expect(() => runPipeline(built, rec, { cutoffHz: 60 })).toThrow(/below half the sampling rate \(50 Hz\)/);
+		expect(() => runPipeline(built, rec, { cutoffHz: -1 })).toThrow(/cutoffHz: must be a positive frequency/);
+		expect(() => runPipeline(built, rec, { perChannelCutoffHz: { 'right.knee.flex': 8 } })).toThrow(/names "right.knee.flex", which is not a channel of this session/);
+	});
+
+	it('defaults: 6 Hz, no gap filling', () => {
+		expect(runOptionsSchema.parse({})).toEqual({ cutoffHz: 6, fillGaps: false });
+	});
+});
