@@ -10,6 +10,8 @@ export default defineConfig({
 	retries: 0,
 	timeout: 30_000,
 	outputDir: '.test-artifacts/playwright',
+	// the job worker, so that runs started in the browser are processed (stopped by the function it returns)
+	globalSetup: './tests/e2e/global-setup.ts',
 	use: {
 		baseURL: `http://127.0.0.1:${port}`,
 		browserName: 'chromium',
@@ -33,6 +35,6 @@ export default defineConfig({
 		url: `http://127.0.0.1:${port}/api/health`,
 		reuseExistingServer: false,
 		timeout: 60_000,
-		env: { ...(process.env as Record<string, string>), HOST: '127.0.0.1', PORT: String(port), ORIGIN: `http://127.0.0.1:${port}` }
+		env: { ...(process.env as Record<string, string>), HOST: '127.0.0.1', PORT: String(port), ORIGIN: `http://127.0.0.1:${port}`, BODY_SIZE_LIMIT: 'Infinity' }
 	}
 });

@@ -7,6 +7,8 @@ import { z } from 'zod';
 import { ConsentFormVersion, Lab, Participant, ParticipantLength, ParticipantPersonal, Study, StudyMember, User } from '../src/lib/server/db/models';
 import { record } from '../src/lib/server/audit';
 import { hashPassword } from '../src/lib/server/auth/password';
+import { seedConsent } from './consent';
+import { seedSessionsAndRuns } from './runs';
 
 const here = path.dirname(fileURLToPath(import.meta.url));
 
@@ -147,6 +149,10 @@ export async function loadDemoSeed(sequelize: Sequelize): Promise<SeedReport> {
 				if (made) created.push(`length ${l.segment} of ${code} #${l.participant}`);
 			}
 		}
+		// consent states of the demo participants (seeds/demo/consent.json)
+		created.push(...(await seedConsent(sequelize, transaction)));
+		// demo sessions with a trial and a finished run each (seeds/recordings), computed by the worker's own code
+		created.push(...(await seedSessionsAndRuns(sequelize, transaction)));
 		if (created.length) {
 			await record({ action: 'seed.loaded', actorLabel: 'seed', details: { created } }, transaction);
 		}

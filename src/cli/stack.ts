@@ -71,7 +71,8 @@ async function main() {
 	}
 
 	const origin = process.env.ORIGIN ?? `http://127.0.0.1:${s.appPort}`;
-	const env = { ...process.env, DATABASE_URL: databaseUrl, SMTP_URL: smtpUrl, ORIGIN: origin, MAIL_INBOX_URL: inbox, AUTH_SECRET: authSecret() };
+	// BODY_SIZE_LIMIT: the adapter's own cap (512 kB) would refuse recordings; the trial upload streams and enforces UPLOAD_LIMIT_BYTES per file
+	const env = { ...process.env, DATABASE_URL: databaseUrl, SMTP_URL: smtpUrl, ORIGIN: origin, MAIL_INBOX_URL: inbox, AUTH_SECRET: authSecret(), BODY_SIZE_LIMIT: process.env.BODY_SIZE_LIMIT ?? 'Infinity' };
 
 	if (!dev) {
 		log('building the app …');

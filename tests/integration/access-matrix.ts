@@ -3,7 +3,7 @@
 import type { Persona } from './app-under-test';
 
 /** Named records a route parameter can stand for; resolved against the seeded demo database. */
-export type ParamRef = 'studyA' | 'studyB' | 'participantA';
+export type ParamRef = 'studyA' | 'studyB' | 'participantA' | 'sessionA' | 'trialA' | 'runA';
 
 export interface MatrixEntry {
 	/** SvelteKit route id, as the folder path under src/routes (e.g. "/studies/[id]"). */
@@ -58,6 +58,12 @@ export const MATRIX: MatrixEntry[] = [
 	{ route: '/studies/[id]/participants/[pid]', method: 'GET', params: { id: 'studyB', pid: 'participantA' }, expect: { anonymous: 303, admin: 404, piA: 404, researcherA: 404, technicianA: 404, memberB: 404 } },
 	{ route: '/studies/[id]/participants/[pid]', method: 'POST', action: 'length', params: { id: 'studyA', pid: 'participantA' }, form: { segment: 'right.thigh', lengthM: '41' }, expect: { anonymous: 303, admin: 404, piA: 400, researcherA: 403, technicianA: 400, memberB: 404 } },
 	{ route: '/studies/[id]/participants/[pid]', method: 'POST', action: 'personal', params: { id: 'studyA', pid: 'participantA' }, form: { email: 'not-an-address' }, expect: { anonymous: 303, admin: 404, piA: 400, researcherA: 403, technicianA: 400, memberB: 404 } },
+	// correcting research fields: PI and technicians (an out-of-range body mass is refused with 400)
+	{ route: '/studies/[id]/participants/[pid]', method: 'POST', action: 'research', params: { id: 'studyA', pid: 'participantA' }, form: { sex: 'female', bodyMassKg: '5', statureM: '1.7' }, expect: { anonymous: 303, admin: 404, piA: 400, researcherA: 403, technicianA: 400, memberB: 404 } },
+	// CSV import: PI and technicians; a check without a file and an import without a checked file are refused with 400
+	{ route: '/studies/[id]/participants/import', method: 'GET', params: { id: 'studyA' }, expect: { anonymous: 303, admin: 404, piA: 200, researcherA: 403, technicianA: 200, memberB: 404 } },
+	{ route: '/studies/[id]/participants/import', method: 'POST', action: 'check', params: { id: 'studyA' }, expect: { anonymous: 303, admin: 404, piA: 400, researcherA: 403, technicianA: 400, memberB: 404 } },
+	{ route: '/studies/[id]/participants/import', method: 'POST', action: 'import', params: { id: 'studyA' }, expect: { anonymous: 303, admin: 404, piA: 400, researcherA: 403, technicianA: 400, memberB: 404 } },
 	// the audit log and its export: administrators only
 	{ route: '/audit', method: 'GET', expect: { ...signedIn(403), admin: 200 } },
 	{ route: '/audit/export.csv', method: 'GET', expect: { ...signedIn(403), admin: 200 } },
@@ -83,9 +89,61 @@ export const MATRIX: MatrixEntry[] = [
 	{ route: '/invitation/[token]', method: 'POST', action: 'default', params: { token: 'studyA' }, form: { name: 'Test Person' }, expect: everyone(410) },
 	{ route: '/reset-password/[token]', method: 'GET', params: { token: 'studyA' }, expect: everyone(200) },
 	{ route: '/reset-password/[token]', method: 'POST', action: 'default', params: { token: 'studyA' }, form: { password: 'too short' }, expect: everyone(410) },
+	// e-mailed consent (tests/integration/consent.test.ts): the team reads a participant's consent state and history;
+	// PI and technicians send links (ALD-001 has consented, so each send is refused with 409 and nothing is mailed);
+	// the PI decides on flagged runs (an empty form is refused with 400)
+	{ route: '/studies/[id]/participants/[pid]/consent', method: 'GET', params: { id: 'studyA', pid: 'participantA' }, expect: { anonymous: 303, admin: 404, piA: 200, researcherA: 200, technicianA: 200, memberB: 404 } },
+	{ route: '/studies/[id]/participants/[pid]/consent', method: 'GET', params: { id: 'studyB', pid: 'participantA' }, expect: { anonymous: 303, admin: 404, piA: 404, researcherA: 404, technicianA: 404, memberB: 404 } },
+	{ route: '/studies/[id]/participants/[pid]/consent', method: 'POST', action: 'invite', params: { id: 'studyA', pid: 'participantA' }, expect: { anonymous: 303, admin: 404, piA: 409, researcherA: 403, technicianA: 409, memberB: 404 } },
+	{ route: '/studies/[id]/participants/[pid]/consent', method: 'POST', action: 'resend', params: { id: 'studyA', pid: 'participantA' }, expect: { anonymous: 303, admin: 404, piA: 409, researcherA: 403, technicianA: 409, memberB: 404 } },
+	{ route: '/studies/[id]/participants/[pid]/consent', method: 'POST', action: 'remind', params: { id: 'studyA', pid: 'participantA' }, expect: { anonymous: 303, admin: 404, piA: 409, researcherA: 403, technicianA: 409, memberB: 404 } },
+	{ route: '/studies/[id]/participants/[pid]/consent', method: 'POST', action: 'decide', params: { id: 'studyA', pid: 'participantA' }, expect: { anonymous: 303, admin: 404, piA: 400, researcherA: 403, technicianA: 403, memberB: 404 } },
+	// the participant's consent and withdrawal pages need no sign-in; a study's id is no token: the calm page, and 410 for a form
+	{ route: '/consent/[token]', method: 'GET', params: { token: 'studyA' }, expect: everyone(200) },
+	{ route: '/consent/[token]', method: 'POST', action: 'consent', params: { token: 'studyA' }, form: { fullName: 'Test Person' }, expect: everyone(410) },
+	{ route: '/consent/[token]', method: 'POST', action: 'decline', params: { token: 'studyA' }, expect: everyone(410) },
+	{ route: '/consent/withdraw/[token]', method: 'GET', params: { token: 'studyA' }, expect: everyone(200) },
+	{ route: '/consent/withdraw/[token]', method: 'POST', action: 'default', params: { token: 'studyA' }, expect: everyone(410) },
 	// asking for a reset link: an address that is no address is refused before anything is looked up
 	{ route: '/signin/forgot', method: 'GET', expect: everyone(200) },
-	{ route: '/signin/forgot', method: 'POST', action: 'default', form: { email: 'not-an-address' }, expect: everyone(400) }
+	{ route: '/signin/forgot', method: 'POST', action: 'default', form: { email: 'not-an-address' }, expect: everyone(400) },
+	// sessions: PI and technicians create and edit them (an invalid form is refused with 400), the team reads them;
+	// a session asked for under another study's URL does not exist there
+	{ route: '/studies/[id]/participants/[pid]/sessions/new', method: 'GET', params: { id: 'studyA', pid: 'participantA' }, expect: { anonymous: 303, admin: 404, piA: 200, researcherA: 403, technicianA: 200, memberB: 404 } },
+	{ route: '/studies/[id]/participants/[pid]/sessions/new', method: 'POST', action: 'default', params: { id: 'studyA', pid: 'participantA' }, form: { operator: '', limbs: 'right.arm' }, expect: { anonymous: 303, admin: 404, piA: 400, researcherA: 403, technicianA: 400, memberB: 404 } },
+	{ route: '/studies/[id]/sessions/[sid]', method: 'GET', params: { id: 'studyA', sid: 'sessionA' }, expect: { anonymous: 303, admin: 404, piA: 200, researcherA: 200, technicianA: 200, memberB: 404 } },
+	{ route: '/studies/[id]/sessions/[sid]', method: 'GET', params: { id: 'studyB', sid: 'sessionA' }, expect: { anonymous: 303, admin: 404, piA: 404, researcherA: 404, technicianA: 404, memberB: 404 } },
+	{ route: '/studies/[id]/sessions/[sid]/edit', method: 'GET', params: { id: 'studyA', sid: 'sessionA' }, expect: { anonymous: 303, admin: 404, piA: 200, researcherA: 403, technicianA: 200, memberB: 404 } },
+	{ route: '/studies/[id]/sessions/[sid]/edit', method: 'POST', action: 'default', params: { id: 'studyA', sid: 'sessionA' }, form: { operator: '' }, expect: { anonymous: 303, admin: 404, piA: 400, researcherA: 403, technicianA: 400, memberB: 404 } },
+	// the streamed trial upload (API: 401 when signed out); a body that is not multipart is refused with 415 before
+	// anything is read (the uploads themselves are exercised in tests/integration/uploads.test.ts); study B's
+	// researcher is refused by role (403) before the session is looked up
+	{ route: '/api/studies/[id]/sessions/[sid]/trials', method: 'POST', params: { id: 'studyA', sid: 'sessionA' }, expect: { anonymous: 401, admin: 404, piA: 415, researcherA: 403, technicianA: 415, memberB: 404 } },
+	{ route: '/api/studies/[id]/sessions/[sid]/trials', method: 'POST', params: { id: 'studyB', sid: 'sessionA' }, expect: { anonymous: 401, admin: 404, piA: 404, researcherA: 404, technicianA: 404, memberB: 403 } },
+	// runs (tests/integration/runs.test.ts): the team reads trials, runs and results, and every role of the team may start
+	// and retry runs (run.start); an empty "New run" form is refused with 400, the JSON API wants JSON (415 for a form),
+	// and the seeded run is done, so a retry is refused with 409. A trial or run under another study's URL is not there.
+	{ route: '/studies/[id]/trials/[tid]', method: 'GET', params: { id: 'studyA', tid: 'trialA' }, expect: { anonymous: 303, admin: 404, piA: 200, researcherA: 200, technicianA: 200, memberB: 404 } },
+	{ route: '/studies/[id]/trials/[tid]', method: 'GET', params: { id: 'studyB', tid: 'trialA' }, expect: { anonymous: 303, admin: 404, piA: 404, researcherA: 404, technicianA: 404, memberB: 404 } },
+	{ route: '/studies/[id]/trials/[tid]', method: 'POST', action: 'start', params: { id: 'studyA', tid: 'trialA' }, expect: { anonymous: 303, admin: 404, piA: 400, researcherA: 400, technicianA: 400, memberB: 404 } },
+	{ route: '/studies/[id]/trials/[tid]', method: 'POST', action: 'start', params: { id: 'studyB', tid: 'trialA' }, form: { filter: 'none' }, expect: { anonymous: 303, admin: 404, piA: 404, researcherA: 404, technicianA: 404, memberB: 404 } },
+	{ route: '/studies/[id]/runs/[rid]', method: 'GET', params: { id: 'studyA', rid: 'runA' }, expect: { anonymous: 303, admin: 404, piA: 200, researcherA: 200, technicianA: 200, memberB: 404 } },
+	{ route: '/studies/[id]/runs/[rid]', method: 'GET', params: { id: 'studyB', rid: 'runA' }, expect: { anonymous: 303, admin: 404, piA: 404, researcherA: 404, technicianA: 404, memberB: 404 } },
+	{ route: '/studies/[id]/runs/[rid]', method: 'POST', action: 'retry', params: { id: 'studyA', rid: 'runA' }, expect: { anonymous: 303, admin: 404, piA: 409, researcherA: 409, technicianA: 409, memberB: 404 } },
+	{ route: '/api/studies/[id]/trials/[tid]/runs', method: 'POST', params: { id: 'studyA', tid: 'trialA' }, expect: { anonymous: 401, admin: 404, piA: 415, researcherA: 415, technicianA: 415, memberB: 404 } },
+	{ route: '/api/studies/[id]/trials/[tid]/runs', method: 'POST', params: { id: 'studyB', tid: 'trialA' }, expect: { anonymous: 401, admin: 404, piA: 404, researcherA: 404, technicianA: 404, memberB: 404 } },
+	{ route: '/api/studies/[id]/trials/[tid]/residuals', method: 'GET', params: { id: 'studyA', tid: 'trialA' }, expect: { anonymous: 401, admin: 404, piA: 200, researcherA: 200, technicianA: 200, memberB: 404 } },
+	{ route: '/api/studies/[id]/trials/[tid]/residuals', method: 'GET', params: { id: 'studyB', tid: 'trialA' }, expect: { anonymous: 401, admin: 404, piA: 404, researcherA: 404, technicianA: 404, memberB: 404 } },
+	{ route: '/api/studies/[id]/runs/[rid]', method: 'GET', params: { id: 'studyA', rid: 'runA' }, expect: { anonymous: 401, admin: 404, piA: 200, researcherA: 200, technicianA: 200, memberB: 404 } },
+	{ route: '/api/studies/[id]/runs/[rid]', method: 'GET', params: { id: 'studyB', rid: 'runA' }, expect: { anonymous: 401, admin: 404, piA: 404, researcherA: 404, technicianA: 404, memberB: 404 } },
+	{ route: '/api/studies/[id]/runs/[rid]/series', method: 'GET', params: { id: 'studyA', rid: 'runA' }, expect: { anonymous: 401, admin: 404, piA: 200, researcherA: 200, technicianA: 200, memberB: 404 } },
+	{ route: '/api/studies/[id]/runs/[rid]/series', method: 'GET', params: { id: 'studyB', rid: 'runA' }, expect: { anonymous: 401, admin: 404, piA: 404, researcherA: 404, technicianA: 404, memberB: 404 } },
+	{ route: '/api/studies/[id]/runs/[rid]/summary', method: 'GET', params: { id: 'studyA', rid: 'runA' }, expect: { anonymous: 401, admin: 404, piA: 200, researcherA: 200, technicianA: 200, memberB: 404 } },
+	{ route: '/api/studies/[id]/runs/[rid]/retry', method: 'POST', params: { id: 'studyA', rid: 'runA' }, expect: { anonymous: 401, admin: 404, piA: 409, researcherA: 409, technicianA: 409, memberB: 404 } },
+	{ route: '/api/studies/[id]/runs/[rid]/retry', method: 'POST', params: { id: 'studyB', rid: 'runA' }, expect: { anonymous: 401, admin: 404, piA: 404, researcherA: 404, technicianA: 404, memberB: 404 } },
+	// column-mapping presets: the team lists them, PI and technicians save them (an empty one is refused with 400)
+	{ route: '/api/studies/[id]/mapping-presets', method: 'GET', params: { id: 'studyA' }, expect: { anonymous: 401, admin: 404, piA: 200, researcherA: 200, technicianA: 200, memberB: 404 } },
+	{ route: '/api/studies/[id]/mapping-presets', method: 'POST', params: { id: 'studyA' }, expect: { anonymous: 401, admin: 404, piA: 400, researcherA: 403, technicianA: 400, memberB: 404 } }
 ];
 
 /** Routes whose form actions are deliberately left out of the generic run, with the reason. */

@@ -21,6 +21,9 @@ export interface DemoIds {
 	studyA: string; // SHELF-REACH
 	studyB: string; // KNEE-60
 	participantA: string; // ALD-001 of SHELF-REACH
+	sessionA: string; // the seeded session of ALD-001
+	trialA: string; // its trial
+	runA: string; // the seeded done run of that trial
 }
 
 export interface AppUnderTest {
@@ -62,7 +65,8 @@ export async function startApp(label: string): Promise<AppUnderTest> {
 	const base = `http://127.0.0.1:${port}`;
 	const app = start('app', process.execPath, [entry], {
 		quiet: true,
-		env: { ...process.env, DATABASE_URL: fresh.url, HOST: '127.0.0.1', PORT: String(port), ORIGIN: base }
+		// BODY_SIZE_LIMIT: the trial upload enforces its own per-file limit while streaming (UPLOAD_LIMIT_BYTES)
+		env: { ...process.env, DATABASE_URL: fresh.url, HOST: '127.0.0.1', PORT: String(port), ORIGIN: base, BODY_SIZE_LIMIT: 'Infinity' }
 	});
 	await waitForPort(port, '127.0.0.1', 30_000, app);
 	const sql = new pg.Client({ connectionString: fresh.url });
@@ -71,8 +75,13 @@ export async function startApp(label: string): Promise<AppUnderTest> {
 	const ids: DemoIds = {
 		studyA: studies.find((r) => r.code === 'SHELF-REACH')!.id,
 		studyB: studies.find((r) => r.code === 'KNEE-60')!.id,
-		participantA: (await sql.query<{ id: string }>(`SELECT id FROM participants WHERE code = 'ALD-001'`)).rows[0].id
+		participantA: (await sql.query<{ id: string }>(`SELECT id FROM participants WHERE code = 'ALD-001'`)).rows[0].id,
+		...(await sql.query<{ sessionA: string; trialA: string }>(
+			`SELECT s.id AS "sessionA", t.id AS "trialA" FROM sessions s JOIN participants p ON p.id = s.participant_id JOIN trials t ON t.session_id = s.id WHERE p.code = 'ALD-001' ORDER BY s.created_at, t.created_at LIMIT 1`
+		)).rows[0],
+		runA: ''
 	};
+	ids.runA = (await sql.query<{ id: string }>(`SELECT id FROM runs WHERE trial_id = $1 ORDER BY created_at LIMIT 1`, [ids.trialA])).rows[0]?.id ?? '';
 	const cookies = { anonymous: '' } as Record<Persona, string>;
 	for (const [persona, email] of Object.entries(PERSONAS)) {
 		if (!email) continue;

@@ -10,7 +10,13 @@ const schema = z.object({
 		.regex(/^smtps?:\/\//, 'SMTP_URL must start with smtp:// or smtps://')
 		.default('smtp://127.0.0.1:4825'),
 	MAIL_FROM: z.string().default('Momentry <no-reply@momentry.localhost>'),
-	ORIGIN: z.string().url().optional()
+	ORIGIN: z.string().url().optional(),
+	/** Largest recording file the trial upload accepts, bytes (default 100 MB). */
+	UPLOAD_LIMIT_BYTES: z.coerce.number().int().min(1).default(104_857_600),
+	/** A run's job counts as abandoned (worker gone) after this long active; longer than any run should take. */
+	RUN_EXPIRE_SECONDS: z.coerce.number().int().min(5).max(86_400).default(900),
+	/** How often the queue looks for abandoned jobs (pg-boss maintenance), seconds. */
+	QUEUE_MAINTENANCE_SECONDS: z.coerce.number().int().min(1).max(3_600).default(30)
 });
 
 export type ServerConfig = z.infer<typeof schema>;

@@ -10,6 +10,7 @@ import { may } from './access';
 import { record } from './audit';
 import { isUuid } from './studies';
 import { contextOf, fieldErrors, FormProblem, guardStudy } from './study-records';
+import { consentStatesOf } from './consent';
 import { LENGTH_KEYS, participantBodySchema } from '../anthropometry/scale';
 
 export const PAGE_SIZE = 25;
@@ -73,6 +74,7 @@ export async function listParticipants(event: RequestEvent, rawId: string) {
 	});
 	const personal = seesPersonal && rows.length ? await ParticipantPersonal.findAll({ where: { participantId: rows.map((r) => r.id) } }) : [];
 	const byId = new Map(personal.map((p) => [p.participantId, p]));
+	const consentStates = await consentStatesOf(rows.map((r) => r.id));
 	return {
 		study: { id: study.id, code: study.code, title: study.title },
 		query,
@@ -80,7 +82,8 @@ export async function listParticipants(event: RequestEvent, rawId: string) {
 		pages: Math.max(1, Math.ceil(count / PAGE_SIZE)),
 		seesPersonal,
 		mayCreate: may(actor, 'participant.create', study.id),
-		participants: rows.map((p) => rowOf(p, byId.get(p.id), seesPersonal))
+		mayImport: may(actor, 'participant.import', study.id),
+		participants: rows.map((p) => ({ ...rowOf(p, byId.get(p.id), seesPersonal), consentState: consentStates.get(p.id) ?? ('not_invited' as const) }))
 	};
 }
 
@@ -94,7 +97,8 @@ const optionalText = (max: number, label: string) =>
 const thisYear = new Date().getUTCFullYear();
 const numberField = (label: string) => z.string().trim().min(1, `Enter ${label}.`).transform(Number);
 
-const participantSchema = z.object({
+/** The create form's rules, one field per key; the CSV import checks each row with the same schema. */
+export const participantSchema = z.object({
 	sex: body.sex,
 	// the ranges are those of participantBodySchema (the scaling code refuses anything outside them)
 	bodyMassKg: numberField('the body mass in kg').pipe(body.bodyMass),
@@ -123,6 +127,47 @@ export type ParticipantInput = z.infer<typeof participantSchema>;
 const FIELDS = Object.keys(participantSchema.shape) as (keyof typeof participantSchema.shape)[];
 
 const personalSchema = participantSchema.pick({ fullName: true, email: true, phone: true });
+export const RESEARCH_FIELDS = ['sex', 'birthYear', 'bodyMassKg', 'statureM', 'dominantSide', 'notes'] as const;
+export type ResearchField = (typeof RESEARCH_FIELDS)[number];
+const researchSchema = participantSchema.pick({ sex: true, birthYear: true, bodyMassKg: true, statureM: true, dominantSide: true, notes: true });
+
+/**
+ * Corrects a participant's research fields. The audit row keeps before and after of each changed field, except
+ * the notes, whose text stays out of the append-only log (a name typed there by mistake must be removable).
+ */
+export async function updateResearchFields(event: RequestEvent, rawId: string, rawPid: string, form: FormData): Promise<{ changed: ResearchField[] }> {
+	const { actor, study } = await guardStudy(event, 'participant.edit', rawId);
+	const p = await participantIn(study.id, rawPid);
+	const r = researchSchema.safeParse(Object.fromEntries(RESEARCH_FIELDS.map((k) => [k, String(form.get(k) ?? '')])));
+	if (!r.success) throw new FormProblem(fieldErrors(r.error.issues));
+	return db().transaction(async (transaction) => {
+		const row = (await Participant.findByPk(p.id, { transaction, lock: transaction.LOCK.UPDATE }))!;
+		const changed = RESEARCH_FIELDS.filter((k) => row[k] !== r.data[k]);
+		if (changed.length === 0) return { changed };
+		const before: Record<string, unknown> = {};
+		const after: Record<string, unknown> = {};
+		for (const k of changed) {
+			if (k === 'notes') continue;
+			before[k] = row[k];
+			after[k] = r.data[k];
+		}
+		await row.update(r.data, { transaction });
+		await record(
+			{
+				action: 'participant.research.changed',
+				actorUserId: actor.id,
+				actorLabel: actor.email,
+				studyId: study.id,
+				recordType: 'participant',
+				recordId: p.id,
+				ipAddress: contextOf(event).ip,
+				details: { code: p.code, changed, before, after }
+			},
+			transaction
+		);
+		return { changed };
+	});
+}
 
 /** Corrects a participant's personal data; the audit row names the fields that changed, never their values. */
 export async function savePersonal(event: RequestEvent, rawId: string, rawPid: string, form: FormData): Promise<void> {
@@ -159,6 +204,8 @@ export function parseParticipant(form: FormData): ParticipantInput {
 }
 
 export const formatCode = (prefix: string, n: number) => `${prefix}-${String(n).padStart(3, '0')}`;
+/** The study's code prefix: the one set for it, else the letters of its protocol code. */
+export const prefixOf = (s: Pick<Study, 'participantPrefix' | 'code'>) => s.participantPrefix ?? s.code.replace(/[^A-Z]/gi, '').slice(0, 3).toUpperCase();
 
 /** Adds a participant with the next code of the study; personal data goes to its own table. Audited. */
 export async function createParticipant(event: RequestEvent, rawId: string, form: FormData): Promise<{ id: string; code: string }> {
@@ -167,7 +214,7 @@ export async function createParticipant(event: RequestEvent, rawId: string, form
 	return db().transaction(async (transaction) => {
 		// the row lock makes concurrent additions take turns, so codes stay sequential and unique
 		const locked = (await Study.findByPk(study.id, { transaction, lock: transaction.LOCK.UPDATE }))!;
-		const prefix = locked.participantPrefix ?? locked.code.replace(/[^A-Z]/gi, '').slice(0, 3).toUpperCase();
+		const prefix = prefixOf(locked);
 		const n = locked.nextParticipantNumber;
 		const code = formatCode(prefix, n);
 		await locked.update({ nextParticipantNumber: n + 1 }, { transaction });

@@ -61,6 +61,7 @@ export function initModels(sequelize: Sequelize): void {
 		{ sequelize, tableName: 'audit_events', modelName: 'AuditEvent' }
 	);
 	initPeopleModels(sequelize);
+	initSessionModels(sequelize);
 }
 
 export type StudyRole = 'pi' | 'researcher' | 'technician';
@@ -273,4 +274,215 @@ export function initPeopleModels(sequelize: Sequelize): void {
 	StudyMember.belongsTo(Study, { foreignKey: 'studyId' });
 	User.hasMany(StudyMember, { foreignKey: 'userId' });
 	Study.hasMany(StudyMember, { foreignKey: 'studyId' });
+}
+
+// ---- sessions, raw uploads, trials, mapping presets, runs (migration 0005) ----
+
+export type SessionState = 'draft' | 'in_review' | 'returned' | 'approved';
+
+/** One visit of a participant: date, operator, task, conditions and the model set-up (a SessionSetup). */
+export class Session extends Model<InferAttributes<Session>, InferCreationAttributes<Session>> {
+	declare id: CreationOptional<string>;
+	declare studyId: string;
+	declare participantId: string;
+	/** ISO date (YYYY-MM-DD). */
+	declare sessionOn: string;
+	declare operator: string;
+	declare task: string;
+	declare conditions: string | null;
+	/** SessionSetup (src/lib/processing/session-model.ts), validated before it is stored. */
+	declare setup: Record<string, unknown>;
+	declare state: CreationOptional<SessionState>;
+	declare createdBy: string | null;
+	declare createdAt: CreationOptional<Date>;
+	declare updatedAt: CreationOptional<Date>;
+}
+
+/** The bytes of one uploaded file as received; the chunks live in raw_upload_chunks. */
+export class RawUpload extends Model<InferAttributes<RawUpload>, InferCreationAttributes<RawUpload>> {
+	declare id: CreationOptional<string>;
+	declare sha256: string;
+	/** BIGINT: pg hands it back as a string. */
+	declare byteSize: number | string;
+	declare fileName: string;
+	declare contentType: string | null;
+	declare uploadedBy: string | null;
+	declare uploadedAt: CreationOptional<Date>;
+}
+
+export class RawUploadChunk extends Model<InferAttributes<RawUploadChunk>, InferCreationAttributes<RawUploadChunk>> {
+	declare uploadId: string;
+	declare seq: number;
+	declare bytes: Buffer;
+}
+
+/** One uploaded recording of a session, with what parsing found in it. */
+export class Trial extends Model<InferAttributes<Trial>, InferCreationAttributes<Trial>> {
+	declare id: CreationOptional<string>;
+	declare sessionId: string;
+	declare rawUploadId: string;
+	declare fileName: string;
+	declare sha256: string;
+	/** ColumnMapping (src/lib/processing/recording.ts) when the file needed one. */
+	declare mapping: Record<string, unknown> | null;
+	declare sampleHz: number;
+	declare frameCount: number;
+	declare durationS: number;
+	declare channels: string[];
+	declare warnings: CreationOptional<unknown[]>;
+	declare createdBy: string | null;
+	declare createdAt: CreationOptional<Date>;
+}
+
+/** A saved column mapping a study reuses for files from another system. */
+export class MappingPreset extends Model<InferAttributes<MappingPreset>, InferCreationAttributes<MappingPreset>> {
+	declare id: CreationOptional<string>;
+	declare studyId: string;
+	declare name: string;
+	declare mapping: Record<string, unknown>;
+	declare createdBy: string | null;
+	declare createdAt: CreationOptional<Date>;
+}
+
+export type RunState = 'queued' | 'running' | 'done' | 'failed';
+
+/** One processing of a trial with stated options; reruns add runs. */
+export class Run extends Model<InferAttributes<Run>, InferCreationAttributes<Run>> {
+	declare id: CreationOptional<string>;
+	declare trialId: string;
+	declare state: CreationOptional<RunState>;
+	declare progress: CreationOptional<number>;
+	declare stage: CreationOptional<string | null>;
+	declare options: CreationOptional<Record<string, unknown>>;
+	declare model: CreationOptional<Record<string, unknown> | null>;
+	declare rawSha256: string;
+	declare softwareVersion: string;
+	declare error: CreationOptional<string | null>;
+	declare attempts: CreationOptional<number>;
+	declare createdBy: string | null;
+	declare createdAt: CreationOptional<Date>;
+	declare startedAt: CreationOptional<Date | null>;
+	declare finishedAt: CreationOptional<Date | null>;
+	declare summary: CreationOptional<unknown | null>;
+	declare flaggedReason: CreationOptional<string | null>;
+	declare flagDecision: CreationOptional<string | null>;
+	declare flagDecidedBy: CreationOptional<string | null>;
+	declare flagDecidedAt: CreationOptional<Date | null>;
+}
+
+/** One result vector of a run (Float64 little-endian, `components` values per sample, interleaved). */
+export class RunSeries extends Model<InferAttributes<RunSeries>, InferCreationAttributes<RunSeries>> {
+	declare runId: string;
+	declare name: string;
+	declare quantity: 'time' | 'angle' | 'velocity' | 'acceleration' | 'moment' | 'moment_per_kg' | 'power' | 'reaction_force';
+	declare unit: string;
+	declare components: CreationOptional<number>;
+	declare data: Buffer;
+}
+
+export function initSessionModels(sequelize: Sequelize): void {
+	const uuidPk = { type: DataTypes.UUID, primaryKey: true, defaultValue: DataTypes.UUIDV4 };
+	const createdAt = { type: DataTypes.DATE, allowNull: false, defaultValue: DataTypes.NOW };
+	Session.init(
+		{
+			id: uuidPk,
+			studyId: { type: DataTypes.UUID, allowNull: false },
+			participantId: { type: DataTypes.UUID, allowNull: false },
+			sessionOn: { type: DataTypes.DATEONLY, allowNull: false },
+			operator: { type: DataTypes.TEXT, allowNull: false },
+			task: { type: DataTypes.TEXT, allowNull: false },
+			conditions: { type: DataTypes.TEXT, allowNull: true },
+			setup: { type: DataTypes.JSONB, allowNull: false },
+			state: { type: DataTypes.TEXT, allowNull: false, defaultValue: 'draft' },
+			createdBy: { type: DataTypes.UUID, allowNull: true },
+			createdAt,
+			updatedAt: { type: DataTypes.DATE, allowNull: false, defaultValue: DataTypes.NOW }
+		},
+		{ sequelize, tableName: 'sessions', modelName: 'Session' }
+	);
+	RawUpload.init(
+		{
+			id: uuidPk,
+			sha256: { type: DataTypes.TEXT, allowNull: false },
+			byteSize: { type: DataTypes.BIGINT, allowNull: false },
+			fileName: { type: DataTypes.TEXT, allowNull: false },
+			contentType: { type: DataTypes.TEXT, allowNull: true },
+			uploadedBy: { type: DataTypes.UUID, allowNull: true },
+			uploadedAt: { type: DataTypes.DATE, allowNull: false, defaultValue: DataTypes.NOW }
+		},
+		{ sequelize, tableName: 'raw_uploads', modelName: 'RawUpload' }
+	);
+	RawUploadChunk.init(
+		{
+			uploadId: { type: DataTypes.UUID, primaryKey: true },
+			seq: { type: DataTypes.INTEGER, primaryKey: true },
+			bytes: { type: DataTypes.BLOB, allowNull: false }
+		},
+		{ sequelize, tableName: 'raw_upload_chunks', modelName: 'RawUploadChunk' }
+	);
+	Trial.init(
+		{
+			id: uuidPk,
+			sessionId: { type: DataTypes.UUID, allowNull: false },
+			rawUploadId: { type: DataTypes.UUID, allowNull: false },
+			fileName: { type: DataTypes.TEXT, allowNull: false },
+			sha256: { type: DataTypes.TEXT, allowNull: false },
+			mapping: { type: DataTypes.JSONB, allowNull: true },
+			sampleHz: { type: DataTypes.DOUBLE, allowNull: false },
+			frameCount: { type: DataTypes.INTEGER, allowNull: false },
+			durationS: { type: DataTypes.DOUBLE, allowNull: false },
+			channels: { type: DataTypes.ARRAY(DataTypes.TEXT), allowNull: false, defaultValue: [] },
+			warnings: { type: DataTypes.JSONB, allowNull: false, defaultValue: [] },
+			createdBy: { type: DataTypes.UUID, allowNull: true },
+			createdAt
+		},
+		{ sequelize, tableName: 'trials', modelName: 'Trial' }
+	);
+	MappingPreset.init(
+		{
+			id: uuidPk,
+			studyId: { type: DataTypes.UUID, allowNull: false },
+			name: { type: DataTypes.TEXT, allowNull: false },
+			mapping: { type: DataTypes.JSONB, allowNull: false },
+			createdBy: { type: DataTypes.UUID, allowNull: true },
+			createdAt
+		},
+		{ sequelize, tableName: 'mapping_presets', modelName: 'MappingPreset' }
+	);
+	Run.init(
+		{
+			id: uuidPk,
+			trialId: { type: DataTypes.UUID, allowNull: false },
+			state: { type: DataTypes.TEXT, allowNull: false, defaultValue: 'queued' },
+			progress: { type: DataTypes.REAL, allowNull: false, defaultValue: 0 },
+			stage: { type: DataTypes.TEXT, allowNull: true },
+			options: { type: DataTypes.JSONB, allowNull: false, defaultValue: {} },
+			model: { type: DataTypes.JSONB, allowNull: true },
+			rawSha256: { type: DataTypes.TEXT, allowNull: false },
+			softwareVersion: { type: DataTypes.TEXT, allowNull: false },
+			error: { type: DataTypes.TEXT, allowNull: true },
+			attempts: { type: DataTypes.INTEGER, allowNull: false, defaultValue: 0 },
+			createdBy: { type: DataTypes.UUID, allowNull: true },
+			createdAt,
+			startedAt: { type: DataTypes.DATE, allowNull: true },
+			finishedAt: { type: DataTypes.DATE, allowNull: true },
+			summary: { type: DataTypes.JSONB, allowNull: true },
+			flaggedReason: { type: DataTypes.TEXT, allowNull: true },
+			flagDecision: { type: DataTypes.TEXT, allowNull: true },
+			flagDecidedBy: { type: DataTypes.UUID, allowNull: true },
+			flagDecidedAt: { type: DataTypes.DATE, allowNull: true }
+		},
+		{ sequelize, tableName: 'runs', modelName: 'Run' }
+	);
+	RunSeries.init(
+		{
+			runId: { type: DataTypes.UUID, primaryKey: true },
+			name: { type: DataTypes.TEXT, primaryKey: true },
+			quantity: { type: DataTypes.TEXT, primaryKey: true },
+			unit: { type: DataTypes.TEXT, allowNull: false },
+			components: { type: DataTypes.INTEGER, allowNull: false, defaultValue: 1 },
+			data: { type: DataTypes.BLOB, allowNull: false }
+		},
+		{ sequelize, tableName: 'run_series', modelName: 'RunSeries' }
+	);
 }

@@ -6,8 +6,15 @@ import { mailMessage, type MailMessage } from '../mail/index';
 
 export const QUEUES = {
 	/** Sends one e-mail; retried with back-off, so a short SMTP outage loses nothing. */
-	mailSend: 'mail-send'
+	mailSend: 'mail-send',
+	/** Processes one run (data: { runId }); the job id is the run's id, so a run is queued once per attempt series. */
+	runProcess: 'run-process',
+	/** Dead letters of run-process: jobs that ran out of attempts without their handler finishing (worker lost). */
+	runAbandoned: 'run-process-abandoned'
 } as const;
+
+/** Retries of a run after a crash or an error before it stays failed (a person can still retry it). */
+export const RUN_RETRY_LIMIT = 3;
 
 let boss: PgBoss | null = null;
 let starting: Promise<PgBoss> | null = null;
@@ -16,7 +23,9 @@ let starting: Promise<PgBoss> | null = null;
 export async function queue(): Promise<PgBoss> {
 	if (boss) return boss;
 	starting ??= (async () => {
-		const b = new PgBoss({ connectionString: config().DATABASE_URL, schema: 'jobs', application_name: 'momentry-queue' });
+		const c = config();
+		// maintenance moves jobs of a vanished worker (expired while active) back to retry; see RUN_EXPIRE_SECONDS
+		const b = new PgBoss({ connectionString: c.DATABASE_URL, schema: 'jobs', application_name: 'momentry-queue', maintenanceIntervalSeconds: c.QUEUE_MAINTENANCE_SECONDS });
 		b.on('error', (err) => console.error('[queue]', err.message));
 		await b.start();
 		for (const name of Object.values(QUEUES)) {
@@ -47,6 +56,26 @@ export function jobIdFor(key: string): string {
 export async function enqueueMail(message: MailMessage, dedupeKey?: string): Promise<string | null> {
 	const m = mailMessage.parse(message);
 	return (await queue()).send(QUEUES.mailSend, m, dedupeKey ? { id: jobIdFor(dedupeKey) } : {});
+}
+
+/**
+ * Queues the processing of a run. `jobId` defaults to the run id, so a second insert for the same run is ignored
+ * (returns null); a person's retry passes a fresh key. A job whose worker vanished (killed, machine lost) is
+ * handed to another worker once it has been active RUN_EXPIRE_SECONDS, which must exceed the longest run.
+ */
+export async function enqueueRun(runId: string, jobKey?: string): Promise<string | null> {
+	return (await queue()).send(
+		QUEUES.runProcess,
+		{ runId },
+		{
+			id: jobKey ? jobIdFor(jobKey) : runId,
+			retryLimit: RUN_RETRY_LIMIT,
+			retryDelay: 2,
+			retryBackoff: true,
+			expireInSeconds: config().RUN_EXPIRE_SECONDS,
+			deadLetter: QUEUES.runAbandoned
+		}
+	);
 }
 
 export async function stopQueue(): Promise<void> {

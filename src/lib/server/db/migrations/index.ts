@@ -3,9 +3,13 @@ import type { Migration } from './types';
 import * as m0001 from './0001-lab-foundation';
 import * as m0002 from './0002-people-and-access';
 import * as m0003 from './0003-study-records-and-participants';
+import * as m0004 from './0004-consent';
+import * as m0005 from './0005-sessions-trials-runs';
 
 export const migrations: { name: string; up: Migration; down: Migration }[] = [
 	{ name: '0001-lab-foundation', ...m0001 },
 	{ name: '0002-people-and-access', ...m0002 },
-	{ name: '0003-study-records-and-participants', ...m0003 }
+	{ name: '0003-study-records-and-participants', ...m0003 },
+	{ name: '0004-consent', ...m0004 },
+	{ name: '0005-sessions-trials-runs', ...m0005 }
 ];

@@ -2,4 +2,8 @@
 import { listParticipants } from '$lib/server/participants';
 import type { PageServerLoad } from './$types';
 
-export const load: PageServerLoad = async (event) => ({ ...(await listParticipants(event, event.params.id)), added: event.url.searchParams.get('added') });
+export const load: PageServerLoad = async (event) => {
+	const q = event.url.searchParams;
+	const imported = /^\d+$/.test(q.get('imported') ?? '') ? { count: Number(q.get('imported')), first: q.get('first') ?? '', last: q.get('last') ?? '' } : null;
+	return { ...(await listParticipants(event, event.params.id)), added: q.get('added'), imported };
+};

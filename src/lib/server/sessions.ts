@@ -1,0 +1,419 @@
+// Sessions of a participant (one visit): date, operator, task, conditions and the model set-up, created only
+// with valid consent; the set-up form is checked by the session model's own schema, field by field.
+import type { RequestEvent } from '@sveltejs/kit';
+import { error } from '@sveltejs/kit';
+import type { Transaction } from 'sequelize';
+import { z } from 'zod';
+import { db } from './db/index';
+import { MappingPreset, Participant, ParticipantLength, Session, Trial, type SessionState } from './db/models';
+import { may } from './access';
+import { record } from './audit';
+import { isUuid } from './studies';
+import { contextOf, FormProblem, guardStudy } from './study-records';
+import { consentStateOf, requireValidConsent, CONSENT_STATE_LABEL } from './consent';
+import { LIMBS, type ParticipantBody } from '../anthropometry/scale';
+import { SEGMENT_TABLES, SEGMENT_TABLE_IDS, type SegmentTableId } from '../anthropometry/tables';
+import { buildSessionModel, LOAD_SEGMENTS, sessionSetupSchema, type SessionSetup } from '../processing/session-model';
+
+/** States in which the session's record and trials may still change (approved sessions are locked). */
+export const EDITABLE_STATES: readonly SessionState[] = ['draft', 'returned'];
+
+export const BASE_CHOICES = ['upright', 'thigh-on-seat', 'custom', 'moving'] as const;
+export type BaseChoice = (typeof BASE_CHOICES)[number];
+
+/** How many load rows the form offers without JavaScript. */
+export const LOAD_ROWS = 3;
+
+const ISO_DATE = /^\d{4}-\d{2}-\d{2}$/;
+const metaSchema = z.object({
+	sessionOn: z
+		.string()
+		.trim()
+		.refine((v) => ISO_DATE.test(v) && !Number.isNaN(Date.parse(v)), 'Enter the date of the session (YYYY-MM-DD).')
+		.refine((v) => v <= new Date().toISOString().slice(0, 10), 'The session date cannot be in the future.'),
+	operator: z.string().trim().min(1, 'Enter who ran the session.').max(200, 'Keep the operator under 200 characters.'),
+	task: z.string().trim().min(1, 'Enter the task (e.g. "reach to the top shelf with a 2 kg box").').max(200, 'Keep the task under 200 characters.'),
+	conditions: z
+		.string()
+		.trim()
+		.max(2000, 'Keep the conditions under 2000 characters.')
+		.transform((v) => v || null)
+});
+export type SessionMeta = z.infer<typeof metaSchema>;
+
+const str = (form: FormData, k: string) => String(form.get(k) ?? '').trim();
+
+/** "a, b, c" → three finite numbers, or null. */
+function triple(text: string): [number, number, number] | null {
+	const parts = text.split(/[,;\s]+/).filter(Boolean);
+	if (parts.length !== 3) return null;
+	const v = parts.map(Number);
+	return v.every(Number.isFinite) ? (v as [number, number, number]) : null;
+}
+
+/**
+ * Reads the session form into meta fields and a SessionSetup; errors are keyed by the form's own field names
+ * (sessionOn, limbs, base.right.arm, cardan.right.arm, load.0.massKg …) so each shows beside its input.
+ */
+export function parseSessionForm(form: FormData): { meta: SessionMeta; setup: SessionSetup } {
+	const errors: Record<string, string> = {};
+	const m = metaSchema.safeParse({ sessionOn: str(form, 'sessionOn'), operator: str(form, 'operator'), task: str(form, 'task'), conditions: str(form, 'conditions') });
+	if (!m.success) for (const i of m.error.issues) errors[String(i.path[0])] ??= i.message;
+
+	const limbs = form.getAll('limbs').map(String);
+	const unknownLimb = limbs.find((l) => !(LIMBS as readonly string[]).includes(l));
+	if (unknownLimb) errors.limbs = `Unknown limb "${unknownLimb}": choose from the list.`;
+
+	const bases: Record<string, unknown> = {};
+	for (const limb of limbs) {
+		const choice = str(form, `base.${limb}`) || 'upright';
+		if (!(BASE_CHOICES as readonly string[]).includes(choice)) {
+			errors[`base.${limb}`] = 'Choose how the base of this limb is held.';
+			continue;
+		}
+		if (choice === 'moving') bases[limb] = { kind: 'moving' };
+		else if (choice === 'custom') {
+			const c = triple(str(form, `cardan.${limb}`));
+			if (!c) errors[`cardan.${limb}`] = 'Enter three angles in degrees, X then Y then Z (e.g. "0, 0, 90").';
+			else bases[limb] = { kind: 'fixed', orientation: 'custom', cardanXYZDeg: c };
+		} else bases[limb] = { kind: 'fixed', orientation: choice };
+	}
+
+	const loads: unknown[] = [];
+	const loadRow: number[] = [];
+	for (let i = 0; i < 20; i++) {
+		const massText = str(form, `load.${i}.massKg`);
+		const pointText = str(form, `load.${i}.point`);
+		if (!massText && !pointText && !form.has(`load.${i}.limb`)) continue;
+		if (!massText && !pointText) continue; // an untouched row
+		const mass = Number(massText);
+		if (!massText || !Number.isFinite(mass)) {
+			errors[`load.${i}.massKg`] = 'Enter the mass in kg (e.g. 2.5).';
+			continue;
+		}
+		const point = pointText ? triple(pointText) : null;
+		if (!point) {
+			errors[`load.${i}.point`] = 'Enter where the mass sits, x, y, z in m in the segment frame from its proximal joint (e.g. "0, -0.08, 0").';
+			continue;
+		}
+		const label = str(form, `load.${i}.label`);
+		loads.push({ limb: str(form, `load.${i}.limb`), segment: str(form, `load.${i}.segment`), massKg: mass, pointM: point, ...(label ? { label } : {}) });
+		loadRow.push(i);
+	}
+
+	const raw = { table: str(form, 'table'), limbs, bases, loads };
+	const s = sessionSetupSchema.safeParse(raw);
+	if (!s.success) {
+		for (const i of s.error.issues) {
+			const [head, a, b] = i.path as (string | number)[];
+			let key = String(head ?? 'form');
+			if (head === 'bases' && a !== undefined) key = b === 'cardanXYZDeg' ? `cardan.${a}` : `base.${a}`;
+			if (head === 'loads' && typeof a === 'number') key = `load.${loadRow[a]}.${b === 'pointM' ? 'point' : String(b ?? 'massKg')}`;
+			// sentence case, except a message that opens with a name such as right.leg
+			const msg = /^[a-z]+ /.test(i.message) ? i.message.charAt(0).toUpperCase() + i.message.slice(1) : i.message;
+			errors[key] ??= msg.endsWith('.') ? msg : `${msg}.`;
+		}
+	}
+	if (Object.keys(errors).length || !m.success || !s.success) throw new FormProblem(errors);
+	return { meta: m.data, setup: s.data };
+}
+
+/** A session's set-up as the form shows it again (for editing, and after a refused post). */
+export function formValuesOf(meta: Partial<SessionMeta>, setup: SessionSetup | null): Record<string, string | string[]> {
+	const v: Record<string, string | string[]> = {
+		sessionOn: meta.sessionOn ?? '',
+		operator: meta.operator ?? '',
+		task: meta.task ?? '',
+		conditions: meta.conditions ?? ''
+	};
+	if (!setup) return v;
+	v.table = setup.table;
+	v.limbs = [...setup.limbs];
+	for (const limb of setup.limbs) {
+		const b = setup.bases[limb];
+		v[`base.${limb}`] = !b ? 'upright' : b.kind === 'moving' ? 'moving' : b.orientation;
+		if (b?.kind === 'fixed' && b.cardanXYZDeg) v[`cardan.${limb}`] = b.cardanXYZDeg.join(', ');
+	}
+	setup.loads.forEach((l, i) => {
+		v[`load.${i}.limb`] = l.limb;
+		v[`load.${i}.segment`] = l.segment;
+		v[`load.${i}.massKg`] = String(l.massKg);
+		v[`load.${i}.point`] = l.pointM.join(', ');
+		v[`load.${i}.label`] = l.label ?? '';
+	});
+	return v;
+}
+
+/** The raw form as the page shows it again after a refused post. */
+export function formValuesFrom(form: FormData): Record<string, string | string[]> {
+	const v: Record<string, string | string[]> = {};
+	for (const [k, val] of form.entries()) {
+		if (k === 'limbs') v.limbs = [...((v.limbs as string[]) ?? []), String(val)];
+		else v[k] = String(val);
+	}
+	v.limbs ??= [];
+	return v;
+}
+
+/** What the form needs to offer its choices. */
+export function formChoices() {
+	return {
+		limbs: LIMBS as readonly string[],
+		tables: SEGMENT_TABLE_IDS.map((id) => ({ id, title: SEGMENT_TABLES[id].title })),
+		baseChoices: BASE_CHOICES as readonly string[],
+		loadSegments: LOAD_SEGMENTS as readonly string[],
+		loadRows: LOAD_ROWS
+	};
+}
+
+async function participantIn(studyId: string, rawPid: string, transaction?: Transaction): Promise<Participant> {
+	db();
+	const p = isUuid(rawPid) ? await Participant.findOne({ where: { id: rawPid.toLowerCase(), studyId }, transaction }) : null;
+	if (!p) error(404, 'Not found');
+	return p;
+}
+
+/** A session of the study in the URL (another study's session answers 404, as an unknown one). */
+export async function sessionIn(studyId: string, rawSid: string, transaction?: Transaction): Promise<Session> {
+	db();
+	const s = isUuid(rawSid) ? await Session.findOne({ where: { id: rawSid.toLowerCase(), studyId }, transaction }) : null;
+	if (!s) error(404, 'Not found');
+	return s;
+}
+
+/**
+ * The participant as the scaling code takes it, with the latest measured length of each segment. A participant
+ * whose sex is "not reported" is scaled with the mean of the female and male table values (a stated choice).
+ */
+export async function participantBodyOf(participantId: string, transaction?: Transaction): Promise<ParticipantBody> {
+	db();
+	const p = await Participant.findByPk(participantId, { transaction });
+	if (!p) throw new Error(`participant ${participantId} does not exist`);
+	const lengths = await ParticipantLength.findAll({ where: { participantId }, order: [['measuredOn', 'DESC'], ['createdAt', 'DESC']], transaction });
+	const measuredLengths: Record<string, number> = {};
+	for (const l of lengths) measuredLengths[l.segment] ??= l.lengthM;
+	return {
+		sex: p.sex,
+		bodyMass: p.bodyMassKg,
+		stature: p.statureM,
+		measuredLengths: measuredLengths as ParticipantBody['measuredLengths'],
+		...(p.sex === 'not reported' ? { notReportedAs: 'mean' as const } : {})
+	};
+}
+
+/** Builds the session model or turns its refusal into form messages (a participant outside the tables' ranges). */
+function checkModel(body: ParticipantBody, setup: SessionSetup) {
+	try {
+		return buildSessionModel(body, setup);
+	} catch (err) {
+		const problems = (err as { problems?: string[] }).problems;
+		if (Array.isArray(problems)) throw new FormProblem({ form: `The model cannot be built for this participant: ${problems.join('; ')}` });
+		throw err;
+	}
+}
+
+/** What the new-session page needs: the participant, the study's default table, consent. */
+export async function newSessionForm(event: RequestEvent, rawId: string, rawPid: string) {
+	const { study } = await guardStudy(event, 'session.create', rawId);
+	const p = await participantIn(study.id, rawPid);
+	const consent = await consentStateOf(p.id);
+	return {
+		study: { id: study.id, code: study.code, title: study.title, defaultTable: study.defaultTable as SegmentTableId },
+		participant: { id: p.id, code: p.code },
+		consent: { state: consent.state, label: CONSENT_STATE_LABEL[consent.state] },
+		choices: formChoices()
+	};
+}
+
+/** Adds a session (state draft) for a consented participant. Audited. */
+export async function createSession(event: RequestEvent, rawId: string, rawPid: string, form: FormData): Promise<{ id: string }> {
+	const { actor, study } = await guardStudy(event, 'session.create', rawId);
+	const p = await participantIn(study.id, rawPid);
+	const { meta, setup } = parseSessionForm(form);
+	checkModel(await participantBodyOf(p.id), setup);
+	return db().transaction(async (transaction) => {
+		await requireValidConsent(p.id, 'session', transaction);
+		const s = await Session.create({ studyId: study.id, participantId: p.id, ...meta, setup: setup as unknown as Record<string, unknown>, createdBy: actor.id }, { transaction });
+		await record(
+			{
+				action: 'session.created',
+				actorUserId: actor.id,
+				actorLabel: actor.email,
+				studyId: study.id,
+				recordType: 'session',
+				recordId: s.id,
+				ipAddress: contextOf(event).ip,
+				details: { participant: p.code, sessionOn: meta.sessionOn, task: meta.task, limbs: setup.limbs, table: setup.table }
+			},
+			transaction
+		);
+		return { id: s.id };
+	});
+}
+
+/** What the edit page needs. */
+export async function editSessionForm(event: RequestEvent, rawId: string, rawSid: string) {
+	const { study } = await guardStudy(event, 'session.edit', rawId);
+	const s = await sessionIn(study.id, rawSid);
+	const p = (await Participant.findByPk(s.participantId))!;
+	return {
+		study: { id: study.id, code: study.code, title: study.title, defaultTable: study.defaultTable as SegmentTableId },
+		participant: { id: p.id, code: p.code },
+		session: { id: s.id, state: s.state, editable: EDITABLE_STATES.includes(s.state) },
+		initial: formValuesOf(s, s.setup as unknown as SessionSetup),
+		choices: formChoices()
+	};
+}
+
+/**
+ * Changes a session's record and set-up while it is a draft or returned. Once trials exist, a change that would
+ * alter the channels a file must contain is refused: those trials were checked against the old ones.
+ */
+export async function editSession(event: RequestEvent, rawId: string, rawSid: string, form: FormData): Promise<void> {
+	const { actor, study } = await guardStudy(event, 'session.edit', rawId);
+	const found = await sessionIn(study.id, rawSid);
+	const { meta, setup } = parseSessionForm(form);
+	const body = await participantBodyOf(found.participantId);
+	const next = checkModel(body, setup);
+	await db().transaction(async (transaction) => {
+		const s = (await Session.findByPk(found.id, { transaction, lock: transaction.LOCK.UPDATE }))!;
+		if (!EDITABLE_STATES.includes(s.state)) error(409, `This session is ${s.state.replace('_', ' ')}; it can be changed only while it is a draft or returned.`);
+		const trials = await Trial.count({ where: { sessionId: s.id }, transaction });
+		if (trials > 0) {
+			const before = buildSessionModel(body, s.setup as unknown as SessionSetup).expected.map((c) => c.name).join('|');
+			if (before !== next.expected.map((c) => c.name).join('|'))
+				throw new FormProblem({
+					limbs: `This session already has ${trials} trial${trials === 1 ? '' : 's'} checked against its current limbs and bases; changing them would change the channels a file must contain. Start a new session instead.`
+				});
+		}
+		const changed = (['sessionOn', 'operator', 'task', 'conditions'] as const).filter((k) => s[k] !== meta[k]);
+		if (JSON.stringify(s.setup) !== JSON.stringify(setup)) changed.push('setup' as never);
+		if (changed.length === 0) return;
+		await s.update({ ...meta, setup: setup as unknown as Record<string, unknown>, updatedAt: new Date() }, { transaction });
+		await record(
+			{
+				action: 'session.edited',
+				actorUserId: actor.id,
+				actorLabel: actor.email,
+				studyId: study.id,
+				recordType: 'session',
+				recordId: s.id,
+				ipAddress: contextOf(event).ip,
+				details: { changed }
+			},
+			transaction
+		);
+	});
+}
+
+export interface SessionRow {
+	id: string;
+	sessionOn: string;
+	operator: string;
+	task: string;
+	state: SessionState;
+	limbs: string[];
+	trials: number;
+}
+
+/** The sessions of a participant, newest first, with their trial counts (for the participant page). */
+export async function listSessionsOfParticipant(event: RequestEvent, rawId: string, rawPid: string): Promise<{ sessions: SessionRow[]; mayCreate: boolean }> {
+	const { actor, study } = await guardStudy(event, 'study.read', rawId);
+	const p = await participantIn(study.id, rawPid);
+	const rows = await Session.findAll({ where: { participantId: p.id, studyId: study.id }, order: [['sessionOn', 'DESC'], ['createdAt', 'DESC']] });
+	const counts = new Map<string, number>();
+	if (rows.length) {
+		const c = (await Trial.count({ where: { sessionId: rows.map((r) => r.id) }, group: ['sessionId'] })) as unknown as { sessionId: string; count: number }[];
+		for (const r of c) counts.set(r.sessionId, Number(r.count));
+	}
+	return {
+		sessions: rows.map((s) => ({
+			id: s.id,
+			sessionOn: s.sessionOn,
+			operator: s.operator,
+			task: s.task,
+			state: s.state,
+			limbs: ((s.setup as { limbs?: string[] }).limbs ?? []) as string[],
+			trials: counts.get(s.id) ?? 0
+		})),
+		mayCreate: may(actor, 'session.create', study.id)
+	};
+}
+
+export interface TrialView {
+	id: string;
+	fileName: string;
+	sha256: string;
+	frameCount: number;
+	sampleHz: number;
+	durationS: number;
+	channels: string[];
+	warnings: { code: string; message: string; row?: number; column?: string }[];
+	mapped: boolean;
+	createdAt: string;
+}
+
+export const trialView = (t: Trial): TrialView => ({
+	id: t.id,
+	fileName: t.fileName,
+	sha256: t.sha256,
+	frameCount: t.frameCount,
+	sampleHz: t.sampleHz,
+	durationS: t.durationS,
+	channels: t.channels,
+	warnings: (t.warnings ?? []) as TrialView['warnings'],
+	mapped: t.mapping !== null,
+	createdAt: t.createdAt.toISOString()
+});
+
+export interface PresetView {
+	id: string;
+	name: string;
+	mapping: Record<string, unknown>;
+	createdAt: string;
+}
+
+/** Everything the session page shows: set-up, expected channels, trials, presets and what the person may do. */
+export async function readSession(event: RequestEvent, rawId: string, rawSid: string) {
+	const { actor, study } = await guardStudy(event, 'study.read', rawId);
+	const s = await sessionIn(study.id, rawSid);
+	const p = (await Participant.findByPk(s.participantId))!;
+	const setup = s.setup as unknown as SessionSetup;
+	let expected: { name: string; kind: 'angle' | 'position' }[] = [];
+	let modelProblem: string | null = null;
+	try {
+		expected = buildSessionModel(await participantBodyOf(p.id), setup).expected;
+	} catch (err) {
+		modelProblem = (err as Error).message;
+	}
+	const trials = await Trial.findAll({ where: { sessionId: s.id }, order: [['createdAt', 'ASC']] });
+	const presets = await MappingPreset.findAll({ where: { studyId: study.id }, order: [['name', 'ASC']] });
+	const consent = await consentStateOf(p.id);
+	const editable = EDITABLE_STATES.includes(s.state);
+	return {
+		study: { id: study.id, code: study.code, title: study.title },
+		participant: { id: p.id, code: p.code },
+		session: {
+			id: s.id,
+			sessionOn: s.sessionOn,
+			operator: s.operator,
+			task: s.task,
+			conditions: s.conditions,
+			state: s.state,
+			setup,
+			tableTitle: SEGMENT_TABLES[setup.table as SegmentTableId]?.title ?? setup.table,
+			createdAt: s.createdAt.toISOString()
+		},
+		expected,
+		modelProblem,
+		trials: trials.map(trialView),
+		presets: presets.map((m): PresetView => ({ id: m.id, name: m.name, mapping: m.mapping, createdAt: m.createdAt.toISOString() })),
+		consent: { state: consent.state, label: CONSENT_STATE_LABEL[consent.state], valid: consent.state === 'consented' },
+		may: {
+			upload: editable && may(actor, 'trial.upload', study.id),
+			savePreset: may(actor, 'mapping.preset', study.id),
+			edit: editable && may(actor, 'session.edit', study.id),
+			startRun: may(actor, 'run.start', study.id)
+		}
+	};
+}

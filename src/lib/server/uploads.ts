@@ -1,0 +1,430 @@
+// The streamed trial upload: multipart parsed by busboy straight from the request, each file hashed, stored in
+// 1 MiB chunks and parsed as it arrives, all in one transaction per file, so a rejected file leaves only an audit entry.
+import type { RequestEvent } from '@sveltejs/kit';
+import { error, isHttpError } from '@sveltejs/kit';
+import busboy from 'busboy';
+import { createHash, randomUUID } from 'node:crypto';
+import { basename } from 'node:path';
+import { Readable } from 'node:stream';
+import { UniqueConstraintError, type Transaction } from 'sequelize';
+import { db } from './db/index';
+import { MappingPreset, Participant, RawUpload, Session, Trial } from './db/models';
+import { may, type Actor } from './access';
+import { record } from './audit';
+import { config } from './config';
+import { isUuid } from './studies';
+import { contextOf, guardStudy } from './study-records';
+import { requireValidConsent } from './consent';
+import { EDITABLE_STATES, participantBodyOf, sessionIn, trialView, type TrialView } from './sessions';
+import { RAW_CHUNK_BYTES, writeRawChunk } from './raw-store';
+import { buildSessionModel, type SessionSetup } from '../processing/session-model';
+import { columnMappingSchema, parseRecording, type ColumnMapping, type ExpectedChannel, type Problem } from '../processing/recording';
+
+export type UploadStatus = 201 | 400 | 409 | 413 | 422;
+
+export interface UploadOutcome {
+	fileName: string;
+	status: UploadStatus;
+	/** One sentence for the person: what happened, what to do. */
+	message: string;
+	trial?: TrialView;
+	duplicateOf?: { trialId: string; fileName: string; uploadedAt: string };
+	problems?: Problem[];
+	needsMapping?: { headers: string[]; suggested: ColumnMapping };
+	/** Set when a mapping preset was saved with this file. */
+	presetSaved?: { id: string; name: string };
+	byteSize?: number;
+	sha256?: string;
+}
+
+/** Most files one request may carry; more are refused with a message. */
+export const MAX_FILES_PER_REQUEST = 20;
+
+const mb = (bytes: number) => `${Math.round((bytes / 1048576) * 10) / 10} MB`;
+
+/** The limit as people read it ("100 MB"). */
+export const uploadLimitText = () => mb(config().UPLOAD_LIMIT_BYTES);
+
+/** Reads what is left of a body and throws it away (bounded), so the client can read our answer. */
+async function drain(body: ReadableStream<Uint8Array> | null, maxBytes = 8 * 1048576): Promise<void> {
+	if (!body) return;
+	let n = 0;
+	try {
+		const reader = body.getReader();
+		for (;;) {
+			const { done, value } = await reader.read();
+			if (done) return;
+			n += value.byteLength;
+			if (n > maxBytes) {
+				await reader.cancel();
+				return;
+			}
+		}
+	} catch {
+		/* the client has gone; nothing to answer */
+	}
+}
+
+/** Form fields that came before the files: a mapping as JSON, a preset id, or the mapping table's own fields. */
+type Fields = Map<string, string>;
+
+function mappingFromTableFields(fields: Fields): unknown | null {
+	if (!fields.has('timeColumn')) return null;
+	const columns: Record<string, unknown> = {};
+	for (let i = 0; i < 500; i++) {
+		const header = fields.get(`col.${i}.header`);
+		if (header === undefined) continue;
+		const channel = fields.get(`col.${i}.channel`) ?? '';
+		columns[header] = { channel: channel || null, unit: fields.get(`col.${i}.unit`) ?? 'deg', flip: fields.get(`col.${i}.flip`) === 'on' || fields.get(`col.${i}.flip`) === 'true' };
+	}
+	return { timeColumn: fields.get('timeColumn'), timeUnit: fields.get('timeUnit') || 's', columns };
+}
+
+/** The mapping the person chose for these files, or a problem naming the field that is wrong. */
+async function resolveMapping(fields: Fields, studyId: string): Promise<{ mapping?: ColumnMapping; presetId?: string; problem?: Omit<Problem, 'file'> }> {
+	const presetId = fields.get('presetId')?.trim();
+	let raw: unknown = null;
+	if (presetId) {
+		const preset = isUuid(presetId) ? await MappingPreset.findOne({ where: { id: presetId.toLowerCase(), studyId } }) : null;
+		if (!preset) return { problem: { field: 'presetId', code: 'preset-unknown', message: 'The chosen mapping preset does not exist in this study; choose another or map the columns again.', severity: 'error' } };
+		raw = preset.mapping;
+	} else if (fields.get('mapping')?.trim()) {
+		try {
+			raw = JSON.parse(fields.get('mapping')!);
+		} catch {
+			return { problem: { field: 'mapping', code: 'mapping-not-json', message: 'The column mapping sent with the file is not valid JSON.', severity: 'error' } };
+		}
+	} else raw = mappingFromTableFields(fields);
+	if (raw === null) return {};
+	const r = columnMappingSchema.safeParse(raw);
+	if (!r.success) {
+		const i = r.error.issues[0];
+		return { problem: { field: ['mapping', ...i.path].join('.'), code: 'mapping-invalid', message: `The column mapping is not usable: ${i.path.join('.') || 'mapping'}: ${i.message}`, severity: 'error' } };
+	}
+	return { mapping: r.data, presetId };
+}
+
+/**
+ * Cuts the incoming file into RAW_CHUNK_BYTES pieces, hashing every byte and (while `store` is on) writing each
+ * piece to the database before it is handed on. Iterates the file stream by hand: the parser may stop reading
+ * early, and the rest must still be hashed (and drained for busboy) without destroying the stream.
+ */
+function chunker(file: Readable, write: (seq: number, bytes: Buffer) => Promise<void>, stop: () => boolean) {
+	const it = file[Symbol.asyncIterator]() as AsyncIterator<Buffer>;
+	const hash = createHash('sha256');
+	const state = { size: 0, chunks: 0, store: true, done: false, writeError: null as Error | null, readError: null as Error | null };
+	let pending: Buffer[] = [];
+	let pendingLen = 0;
+	const emit = async (bytes: Buffer) => {
+		if (state.store) {
+			try {
+				await write(state.chunks, bytes);
+			} catch (err) {
+				// a storage fault is ours, not the file's: remember it so it is not reported as a bad file
+				state.writeError = err as Error;
+				state.store = false;
+				throw err;
+			}
+		}
+		state.chunks++;
+		return bytes;
+	};
+	/** The next stored piece, or null at the end of the file. */
+	async function next(): Promise<Buffer | null> {
+		while (!state.done && pendingLen < RAW_CHUNK_BYTES) {
+			let r: IteratorResult<Buffer>;
+			try {
+				r = await it.next();
+			} catch (err) {
+				// the body broke off (client gone, malformed multipart): not the file's content
+				state.readError = err as Error;
+				throw err;
+			}
+			if (r.done) {
+				state.done = true;
+				break;
+			}
+			const piece = r.value;
+			hash.update(piece);
+			state.size += piece.length;
+			pending.push(piece);
+			pendingLen += piece.length;
+		}
+		if (pendingLen === 0) return null;
+		const all = pending.length === 1 ? pending[0] : Buffer.concat(pending, pendingLen);
+		const out = pendingLen > RAW_CHUNK_BYTES ? all.subarray(0, RAW_CHUNK_BYTES) : all;
+		const rest = pendingLen > RAW_CHUNK_BYTES ? all.subarray(RAW_CHUNK_BYTES) : null;
+		pending = rest ? [rest] : [];
+		pendingLen = rest ? rest.length : 0;
+		return emit(out);
+	}
+	async function* pieces(): AsyncGenerator<Uint8Array> {
+		// past the size limit the file is refused anyway: stop feeding the parser, the rest is only hashed and drained
+		for (let b = await next(); b && !stop(); b = await next()) yield b;
+	}
+	return { state, pieces, next, sha256: () => hash.digest('hex') };
+}
+
+interface FileContext {
+	event: RequestEvent;
+	actor: Actor;
+	studyId: string;
+	session: Session;
+	participantCode: string;
+	expected: ExpectedChannel[];
+	fields: Fields;
+	limit: number;
+}
+
+/** Receives one file of the multipart body; resolves once the whole file part has been read. */
+async function receiveFile(ctx: FileContext, file: Readable, info: busboy.FileInfo): Promise<UploadOutcome> {
+	const fileName = basename((info.filename ?? '').replace(/\\/g, '/')).slice(0, 255) || 'unnamed file';
+	let truncated = false;
+	file.on('limit', () => (truncated = true));
+	const uploadId = randomUUID();
+	const sequelize = db();
+	const { mapping, presetId, problem: mappingProblem } = await resolveMapping(ctx.fields, ctx.studyId);
+	const t: Transaction = await sequelize.transaction();
+	const chunks = chunker(file, (seq, bytes) => writeRawChunk(uploadId, seq, bytes, t), () => truncated);
+	let outcome: UploadOutcome;
+	try {
+		await requireValidConsent(ctx.session.participantId, 'upload', t);
+		let parsed: Awaited<ReturnType<typeof parseRecording>> | null = null;
+		let parseCrash: Error | null = null;
+		if (mappingProblem) chunks.state.store = false;
+		else {
+			try {
+				// short gaps are bridged only when the person asks for it (field fillGaps); otherwise a blank cell is refused
+				const fillGaps = ['on', 'true', '1'].includes(ctx.fields.get('fillGaps') ?? '');
+				parsed = await parseRecording(chunks.pieces(), { fileName, expected: ctx.expected, mapping, fillGaps });
+			} catch (err) {
+				// a parser failure on odd input is still bad input to the person, never a server error
+				if (chunks.state.writeError) throw chunks.state.writeError;
+				if (chunks.state.readError) throw chunks.state.readError;
+				parseCrash = err as Error;
+				console.error(`[upload] the parser failed on ${fileName}:`, err);
+			}
+		}
+		if (!parsed?.ok || truncated) chunks.state.store = false;
+		while (await chunks.next()) {
+			if (truncated) chunks.state.store = false;
+		}
+		const sha256 = chunks.sha256();
+		const byteSize = chunks.state.size;
+		const base = { fileName, byteSize, sha256 };
+		const dup = await Trial.findOne({ where: { sessionId: ctx.session.id, sha256 }, transaction: t });
+		if (truncated || (file as Readable & { truncated?: boolean }).truncated) {
+			outcome = { ...base, status: 413, message: `${fileName}: the file is larger than the ${mb(ctx.limit)} limit; nothing was stored. Split the recording or ask the lab administrator to raise UPLOAD_LIMIT_BYTES.` };
+		} else if (byteSize === 0) {
+			outcome = {
+				...base,
+				status: 422,
+				message: `${fileName} is empty (0 bytes); nothing was stored.`,
+				problems: [{ file: fileName, code: 'empty-file', message: `${fileName} is empty (0 bytes): choose the recording file again.`, severity: 'error' }]
+			};
+		} else if (dup) {
+			outcome = {
+				...base,
+				status: 409,
+				message: `${fileName} was already uploaded to this session as trial ${dup.fileName} on ${dup.createdAt.toISOString().slice(0, 10)}; it was not stored again.`,
+				duplicateOf: { trialId: dup.id, fileName: dup.fileName, uploadedAt: dup.createdAt.toISOString() }
+			};
+		} else if (mappingProblem) {
+			outcome = { ...base, status: 422, message: `${fileName}: ${mappingProblem.message}`, problems: [{ file: fileName, ...mappingProblem }] };
+		} else if (!parsed) {
+			outcome = {
+				...base,
+				status: 422,
+				message: `${fileName} could not be read as a recording; nothing was stored.`,
+				problems: [{ file: fileName, code: 'unreadable', message: `${fileName} could not be read as a delimited text recording (${parseCrash?.message ?? 'unknown reason'}).`, severity: 'error' }]
+			};
+		} else if (!parsed.ok) {
+			const n = parsed.problems.filter((p) => p.severity === 'error').length || parsed.problems.length;
+			outcome = {
+				...base,
+				status: 422,
+				message: parsed.needsMapping
+					? `${fileName}: its columns are not in Momentry's layout; match each column to a model DOF and upload it again.`
+					: `${fileName} was rejected (${n} problem${n === 1 ? '' : 's'}); nothing was stored.`,
+				problems: parsed.problems,
+				...(parsed.needsMapping ? { needsMapping: parsed.needsMapping } : {})
+			};
+		} else {
+			const rec = parsed.recording;
+			const frames = rec.time.length;
+			await RawUpload.create({ id: uploadId, sha256, byteSize, fileName, contentType: info.mimeType || null, uploadedBy: ctx.actor.id }, { transaction: t });
+			const trial = await Trial.create(
+				{
+					sessionId: ctx.session.id,
+					rawUploadId: uploadId,
+					fileName,
+					sha256,
+					mapping: (mapping ?? null) as Record<string, unknown> | null,
+					sampleHz: rec.sampleHz,
+					frameCount: frames,
+					durationS: frames > 1 ? rec.time[frames - 1] - rec.time[0] : 0,
+					channels: rec.channels.map((c) => c.name),
+					warnings: rec.warnings,
+					createdBy: ctx.actor.id
+				},
+				{ transaction: t }
+			);
+			let presetSaved: UploadOutcome['presetSaved'];
+			const presetName = ctx.fields.get('presetName')?.trim().slice(0, 100);
+			let presetNote = '';
+			if (mapping && !presetId && presetName) {
+				if (!may(ctx.actor, 'mapping.preset', ctx.studyId)) presetNote = ' The mapping was not saved as a preset: your role may not save presets.';
+				else if (await MappingPreset.findOne({ where: { studyId: ctx.studyId, name: presetName }, transaction: t }))
+					presetNote = ` The mapping was not saved as a preset: the study already has a preset named “${presetName}”.`;
+				else {
+					const p = await MappingPreset.create({ studyId: ctx.studyId, name: presetName, mapping: mapping as unknown as Record<string, unknown>, createdBy: ctx.actor.id }, { transaction: t });
+					presetSaved = { id: p.id, name: p.name };
+					await record(
+						{ action: 'mapping_preset.created', actorUserId: ctx.actor.id, actorLabel: ctx.actor.email, studyId: ctx.studyId, recordType: 'mapping_preset', recordId: p.id, ipAddress: contextOf(ctx.event).ip, details: { name: p.name } },
+						t
+					);
+				}
+			}
+			await record(
+				{
+					action: 'trial.uploaded',
+					actorUserId: ctx.actor.id,
+					actorLabel: ctx.actor.email,
+					studyId: ctx.studyId,
+					recordType: 'trial',
+					recordId: trial.id,
+					ipAddress: contextOf(ctx.event).ip,
+					details: { sessionId: ctx.session.id, participant: ctx.participantCode, fileName, byteSize, sha256, frames, sampleHz: rec.sampleHz, mapped: !!mapping, presetId: presetId ?? null, warnings: rec.warnings.length }
+				},
+				t
+			);
+			outcome = {
+				...base,
+				status: 201,
+				message: `${fileName} stored as a trial: ${frames} samples at ${Math.round(rec.sampleHz * 100) / 100} Hz${rec.warnings.length ? `, ${rec.warnings.length} warning${rec.warnings.length === 1 ? '' : 's'}` : ''}.${presetNote}`,
+				trial: trialView(trial),
+				...(presetSaved ? { presetSaved } : {})
+			};
+		}
+		if (outcome.status === 201) await t.commit();
+		else await t.rollback();
+	} catch (err) {
+		await t.rollback().catch(() => {});
+		chunks.state.store = false;
+		try {
+			while (await chunks.next());
+		} catch {
+			file.resume();
+		}
+		if (err instanceof UniqueConstraintError) {
+			// the same file arrived twice at once: the other request stored it
+			outcome = { fileName, status: 409, message: `${fileName} was uploaded to this session at the same moment by another request; it was not stored twice.` };
+		} else if (isHttpError(err) && err.status === 409) {
+			outcome = { fileName, status: 409, message: err.body.message };
+		} else throw err;
+	}
+	if (outcome.status !== 201) {
+		// outside the rolled-back transaction: the refusal itself is the one thing kept
+		await record({
+			action: 'trial.rejected',
+			actorUserId: ctx.actor.id,
+			actorLabel: ctx.actor.email,
+			outcome: 'failed',
+			studyId: ctx.studyId,
+			recordType: 'session',
+			recordId: ctx.session.id,
+			ipAddress: contextOf(ctx.event).ip,
+			details: {
+				participant: ctx.participantCode,
+				fileName,
+				byteSize: outcome.byteSize ?? null,
+				sha256: outcome.sha256 ?? null,
+				status: outcome.status,
+				problems: [...new Set((outcome.problems ?? []).filter((p) => p.severity === 'error').map((p) => p.code))],
+				...(outcome.duplicateOf ? { duplicateOf: outcome.duplicateOf.trialId } : {})
+			}
+		});
+	}
+	return outcome;
+}
+
+/**
+ * Handles POST …/sessions/[sid]/trials. Request-level refusals (access, unknown session, locked session, no
+ * consent, not multipart, malformed multipart, no file) are thrown as HTTP errors; each file gets its own outcome.
+ * Fields (`mapping`, `presetId`, `presetName`, `fillGaps`, or the mapping table's fields) must come before the files.
+ */
+export async function receiveTrials(event: RequestEvent, rawId: string, rawSid: string): Promise<{ studyId: string; sessionId: string; outcomes: UploadOutcome[] }> {
+	const { actor, study } = await guardStudy(event, 'trial.upload', rawId);
+	const body = event.request.body;
+	try {
+		const session = await sessionIn(study.id, rawSid);
+		if (!EDITABLE_STATES.includes(session.state)) error(409, `This session is ${session.state.replace('_', ' ')}; trials can be added only while it is a draft or returned.`);
+		const contentType = event.request.headers.get('content-type') ?? '';
+		if (!/^multipart\/form-data\b/i.test(contentType)) error(415, 'Send the recording as multipart/form-data: a form with a file field named "file".');
+		await requireValidConsent(session.participantId, 'upload');
+		let expected: ExpectedChannel[];
+		try {
+			expected = buildSessionModel(await participantBodyOf(session.participantId), session.setup as unknown as SessionSetup).expected;
+		} catch (err) {
+			error(409, `The session's model cannot be built, so files cannot be checked against it: ${(err as Error).message}`);
+		}
+		if (!body) error(400, 'The upload was empty: choose at least one recording file.');
+		const participantCode = (await Participant.findByPk(session.participantId))?.code ?? '';
+		const limit = config().UPLOAD_LIMIT_BYTES;
+		let bb: busboy.Busboy;
+		try {
+			bb = busboy({
+				headers: { 'content-type': contentType },
+				limits: { fileSize: limit, files: MAX_FILES_PER_REQUEST, fields: 1000, fieldSize: 1048576, parts: 2000 },
+				highWaterMark: 256 * 1024
+			});
+		} catch (err) {
+			error(400, `The upload is not a well-formed multipart form (${(err as Error).message}).`);
+		}
+		const fields: Fields = new Map();
+		const ctx: FileContext = { event, actor, studyId: study.id, session, participantCode, expected, fields, limit };
+		const outcomes: UploadOutcome[] = [];
+		let tooMany = false;
+		let chain: Promise<void> = Promise.resolve();
+		let chainError: unknown = null;
+		const finished = new Promise<void>((resolve, reject) => {
+			bb.on('field', (name, value) => fields.set(name, value));
+			bb.on('file', (_name, file, info) => {
+				// a broken body destroys the file stream with an error, possibly before its turn in the chain has come;
+				// the reader sees that error when it starts, and without a listener here it would end the process
+				file.on('error', () => {});
+				chain = chain.then(async () => {
+					if (chainError) return void file.resume();
+					try {
+						outcomes.push(await receiveFile(ctx, file, info));
+					} catch (err) {
+						chainError = err;
+						file.resume();
+					}
+				});
+			});
+			bb.on('filesLimit', () => (tooMany = true));
+			bb.on('error', (err) => reject(err));
+			bb.on('close', () => resolve());
+		});
+		const source = Readable.fromWeb(body as import('node:stream/web').ReadableStream<Uint8Array>);
+		source.on('error', (err) => bb.destroy(err));
+		source.pipe(bb);
+		try {
+			await finished;
+		} catch (err) {
+			source.unpipe(bb);
+			source.resume();
+			await chain;
+			error(400, `The upload is not a well-formed multipart form (${(err as Error).message}); nothing more was read.${outcomes.length ? ` ${outcomes.length} file(s) before the fault were handled.` : ''}`);
+		}
+		await chain;
+		if (chainError) throw chainError;
+		if (outcomes.length === 0) error(400, 'No file was sent: choose at least one recording file (form field "file").');
+		if (tooMany) outcomes.push({ fileName: '(further files)', status: 400, message: `Only ${MAX_FILES_PER_REQUEST} files can be sent at once; the rest were not read. Send them again.` });
+		return { studyId: study.id, sessionId: session.id, outcomes };
+	} catch (err) {
+		await drain(body);
+		throw err;
+	}
+}
