@@ -100,7 +100,7 @@ async function main() {
 		// possible inside one call, so the pipeline's CPU time is reported as one figure beside its stages
 		t0 = performance.now();
 		c0 = cpu();
-		const r = runPipeline(built, parsed.recording, { cutoffHz: 6 });
+		const r = runPipeline(built, parsed.recording, { cutoffHz: 6 }, undefined, { reuseInput: true }); // as the worker does
 		const pipelineWall = performance.now() - t0,
 			pipelineCpu = cpu() - c0;
 		const rssPipeline = process.resourceUsage().maxRSS;

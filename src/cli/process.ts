@@ -144,7 +144,7 @@ async function main(): Promise<void> {
 		throw new CliError(lines.join('\n'));
 	}
 	for (const w of parsed.recording.warnings) console.error(`${a.angles}${w.row ? `:${w.row}` : ''}${w.column ? ` [${w.column}]` : ''}: warning: ${w.message}`);
-	const r = runPipeline(built, parsed.recording, { cutoffHz });
+	const r = runPipeline(built, parsed.recording, { cutoffHz }, undefined, { reuseInput: true });
 	await writeWide(a.out, r);
 	console.log(`${a.out}: ${r.time.length} samples at ${r.sampleHz} Hz, ${r.dofs.length} DOF (${cutoffHz === null ? 'unfiltered' : `low-pass ${cutoffHz} Hz`}); internal joint moments, proximal on distal, positive in each DOF's positive sense`);
 	for (const s of r.summary.filter((x) => x.quantity === 'moment'))

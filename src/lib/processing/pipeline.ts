@@ -87,7 +87,9 @@ export function runPipeline(
 	built: SessionModel,
 	rec: Recording,
 	optionsInput: RunOptionsInput | RunOptions = {},
-	onProgress?: (fraction: number, stage: string) => void
+	onProgress?: (fraction: number, stage: string) => void,
+	/** reuseInput: the recording's channel arrays may become the filtered angles (filtered in place), saving one copy. */
+	{ reuseInput = false }: { reuseInput?: boolean } = {}
 ): PipelineResult {
 	const parsed = runOptionsSchema.safeParse(optionsInput);
 	if (!parsed.success) throw new PipelineError(`run options: ${parsed.error.issues.map((i) => `${i.path.join('.') || 'options'}: ${i.message}`).join('; ')}`);
@@ -135,13 +137,14 @@ export function runPipeline(
 		}
 		const fc = options.perChannelCutoffHz?.[name] ?? options.cutoffHz;
 		cutoffs[name] = fc;
+		const own = reuseInput || x !== rec.channels[j].values; // gap filling already made a copy of its own
 		if (fc === null) {
-			angle.push(Float64Array.from(x));
+			angle.push(own ? x : Float64Array.from(x));
 		} else {
 			if (fc >= nyquist) throw new PipelineError(`cutoff ${fc} Hz for "${name}" must be below half the sampling rate (${nyquist} Hz)`);
 			if (frames < MIN_SAMPLES_FOR_FILTER) throw new PipelineError(`the recording has ${frames} samples; filtering needs at least ${MIN_SAMPLES_FOR_FILTER} (or run without a filter)`);
 			try {
-				angle.push(lowPassZeroLag(x, rec.sampleHz, fc, new Float64Array(frames)));
+				angle.push(lowPassZeroLag(x, rec.sampleHz, fc, own ? x : new Float64Array(frames)));
 			} catch (e) {
 				if (e instanceof SignalError) throw new PipelineError(`channel "${name}": ${e.message}`);
 				throw e;

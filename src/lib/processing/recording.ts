@@ -45,6 +45,12 @@ export interface ParseOptions {
 	/** Relative tolerance on the sampling interval; default 0.01. */
 	samplingTolerance?: number;
 	defaultAngleUnit?: 'deg' | 'rad';
+	/**
+	 * false: check everything but keep no channel values (each channel's `values` comes back empty). Gaps and
+	 * ranges are checked on the fly, so memory is a few bytes per sample whatever the number of columns; the
+	 * upload uses this and the worker parses the stored bytes again with values. Default true.
+	 */
+	keepValues?: boolean;
 }
 
 export interface Recording {
@@ -193,6 +199,59 @@ class LineNumbers {
 	}
 	at(i: number): number {
 		return this.blocks[Math.floor(i / BLOCK)][i % BLOCK];
+	}
+}
+
+/** Gaps (runs of NaN) as they pass, in sample indices. */
+class GapRuns {
+	starts: number[] = [];
+	lengths: number[] = [];
+	private open = -1;
+	step(i: number, blank: boolean): void {
+		if (blank) {
+			if (this.open < 0) this.open = i;
+		} else if (this.open >= 0) {
+			this.starts.push(this.open);
+			this.lengths.push(i - this.open);
+			this.open = -1;
+		}
+	}
+	end(n: number): void {
+		this.step(n, false);
+	}
+	get count(): number {
+		return this.starts.length;
+	}
+}
+
+/**
+ * What validation needs of a channel without its values: the gaps, and the sample furthest outside the
+ * physiological range (in SI units, sign applied). Takes the place of a Column when values are not kept.
+ */
+class ChannelScan {
+	n = 0;
+	readonly gaps = new GapRuns();
+	worst = -1;
+	worstValue = NaN;
+	private excess = 0;
+	constructor(
+		private scale: number,
+		private lo: number,
+		private hi: number
+	) {}
+	push(v: number): void {
+		const blank = Number.isNaN(v);
+		this.gaps.step(this.n, blank);
+		if (!blank && Number.isFinite(v)) {
+			const x = v * this.scale;
+			const e = x < this.lo ? this.lo - x : x > this.hi ? x - this.hi : 0;
+			if (e > this.excess) {
+				this.excess = e;
+				this.worst = this.n;
+				this.worstValue = x;
+			}
+		}
+		this.n++;
 	}
 }
 
@@ -477,7 +536,7 @@ interface Target {
 	channel: ExpectedChannel;
 	unit: 'deg' | 'rad' | 'm' | 'mm';
 	flip: boolean;
-	data: Column;
+	data: Column | ChannelScan;
 }
 
 type Plan =
@@ -668,6 +727,13 @@ export async function parseRecording(input: AsyncIterable<Uint8Array | string> |
 					return fail(p.needsMapping ? { headers, suggested: suggestMapping(headers, opts.expected, opts.defaultAngleUnit) } : undefined);
 				}
 				plan = p;
+				if (opts.keepValues === false) {
+					for (const tg of p.targets) {
+						const r = rangeOf(tg);
+						const scale = (tg.flip ? -1 : 1) * (tg.unit === 'deg' ? DEG : tg.unit === 'mm' ? 1 / 1000 : 1);
+						tg.data = new ChannelScan(scale, r ? r.lo : -Infinity, r ? r.hi : Infinity);
+					}
+				}
 				continue;
 			}
 			const cells = row.cells;
@@ -753,6 +819,13 @@ export async function parseRecording(input: AsyncIterable<Uint8Array | string> |
 	const byName = new Map(pl.targets.map((tg) => [tg.channel.name, tg]));
 	for (const e of opts.expected) {
 		const tg = byName.get(e.name)!;
+		if (tg.data instanceof ChannelScan) {
+			tg.data.gaps.end(n);
+			reportGaps(tg.data.gaps, n, tg, lines, opts.fillGaps ?? false, maxGap, problems);
+			reportRange(tg, tg.data.worst, tg.data.worstValue, t, lines, problems);
+			channels.push({ name: e.name, values: new Float64Array(0) });
+			continue;
+		}
 		let values = tg.data.take();
 		values = handleGaps(values, tg, lines, opts.fillGaps ?? false, maxGap, problems);
 		const conv = toSI(tg.unit);
@@ -796,32 +869,33 @@ function checkSampling(t: Float64Array, lines: LineNumbers, tolerance: number, p
 	return (n - 1) / (t[n - 1] - t[0]);
 }
 
-function handleGaps(values: Float64Array, tg: Target, lines: LineNumbers, fill: boolean, maxGap: number, problems: ProblemList): Float64Array {
-	let blanks = 0;
-	for (let i = 0; i < values.length; i++) if (Number.isNaN(values[i])) blanks++;
-	if (blanks === 0) return values;
+/** Reports a channel's gaps: each one refused, or (gap filling on) the bridgeable ones as warnings and the rest refused. */
+function reportGaps(gaps: GapRuns, n: number, tg: Target, lines: LineNumbers, fill: boolean, maxGap: number, problems: ProblemList): void {
+	if (gaps.count === 0) return;
 	if (!fill) {
-		for (let i = 0; i < values.length; i++) {
-			if (!Number.isNaN(values[i])) continue;
-			let j = i;
-			while (j + 1 < values.length && Number.isNaN(values[j + 1])) j++;
-			const len = j - i + 1;
+		for (let k = 0; k < gaps.count; k++) {
+			const i = gaps.starts[k];
+			const len = gaps.lengths[k];
+			const j = i + len - 1;
 			problems.add({
 				row: lines.at(i),
 				column: tg.header,
 				code: 'blank-cell',
 				message: `${len === 1 ? `The cell on line ${lines.at(i)} is` : `Lines ${lines.at(i)}–${lines.at(j)} (${len} samples) are`} empty or NaN. Fill ${len === 1 ? 'it' : 'them'}, or turn on gap filling (bridges gaps of up to ${maxGap} samples by cubic interpolation).`
 			});
-			i = j;
 		}
-		return values;
+		return;
 	}
-	const r = fillGaps(values, maxGap);
-	for (const g of r.tooLong) {
-		const span = `Lines ${lines.at(g.start)}–${lines.at(g.start + g.length - 1)} (${g.length} sample${g.length === 1 ? '' : 's'})`;
-		const edge = g.start === 0 ? 'start' : g.start + g.length === values.length ? 'end' : null;
+	// the same rule as fillGaps (signal.ts): a gap touching either end, or longer than maxGap, cannot be bridged
+	const tooLong = (k: number) => gaps.starts[k] === 0 || gaps.starts[k] + gaps.lengths[k] === n || gaps.lengths[k] > maxGap;
+	for (let k = 0; k < gaps.count; k++) {
+		if (!tooLong(k)) continue;
+		const start = gaps.starts[k];
+		const length = gaps.lengths[k];
+		const span = `Lines ${lines.at(start)}–${lines.at(start + length - 1)} (${length} sample${length === 1 ? '' : 's'})`;
+		const edge = start === 0 ? 'start' : start + length === n ? 'end' : null;
 		problems.add({
-			row: lines.at(g.start),
+			row: lines.at(start),
 			column: tg.header,
 			code: 'gap-too-long',
 			message: edge
@@ -829,41 +903,62 @@ function handleGaps(values: Float64Array, tg: Target, lines: LineNumbers, fill: 
 				: `${span} are a gap longer than gap filling bridges (at most ${maxGap} samples). Re-export this stretch, or cut the trial around it.`
 		});
 	}
-	for (const g of r.gaps) {
+	for (let k = 0; k < gaps.count; k++) {
+		if (tooLong(k)) continue;
+		const start = gaps.starts[k];
+		const length = gaps.lengths[k];
 		problems.add({
-			row: lines.at(g.start),
+			row: lines.at(start),
 			column: tg.header,
 			code: 'gap-filled',
 			severity: 'warning',
-			message: `Lines ${lines.at(g.start)}–${lines.at(g.start + g.length - 1)} (${g.length} sample${g.length === 1 ? '' : 's'}) were empty and are filled by cubic interpolation.`
+			message: `Lines ${lines.at(start)}–${lines.at(start + length - 1)} (${length} sample${length === 1 ? '' : 's'}) were empty and are filled by cubic interpolation.`
 		});
 	}
-	return r.filled;
 }
 
-function rangeCheck(values: Float64Array, tg: Target, t: Float64Array, lines: LineNumbers, problems: ProblemList): void {
+function handleGaps(values: Float64Array, tg: Target, lines: LineNumbers, fill: boolean, maxGap: number, problems: ProblemList): Float64Array {
+	const gaps = new GapRuns();
+	for (let i = 0; i < values.length; i++) gaps.step(i, Number.isNaN(values[i]));
+	gaps.end(values.length);
+	reportGaps(gaps, values.length, tg, lines, fill, maxGap, problems);
+	return fill && gaps.count > 0 ? fillGaps(values, maxGap).filled : values;
+}
+
+/** The accepted band of an angle channel in rad (the usual range widened by RANGE_MARGIN_DEG), or null if none applies. */
+function rangeOf(tg: Target): { min: number; max: number; lo: number; hi: number } | null {
 	const m = DOF_RE.exec(tg.channel.name);
 	const range = m ? PHYSIOLOGICAL_RANGES[`${m[2]}.${m[3]}`] : undefined;
-	if (!range || tg.channel.kind !== 'angle') return;
-	const lo = (range.min - RANGE_MARGIN_DEG) * DEG;
-	const hi = (range.max + RANGE_MARGIN_DEG) * DEG;
-	let worst = -1;
-	let excess = 0;
-	for (let i = 0; i < values.length; i++) {
-		const v = values[i];
-		if (!Number.isFinite(v)) continue;
-		const e = v < lo ? lo - v : v > hi ? v - hi : 0;
-		if (e > excess) {
-			excess = e;
-			worst = i;
-		}
-	}
-	if (worst < 0) return;
+	if (!range || tg.channel.kind !== 'angle') return null;
+	return { ...range, lo: (range.min - RANGE_MARGIN_DEG) * DEG, hi: (range.max + RANGE_MARGIN_DEG) * DEG };
+}
+
+/** A warning for the sample furthest outside the band, if any. */
+function reportRange(tg: Target, worst: number, value: number, t: Float64Array, lines: LineNumbers, problems: ProblemList): void {
+	const range = rangeOf(tg);
+	if (!range || worst < 0) return;
 	problems.add({
 		row: lines.at(worst),
 		column: tg.header,
 		code: 'out-of-range',
 		severity: 'warning',
-		message: `${tg.channel.name} reaches ${fmt(values[worst] / DEG)}° at line ${lines.at(worst)} (time ${fmt(t[worst])} s), outside the usual ${range.min}° to ${range.max}° by more than ${RANGE_MARGIN_DEG}°. Check the unit (deg or rad), the sign and the column; the file is accepted.`
+		message: `${tg.channel.name} reaches ${fmt(value / DEG)}° at line ${lines.at(worst)} (time ${fmt(t[worst])} s), outside the usual ${range.min}° to ${range.max}° by more than ${RANGE_MARGIN_DEG}°. Check the unit (deg or rad), the sign and the column; the file is accepted.`
 	});
+}
+
+function rangeCheck(values: Float64Array, tg: Target, t: Float64Array, lines: LineNumbers, problems: ProblemList): void {
+	const range = rangeOf(tg);
+	if (!range) return;
+	let worst = -1;
+	let excess = 0;
+	for (let i = 0; i < values.length; i++) {
+		const v = values[i];
+		if (!Number.isFinite(v)) continue;
+		const e = v < range.lo ? range.lo - v : v > range.hi ? v - range.hi : 0;
+		if (e > excess) {
+			excess = e;
+			worst = i;
+		}
+	}
+	reportRange(tg, worst, worst < 0 ? NaN : values[worst], t, lines, problems);
 }

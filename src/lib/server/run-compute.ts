@@ -79,6 +79,7 @@ export function computeRun(
 	onProgress?: (fraction: number, stage: string) => void
 ): ComputedRun {
 	const built = buildSessionModel(body, setup);
-	const result = runPipeline(built, recording, options, onProgress);
+	// the recording was parsed for this run alone: its arrays are filtered in place
+	const result = runPipeline(built, recording, options, onProgress, { reuseInput: true });
 	return { series: seriesRows(result, built), summary: result.summary, model: modelRecord(built, options), timings: result.timings };
 }

@@ -196,7 +196,8 @@ async function receiveFile(ctx: FileContext, file: Readable, info: busboy.FileIn
 			try {
 				// short gaps are bridged only when the person asks for it (field fillGaps); otherwise a blank cell is refused
 				const fillGaps = ['on', 'true', '1'].includes(ctx.fields.get('fillGaps') ?? '');
-				parsed = await parseRecording(chunks.pieces(), { fileName, expected: ctx.expected, mapping, fillGaps });
+				// validation only: the values are not kept here (the worker parses the stored bytes again), so memory stays flat
+				parsed = await parseRecording(chunks.pieces(), { fileName, expected: ctx.expected, mapping, fillGaps, keepValues: false });
 			} catch (err) {
 				// a parser failure on odd input is still bad input to the person, never a server error
 				if (chunks.state.writeError) throw chunks.state.writeError;

@@ -68,3 +68,24 @@ describe('runPipeline', () => {
 		expect(runOptionsSchema.parse({})).toEqual({ cutoffHz: 6, fillGaps: false });
 	});
 });
+
+describe('reuseInput (the worker filters its freshly parsed recording in place)', () => {
+	it('gives the same series, bit for bit, as filtering into new arrays, with and without a filter', () => {
+		for (const cutoffHz of [6, null]) {
+			const fresh = () => makeRecording(built, 401, 100, (n, t) => (n === 'right.knee.flexion' ? knee(t) : 0.1 * Math.sin(3 * t)));
+			const kept = fresh();
+			const before = kept.channels.map((c) => Float64Array.from(c.values));
+			const a = runPipeline(built, kept, { cutoffHz });
+			const reused = fresh();
+			const b = runPipeline(built, reused, { cutoffHz }, undefined, { reuseInput: true });
+			// without reuseInput the caller's arrays are untouched
+			kept.channels.forEach((c, j) => expect(Array.from(c.values)).toEqual(Array.from(before[j])));
+			a.dofs.forEach((d, j) => {
+				expect(Array.from(b.dofs[j].angle)).toEqual(Array.from(d.angle));
+				expect(Array.from(b.dofs[j].moment)).toEqual(Array.from(d.moment));
+			});
+			// with it, the recording's arrays became the filtered angles
+			expect(b.dofs[0].angle).toBe(reused.channels[0].values);
+		}
+	});
+});

@@ -363,3 +363,35 @@ describe('malformed corpus (tests/fixtures/recordings/malformed)', () => {
 		if (!['empty-file', 'not-text'].includes(code)) expect(hit.row).toBeGreaterThanOrEqual(1);
 	});
 });
+
+describe('checking without keeping values (keepValues: false, as the upload does)', () => {
+	// the upload checks with keepValues: false and the worker parses again with values: both must judge a file alike
+	const same = async (bytes: Uint8Array, o: ParseOptions) => {
+		const full = await parseRecording(bytes, o);
+		const scan = await parseRecording(chunked(bytes, 7), { ...o, keepValues: false });
+		expect(scan.ok).toBe(full.ok);
+		if (full.ok && scan.ok) {
+			expect(scan.recording.warnings).toEqual(full.recording.warnings);
+			expect(scan.recording.sampleHz).toBe(full.recording.sampleHz);
+			expect(Array.from(scan.recording.time)).toEqual(Array.from(full.recording.time));
+			expect(scan.recording.channels.map((c) => [c.name, c.values.length])).toEqual(full.recording.channels.map((c) => [c.name, 0]));
+		} else if (!full.ok && !scan.ok) expect(scan.problems).toEqual(full.problems);
+	};
+	const malformed = JSON.parse(readFileSync(join(FIX, 'malformed/index.json'), 'utf8')) as Record<string, { expected: string[]; options?: Partial<ParseOptions> }>;
+	test.each(Object.entries(malformed))('malformed %s: the same problems', async (name, { expected, options }) => {
+		await same(new Uint8Array(readFileSync(join(FIX, 'malformed', name))), opts({ fileName: name, expected: channels(expected), ...options }));
+	});
+	const good = JSON.parse(readFileSync(join(FIX, 'good/index.json'), 'utf8')) as Record<string, { expected: string[] }>;
+	test.each(Object.entries(good))('good %s: the same recording apart from the values', async (name, { expected }) => {
+		await same(new Uint8Array(readFileSync(join(FIX, 'good', name))), opts({ fileName: name, expected: channels(expected) }));
+	});
+	test('gaps (refused, bridged, too long, at the edges) and out-of-range angles: the same problems and warnings', async () => {
+		const blanks = new Set([0, 7, 8, 20, 31, 32, 33, 34, 35, 36, 37, 38, 39, 40, 41, 42, 59]);
+		const text = utf8(legFile(60, (i) => [blanks.has(i) ? '' : 10 + i, i === 12 ? 199 : 20 + i, i === 50 ? 'NaN' : i === 51 ? -80 : -5]));
+		for (const fillGaps of [false, true]) await same(text, opts({ fillGaps }));
+		const inner = utf8(legFile(60, (i) => [i === 7 || i === 8 ? '' : 10 + i, i === 12 ? 199 : 20 + i, -5]));
+		await same(inner, opts({ fillGaps: true }));
+		const ok = recording(await parseRecording(inner, opts({ fillGaps: true, keepValues: false })));
+		expect(ok.warnings.map((w) => w.code).sort()).toEqual(['gap-filled', 'out-of-range']);
+	});
+});
