@@ -141,6 +141,11 @@ export const MATRIX: MatrixEntry[] = [
 	{ route: '/api/studies/[id]/runs/[rid]/summary', method: 'GET', params: { id: 'studyA', rid: 'runA' }, expect: { anonymous: 401, admin: 404, piA: 200, researcherA: 200, technicianA: 200, memberB: 404 } },
 	{ route: '/api/studies/[id]/runs/[rid]/retry', method: 'POST', params: { id: 'studyA', rid: 'runA' }, expect: { anonymous: 401, admin: 404, piA: 409, researcherA: 409, technicianA: 409, memberB: 404 } },
 	{ route: '/api/studies/[id]/runs/[rid]/retry', method: 'POST', params: { id: 'studyB', rid: 'runA' }, expect: { anonymous: 401, admin: 404, piA: 404, researcherA: 404, technicianA: 404, memberB: 404 } },
+	// export of an approved session (pi, researcher; the seeded session is a draft: 409) and the printable report (the team)
+	{ route: '/api/studies/[id]/sessions/[sid]/export', method: 'GET', params: { id: 'studyA', sid: 'sessionA' }, expect: { anonymous: 401, admin: 404, piA: 409, researcherA: 409, technicianA: 403, memberB: 404 } },
+	{ route: '/api/studies/[id]/sessions/[sid]/export', method: 'GET', params: { id: 'studyB', sid: 'sessionA' }, expect: { anonymous: 401, admin: 404, piA: 404, researcherA: 404, technicianA: 404, memberB: 404 } },
+	{ route: '/studies/[id]/sessions/[sid]/report', method: 'GET', params: { id: 'studyA', sid: 'sessionA' }, expect: { anonymous: 303, admin: 404, piA: 200, researcherA: 200, technicianA: 200, memberB: 404 } },
+	{ route: '/studies/[id]/sessions/[sid]/report', method: 'GET', params: { id: 'studyB', sid: 'sessionA' }, expect: { anonymous: 303, admin: 404, piA: 404, researcherA: 404, technicianA: 404, memberB: 404 } },
 	// column-mapping presets: the team lists them, PI and technicians save them (an empty one is refused with 400)
 	{ route: '/api/studies/[id]/mapping-presets', method: 'GET', params: { id: 'studyA' }, expect: { anonymous: 401, admin: 404, piA: 200, researcherA: 200, technicianA: 200, memberB: 404 } },
 	{ route: '/api/studies/[id]/mapping-presets', method: 'POST', params: { id: 'studyA' }, expect: { anonymous: 401, admin: 404, piA: 400, researcherA: 403, technicianA: 400, memberB: 404 } }

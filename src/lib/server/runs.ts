@@ -10,12 +10,13 @@ import { Worker } from 'node:worker_threads';
 import { QueryTypes, type Transaction } from 'sequelize';
 import { z } from 'zod';
 import { db } from './db/index';
-import { Run, RunSeries, type RunState } from './db/models';
+import { Run, RunSeries, type RunState, type SessionState } from './db/models';
 import { participantBodyOf } from './sessions';
 import { record } from './audit';
 import { requireValidConsent } from './consent';
 import { enqueueRun } from './jobs/queue';
 import { readRaw } from './raw-store';
+import { assertSessionUnlocked, LOCKED_STATES, lockedMessage } from './session-lock';
 import { isUuid } from './studies';
 import { contextOf, FormProblem, guardStudy } from './study-records';
 import { may } from './access';
@@ -258,7 +259,7 @@ async function queueOrFail(runId: string, jobKey?: string): Promise<void> {
 }
 
 function refuseLockedSession(trial: TrialContext): void {
-	if (trial.sessionState === 'approved') error(409, 'This session is approved and locked; its PI can reopen it before new runs are started.');
+	if (LOCKED_STATES.includes(trial.sessionState as SessionState)) error(409, lockedMessage);
 }
 
 /**
@@ -268,9 +269,11 @@ function refuseLockedSession(trial: TrialContext): void {
 export async function startRun(event: RequestEvent, rawStudyId: string, rawTrialId: string, options: FormData | (() => Promise<unknown>) | Record<string, unknown>): Promise<RunView> {
 	const { actor, study } = await guardStudy(event, 'run.start', rawStudyId);
 	const trial = await trialIn(study.id, rawTrialId);
-	const opts = options instanceof FormData ? runOptionsFromForm(options) : parseRunOptions(typeof options === 'function' ? await options() : options);
 	refuseLockedSession(trial);
+	const opts = options instanceof FormData ? runOptionsFromForm(options) : parseRunOptions(typeof options === 'function' ? await options() : options);
 	const runId = await db().transaction(async (transaction) => {
+		// again inside the transaction: an approval signed meanwhile wins
+		await assertSessionUnlocked(trial.sessionId, transaction);
 		await requireValidConsent(trial.participantId, 'run', transaction);
 		const run = await Run.create(
 			{ trialId: trial.trialId, state: 'queued', options: opts as unknown as Record<string, unknown>, rawSha256: trial.sha256, softwareVersion: softwareVersion(), createdBy: actor.id },
@@ -313,9 +316,10 @@ export function jsonBody(event: RequestEvent): () => Promise<unknown> {
 export async function retryRun(event: RequestEvent, rawStudyId: string, rawRunId: string): Promise<RunView> {
 	const { actor, study } = await guardStudy(event, 'run.start', rawStudyId);
 	const { run, trial } = await runIn(study.id, rawRunId);
-	if (run.state !== 'failed') error(409, `Only a failed run can be retried; run ${run.number} is ${run.state}.`);
 	refuseLockedSession(trial);
+	if (run.state !== 'failed') error(409, `Only a failed run can be retried; run ${run.number} is ${run.state}.`);
 	const ok = await db().transaction(async (transaction) => {
+		await assertSessionUnlocked(trial.sessionId, transaction);
 		await requireValidConsent(trial.participantId, 'run', transaction);
 		const [rows] = (await db().query(
 			`UPDATE runs SET state = 'queued', error = NULL, progress = 0, stage = NULL, started_at = NULL, finished_at = NULL WHERE id = :id AND state = 'failed' RETURNING id`,

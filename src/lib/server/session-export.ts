@@ -1,0 +1,240 @@
+// Export of an approved session as one ZIP streamed to the client: results.csv (long format, one row per value),
+// provenance.json, README.txt and the raw uploads byte for byte. Never any participant's personal data.
+import type { RequestEvent } from '@sveltejs/kit';
+import { error } from '@sveltejs/kit';
+import { Readable } from 'node:stream';
+import { ZipArchive } from 'archiver';
+import { QueryTypes } from 'sequelize';
+import { db } from './db/index';
+import { Participant, Run } from './db/models';
+import { record } from './audit';
+import { readRaw } from './raw-store';
+import { contextOf, guardStudy } from './study-records';
+import { sessionIn } from './sessions';
+import { listRunsForSession, softwareVersion, type RunView } from './runs';
+import { component, decodeFloat64 } from './results-codec';
+import { SEGMENT_TABLES, type SegmentTableId } from '../anthropometry/tables';
+
+/** Column names of results.csv, in order (documented in README.txt and the project README). */
+export const RESULT_COLUMNS = ['participant', 'trial', 'run', 'dof', 'quantity', 'unit', 'axis', 'repetition', 'x', 'value'] as const;
+
+interface TrialRow {
+	id: string;
+	file_name: string;
+	sha256: string;
+	raw_upload_id: string;
+	byte_size: string | number;
+	sample_hz: number;
+	frame_count: number;
+	duration_s: number;
+	channels: string[];
+}
+
+export interface ExportTrial {
+	trial: TrialRow;
+	archivePath: string;
+	/** The latest done run that is not excluded, or null. */
+	run: RunView | null;
+	others: RunView[];
+}
+
+/** The run of a trial that goes into exports and reports: the newest done one whose flag decision is not 'exclude'. */
+export function exportedRunOf(runs: RunView[]): RunView | null {
+	const ok = runs.filter((r) => r.state === 'done' && r.flagDecision !== 'exclude');
+	return ok.length ? ok[ok.length - 1] : null;
+}
+
+/** The session's trials (oldest first) with the run exported for each. */
+export async function exportTrials(sessionId: string): Promise<ExportTrial[]> {
+	const trials = await db().query<TrialRow>(
+		`SELECT t.id, t.file_name, t.sha256, t.raw_upload_id, u.byte_size, t.sample_hz, t.frame_count, t.duration_s, t.channels
+		 FROM trials t JOIN raw_uploads u ON u.id = t.raw_upload_id WHERE t.session_id = :sessionId ORDER BY t.created_at, t.id`,
+		{ replacements: { sessionId }, type: QueryTypes.SELECT }
+	);
+	const runs = await listRunsForSession(sessionId);
+	const used = new Set<string>();
+	return trials.map((t) => {
+		const mine = runs.filter((r) => r.trialId === t.id);
+		const run = exportedRunOf(mine);
+		// one safe entry name per file: no folders, no leading dots, unique within the ZIP
+		const base = t.file_name.replace(/[\\/]/g, '_').replace(/^\.+/, '') || 'trial';
+		let name = base;
+		for (let k = 2; used.has(name); k++) name = `${k}-${base}`;
+		used.add(name);
+		return { trial: t, archivePath: `raw/${name}`, run, others: mine.filter((r) => r !== run) };
+	});
+}
+
+const csvText = (s: string) => (/[",\r\n]/.test(s) ? `"${s.replace(/"/g, '""')}"` : s);
+const num = (v: number) => (Number.isFinite(v) ? String(v) : '');
+const QUANTITY_ORDER = ['angle', 'velocity', 'acceleration', 'moment', 'moment_per_kg', 'power', 'reaction_force'];
+
+/** results.csv, produced block by block: one series of one run at a time (never the whole file in memory). */
+async function* resultsCsv(participantCode: string, trials: ExportTrial[]): AsyncGenerator<Buffer> {
+	yield Buffer.from(RESULT_COLUMNS.join(',') + '\n');
+	for (const { trial, run } of trials) {
+		if (!run) continue;
+		const meta = await db().query<{ name: string; quantity: string; unit: string; components: number }>(
+			`SELECT name, quantity, unit, components FROM run_series WHERE run_id = :id AND quantity <> 'time'`,
+			{ replacements: { id: run.id }, type: QueryTypes.SELECT }
+		);
+		const timeRow = await db().query<{ data: Buffer }>(`SELECT data FROM run_series WHERE run_id = $1 AND quantity = 'time'`, { bind: [run.id], type: QueryTypes.SELECT });
+		if (!timeRow[0]) continue;
+		const time = decodeFloat64(timeRow[0].data);
+		const model = ((await Run.findByPk(run.id, { attributes: ['model'] }))?.model ?? {}) as { dofs?: { name: string }[] };
+		const order = new Map((model.dofs ?? []).map((d, i) => [d.name, i]));
+		meta.sort((a, b) => (order.get(a.name) ?? 1e9) - (order.get(b.name) ?? 1e9) || a.name.localeCompare(b.name) || QUANTITY_ORDER.indexOf(a.quantity) - QUANTITY_ORDER.indexOf(b.quantity));
+		const head = `${csvText(participantCode)},${csvText(trial.file_name)},${run.number},`;
+		for (const s of meta) {
+			const rows = await db().query<{ data: Buffer }>(`SELECT data FROM run_series WHERE run_id = $1 AND name = $2 AND quantity = $3`, {
+				bind: [run.id, s.name, s.quantity],
+				type: QueryTypes.SELECT
+			});
+			const all = decodeFloat64(rows[0].data);
+			for (let c = 0; c < s.components; c++) {
+				const values = component(all, s.components, c);
+				const quantity = s.components === 3 ? `${s.quantity}_${'xyz'[c]}` : s.quantity;
+				const prefix = `${head}${csvText(s.name)},${quantity},${csvText(s.unit)},time_s,,`;
+				let block: string[] = [];
+				for (let i = 0; i < values.length && i < time.length; i++) {
+					block.push(`${prefix}${num(time[i])},${num(values[i])}\n`);
+					if (block.length === 5000) {
+						yield Buffer.from(block.join(''));
+						block = [];
+					}
+				}
+				if (block.length) yield Buffer.from(block.join(''));
+			}
+		}
+	}
+}
+
+const README = `Momentry session export
+=======================
+
+This archive holds one approved session: its results, where they came from, and the raw files as uploaded.
+
+results.csv — one row per value, long format. Columns:
+  participant  the participant's study code (never a name)
+  trial        the trial's file name as uploaded
+  run          the run's number within its trial (1 = first run)
+  dof          the degree of freedom, <side>.<joint>.<motion> (for reaction_force_* rows: the joint)
+  quantity     angle, velocity, acceleration, moment (internal joint moment, proximal on distal segment),
+               moment_per_kg (moment / body mass), power (moment x angular velocity),
+               reaction_force_x / _y / _z (joint reaction force in lab axes: X anterior, Y superior, Z right)
+  unit         the unit of value (rad, rad/s, rad/s², N·m, N·m/kg, W, N; m-based units for a sliding DOF)
+  axis         what x is: time_s (time in seconds from the start of the trial) or cycle_percent
+  repetition   for cycle_percent rows, the repetition (1, 2, …); empty for time_s rows
+  x            the time (s) or the percentage of the cycle
+  value        the value; empty where it is not a number (a gap in the recording)
+  Angles are positive in the sense each DOF states in provenance.json (model.dofs[].positive); a positive
+  moment acts on the distal segment in that same sense.
+  Of each trial only its newest finished run is exported; a run excluded after a consent withdrawal never is.
+
+provenance.json — software version, export time, the study (code, title, ethics reference), the participant's
+  code, the session (date, task, conditions, model set-up), per trial its file name, SHA-256, size, sample rate and
+  frames, the exported run's options (filter and cutoffs, gravity), the scaled model parameters, the
+  anthropometric table with its full citation, and the session's approval (approver, time, meaning).
+
+raw/ — each trial's file exactly as uploaded; its SHA-256 is in provenance.json (trials[].rawSha256).
+
+CAUTION: these results are model-based estimates for research. They are not a clinical diagnosis.
+`;
+
+export interface Approval {
+	approvedAt: string;
+	approverName: string;
+	meaning: string;
+}
+
+/** The latest approval of a session that is approved now, from its transition history (null otherwise). */
+export async function approvalRecord(sessionId: string): Promise<Approval | null> {
+	const [table] = await db().query<{ t: string | null }>(`SELECT to_regclass('session_transitions')::text AS t`, { type: QueryTypes.SELECT });
+	if (!table?.t) return null;
+	const rows = await db().query<{ at: Date; name: string; meaning: string }>(
+		`SELECT t.at, COALESCE(NULLIF(btrim(u.name), ''), t.actor_label) AS name, t.signature_meaning AS meaning
+		 FROM session_transitions t JOIN sessions s ON s.id = t.session_id LEFT JOIN users u ON u.id = t.actor_user_id
+		 WHERE t.session_id = :sessionId AND t.to_state = 'approved' AND s.state = 'approved' ORDER BY t.at DESC LIMIT 1`,
+		{ replacements: { sessionId }, type: QueryTypes.SELECT }
+	);
+	return rows[0] ? { approvedAt: new Date(rows[0].at).toISOString(), approverName: rows[0].name, meaning: rows[0].meaning } : null;
+}
+
+const filterOf = (o: RunView['options']) =>
+	o.cutoffHz === null
+		? { kind: 'none' }
+		: { kind: 'zero-lag Butterworth low-pass (run forward and backward)', cutoffHz: o.cutoffHz, perChannelCutoffHz: o.perChannelCutoffHz ?? {} };
+
+/** GET …/sessions/[sid]/export: guard, approved sessions only, audited, then the ZIP as a web stream. */
+export async function exportSession(event: RequestEvent, rawId: string, rawSid: string): Promise<Response> {
+	const { actor, study } = await guardStudy(event, 'session.export', rawId);
+	const s = await sessionIn(study.id, rawSid);
+	if (s.state !== 'approved') error(409, `Only an approved session can be exported; this session is ${s.state.replace('_', ' ')}.`);
+	const p = (await Participant.findByPk(s.participantId, { attributes: ['id', 'code'] }))!;
+	const trials = await exportTrials(s.id);
+	const approval = await approvalRecord(s.id);
+	const exportedAt = new Date();
+	const runs = await Promise.all(trials.map(async (t) => (t.run ? ((await Run.findByPk(t.run.id, { attributes: ['model'] }))?.model ?? null) : null)));
+	const provenance = {
+		format: 'momentry-session-export/1',
+		software: { name: 'Momentry', version: softwareVersion() },
+		exportedAt: exportedAt.toISOString(),
+		study: { code: study.code, title: study.title, ethicsReference: study.ethicsReference ?? null },
+		participant: { code: p.code },
+		session: { date: s.sessionOn, task: s.task, conditions: s.conditions, state: s.state, setup: s.setup },
+		approval,
+		resultsColumns: RESULT_COLUMNS,
+		trials: trials.map((t, i) => {
+			const model = runs[i] as (Record<string, unknown> & { table?: string; gravity?: unknown }) | null;
+			const tableId = (model?.table ?? (s.setup as { table?: string }).table) as SegmentTableId;
+			return {
+				fileName: t.trial.file_name,
+				archivePath: t.archivePath,
+				rawSha256: t.trial.sha256,
+				byteSize: Number(t.trial.byte_size),
+				sampleHz: t.trial.sample_hz,
+				frames: t.trial.frame_count,
+				durationS: t.trial.duration_s,
+				channels: t.trial.channels,
+				run: t.run && {
+					number: t.run.number,
+					options: t.run.options,
+					filter: filterOf(t.run.options),
+					gravity: model?.gravity ?? null,
+					rawSha256: t.run.rawSha256,
+					softwareVersion: t.run.softwareVersion,
+					finishedAt: t.run.finishedAt,
+					flagDecision: t.run.flagDecision,
+					anthropometricTable: { id: tableId, ...(SEGMENT_TABLES[tableId] ?? {}) },
+					model
+				},
+				runsNotExported: t.others.map((r) => ({ number: r.number, state: r.state, flagDecision: r.flagDecision, reason: r.flagDecision === 'exclude' ? 'excluded' : r.state !== 'done' ? `not done (${r.state})` : 'a newer run is exported' }))
+			};
+		})
+	};
+	await record({
+		action: 'session.exported',
+		actorUserId: actor.id,
+		actorLabel: actor.email,
+		studyId: study.id,
+		recordType: 'session',
+		recordId: s.id,
+		ipAddress: contextOf(event).ip,
+		details: { runs: trials.filter((t) => t.run).map((t) => t.run!.id), trials: trials.length }
+	});
+
+	const archive = new ZipArchive({ zlib: { level: 6 } });
+	const date = exportedAt;
+	archive.append(README, { name: 'README.txt', date });
+	archive.append(JSON.stringify(provenance, null, 2) + '\n', { name: 'provenance.json', date });
+	archive.append(Readable.from(resultsCsv(p.code, trials), { objectMode: false }), { name: 'results.csv', date });
+	for (const t of trials) {
+		archive.append(Readable.from(readRaw(t.trial.raw_upload_id, { expectSha256: t.trial.sha256 }), { objectMode: false }), { name: t.archivePath, date });
+	}
+	archive.finalize().catch((err: unknown) => console.error('session export failed:', err));
+	const safe = (x: string) => x.replace(/[^A-Za-z0-9._-]+/g, '_');
+	const fileName = `${safe(study.code)}-${safe(p.code)}-${safe(s.sessionOn)}-session.zip`;
+	return new Response(Readable.toWeb(archive) as unknown as ReadableStream, {
+		headers: { 'content-type': 'application/zip', 'content-disposition': `attachment; filename="${fileName}"`, 'cache-control': 'no-store' }
+	});
+}

@@ -1,0 +1,43 @@
+// The printable report of a session (any state; marked as a draft unless approved).
+import { guardStudy } from '$lib/server/study-records';
+import { sessionIn } from '$lib/server/sessions';
+import { approvalRecord, exportTrials } from '$lib/server/session-export';
+import { seriesOfRun } from '$lib/server/runs';
+import { Participant, Run } from '$lib/server/db/models';
+import type { PageServerLoad } from './$types';
+
+export const load: PageServerLoad = async (event) => {
+	const { study } = await guardStudy(event, 'study.read', event.params.id);
+	const s = await sessionIn(study.id, event.params.sid);
+	const p = (await Participant.findByPk(s.participantId, { attributes: ['id', 'code'] }))!;
+	const trials = await Promise.all(
+		(await exportTrials(s.id)).map(async (t) => {
+			const row = t.run ? await Run.findByPk(t.run.id, { attributes: ['summary', 'model'] }) : null;
+			const model = (row?.model ?? null) as { parameters?: { segments?: unknown[]; table?: { id: string; title: string; citation: string } } } | null;
+			return {
+				fileName: t.trial.file_name,
+				sampleHz: t.trial.sample_hz,
+				frames: t.trial.frame_count,
+				sha256: t.trial.sha256,
+				run: t.run && { number: t.run.number, options: t.run.options, finishedAt: t.run.finishedAt, flagDecision: t.run.flagDecision },
+				segments: (model?.parameters?.segments ?? []) as {
+					key: string;
+					length: { value: number };
+					mass: { value: number };
+					comDistance: { value: number };
+					inertia: { flexion: { value: number }; abduction: { value: number }; longitudinal: { value: number } };
+				}[],
+				table: model?.parameters?.table ?? null,
+				summary: (row?.summary ?? []) as { dof: string; quantity: string; peakPositive: number; peakPositiveTime: number; peakNegative: number; peakNegativeTime: number; unit: string }[],
+				moments: t.run ? await seriesOfRun(t.run.id, { quantity: 'moment', points: 600 }) : null
+			};
+		})
+	);
+	return {
+		study: { id: study.id, code: study.code, title: study.title, ethicsReference: study.ethicsReference ?? null },
+		participant: { code: p.code },
+		session: { id: s.id, sessionOn: s.sessionOn, task: s.task, conditions: s.conditions, state: s.state },
+		approval: s.state === 'approved' ? await approvalRecord(s.id) : null,
+		trials
+	};
+};
