@@ -113,6 +113,15 @@ export const MATRIX: MatrixEntry[] = [
 	{ route: '/studies/[id]/participants/[pid]/sessions/new', method: 'POST', action: 'default', params: { id: 'studyA', pid: 'participantA' }, form: { operator: '', limbs: 'right.arm' }, expect: { anonymous: 303, admin: 404, piA: 400, researcherA: 403, technicianA: 400, memberB: 404 } },
 	{ route: '/studies/[id]/sessions/[sid]', method: 'GET', params: { id: 'studyA', sid: 'sessionA' }, expect: { anonymous: 303, admin: 404, piA: 200, researcherA: 200, technicianA: 200, memberB: 404 } },
 	{ route: '/studies/[id]/sessions/[sid]', method: 'GET', params: { id: 'studyB', sid: 'sessionA' }, expect: { anonymous: 303, admin: 404, piA: 404, researcherA: 404, technicianA: 404, memberB: 404 } },
+	// review workflow (tests/integration/workflow.test.ts): researchers and the PI submit, the PI approves, returns, reopens and asks
+	// for a signing code. The seeded session is a draft: an empty submit is refused with 400 (no summary); the PI's other steps
+	// are refused with 409 (wrong state) before any field is read; technicians 403
+	{ route: '/studies/[id]/sessions/[sid]', method: 'POST', action: 'submit', params: { id: 'studyA', sid: 'sessionA' }, expect: { anonymous: 303, admin: 404, piA: 400, researcherA: 400, technicianA: 403, memberB: 404 } },
+	{ route: '/studies/[id]/sessions/[sid]', method: 'POST', action: 'submit', params: { id: 'studyB', sid: 'sessionA' }, expect: { anonymous: 303, admin: 404, piA: 404, researcherA: 404, technicianA: 404, memberB: 404 } },
+	{ route: '/studies/[id]/sessions/[sid]', method: 'POST', action: 'approve', params: { id: 'studyA', sid: 'sessionA' }, expect: { anonymous: 303, admin: 404, piA: 409, researcherA: 403, technicianA: 403, memberB: 404 } },
+	{ route: '/studies/[id]/sessions/[sid]', method: 'POST', action: 'return', params: { id: 'studyA', sid: 'sessionA' }, expect: { anonymous: 303, admin: 404, piA: 409, researcherA: 403, technicianA: 403, memberB: 404 } },
+	{ route: '/studies/[id]/sessions/[sid]', method: 'POST', action: 'reopen', params: { id: 'studyA', sid: 'sessionA' }, expect: { anonymous: 303, admin: 404, piA: 409, researcherA: 403, technicianA: 403, memberB: 404 } },
+	{ route: '/studies/[id]/sessions/[sid]', method: 'POST', action: 'code', params: { id: 'studyA', sid: 'sessionA' }, expect: { anonymous: 303, admin: 404, piA: 409, researcherA: 403, technicianA: 403, memberB: 404 } },
 	{ route: '/studies/[id]/sessions/[sid]/edit', method: 'GET', params: { id: 'studyA', sid: 'sessionA' }, expect: { anonymous: 303, admin: 404, piA: 200, researcherA: 403, technicianA: 200, memberB: 404 } },
 	{ route: '/studies/[id]/sessions/[sid]/edit', method: 'POST', action: 'default', params: { id: 'studyA', sid: 'sessionA' }, form: { operator: '' }, expect: { anonymous: 303, admin: 404, piA: 400, researcherA: 403, technicianA: 400, memberB: 404 } },
 	// the streamed trial upload (API: 401 when signed out); a body that is not multipart is refused with 415 before
@@ -146,6 +155,15 @@ export const MATRIX: MatrixEntry[] = [
 	{ route: '/api/studies/[id]/sessions/[sid]/export', method: 'GET', params: { id: 'studyB', sid: 'sessionA' }, expect: { anonymous: 401, admin: 404, piA: 404, researcherA: 404, technicianA: 404, memberB: 404 } },
 	{ route: '/studies/[id]/sessions/[sid]/report', method: 'GET', params: { id: 'studyA', sid: 'sessionA' }, expect: { anonymous: 303, admin: 404, piA: 200, researcherA: 200, technicianA: 200, memberB: 404 } },
 	{ route: '/studies/[id]/sessions/[sid]/report', method: 'GET', params: { id: 'studyB', sid: 'sessionA' }, expect: { anonymous: 303, admin: 404, piA: 404, researcherA: 404, technicianA: 404, memberB: 404 } },
+	// review: plot data of a session, a run's cycle events (marking them: those who may start runs; an empty list is
+	// refused with 400), and the compare page (the team)
+	{ route: '/api/studies/[id]/sessions/[sid]/review', method: 'GET', params: { id: 'studyA', sid: 'sessionA' }, expect: { anonymous: 401, admin: 404, piA: 200, researcherA: 200, technicianA: 200, memberB: 404 } },
+	{ route: '/api/studies/[id]/sessions/[sid]/review', method: 'GET', params: { id: 'studyB', sid: 'sessionA' }, expect: { anonymous: 401, admin: 404, piA: 404, researcherA: 404, technicianA: 404, memberB: 404 } },
+	{ route: '/api/studies/[id]/runs/[rid]/events', method: 'GET', params: { id: 'studyA', rid: 'runA' }, expect: { anonymous: 401, admin: 404, piA: 200, researcherA: 200, technicianA: 200, memberB: 404 } },
+	{ route: '/api/studies/[id]/runs/[rid]/events', method: 'GET', params: { id: 'studyB', rid: 'runA' }, expect: { anonymous: 401, admin: 404, piA: 404, researcherA: 404, technicianA: 404, memberB: 404 } },
+	{ route: '/api/studies/[id]/runs/[rid]/events', method: 'POST', params: { id: 'studyA', rid: 'runA' }, form: { times: '' }, expect: { anonymous: 401, admin: 404, piA: 400, researcherA: 400, technicianA: 400, memberB: 404 } },
+	{ route: '/studies/[id]/compare', method: 'GET', params: { id: 'studyA' }, expect: { anonymous: 303, admin: 404, piA: 200, researcherA: 200, technicianA: 200, memberB: 404 } },
+	{ route: '/studies/[id]/compare', method: 'GET', params: { id: 'studyB' }, expect: { anonymous: 303, admin: 404, piA: 200, researcherA: 404, technicianA: 404, memberB: 200 } },
 	// column-mapping presets: the team lists them, PI and technicians save them (an empty one is refused with 400)
 	{ route: '/api/studies/[id]/mapping-presets', method: 'GET', params: { id: 'studyA' }, expect: { anonymous: 401, admin: 404, piA: 200, researcherA: 200, technicianA: 200, memberB: 404 } },
 	{ route: '/api/studies/[id]/mapping-presets', method: 'POST', params: { id: 'studyA' }, expect: { anonymous: 401, admin: 404, piA: 400, researcherA: 403, technicianA: 400, memberB: 404 } }

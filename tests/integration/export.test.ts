@@ -131,6 +131,36 @@ describe('session export', () => {
 		expect(prov.trials[0].run.flagDecision).toBe('keep');
 	}, 60_000);
 
+	it('adds each repetition between saved events as cycle_percent rows, 0..100 % in 1 % steps', async () => {
+		const series = (await app.sql.query(`SELECT name, quantity, components, data FROM run_series WHERE run_id = $1`, [app.ids.runA])).rows;
+		const time = decodeFloat64(series.find((r) => r.quantity === 'time')!.data);
+		const comps = series.filter((r) => r.quantity !== 'time').reduce((a, r) => a + r.components, 0);
+		// three events → two repetitions; the first event falls between samples, so its value is interpolated
+		const t0 = time[0];
+		const dt = time[1] - time[0];
+		const events = [t0 + 10.5 * dt, t0 + 60 * dt, t0 + 110 * dt];
+		await app.sql.query(`INSERT INTO cycle_events (run_id, times, source) VALUES ($1, $2, 'manual')`, [app.ids.runA, events]);
+		const { out } = await download('piA');
+		const csv = fs.readFileSync(path.join(out, 'x', 'results.csv'), 'utf8').trimEnd().split('\n');
+		const cycleRows = csv.filter((l) => l.split(',')[6] === 'cycle_percent');
+		expect(cycleRows.length).toBe(2 * 101 * comps);
+		expect(csv.length - 1 - cycleRows.length).toBe(time.length * comps);
+		const moment = series.find((r) => r.quantity === 'moment')!;
+		const v = decodeFloat64(moment.data);
+		const mine = cycleRows.filter((l) => l.includes(`,${moment.name},moment,`)).map((l) => l.split(','));
+		expect(mine.length).toBe(202);
+		// by hand: 0 % of repetition 1 is halfway between samples 10 and 11 (linear interpolation);
+		// 100 % of repetition 1 and 0 % of repetition 2 are sample 60; 50 % of repetition 2 is sample 85
+		expect(mine[0].slice(7)).toEqual(['1', '0', expect.any(String)]);
+		expect(Number(mine[0][9])).toBeCloseTo((v[10] + v[11]) / 2, 9);
+		expect(mine[100].slice(7, 9)).toEqual(['1', '100']);
+		expect(Number(mine[100][9])).toBeCloseTo(v[60], 9);
+		expect(Number(mine[101][9])).toBeCloseTo(v[60], 9);
+		expect(mine[151].slice(7, 9)).toEqual(['2', '50']);
+		expect(Number(mine[151][9])).toBeCloseTo(v[85], 9);
+		await app.sql.query(`DELETE FROM cycle_events WHERE run_id = $1`, [app.ids.runA]);
+	}, 60_000);
+
 	it('renders the printable report with its print stylesheet, signature block and caution', async () => {
 		const reportPath = `/studies/${app.ids.studyA}/sessions/${app.ids.sessionA}/report`;
 		let res = await get('technicianA', reportPath);

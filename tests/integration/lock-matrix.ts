@@ -30,6 +30,15 @@ export const LOCK_MATRIX: LockEntry[] = [
 	{ route: '/studies/[id]/trials/[tid]', method: 'POST', action: 'start', params: { ...A, tid: 'trialA' }, as: 'technicianA', body: { form: { filter: 'lowpass', cutoffHz: '6' } }, refuses: 'locked' },
 	{ route: '/studies/[id]/runs/[rid]', method: 'POST', action: 'retry', params: { ...A, rid: 'runA' }, as: 'piA', refuses: 'locked' },
 	{ route: '/studies/[id]/sessions/[sid]/edit', method: 'POST', action: 'default', params: { ...A, sid: 'sessionA' }, as: 'technicianA', body: { form: { operator: 'x', task: 'y' } }, refuses: 'locked' },
+	// review data: a run's cycle events
+	{ route: '/api/studies/[id]/runs/[rid]/events', method: 'POST', params: { ...A, rid: 'runA' }, as: 'researcherA', body: { json: { times: [0.5, 1] } }, refuses: 'locked' },
+
+	// the review workflow: on an approved session every step but reopening answers with the lock's message
+	{ route: '/studies/[id]/sessions/[sid]', method: 'POST', action: 'submit', params: { ...A, sid: 'sessionA' }, as: 'researcherA', body: { form: { note: 'Submitting an approved session again', confirm: 'yes' } }, refuses: 'locked' },
+	{ route: '/studies/[id]/sessions/[sid]', method: 'POST', action: 'approve', params: { ...A, sid: 'sessionA' }, as: 'piA', body: { form: { meaning: 'approved for analysis', password: 'momentry-demo-2026' } }, refuses: 'locked' },
+	{ route: '/studies/[id]/sessions/[sid]', method: 'POST', action: 'return', params: { ...A, sid: 'sessionA' }, as: 'piA', body: { form: { comment: 'Returning an approved session', confirm: 'yes' } }, refuses: 'locked' },
+	{ route: '/studies/[id]/sessions/[sid]', method: 'POST', action: 'code', params: { ...A, sid: 'sessionA' }, as: 'piA', refuses: 'locked' },
+	{ route: '/studies/[id]/sessions/[sid]', method: 'POST', action: 'reopen', exempt: 'the one way out of the lock: the PI reopens an approved session, giving a reason (workflow.test.ts)' },
 
 	// study-level records: no session is changed
 	{ route: '/api/studies/[id]/mapping-presets', method: 'POST', exempt: 'a column-mapping preset belongs to the study; saving one changes no session, trial or run' },

@@ -14,6 +14,9 @@ import { sessionIn } from './sessions';
 import { listRunsForSession, softwareVersion, type RunView } from './runs';
 import { component, decodeFloat64 } from './results-codec';
 import { SEGMENT_TABLES, type SegmentTableId } from '../anthropometry/tables';
+import { approvalOf } from './session-workflow';
+import { eventsOfRun } from './review';
+import { normaliseCycles } from '../processing/cycles';
 
 /** Column names of results.csv, in order (documented in README.txt and the project README). */
 export const RESULT_COLUMNS = ['participant', 'trial', 'run', 'dof', 'quantity', 'unit', 'axis', 'repetition', 'x', 'value'] as const;
@@ -81,6 +84,9 @@ async function* resultsCsv(participantCode: string, trials: ExportTrial[]): Asyn
 		const timeRow = await db().query<{ data: Buffer }>(`SELECT data FROM run_series WHERE run_id = $1 AND quantity = 'time'`, { bind: [run.id], type: QueryTypes.SELECT });
 		if (!timeRow[0]) continue;
 		const time = decodeFloat64(timeRow[0].data);
+		const saved = await eventsOfRun(run.id);
+		// events outside this run's time span (never saved that way, but the run could be re-made) are left out
+		const events = saved && saved.length >= 2 && saved[0] >= time[0] && saved[saved.length - 1] <= time[time.length - 1] ? saved : null;
 		const model = ((await Run.findByPk(run.id, { attributes: ['model'] }))?.model ?? {}) as { dofs?: { name: string }[] };
 		const order = new Map((model.dofs ?? []).map((d, i) => [d.name, i]));
 		meta.sort((a, b) => (order.get(a.name) ?? 1e9) - (order.get(b.name) ?? 1e9) || a.name.localeCompare(b.name) || QUANTITY_ORDER.indexOf(a.quantity) - QUANTITY_ORDER.indexOf(b.quantity));
@@ -104,6 +110,14 @@ async function* resultsCsv(participantCode: string, trials: ExportTrial[]): Asyn
 					}
 				}
 				if (block.length) yield Buffer.from(block.join(''));
+				// the repetitions between the run's saved events, each time-normalised to 0..100 % in 1 % steps
+				if (events) {
+					const { percent, cycles } = normaliseCycles(time, values, events);
+					const cyclePrefix = `${head}${csvText(s.name)},${quantity},${csvText(s.unit)},cycle_percent,`;
+					const rows: string[] = [];
+					cycles.forEach((cycle, k) => percent.forEach((x, j) => rows.push(`${cyclePrefix}${k + 1},${num(x)},${num(cycle[j])}\n`)));
+					if (rows.length) yield Buffer.from(rows.join(''));
+				}
 			}
 		}
 	}
@@ -141,24 +155,10 @@ raw/ — each trial's file exactly as uploaded; its SHA-256 is in provenance.jso
 CAUTION: these results are model-based estimates for research. They are not a clinical diagnosis.
 `;
 
-export interface Approval {
-	approvedAt: string;
-	approverName: string;
-	meaning: string;
-}
+export type Approval = NonNullable<Awaited<ReturnType<typeof approvalOf>>>;
 
-/** The latest approval of a session that is approved now, from its transition history (null otherwise). */
-export async function approvalRecord(sessionId: string): Promise<Approval | null> {
-	const [table] = await db().query<{ t: string | null }>(`SELECT to_regclass('session_transitions')::text AS t`, { type: QueryTypes.SELECT });
-	if (!table?.t) return null;
-	const rows = await db().query<{ at: Date; name: string; meaning: string }>(
-		`SELECT t.at, COALESCE(NULLIF(btrim(u.name), ''), t.actor_label) AS name, t.signature_meaning AS meaning
-		 FROM session_transitions t JOIN sessions s ON s.id = t.session_id LEFT JOIN users u ON u.id = t.actor_user_id
-		 WHERE t.session_id = :sessionId AND t.to_state = 'approved' AND s.state = 'approved' ORDER BY t.at DESC LIMIT 1`,
-		{ replacements: { sessionId }, type: QueryTypes.SELECT }
-	);
-	return rows[0] ? { approvedAt: new Date(rows[0].at).toISOString(), approverName: rows[0].name, meaning: rows[0].meaning } : null;
-}
+/** The latest approval of a session that is approved now (null otherwise); one rule with the session page. */
+export const approvalRecord = approvalOf;
 
 const filterOf = (o: RunView['options']) =>
 	o.cutoffHz === null

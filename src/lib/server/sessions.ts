@@ -416,7 +416,7 @@ export async function readSession(event: RequestEvent, rawId: string, rawSid: st
 			upload: editable && may(actor, 'trial.upload', study.id),
 			savePreset: may(actor, 'mapping.preset', study.id),
 			edit: editable && may(actor, 'session.edit', study.id),
-			startRun: may(actor, 'run.start', study.id),
+			startRun: !LOCKED_STATES.includes(s.state) && may(actor, 'run.start', study.id),
 			export: s.state === 'approved' && may(actor, 'session.export', study.id)
 		}
 	};

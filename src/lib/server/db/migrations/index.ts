@@ -6,6 +6,7 @@ import * as m0003 from './0003-study-records-and-participants';
 import * as m0004 from './0004-consent';
 import * as m0005 from './0005-sessions-trials-runs';
 import * as m0006 from './0006-session-review';
+import * as m0007 from './0007-cycle-events';
 
 export const migrations: { name: string; up: Migration; down: Migration }[] = [
 	{ name: '0001-lab-foundation', ...m0001 },
@@ -13,5 +14,6 @@ export const migrations: { name: string; up: Migration; down: Migration }[] = [
 	{ name: '0003-study-records-and-participants', ...m0003 },
 	{ name: '0004-consent', ...m0004 },
 	{ name: '0005-sessions-trials-runs', ...m0005 },
-	{ name: '0006-session-review', ...m0006 }
+	{ name: '0006-session-review', ...m0006 },
+	{ name: '0007-cycle-events', ...m0007 }
 ];
