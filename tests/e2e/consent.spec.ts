@@ -1,19 +1,7 @@
 // E-mailed consent in Chromium: a technician invites a participant, the participant consents from the e-mailed link
 // (read from maildev's HTTP API), the state changes on the participant page; then the e-mailed withdraw link withdraws.
 import { test, expect } from '@playwright/test';
-import { PASSWORD, passwordSignIn } from './helpers';
-
-/** The newest message to `address` whose subject matches, received after `since` (ms since epoch). */
-async function mailWith(address: string, subject: RegExp, since: number, timeoutMs = 15_000): Promise<{ text: string; subject: string }> {
-	const deadline = Date.now() + timeoutMs;
-	while (Date.now() < deadline) {
-		const all = (await (await fetch(`${process.env.MAILDEV_URL}/api/email`)).json()) as { to: { address: string }[]; subject: string; text: string; time: string }[];
-		const hit = all.filter((m) => m.to.some((t) => t.address === address) && subject.test(m.subject) && new Date(m.time).getTime() >= since - 1000).at(-1);
-		if (hit) return hit;
-		await new Promise((r) => setTimeout(r, 250));
-	}
-	throw new Error(`no e-mail to ${address} matching ${subject} arrived`);
-}
+import { PASSWORD, mailWith, passwordSignIn } from './helpers';
 
 test('a technician invites, the participant consents from the e-mail, then withdraws with the e-mailed link', async ({ page, browser }) => {
 	test.setTimeout(60_000);

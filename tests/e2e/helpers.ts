@@ -16,6 +16,18 @@ export async function mailTo(address: string, since: number, timeoutMs = 15_000)
 	return null;
 }
 
+/** The newest message to `address` whose subject matches, received after `since` (ms since epoch); throws if none. */
+export async function mailWith(address: string, subject: RegExp, since: number, timeoutMs = 20_000): Promise<{ text: string; subject: string }> {
+	const deadline = Date.now() + timeoutMs;
+	while (Date.now() < deadline) {
+		const all = (await (await fetch(`${inbox()}/api/email`)).json()) as { to: { address: string }[]; subject: string; text: string; time: string }[];
+		const hit = all.filter((m) => m.to.some((t) => t.address === address) && subject.test(m.subject) && new Date(m.time).getTime() >= since - 1000).at(-1);
+		if (hit) return hit;
+		await new Promise((r) => setTimeout(r, 250));
+	}
+	throw new Error(`no e-mail to ${address} matching ${subject} arrived`);
+}
+
 /** Fills and submits the password form of /signin. */
 export async function passwordSignIn(page: Page, email: string, password: string): Promise<void> {
 	await page.goto('/signin');
