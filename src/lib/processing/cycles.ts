@@ -129,6 +129,9 @@ export interface Peak {
  * Local maxima of `values` (a plateau counts once, at its middle sample), each with its prominence; peaks lower in
  * prominence than minProminence are dropped, then, tallest first, any peak closer than minDistanceS to a taller kept
  * one. Returned in time order. For minima, pass the negated values.
+ * The local maxima, the plateau rule, the prominence and each rule on its own select the same peaks as
+ * scipy.signal.find_peaks / peak_prominences (tests/unit/processing/peaks-scipy.test.ts); with both rules given,
+ * prominence is applied first here (find_peaks applies distance first), so a small ripple never hides a real peak.
  */
 export function detectPeaks(values: ArrayLike<number>, time: ArrayLike<number>, opts: { minProminence?: number; minDistanceS?: number } = {}): Peak[] {
 	checkSeries(time, values);

@@ -2,10 +2,7 @@
 // Butterworth magnitude, Taylor error bounds for finite differences, and exactness of polynomial interpolation.
 // tests/reference/scipy_filter.py writes the scipy fixture; it is regenerated here when python3 with scipy is present.
 import { describe, expect, it } from 'vitest';
-import { spawnSync } from 'node:child_process';
 import fs from 'node:fs';
-import os from 'node:os';
-import path from 'node:path';
 import {
 	MIN_SAMPLES_FOR_FILTER,
 	SignalError,
@@ -16,6 +13,7 @@ import {
 	lowPassZeroLag,
 	residualAnalysis
 } from '../../../src/lib/processing/signal';
+import { loadReference } from '../../reference/fixture';
 
 interface Fixture {
 	source: string;
@@ -35,19 +33,7 @@ interface Fixture {
 
 const committed = 'tests/fixtures/processing/scipy-filtfilt.json';
 
-function loadFixture(): { fixture: Fixture; regenerated: boolean } {
-	// MOMENTRY_SCIPY=off forces the committed fixture (to check that path without uninstalling scipy).
-	const probe = process.env.MOMENTRY_SCIPY === 'off' ? { status: 1 } : spawnSync('python3', ['-c', 'import scipy, numpy'], { encoding: 'utf8' });
-	if (probe.status === 0) {
-		const out = path.join(fs.mkdtempSync(path.join(os.tmpdir(), 'momentry-scipy-')), 'scipy-filtfilt.json');
-		const r = spawnSync('python3', ['tests/reference/scipy_filter.py', '--out', out], { encoding: 'utf8', timeout: 120_000 });
-		if (r.status !== 0) throw new Error(`tests/reference/scipy_filter.py failed:\n${r.stdout}\n${r.stderr}`);
-		return { fixture: JSON.parse(fs.readFileSync(out, 'utf8')), regenerated: true };
-	}
-	return { fixture: JSON.parse(fs.readFileSync(committed, 'utf8')), regenerated: false };
-}
-
-const { fixture, regenerated } = loadFixture();
+const { fixture, regenerated } = loadReference<Fixture>('tests/reference/scipy_filter.py', committed);
 
 /** Largest difference relative to the largest reference magnitude. */
 function relErr(got: ArrayLike<number>, want: ArrayLike<number>, scale?: number): number {
