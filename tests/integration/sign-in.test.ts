@@ -78,7 +78,7 @@ describe('e-mailed sign-in links', () => {
 		const r = await askLink('pi@alder-creek.example');
 		expect([302, 303]).toContain(r.status);
 		expect(r.headers.get('location')).toContain('/auth/verify-request');
-		const mail = await waitForMail('pi@alder-creek.example');
+		const mail = await waitForMail('pi@alder-creek.example', { base: app.base });
 		const link = mail.text!.match(/https?:\/\/\S+/)![0];
 		const first = await fetch(link, { redirect: 'manual' });
 		expect(first.status).toBe(302);
@@ -90,7 +90,7 @@ describe('e-mailed sign-in links', () => {
 
 	it('expire', async () => {
 		await askLink('knee.researcher@alder-creek.example');
-		const mail = await waitForMail('knee.researcher@alder-creek.example');
+		const mail = await waitForMail('knee.researcher@alder-creek.example', { base: app.base });
 		const link = mail.text!.match(/https?:\/\/\S+/)![0];
 		await sql.query(`UPDATE verification_tokens SET expires = now() - interval '1 minute' WHERE identifier = 'knee.researcher@alder-creek.example'`);
 		const res = await fetch(link, { redirect: 'manual' });

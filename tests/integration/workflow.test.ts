@@ -37,7 +37,8 @@ async function nextMail(address: string, subject: RegExp, timeoutMs = 20_000): P
 	const deadline = Date.now() + timeoutMs;
 	for (;;) {
 		const all = (await (await fetch(`${process.env.MAILDEV_URL}/api/email`)).json()) as InboxMessage[];
-		const hit = all.find((m) => !seen.has(m.id) && subject.test(m.subject) && m.to?.some((t) => t.address.toLowerCase() === address));
+		// other test files share maildev and the demo addresses: only this app's messages (their links carry its URL)
+		const hit = all.find((m) => !seen.has(m.id) && subject.test(m.subject) && m.to?.some((t) => t.address.toLowerCase() === address) && (m.text ?? '').includes(app.base));
 		if (hit) {
 			seen.add(hit.id);
 			return hit;

@@ -209,12 +209,17 @@ export async function sendSignatureCode(event: RequestEvent, rawId: string, rawS
 		text:
 			`Your code to sign the approval of the session of ${participant} on ${s.sessionOn} (study ${study.code}) is:\n\n    ${code}\n\n` +
 			`It works once, for this session only, until ${expiresAt.toISOString().slice(11, 16)} UTC (${CODE_MINUTES} minutes). ` +
-			`If you did not ask for it, ignore this e-mail and tell your lab administrator.`
+			`If you did not ask for it, ignore this e-mail and tell your lab administrator.\n\nThe session: ${sessionLink(event, study.id, s.id)}`
 	});
 	return { expiresAt: expiresAt.toISOString() };
 }
 
 // ---------------------------------------------------------------------------------------------- transitions
+
+/** The session page's address for e-mails (the configured origin, else the request's). */
+function sessionLink(event: RequestEvent, studyId: string, sessionId: string): string {
+	return `${(config().ORIGIN ?? event.url.origin).replace(/\/+$/, '')}/studies/${studyId}/sessions/${sessionId}`;
+}
 
 async function participantCodeOf(participantId: string): Promise<string> {
 	const rows = await db().query<{ code: string }>(`SELECT code FROM participants WHERE id = :id`, { replacements: { id: participantId }, type: QueryTypes.SELECT });
@@ -302,7 +307,7 @@ export async function transition(event: RequestEvent, rawId: string, rawSid: str
 
 /** Submitted → the study's PIs; approved, returned or reopened → the person who last submitted it. */
 async function notify(event: RequestEvent, step: Transition, s: Session, study: { id: string; code: string }, actor: Actor, note: string | null, transitionId: string) {
-	const link = `${(config().ORIGIN ?? event.url.origin).replace(/\/+$/, '')}/studies/${study.id}/sessions/${s.id}`;
+	const link = sessionLink(event, study.id, s.id);
 	const participant = await participantCodeOf(s.participantId);
 	const who = actor.name ?? actor.email;
 	const what = `the session of ${participant} on ${s.sessionOn} (study ${study.code})`;
