@@ -61,6 +61,18 @@ describe('session review data', () => {
 		expect(r.text.toLowerCase()).not.toContain(secrets[0].toLowerCase());
 	});
 
+	it('gzips the large answer for a client that accepts it, and only then', async () => {
+		const ask = (encoding: string) => fetch(app.base + reviewPath(), { headers: { cookie: app.cookies.researcherA, accept: 'application/json', 'accept-encoding': encoding } });
+		const zipped = await ask('gzip, deflate');
+		expect(zipped.headers.get('content-encoding')).toBe('gzip');
+		expect(zipped.headers.get('vary')).toMatch(/accept-encoding/i);
+		const plain = await ask('identity');
+		expect(plain.headers.get('content-encoding')).toBeNull();
+		// fetch undoes the gzip: the same answer either way
+		const [a, b] = [(await zipped.json()) as { runs: { runId: string; t: number[] }[] }, (await plain.json()) as { runs: { runId: string; t: number[] }[] }];
+		expect(a.runs.map((r) => [r.runId, r.t.length])).toEqual(b.runs.map((r) => [r.runId, r.t.length]));
+	});
+
 	it('reduces when asked for fewer points, keeping the extremes', async () => {
 		const r = await get('researcherA', `${reviewPath()}&points=100`);
 		const run = r.json.runs.find((x: any) => x.runId === app.ids.runA);
