@@ -2,7 +2,7 @@
 // is retried and stored once, consent is enforced at start and at processing time, reruns add runs, summaries match.
 //
 // Tolerance of the moment comparison, and why (the pipeline's own round trip, tests/unit/processing/round-trip.test.ts,
-// states it): the demo trial is forward-simulated at 200 Hz with angles written to 6 decimals in degrees; without a
+// states it): the demo trial is forward-simulated at 200 Hz with angles written as ° to 6 decimals; without a
 // filter, central differences and the CSV rounding keep every sample within 0.25 % of the trial's peak |Q|. The
 // server adds nothing to that: the results are stored as Float64 bytes and come back bit for bit.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';

@@ -97,7 +97,7 @@ function widen(buf: Buffer, named: string[], expected: string[]): Buffer {
 	);
 }
 
-/** A valid right-leg recording of `rows` samples at 1 kHz (angles in degrees, six decimals, as the demo files). */
+/** A valid right-leg recording of `rows` samples at 1 kHz (angles as °, six decimals, as the demo files). */
 function legCsv(rows: number, phase = 0, header = ['time (s)', ...LEG.map((c) => `${c} (deg)`)]): Buffer {
 	const lines = [header.join(',')];
 	for (let k = 0; k < rows; k++) {

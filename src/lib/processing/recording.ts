@@ -75,7 +75,7 @@ export const DEFAULT_SAMPLING_TOLERANCE = 0.01;
 export const DEFAULT_MIN_SAMPLES = Math.max(30, MIN_SAMPLES_FOR_FILTER);
 
 /**
- * Usual ranges of motion per DOF in degrees, in our sign rules (positive = flexion, abduction/adduction as
+ * Usual ranges of motion per DOF (°), in our sign rules (positive = flexion, abduction/adduction as
  * named, internal rotation, dorsiflexion, inversion, pronation, ulnar deviation; negative = the opposite motion).
  * Common practice, from memory: typical clinical range-of-motion references (normal values as tabulated in
  * goniometry handbooks and orthopaedic society tables). Values outside [min − margin, max + margin] give a

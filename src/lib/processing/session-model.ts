@@ -27,7 +27,7 @@ export const fixedBaseSchema = z
 	})
 	.superRefine((b, ctx) => {
 		if (b.orientation === 'custom' && !b.cardanXYZDeg)
-			ctx.addIssue({ code: 'custom', path: ['cardanXYZDeg'], message: 'a custom orientation needs cardanXYZDeg: three angles in degrees (X, then Y, then Z)' });
+			ctx.addIssue({ code: 'custom', path: ['cardanXYZDeg'], message: 'a custom orientation needs cardanXYZDeg: three angles (°), X, then Y, then Z' });
 		if (b.orientation !== 'custom' && b.cardanXYZDeg)
 			ctx.addIssue({ code: 'custom', path: ['cardanXYZDeg'], message: `cardanXYZDeg is only used with orientation "custom" (this base is "${b.orientation}")` });
 	});

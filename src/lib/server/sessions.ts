@@ -75,7 +75,7 @@ export function parseSessionForm(form: FormData): { meta: SessionMeta; setup: Se
 		if (choice === 'moving') bases[limb] = { kind: 'moving' };
 		else if (choice === 'custom') {
 			const c = triple(str(form, `cardan.${limb}`));
-			if (!c) errors[`cardan.${limb}`] = 'Enter three angles in degrees, X then Y then Z (e.g. "0, 0, 90").';
+			if (!c) errors[`cardan.${limb}`] = 'Enter three angles (°), X then Y then Z (e.g. "0, 0, 90").';
 			else bases[limb] = { kind: 'fixed', orientation: 'custom', cardanXYZDeg: c };
 		} else bases[limb] = { kind: 'fixed', orientation: choice };
 	}

@@ -1,7 +1,7 @@
 // Round trip: forward-simulated trials (known joint moments) → a file in our layout → parseRecording → runPipeline → the same moments.
 //
 // Tolerance, and why. The trials are the demo's (arm reach with a 2 kg box; seated knee extension with a 1.5 kg
-// ankle weight), sampled at 200 Hz (h = 5 ms), angles written in degrees with 6 decimals.
+// ankle weight), sampled at 200 Hz (h = 5 ms), angles written as ° with 6 decimals.
 //  - Central differences: q̈ error h²/12·q⁗ where the motion is smooth — ~1e-3 N·m here (measured 8e-4 N·m on
 //    the reach, 0.004 % of its peak). At the joins of the minimum-jerk segments the jerk jumps by J = 60Δ/T³,
 //    and the second difference there errs by J·h/6 (e.g. shoulder Δ = 110°, T = 1.5 s: 0.028 rad/s²), i.e.

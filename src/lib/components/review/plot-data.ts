@@ -31,7 +31,7 @@ export const dofWords = (name: string) => name.replace(/[._]/g, ' ').replace(/([
 /** Short positive sense: "flexion: shank backward" → "flexion". */
 export const positiveWord = (positive: string | null) => (positive ? positive.split(':')[0].trim() : null);
 
-/** Angles are shown in degrees; everything else in its stored unit. */
+/** Angles are shown in ° (and °/s); everything else in its stored unit. */
 export function displayUnit(unit: string): { unit: string; factor: number } {
 	if (unit === 'rad') return { unit: '°', factor: 180 / Math.PI };
 	if (unit === 'rad/s') return { unit: '°/s', factor: 180 / Math.PI };
