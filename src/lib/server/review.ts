@@ -11,7 +11,8 @@ import { assertSessionUnlocked } from './session-lock';
 import { isUuid } from './studies';
 import { contextOf, guardStudy } from './study-records';
 import { may } from './access';
-import { SERIES_QUANTITIES, seriesOfRun, type ResultQuantity } from './runs';
+import { runIn, SERIES_QUANTITIES, storedSeries, timeOfRun, type ResultQuantity } from './runs';
+import { sessionIn } from './sessions';
 import { reduceForPlot } from '../processing/reduce';
 import { cyclePeaks, eventProblems, meanSd, meanSdOf, normaliseCycles } from '../processing/cycles';
 
@@ -49,17 +50,6 @@ async function doneRuns(where: string, replacements: Record<string, unknown>): P
 		  ORDER BY s.session_on, t.created_at, r.created_at, r.id`,
 		{ replacements, type: QueryTypes.SELECT }
 	);
-}
-
-async function sessionInStudy(studyId: string, rawSid: string): Promise<{ id: string; state: string; participantCode: string; sessionOn: string }> {
-	if (!isUuid(rawSid)) error(404, 'Not found');
-	const rows = await db().query<{ id: string; state: string; participantCode: string; sessionOn: string }>(
-		`SELECT s.id, s.state, p.code AS "participantCode", s.session_on::text AS "sessionOn" FROM sessions s JOIN participants p ON p.id = s.participant_id
-		  WHERE s.id = :sid AND s.study_id = :studyId`,
-		{ replacements: { sid: rawSid.toLowerCase(), studyId }, type: QueryTypes.SELECT }
-	);
-	if (!rows[0]) error(404, 'Not found');
-	return rows[0];
 }
 
 export interface ReviewCurve {
@@ -110,14 +100,13 @@ function indexOf(time: ArrayLike<number>, x: number): number {
 
 /** One done run's curves of a quantity: full samples plus the indices to draw. */
 export async function reviewRun(row: DoneRunRow, quantity: ResultQuantity, maxPoints: number): Promise<ReviewRun> {
-	const s = await seriesOfRun(row.id, { quantity });
-	const time = Float64Array.from(s.curves[0]?.t ?? (await seriesOfRun(row.id, { quantity: 'angle' })).curves[0]?.t ?? []);
+	const s = await storedSeries(row.id, { quantity });
+	const time = s.time;
 	const curves: ReviewCurve[] = s.curves
 		.filter((c) => !c.component)
 		.map((c) => {
-			const values = Float64Array.from(c.v, (x) => (x === null ? Number.NaN : x));
-			const red = reduceForPlot(time, values, maxPoints);
-			return { name: c.name, unit: c.unit, positive: c.positive, v: Array.from(values, round6), drawn: red.t.map((x) => indexOf(time, x)) };
+			const red = reduceForPlot(time, c.values, maxPoints);
+			return { name: c.name, unit: c.unit, positive: c.positive, v: Array.from(c.values, round6), drawn: red.t.map((x) => indexOf(time, x)) };
 		});
 	return {
 		runId: row.id,
@@ -143,7 +132,7 @@ const reviewQuery = z.object({
 /** GET …/sessions/[sid]/review: the session's done runs (not excluded) with their curves for the review plots. */
 export async function loadSessionReview(event: RequestEvent, rawStudyId: string, rawSid: string): Promise<ReviewAnswer> {
 	const { study } = await guardStudy(event, 'study.read', rawStudyId);
-	const session = await sessionInStudy(study.id, rawSid);
+	const session = await sessionIn(study.id, rawSid);
 	const sp = event.url.searchParams;
 	const q = reviewQuery.safeParse({ quantity: sp.get('quantity') ?? undefined, points: sp.get('points') ?? undefined });
 	if (!q.success) error(400, q.error.issues.map((i) => i.message).join('; '));
@@ -181,28 +170,10 @@ export async function eventsOfRun(runId: string): Promise<number[] | null> {
 	return (await eventSetOfRun(runId))?.times ?? null;
 }
 
-interface RunOfStudy {
-	id: string;
-	state: string;
-	session_id: string;
-	session_state: string;
-}
-
-async function runInStudy(studyId: string, rawRid: string): Promise<RunOfStudy> {
-	if (!isUuid(rawRid)) error(404, 'Not found');
-	const rows = await db().query<RunOfStudy>(
-		`SELECT r.id, r.state, s.id AS session_id, s.state AS session_state FROM runs r JOIN trials t ON t.id = r.trial_id JOIN sessions s ON s.id = t.session_id
-		  WHERE r.id = :rid AND s.study_id = :studyId`,
-		{ replacements: { rid: rawRid.toLowerCase(), studyId }, type: QueryTypes.SELECT }
-	);
-	if (!rows[0]) error(404, 'Not found');
-	return rows[0];
-}
-
 /** GET …/runs/[rid]/events */
 export async function readRunEvents(event: RequestEvent, rawStudyId: string, rawRid: string): Promise<{ runId: string; events: EventSet | null }> {
 	const { study } = await guardStudy(event, 'study.read', rawStudyId);
-	const run = await runInStudy(study.id, rawRid);
+	const { run } = await runIn(study.id, rawRid);
 	return { runId: run.id, events: await eventSetOfRun(run.id) };
 }
 
@@ -246,9 +217,9 @@ async function bodyOf(event: RequestEvent): Promise<unknown> {
  */
 export async function saveRunEvents(event: RequestEvent, rawStudyId: string, rawRid: string): Promise<EventSet> {
 	const { actor, study } = await guardStudy(event, 'run.start', rawStudyId);
-	const run = await runInStudy(study.id, rawRid);
+	const { run, trial } = await runIn(study.id, rawRid);
 	// the lock first, so an approved session answers with the lock's message whatever was sent (checked again below)
-	await assertSessionUnlocked(run.session_id);
+	await assertSessionUnlocked(trial.sessionId);
 	let raw: unknown;
 	try {
 		raw = await bodyOf(event);
@@ -263,7 +234,7 @@ export async function saveRunEvents(event: RequestEvent, rawStudyId: string, raw
 		throw new EventsProblem(errors);
 	}
 	if (run.state !== 'done') error(409, 'Events can be marked only on a run with results (this run is not done).');
-	const time = (await seriesOfRun(run.id, { quantity: 'angle' })).curves[0]?.t ?? [];
+	const time = (await timeOfRun(run.id)) ?? [];
 	if (time.length < 2) error(409, 'This run has no time axis to mark events on.');
 	const first = roundTime(time[0]);
 	const last = roundTime(time[time.length - 1]);
@@ -272,13 +243,14 @@ export async function saveRunEvents(event: RequestEvent, rawStudyId: string, raw
 	const { times, source } = parsed.data;
 	const rule = parsed.data.rule ?? null;
 	return db().transaction(async (t) => {
-		await assertSessionUnlocked(run.session_id, t);
+		await assertSessionUnlocked(trial.sessionId, t);
 		const before = await eventSetOfRun(run.id);
-		await db().query(
+		const [saved] = (await db().query(
 			`INSERT INTO cycle_events (run_id, times, source, rule, created_by) VALUES (:runId, ARRAY[:times]::double precision[], :source, CAST(:rule AS jsonb), :actor)
-			 ON CONFLICT (run_id) DO UPDATE SET times = EXCLUDED.times, source = EXCLUDED.source, rule = EXCLUDED.rule, created_by = EXCLUDED.created_by, updated_at = now()`,
+			 ON CONFLICT (run_id) DO UPDATE SET times = EXCLUDED.times, source = EXCLUDED.source, rule = EXCLUDED.rule, created_by = EXCLUDED.created_by, updated_at = now()
+			 RETURNING updated_at`,
 			{ replacements: { runId: run.id, times, source, rule: rule === null ? null : JSON.stringify(rule), actor: actor.id }, transaction: t }
-		);
+		)) as [{ updated_at: Date }[], unknown];
 		await record(
 			{
 				action: 'run.events.save',
@@ -292,8 +264,7 @@ export async function saveRunEvents(event: RequestEvent, rawStudyId: string, raw
 			},
 			t
 		);
-		const rows = await db().query<{ updated_at: Date }>(`SELECT updated_at FROM cycle_events WHERE run_id = :runId`, { replacements: { runId: run.id }, type: QueryTypes.SELECT, transaction: t });
-		return { times, source, rule, updatedAt: new Date(rows[0].updated_at).toISOString() };
+		return { times, source, rule, updatedAt: new Date(saved[0].updated_at).toISOString() };
 	});
 }
 
@@ -312,27 +283,26 @@ export interface CompareGroup {
 	dofs: { name: string; unit: string; positive: string | null; mean: (number | null)[]; sd: (number | null)[]; n: number; peakMax: { mean: number | null; sd: number | null }; peakMin: { mean: number | null; sd: number | null } }[];
 }
 
+/** Per DOF: its unit, sign rule and time-normalised cycles. */
+type Pooled = Map<string, { unit: string; positive: string | null; cycles: number[][] }>;
+
 /** Normalised cycles (events) or the whole trial of one run, per DOF. */
-async function runCycles(runId: string, quantity: CompareQuantity): Promise<{ basis: 'events' | 'whole'; count: number; byDof: Map<string, { unit: string; positive: string | null; cycles: number[][] }> }> {
-	const s = await seriesOfRun(runId, { quantity });
+async function runCycles(runId: string, quantity: CompareQuantity): Promise<{ basis: 'events' | 'whole'; count: number; byDof: Pooled }> {
+	const s = await storedSeries(runId, { quantity });
 	const events = await eventsOfRun(runId);
-	const byDof = new Map<string, { unit: string; positive: string | null; cycles: number[][] }>();
+	const byDof: Pooled = new Map();
 	let count = 0;
 	for (const c of s.curves) {
-		const time = Float64Array.from(c.t);
-		const values = Float64Array.from(c.v, (x) => (x === null ? Number.NaN : x));
-		const cuts = events && events.length >= 2 ? events : [time[0], time[time.length - 1]];
-		const { cycles } = normaliseCycles(time, values, cuts);
+		const cuts = events && events.length >= 2 ? events : [s.time[0], s.time[s.time.length - 1]];
+		const { cycles } = normaliseCycles(s.time, c.values, cuts);
 		count = cycles.length;
 		byDof.set(c.name, { unit: c.unit, positive: c.positive, cycles });
 	}
 	return { basis: events && events.length >= 2 ? 'events' : 'whole', count, byDof };
 }
 
-const nullable = (x: number) => (Number.isFinite(x) ? round6(x) : null);
-
 /** Pools per-DOF cycles into mean ± SD with the per-cycle peaks summarised. */
-function summarise(label: string, pooled: Map<string, { unit: string; positive: string | null; cycles: number[][] }>, counts: { runs: number; cycles: number; byEvents: number; wholeTrials: number }): CompareGroup {
+function summarise(label: string, pooled: Pooled, counts: { runs: number; cycles: number; byEvents: number; wholeTrials: number }): CompareGroup {
 	const percent = Array.from({ length: 101 }, (_, j) => j);
 	return {
 		label,
@@ -346,17 +316,17 @@ function summarise(label: string, pooled: Map<string, { unit: string; positive: 
 				name,
 				unit: d.unit,
 				positive: d.positive,
-				mean: ms.mean.map(nullable),
-				sd: ms.sd.map(nullable),
+				mean: ms.mean.map(round6),
+				sd: ms.sd.map(round6),
 				n: d.cycles.length,
-				peakMax: { mean: nullable(pmax.mean), sd: nullable(pmax.sd) },
-				peakMin: { mean: nullable(pmin.mean), sd: nullable(pmin.sd) }
+				peakMax: { mean: round6(pmax.mean), sd: round6(pmax.sd) },
+				peakMin: { mean: round6(pmin.mean), sd: round6(pmin.sd) }
 			};
 		})
 	};
 }
 
-function pool(into: Map<string, { unit: string; positive: string | null; cycles: number[][] }>, from: Map<string, { unit: string; positive: string | null; cycles: number[][] }>): void {
+function pool(into: Pooled, from: Pooled): void {
 	for (const [name, d] of from) {
 		const g = into.get(name) ?? { unit: d.unit, positive: d.positive, cycles: [] };
 		g.cycles.push(...d.cycles);
@@ -364,7 +334,6 @@ function pool(into: Map<string, { unit: string; positive: string | null; cycles:
 	}
 }
 
-type Pooled = Map<string, { unit: string; positive: string | null; cycles: number[][] }>;
 
 /** The cycles of these runs pooled per DOF; `counts` adds up the runs, cycles and how each run was normalised. */
 async function collect(rows: DoneRunRow[], quantity: CompareQuantity, counts: { runs: number; cycles: number; byEvents: number; wholeTrials: number }): Promise<Pooled> {

@@ -16,11 +16,12 @@ import { record } from './audit';
 import { requireValidConsent } from './consent';
 import { enqueueRun } from './jobs/queue';
 import { readRaw } from './raw-store';
-import { assertSessionUnlocked, LOCKED_STATES, lockedMessage } from './session-lock';
+import { assertSessionUnlocked, refuseIfLocked } from './session-lock';
 import { isUuid } from './studies';
 import { contextOf, FormProblem, guardStudy } from './study-records';
 import { may } from './access';
-import { component, decodeFloat64, reduceMinMax } from './results-codec';
+import { component, decodeFloat64 } from './results-codec';
+import { reduceForPlot } from '../processing/reduce';
 import { computeRun, type ComputedRun, type SeriesRow } from './run-compute';
 import type { RunThreadInput, RunThreadMessage } from './jobs/run-thread-types';
 import { buildSessionModel, sessionSetupSchema, type SessionSetup } from '../processing/session-model';
@@ -177,7 +178,7 @@ async function trialOfRun(runId: string): Promise<(TrialContext & { runId: strin
 }
 
 /** The run of the study in the URL, with its trial; 404 otherwise. */
-async function runIn(studyId: string, rawRunId: string): Promise<{ run: RunView; trial: TrialContext }> {
+export async function runIn(studyId: string, rawRunId: string): Promise<{ run: RunView; trial: TrialContext }> {
 	if (!isUuid(rawRunId)) error(404, 'Not found');
 	const trial = await trialOfRun(rawRunId.toLowerCase());
 	if (!trial || trial.studyId !== studyId) error(404, 'Not found');
@@ -259,7 +260,7 @@ async function queueOrFail(runId: string, jobKey?: string): Promise<void> {
 }
 
 function refuseLockedSession(trial: TrialContext): void {
-	if (LOCKED_STATES.includes(trial.sessionState as SessionState)) error(409, lockedMessage);
+	refuseIfLocked(trial.sessionState);
 }
 
 /**
@@ -387,8 +388,20 @@ interface StoredModel {
 	bodyMassKg?: number;
 }
 
-/** Curves of one quantity of a done run, optionally of one DOF (or joint), optionally reduced to about `points`. */
-export async function seriesOfRun(runId: string, q: { quantity: ResultQuantity; dof?: string; points?: number }): Promise<SeriesAnswer> {
+export interface StoredCurve {
+	name: string;
+	unit: string;
+	component?: 'x' | 'y' | 'z';
+	positive: string | null;
+	/** Every sample as stored (NaN = gap). */
+	values: Float64Array;
+}
+
+/**
+ * The stored series of one quantity of a run (optionally of one DOF or joint) as typed arrays, in the model's DOF
+ * order, with the one time axis they share. For the API's answers and for the review's own reductions.
+ */
+export async function storedSeries(runId: string, q: { quantity: ResultQuantity; dof?: string }): Promise<{ time: Float64Array; curves: StoredCurve[]; bodyMassKg: number | null }> {
 	db();
 	const rows = await RunSeries.findAll({
 		where: { runId, quantity: ['time', q.quantity], ...(q.dof ? { name: ['time', q.dof] } : {}) },
@@ -400,27 +413,42 @@ export async function seriesOfRun(runId: string, q: { quantity: ResultQuantity; 
 	const order = new Map((model.dofs ?? []).map((d, i) => [d.name, i]));
 	const timeRow = rows.find((r) => r.quantity === 'time');
 	if (!timeRow) error(409, 'This run has no stored time vector.');
-	const time = decodeFloat64(timeRow.data);
-	const curves: Curve[] = [];
+	const curves: StoredCurve[] = [];
 	const data = rows.filter((r) => r.quantity !== 'time').sort((a, b) => (order.get(a.name) ?? 1e9) - (order.get(b.name) ?? 1e9) || a.name.localeCompare(b.name));
 	for (const r of data) {
 		const all = decodeFloat64(r.data);
 		for (let c = 0; c < r.components; c++) {
-			const values = component(all, r.components, c);
-			const red = q.points ? reduceMinMax(time, values, q.points) : { t: Array.from(time), v: Array.from(values) };
 			curves.push({
 				name: r.name,
-				quantity: r.quantity as ResultQuantity,
 				unit: r.unit,
 				...(r.components === 3 ? { component: (['x', 'y', 'z'] as const)[c] } : {}),
 				positive: positive.get(r.name) ?? null,
-				t: red.t,
-				v: red.v.map((x) => (Number.isFinite(x) ? x : null))
+				values: component(all, r.components, c)
 			});
 		}
 	}
+	return { time: decodeFloat64(timeRow.data), curves, bodyMassKg: model.bodyMassKg ?? null };
+}
+
+/** The time axis of a run (s), or null when it has none. */
+export async function timeOfRun(runId: string): Promise<Float64Array | null> {
+	db();
+	const row = await RunSeries.findOne({ where: { runId, quantity: 'time' } });
+	return row ? decodeFloat64(row.data) : null;
+}
+
+/**
+ * Curves of one quantity of a done run, optionally of one DOF (or joint), optionally reduced to about `points`
+ * for plotting (the review's reduction: LTTB plus every bucket's minimum and maximum).
+ */
+export async function seriesOfRun(runId: string, q: { quantity: ResultQuantity; dof?: string; points?: number }): Promise<SeriesAnswer> {
+	const { time, curves: stored, bodyMassKg } = await storedSeries(runId, q);
+	const curves: Curve[] = stored.map(({ values, ...c }) => {
+		const red = q.points ? reduceForPlot(time, values, q.points) : { t: Array.from(time), v: Array.from(values) };
+		return { ...c, quantity: q.quantity, t: red.t, v: red.v.map((x) => (Number.isFinite(x) ? x : null)) };
+	});
 	if (q.dof && !curves.length) error(404, `This run has no ${q.quantity} series named ${q.dof}.`);
-	return { runId, quantity: q.quantity, samples: time.length, points: q.points ?? null, curves, bodyMassKg: model.bodyMassKg ?? null };
+	return { runId, quantity: q.quantity, samples: time.length, points: q.points ?? null, curves, bodyMassKg };
 }
 
 /** GET …/series: query parameters validated (400 naming the parameter), run in study, run done. */

@@ -155,11 +155,6 @@ raw/ — each trial's file exactly as uploaded; its SHA-256 is in provenance.jso
 CAUTION: these results are model-based estimates for research. They are not a clinical diagnosis.
 `;
 
-export type Approval = NonNullable<Awaited<ReturnType<typeof approvalOf>>>;
-
-/** The latest approval of a session that is approved now (null otherwise); one rule with the session page. */
-export const approvalRecord = approvalOf;
-
 const filterOf = (o: RunView['options']) =>
 	o.cutoffHz === null
 		? { kind: 'none' }
@@ -172,7 +167,7 @@ export async function exportSession(event: RequestEvent, rawId: string, rawSid: 
 	if (s.state !== 'approved') error(409, `Only an approved session can be exported; this session is ${s.state.replace('_', ' ')}.`);
 	const p = (await Participant.findByPk(s.participantId, { attributes: ['id', 'code'] }))!;
 	const trials = await exportTrials(s.id);
-	const approval = await approvalRecord(s.id);
+	const approval = await approvalOf(s.id);
 	const exportedAt = new Date();
 	const runs = await Promise.all(trials.map(async (t) => (t.run ? ((await Run.findByPk(t.run.id, { attributes: ['model'] }))?.model ?? null) : null)));
 	const provenance = {

@@ -54,6 +54,11 @@ function noteOf(form: FormData, step: Transition): string {
 	return text;
 }
 
+/** The person's password hash, or null for an account that signs in by e-mailed link only. */
+async function passwordHashOf(userId: string): Promise<string | null> {
+	return (await User.findByPk(userId, { attributes: ['passwordHash'] }))?.passwordHash || null;
+}
+
 const hashCode = (code: string, salt: string) => createHash('sha256').update(`${salt}:${code}`).digest('hex');
 
 // ---------------------------------------------------------------------------------------------- reading
@@ -102,7 +107,7 @@ async function doneRuns(sessionId: string, transaction?: Transaction): Promise<n
 export async function workflowOf(event: RequestEvent, rawId: string, rawSid: string) {
 	const { actor, study } = await guardStudy(event, 'study.read', rawId);
 	const s = await sessionIn(study.id, rawSid);
-	const user = await User.findByPk(actor.id, { attributes: ['passwordHash'] });
+	const passwordHash = await passwordHashOf(actor.id);
 	const pending = await db().query<{ expires_at: Date }>(
 		`SELECT expires_at FROM signature_codes WHERE user_id = :u AND session_id = :s AND used_at IS NULL AND expires_at > now() ORDER BY created_at DESC LIMIT 1`,
 		{ replacements: { u: actor.id, s: s.id }, type: QueryTypes.SELECT }
@@ -115,7 +120,7 @@ export async function workflowOf(event: RequestEvent, rawId: string, rawSid: str
 		approval: await approvalOf(s.id),
 		doneRuns: await doneRuns(s.id),
 		meaning: SIGNATURE_MEANING,
-		hasPassword: Boolean(user?.passwordHash),
+		hasPassword: passwordHash !== null,
 		codeExpiresAt: pending[0] ? new Date(pending[0].expires_at).toISOString() : null,
 		may: { submit: can('submit'), approve: can('approve'), return: can('return'), reopen: can('reopen') },
 		noteMin: NOTE_MIN,
@@ -148,15 +153,15 @@ async function signatureFailed(event: RequestEvent, actor: Actor, studyId: strin
 
 /** Checks the PI's password or e-mailed code; a wrong one is audited and counted, and answers 400 on its field. */
 async function checkSignature(event: RequestEvent, actor: Actor, studyId: string, sessionId: string, form: FormData): Promise<Signature> {
-	const user = await User.findByPk(actor.id, { attributes: ['passwordHash'] });
-	const hasPassword = Boolean(user?.passwordHash);
+	const passwordHash = await passwordHashOf(actor.id);
+	const hasPassword = passwordHash !== null;
 	const field = hasPassword ? 'password' : 'code';
 	const throttle = await checkThrottle(`signature:${actor.email}`, null);
 	if (throttle.blocked) throw new FormProblem({ [field]: `Too many wrong signatures. Try again in ${throttle.retryAfterMinutes} minute${throttle.retryAfterMinutes === 1 ? '' : 's'}.` }, 429);
 	if (hasPassword) {
 		const password = String(form.get('password') ?? '');
 		if (!password) throw new FormProblem({ password: 'Enter your password to sign the approval.' });
-		if (await verifyPassword(user!.passwordHash, password)) return { method: 'password' };
+		if (await verifyPassword(passwordHash!, password)) return { method: 'password' };
 		await signatureFailed(event, actor, studyId, sessionId, 'password', 'wrong password');
 		throw new FormProblem({ password: 'That is not your password. Nothing was approved; enter it again.' });
 	}
@@ -177,8 +182,7 @@ export async function sendSignatureCode(event: RequestEvent, rawId: string, rawS
 	const { actor, study } = await guardStudy(event, 'session.approve', rawId);
 	const s = await sessionIn(study.id, rawSid);
 	if (s.state !== 'in_review') refuseState('approve', s.state);
-	const user = await User.findByPk(actor.id, { attributes: ['passwordHash'] });
-	if (user?.passwordHash) throw new FormProblem({ code: 'Your account has a password: sign with your password instead.' }, 409);
+	if ((await passwordHashOf(actor.id)) !== null) throw new FormProblem({ code: 'Your account has a password: sign with your password instead.' }, 409);
 	const recent = await db().query<{ n: string }>(
 		`SELECT count(*) AS n FROM signature_codes WHERE user_id = :u AND session_id = :s AND created_at > now() - make_interval(mins => :w)`,
 		{ replacements: { u: actor.id, s: s.id, w: CODE_WINDOW_MINUTES }, type: QueryTypes.SELECT }

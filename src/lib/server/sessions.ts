@@ -1,6 +1,6 @@
 // Sessions of a participant (one visit): date, operator, task, conditions and the model set-up, created only
 // with valid consent; the set-up form is checked by the session model's own schema, field by field.
-import { LOCKED_STATES, lockedMessage } from './session-lock';
+import { isLocked, refuseIfLocked } from './session-lock';
 import type { RequestEvent } from '@sveltejs/kit';
 import { error } from '@sveltejs/kit';
 import type { Transaction } from 'sequelize';
@@ -273,13 +273,13 @@ export async function editSessionForm(event: RequestEvent, rawId: string, rawSid
 export async function editSession(event: RequestEvent, rawId: string, rawSid: string, form: FormData): Promise<void> {
 	const { actor, study } = await guardStudy(event, 'session.edit', rawId);
 	const found = await sessionIn(study.id, rawSid);
-	if (LOCKED_STATES.includes(found.state)) error(409, lockedMessage);
+	refuseIfLocked(found.state);
 	const { meta, setup } = parseSessionForm(form);
 	const body = await participantBodyOf(found.participantId);
 	const next = checkModel(body, setup);
 	await db().transaction(async (transaction) => {
 		const s = (await Session.findByPk(found.id, { transaction, lock: transaction.LOCK.UPDATE }))!;
-		if (LOCKED_STATES.includes(s.state)) error(409, lockedMessage);
+		refuseIfLocked(s.state);
 		if (!EDITABLE_STATES.includes(s.state)) error(409, `This session is ${s.state.replace('_', ' ')}; it can be changed only while it is a draft or returned.`);
 		const trials = await Trial.count({ where: { sessionId: s.id }, transaction });
 		if (trials > 0) {
@@ -416,7 +416,7 @@ export async function readSession(event: RequestEvent, rawId: string, rawSid: st
 			upload: editable && may(actor, 'trial.upload', study.id),
 			savePreset: may(actor, 'mapping.preset', study.id),
 			edit: editable && may(actor, 'session.edit', study.id),
-			startRun: !LOCKED_STATES.includes(s.state) && may(actor, 'run.start', study.id),
+			startRun: !isLocked(s.state) && may(actor, 'run.start', study.id),
 			export: s.state === 'approved' && may(actor, 'session.export', study.id)
 		}
 	};

@@ -17,7 +17,7 @@ import { contextOf, guardStudy } from './study-records';
 import { requireValidConsent } from './consent';
 import { EDITABLE_STATES, participantBodyOf, sessionIn, trialView, type TrialView } from './sessions';
 import { RAW_CHUNK_BYTES, writeRawChunk } from './raw-store';
-import { assertSessionUnlocked, LOCKED_STATES, lockedMessage } from './session-lock';
+import { assertSessionUnlocked, refuseIfLocked } from './session-lock';
 import { buildSessionModel, type SessionSetup } from '../processing/session-model';
 import { columnMappingSchema, parseRecording, type ColumnMapping, type ExpectedChannel, type Problem } from '../processing/recording';
 
@@ -362,7 +362,7 @@ export async function receiveTrials(event: RequestEvent, rawId: string, rawSid: 
 	const body = event.request.body;
 	try {
 		const session = await sessionIn(study.id, rawSid);
-		if (LOCKED_STATES.includes(session.state)) error(409, lockedMessage);
+		refuseIfLocked(session.state);
 		if (!EDITABLE_STATES.includes(session.state)) error(409, `This session is ${session.state.replace('_', ' ')}; trials can be added only while it is a draft or returned.`);
 		const contentType = event.request.headers.get('content-type') ?? '';
 		if (!/^multipart\/form-data\b/i.test(contentType)) error(415, 'Send the recording as multipart/form-data: a form with a file field named "file".');

@@ -195,3 +195,43 @@ describe('LTTB (downsample package) on a tiny example', () => {
 		expect(Array.from(LTTB(pts, 4))).toEqual([pts[0], pts[2], pts[4], pts[5]]);
 	});
 });
+
+// the series API's reduction (GET …/runs/[rid]/series?points=…), which is reduceForPlot
+describe('reduceForPlot as the series API uses it', () => {
+	const n = 10_001;
+	const time = Float64Array.from({ length: n }, (_, i) => i / 1000);
+	const values = Float64Array.from(time, (t) => Math.sin(2 * Math.PI * 3 * t) + (t === 4.321 ? 5 : 0));
+	values[7777] = -9;
+	it('returns at most the asked number of points', () => {
+		const r = reduceForPlot(time, values, 200);
+		expect(r.t.length).toBeLessThanOrEqual(200);
+		expect(r.v.length).toBe(r.t.length);
+	});
+	it('keeps the global extremes and their times', () => {
+		const r = reduceForPlot(time, values, 100);
+		const max = Math.max(...values);
+		const min = Math.min(...values);
+		expect(Math.max(...r.v)).toBe(max);
+		expect(Math.min(...r.v)).toBe(min);
+		expect(r.t[r.v.indexOf(min)]).toBe(time[7777]);
+	});
+	it('keeps times increasing', () => {
+		const r = reduceForPlot(time, values, 300);
+		for (let i = 1; i < r.t.length; i++) expect(r.t[i]).toBeGreaterThan(r.t[i - 1]);
+	});
+	it('returns everything when fewer samples than points', () => {
+		expect(reduceForPlot(new Float64Array([0, 1]), new Float64Array([5, 6]), 10)).toMatchObject({ t: [0, 1], v: [5, 6] });
+	});
+	it('keeps a gap of NaN visible', () => {
+		const v = new Float64Array(100).fill(NaN);
+		const r = reduceForPlot(Float64Array.from({ length: 100 }, (_, i) => i), v, 10);
+		expect(r.v.every(Number.isNaN)).toBe(true);
+		// a gap inside a curve: one NaN point between finite ones, so the drawn line breaks there
+		const w = Float64Array.from({ length: 1000 }, (_, i) => (i >= 400 && i < 450 ? NaN : Math.sin(i / 50)));
+		const g = reduceForPlot(Float64Array.from({ length: 1000 }, (_, i) => i), w, 50);
+		const k = g.v.findIndex(Number.isNaN);
+		expect(k).toBeGreaterThan(0);
+		expect(g.t[k]).toBe(400);
+		expect(Number.isFinite(g.v[k - 1]) && Number.isFinite(g.v[k + 1])).toBe(true);
+	});
+});

@@ -18,9 +18,12 @@ export interface PlotSeries {
 	bodyMassKg: number | null;
 }
 
-/** "right.knee.flexion" → "Right knee flexion". */
+/** "right.shoulder.internalRotation" → "right shoulder internal rotation". */
+export const dofWords = (name: string): string => name.replace(/[._]/g, ' ').replace(/([a-z])([A-Z])/g, (_, a: string, b: string) => `${a} ${b.toLowerCase()}`);
+
+/** "right.knee.flexion" → "Right knee flexion" (as a title). */
 export function dofLabel(name: string): string {
-	const words = name.replace(/\./g, ' ').replace(/_/g, ' ');
+	const words = dofWords(name);
 	return words.charAt(0).toUpperCase() + words.slice(1);
 }
 

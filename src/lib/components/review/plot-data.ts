@@ -1,4 +1,7 @@
 // Labels, units and exports of the review plots (no server imports; used by the components and the compare page).
+import { dofWords } from '../plots/curves';
+
+export { dofWords };
 
 export interface PlotLine {
 	id: string;
@@ -25,8 +28,6 @@ export interface PlotPanel {
 
 const QUANTITY_WORD: Record<string, string> = { moment: 'moment', moment_per_kg: 'moment', angle: 'angle', power: 'power', velocity: 'velocity' };
 
-/** "right.knee.flexion" → "right knee flexion". */
-export const dofWords = (name: string) => name.replace(/[._]/g, ' ').replace(/([a-z])([A-Z])/g, (_, a: string, b: string) => `${a} ${b.toLowerCase()}`);
 
 /** Short positive sense: "flexion: shank backward" → "flexion". */
 export const positiveWord = (positive: string | null) => (positive ? positive.split(':')[0].trim() : null);

@@ -1,7 +1,8 @@
 // The printable report of a session (any state; marked as a draft unless approved).
 import { guardStudy } from '$lib/server/study-records';
 import { sessionIn } from '$lib/server/sessions';
-import { approvalRecord, exportTrials } from '$lib/server/session-export';
+import { exportTrials } from '$lib/server/session-export';
+import { approvalOf } from '$lib/server/session-workflow';
 import { seriesOfRun } from '$lib/server/runs';
 import { Participant, Run } from '$lib/server/db/models';
 import type { PageServerLoad } from './$types';
@@ -37,7 +38,7 @@ export const load: PageServerLoad = async (event) => {
 		study: { id: study.id, code: study.code, title: study.title, ethicsReference: study.ethicsReference ?? null },
 		participant: { code: p.code },
 		session: { id: s.id, sessionOn: s.sessionOn, task: s.task, conditions: s.conditions, state: s.state },
-		approval: s.state === 'approved' ? await approvalRecord(s.id) : null,
+		approval: s.state === 'approved' ? await approvalOf(s.id) : null,
 		trials
 	};
 };
