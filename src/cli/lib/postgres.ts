@@ -6,9 +6,9 @@ import os from 'node:os';
 import path from 'node:path';
 import pg from 'pg';
 import { start, stop, type Child } from './proc';
+import { aptCommand, aptInstall, isRoot } from './debian';
 
 const DB_USER = 'momentry';
-const isRoot = () => process.getuid?.() === 0;
 
 /** The newest /usr/lib/postgresql/N/bin holding initdb and postgres, or PG_BIN when set. */
 export function findPgBin(): string | null {
@@ -29,19 +29,12 @@ export function findPgBin(): string | null {
 export function ensurePgBin(log: (m: string) => void): string {
 	const found = findPgBin();
 	if (found) return found;
-	const cmd = 'apt-get update && apt-get install -y postgresql';
-	if (!isRoot()) {
+	if (!aptInstall(['postgresql'], (m) => log(`PostgreSQL server not found; ${m}`))) {
 		throw new Error(
 			`PostgreSQL's server programs were not found under /usr/lib/postgresql/N/bin.\n` +
-				`Install them with:  sudo sh -c '${cmd}'\n` +
+				`Install them with:  sudo sh -c '${aptCommand(['postgresql'])}'\n` +
 				`or set DATABASE_URL to an existing PostgreSQL server.`
 		);
-	}
-	log(`PostgreSQL server not found; installing Debian's postgresql package (${cmd}) …`);
-	const env = { ...process.env, DEBIAN_FRONTEND: 'noninteractive' };
-	for (const args of [['update'], ['install', '-y', '--no-install-recommends', 'postgresql']]) {
-		const r = spawnSync('apt-get', args, { stdio: 'inherit', env });
-		if (r.status !== 0) throw new Error(`\`apt-get ${args.join(' ')}\` failed (exit ${r.status}); run \`${cmd}\` by hand`);
 	}
 	const after = findPgBin();
 	if (!after) throw new Error('postgresql was installed but no server binaries appeared under /usr/lib/postgresql');

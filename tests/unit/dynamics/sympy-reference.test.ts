@@ -1,11 +1,8 @@
 // Against a general-purpose reference: sympy.physics.mechanics (Kane's method) on a 3-D six-body branched tree.
 // tests/reference/sympy_chain.py derives M, c and Q; the fixture is regenerated when python3 with sympy is present.
 import { describe, expect, it } from 'vitest';
-import { spawnSync } from 'node:child_process';
-import fs from 'node:fs';
-import os from 'node:os';
-import path from 'node:path';
 import { compileModel, inverseDynamics, massMatrix, bias, forwardKinematics, energy, type ExternalLoad, type Vec3 } from '../../../src/lib/dynamics';
+import { loadReference } from '../../reference/fixture';
 
 interface Fixture {
 	source: string;
@@ -17,19 +14,8 @@ interface Fixture {
 
 const committed = 'tests/fixtures/dynamics/sympy-chain.json';
 
-function loadFixture(): { fixture: Fixture; regenerated: boolean } {
-	// MOMENTRY_SYMPY=off forces the committed fixture (to check that path without uninstalling sympy).
-	const probe = process.env.MOMENTRY_SYMPY === 'off' ? { status: 1 } : spawnSync('python3', ['-c', 'import sympy, numpy'], { encoding: 'utf8' });
-	if (probe.status === 0) {
-		const out = path.join(fs.mkdtempSync(path.join(os.tmpdir(), 'momentry-sympy-')), 'sympy-chain.json');
-		const r = spawnSync('python3', ['tests/reference/sympy_chain.py', '--out', out], { encoding: 'utf8', timeout: 240_000 });
-		if (r.status !== 0) throw new Error(`tests/reference/sympy_chain.py failed:\n${r.stdout}\n${r.stderr}`);
-		return { fixture: JSON.parse(fs.readFileSync(out, 'utf8')), regenerated: true };
-	}
-	return { fixture: JSON.parse(fs.readFileSync(committed, 'utf8')), regenerated: false };
-}
-
-const { fixture, regenerated } = loadFixture();
+// MOMENTRY_SYMPY=off forces the committed fixture (to check that path without uninstalling sympy).
+const { fixture, regenerated } = loadReference<Fixture>('tests/reference/sympy_chain.py', committed, { modules: 'sympy, numpy', off: 'MOMENTRY_SYMPY', timeoutMs: 240_000 });
 const model = compileModel(fixture.model);
 const n = model.n;
 const opts = { gravity: fixture.gravity, loads: fixture.externalLoads };
