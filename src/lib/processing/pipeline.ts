@@ -53,8 +53,26 @@ export interface SummaryRow {
 	unit: string;
 }
 
+/**
+ * The stretch at each end of a run in which the numbers are not reliable: the filter's end transient and the
+ * derivatives' end formulas reach into it. Computed by the pipeline from the filter and differentiation it used,
+ * stored with the run, shaded in plots and left out of peaks, summaries, repetitions and group means by default.
+ */
+export interface EdgeZone {
+	/** Seconds after the first sample, and before the last sample, that are inside the zone (0 = none). */
+	startSeconds: number;
+	endSeconds: number;
+	/** The same as whole samples: samples [0, startSamples) and [n − endSamples, n) are inside the zone. */
+	startSamples: number;
+	endSamples: number;
+	/** How it was found, in words, for provenance (filter, cutoff, end treatment, derivative formula). */
+	basis: string;
+}
+
 export interface PipelineResult {
 	time: Float64Array;
+	/** Where the results are not reliable near the trial's ends. */
+	edgeZone: EdgeZone;
 	sampleHz: number;
 	dofs: DofSeries[];
 	/** Prescribed base coordinates (moving bases): kinematics only. */
@@ -236,6 +254,7 @@ export function runPipeline(
 
 	return {
 		time: rec.time,
+		edgeZone: edgeZoneOf(rec.sampleHz, frames, cutoffs),
 		sampleHz: rec.sampleHz,
 		dofs,
 		base,
@@ -244,6 +263,14 @@ export function runPipeline(
 		timings,
 		applied: { cutoffHz: cutoffs, gravity: [...gravity] as Vec3, filledGaps }
 	};
+}
+
+/** PROVISIONAL (being replaced by the end-treatment analysis): a conservative zone from the lowest cutoff used. */
+function edgeZoneOf(sampleHz: number, frames: number, cutoffs: Record<string, number | null>): EdgeZone {
+	const used = Object.values(cutoffs).filter((c): c is number => c !== null);
+	const lowest = used.length ? Math.min(...used) : null;
+	const samples = Math.min(Math.floor(frames / 2), lowest === null ? 1 : Math.ceil((0.75 * sampleHz) / lowest));
+	return { startSamples: samples, endSamples: samples, startSeconds: samples / sampleHz, endSeconds: samples / sampleHz, basis: 'provisional' };
 }
 
 // Small loops of their own, so the JIT optimises each on its own (one big function deoptimised as a whole).
