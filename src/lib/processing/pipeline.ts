@@ -4,6 +4,7 @@ import { compileModel, createWorkspace, inverseDynamicsBatch, PRISMATIC, type Ve
 import type { Recording } from './recording';
 import type { SessionModel } from './session-model';
 import { differentiate, fillGaps, lowPassZeroLag, MIN_SAMPLES_FOR_FILTER, SignalError } from './signal';
+import { reliableRange, type ZoneSamples } from './zone-exclusion';
 
 const finite = z.number({ error: 'must be a number' }).refine(Number.isFinite, 'must be a finite number');
 const cutoff = finite.refine((v) => v > 0, 'must be a positive frequency in Hz');
@@ -41,16 +42,27 @@ export interface DofSeries {
 	power: Float64Array;
 }
 
-export interface SummaryRow {
-	dof: string;
-	quantity: 'moment' | 'angle' | 'power';
+/** Peaks (with the time each is first reached), range and mean of one series over some of its samples. */
+export interface SummaryStats {
 	peakPositive: number;
 	peakPositiveTime: number;
 	peakNegative: number;
 	peakNegativeTime: number;
 	range: number;
 	mean: number;
+	/** How many samples the figures are taken over (0: none, and every figure NaN, null in JSON). */
+	samples: number;
+}
+
+/**
+ * One DOF's summary of one quantity. The top-level figures leave the edge zone out (the samples outside it);
+ * `wholeTrial` has the same figures over every sample, for the "Include edge zones" switch.
+ */
+export interface SummaryRow extends SummaryStats {
+	dof: string;
+	quantity: 'moment' | 'angle' | 'power';
 	unit: string;
+	wholeTrial: SummaryStats;
 }
 
 /**
@@ -239,22 +251,23 @@ export function runPipeline(
 		.map(({ d, j }) => ({ name: d.name, unit: d.unit, value: angle[j], velocity: velocity[j], acceleration: acceleration[j] }));
 	timings.dynamics = now() - t0;
 
-	// 4. summary
+	// 4. summary: peaks, range and mean outside the edge zone, and over the whole trial
 	t0 = now();
 	report('summary', 0);
+	const edgeZone = edgeZoneOf(rec.sampleHz, frames, cutoffs);
 	const summary: SummaryRow[] = [];
 	for (const s of dofs) {
 		const prismatic = s.momentUnit === 'N';
-		summary.push(summarise(s.name, 'moment', s.moment, rec.time, s.momentUnit));
-		summary.push(summarise(s.name, 'angle', s.angle, rec.time, prismatic ? 'm' : 'rad'));
-		summary.push(summarise(s.name, 'power', s.power, rec.time, 'W'));
+		summary.push(summarise(s.name, 'moment', s.moment, rec.time, s.momentUnit, edgeZone));
+		summary.push(summarise(s.name, 'angle', s.angle, rec.time, prismatic ? 'm' : 'rad', edgeZone));
+		summary.push(summarise(s.name, 'power', s.power, rec.time, 'W', edgeZone));
 	}
 	timings.summary = now() - t0;
 	report('summary', 1);
 
 	return {
 		time: rec.time,
-		edgeZone: edgeZoneOf(rec.sampleHz, frames, cutoffs),
+		edgeZone,
 		sampleHz: rec.sampleHz,
 		dofs,
 		base,
@@ -303,14 +316,14 @@ function reactionOut(f: Float64Array, k0: number, len: number, n: number, b: num
 	}
 }
 
-/** Peak positive and negative values (first time each is reached), range and mean of one series. */
-export function summarise(dof: string, quantity: SummaryRow['quantity'], x: Float64Array, time: Float64Array, unit: string): SummaryRow {
+/** Peak positive and negative values (first time each is reached), range and mean of samples [from, to] of a series. */
+export function statsOf(x: ArrayLike<number>, time: ArrayLike<number>, from = 0, to = x.length - 1): SummaryStats {
 	let hi = -Infinity,
 		lo = Infinity,
-		hiK = 0,
-		loK = 0,
+		hiK = -1,
+		loK = -1,
 		sum = 0;
-	for (let k = 0; k < x.length; k++) {
+	for (let k = from; k <= to; k++) {
 		const v = x[k];
 		if (v > hi) {
 			hi = v;
@@ -322,5 +335,25 @@ export function summarise(dof: string, quantity: SummaryRow['quantity'], x: Floa
 		}
 		sum += v;
 	}
-	return { dof, quantity, peakPositive: hi, peakPositiveTime: time[hiK], peakNegative: lo, peakNegativeTime: time[loK], range: hi - lo, mean: sum / x.length, unit };
+	const samples = Math.max(0, to - from + 1);
+	if (!samples || hiK < 0 || loK < 0) return { peakPositive: NaN, peakPositiveTime: NaN, peakNegative: NaN, peakNegativeTime: NaN, range: NaN, mean: NaN, samples };
+	return { peakPositive: hi, peakPositiveTime: time[hiK], peakNegative: lo, peakNegativeTime: time[loK], range: hi - lo, mean: sum / samples, samples };
+}
+
+/**
+ * One series' summary row: the figures over the samples outside the edge zone (samples [0, startSamples) and
+ * [n − endSamples, n) are left out; NaN with samples 0 when the zone covers them all), and over every sample.
+ */
+export function summarise(
+	dof: string,
+	quantity: SummaryRow['quantity'],
+	x: Float64Array,
+	time: Float64Array,
+	unit: string,
+	zone: ZoneSamples = { startSamples: 0, endSamples: 0 }
+): SummaryRow {
+	const wholeTrial = statsOf(x, time);
+	const kept = reliableRange(x.length, zone);
+	const outside = !kept ? statsOf(x, time, 0, -1) : kept.first === 0 && kept.last === x.length - 1 ? { ...wholeTrial } : statsOf(x, time, kept.first, kept.last);
+	return { dof, quantity, ...outside, unit, wholeTrial };
 }
