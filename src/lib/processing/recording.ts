@@ -101,6 +101,19 @@ export const PHYSIOLOGICAL_RANGES: Record<string, { min: number; max: number }> 
 /** Margin added on both sides of PHYSIOLOGICAL_RANGES before warning (common practice: marker and model error). */
 export const RANGE_MARGIN_DEG = 20;
 
+/**
+ * Hard limits: values no recording of a person can hold, refused (`impossible-value`) rather than warned about.
+ * An angle beyond ±720° (two full turns, far past any joint's or base's travel in one trial) or a base position
+ * beyond ±100 m from the lab origin is a corrupt cell, a wrong column or a unit error, never a movement. Compared
+ * in the column's own unit after conversion (a column in mm against 100 m, a column in rad against 720°).
+ */
+export const HARD_LIMITS = { angleDeg: 720, positionM: 100 } as const;
+/**
+ * The smallest positive normal IEEE 754 double, 2^−1022 (IEEE 754-2008, binary64: emin = −1022). A non-zero cell
+ * that parses below it has lost its digits (a subnormal) or become 0 (e.g. 1e-400): refused as an underflow.
+ */
+export const SMALLEST_NORMAL = 2 ** -1022;
+
 export const BASE_LIMBS = ['right.arm', 'left.arm', 'right.leg', 'left.leg'] as const;
 export const BASE_POSITION_AXES = ['px', 'py', 'pz'] as const;
 export const BASE_ANGLE_AXES = ['rx', 'ry', 'rz'] as const;
@@ -259,7 +272,10 @@ const preview = (s: string) => (s.length > TEXT_PREVIEW ? `${s.slice(0, TEXT_PRE
 const fmt = (x: number, digits = 4) => (Number.isFinite(x) ? String(Number(x.toPrecision(digits))) : String(x));
 const delimiterName = (d: string) => (d === ',' ? 'comma' : d === ';' ? 'semicolon' : 'tab');
 
-/** A cell's number; NaN for a blank or "NaN" cell (a gap); null for text that is not a number. */
+/**
+ * A cell's number; NaN for a blank or "NaN" cell (a gap); null for text that is not a number. A well-formed
+ * number too large for a double comes back as ±Infinity (see numberFault).
+ */
 function parseNumber(s: string, decimalComma: boolean): number | null {
 	if (s === '' || (s.length === 3 && /^nan$/i.test(s))) return NaN;
 	if (decimalComma && s.includes(',')) {
@@ -267,8 +283,20 @@ function parseNumber(s: string, decimalComma: boolean): number | null {
 		s = s.replace(',', '.');
 	}
 	if (!NUM_RE.test(s)) return null;
-	const value = Number(s);
-	return Number.isFinite(value) ? value : null;
+	return Number(s);
+}
+
+/** Whether a well-formed number's text has a non-zero digit before its exponent ("1e-400" yes, "0.000e-5" no). */
+const nonZeroMantissa = (s: string) => /[1-9]/.test(s.replace(/[eE].*$/, ''));
+
+/**
+ * Why a parsed number cannot be stored as written: it overflows (±Infinity), or it underflows (a non-zero
+ * literal read as 0 or as a subnormal, with lost digits); null when it is a normal double or exactly zero.
+ */
+function numberFault(text: string, v: number): 'overflow' | 'underflow' | null {
+	if (v === Infinity || v === -Infinity) return 'overflow';
+	if (v === 0) return nonZeroMantissa(text) ? 'underflow' : null;
+	return Math.abs(v) < SMALLEST_NORMAL ? 'underflow' : null;
 }
 
 /** Digits after the decimal mark of a well-formed number ("0.0083" → 4, "1.5e-3" → 4). */
@@ -468,6 +496,21 @@ async function* texts(input: AsyncIterable<Uint8Array | string> | string | Uint8
 	}
 }
 
+/**
+ * Every line end as "\n": CRLF, a lone CR (old Mac exports, or lines added on another system) and LF each end one
+ * line, also in one file together. A CR at the end of a piece waits to see whether the next piece starts with the
+ * LF of the same CRLF pair.
+ */
+async function* unixLines(input: AsyncIterable<string>): AsyncGenerator<string> {
+	let afterCR = false;
+	for await (let text of input) {
+		if (afterCR && text.charCodeAt(0) === 10) text = text.slice(1);
+		if (!text) continue;
+		afterCR = text.charCodeAt(text.length - 1) === 13;
+		yield text.includes('\r') ? text.replace(/\r\n?/g, '\n') : text;
+	}
+}
+
 interface Row {
 	line: number;
 	cells: string[];
@@ -480,13 +523,11 @@ async function* rows(input: AsyncIterable<Uint8Array | string> | string | Uint8A
 	let parser: Papa.Parser | null = null;
 	let line = 0;
 	let pendingRow: string[] | null = null;
-	let newline: '\n' | '\r' = '\n';
 	const emit = (data: string[][], finished: boolean): Row[] => {
 		const out: Row[] = [];
 		for (const cells of data) {
 			if (pendingRow) out.push({ line, cells: pendingRow, last: false });
 			line++;
-			// trim() also removes the \r of CRLF line ends
 			for (let i = 0; i < cells.length; i++) cells[i] = cells[i].trim();
 			pendingRow = cells;
 		}
@@ -497,17 +538,15 @@ async function* rows(input: AsyncIterable<Uint8Array | string> | string | Uint8A
 		return out;
 	};
 	const start = (finished: boolean): boolean => {
-		const nl = buffered.search(/[\r\n]/);
+		const nl = buffered.indexOf('\n');
 		if (nl < 0 && !finished) {
 			if (buffered.length > 1 << 20) throw new NotText('The first line is longer than 1 MiB without a line break; this is not a recording file with a header line.');
 			return false;
 		}
-		if (nl >= 0 && buffered[nl] === '\r' && nl === buffered.length - 1 && !finished) return false;
 		const headerLine = nl < 0 ? buffered : buffered.slice(0, nl);
-		newline = nl >= 0 && buffered[nl] === '\r' && buffered[nl + 1] !== '\n' && !buffered.includes('\n') ? '\r' : '\n';
 		const delimiter = detectDelimiter(headerLine);
 		onDelimiter(delimiter);
-		parser = new Papa.Parser({ delimiter, newline, quoteChar: '"' });
+		parser = new Papa.Parser({ delimiter, newline: '\n', quoteChar: '"' });
 		return true;
 	};
 	const feed = (finished: boolean): string[][] => {
@@ -515,7 +554,7 @@ async function* rows(input: AsyncIterable<Uint8Array | string> | string | Uint8A
 		buffered = finished ? '' : buffered.slice(res.meta.cursor);
 		return res.data;
 	};
-	for await (const text of texts(input)) {
+	for await (const text of unixLines(texts(input))) {
 		buffered += text;
 		if (!parser && !start(false)) continue;
 		const batch = emit(feed(false), false);
@@ -537,6 +576,8 @@ interface Target {
 	unit: 'deg' | 'rad' | 'm' | 'mm';
 	flip: boolean;
 	data: Column | ChannelScan;
+	/** Hard limit of |value| in the column's own unit (set once the header is read). */
+	limit?: number;
 }
 
 type Plan =
@@ -690,6 +731,7 @@ export async function parseRecording(input: AsyncIterable<Uint8Array | string> |
 	let lastLine = 0;
 	let decimalComma = false;
 	let blankLead = 0;
+	let timeImpossible = false;
 	const iterator = rows(input, (d) => {
 		delimiter = d;
 		decimalComma = d !== ',';
@@ -727,6 +769,7 @@ export async function parseRecording(input: AsyncIterable<Uint8Array | string> |
 					return fail(p.needsMapping ? { headers, suggested: suggestMapping(headers, opts.expected, opts.defaultAngleUnit) } : undefined);
 				}
 				plan = p;
+				for (const tg of p.targets) tg.limit = hardLimitOf(tg);
 				if (opts.keepValues === false) {
 					for (const tg of p.targets) {
 						const r = rangeOf(tg);
@@ -754,7 +797,11 @@ export async function parseRecording(input: AsyncIterable<Uint8Array | string> |
 			const tText = cells[pl.timeIndex] ?? '';
 			const t = parseNumber(tText, decimalComma);
 			let tv = NaN;
-			if (t !== null && !Number.isNaN(t)) {
+			const tFault = t === null || Number.isNaN(t) ? null : numberFault(tText, t);
+			if (tFault) {
+				timeImpossible = true;
+				problems.add({ row: row.line, column: header[pl.timeIndex].text, code: 'impossible-value', message: impossibleMessage(tText, row.line, pl.timeIndex, header[pl.timeIndex].text, tFault) });
+			} else if (t !== null && !Number.isNaN(t)) {
 				tv = pl.timeUnit === 'ms' ? t / 1000 : t;
 				timeDecimals = Math.max(timeDecimals, decimalsOf(tText));
 				if (!Number.isNaN(prevTime) && !(tv > prevTime)) {
@@ -781,8 +828,14 @@ export async function parseRecording(input: AsyncIterable<Uint8Array | string> |
 					continue;
 				}
 				const v = parseNumber(text, decimalComma);
-				if (v !== null) target.data.push(v);
-				else {
+				if (v !== null) {
+					// a gap (NaN) passes; anything else must be a normal double within the column's hard limit
+					const fault = v !== v ? null : numberFault(text, v) ?? (Math.abs(v) > target.limit! ? 'limit' : null);
+					if (fault) {
+						target.data.push(REPORTED);
+						problems.add({ row: row.line, column: target.header, code: 'impossible-value', message: impossibleMessage(text, row.line, target.index, target.header, fault, target, v) });
+					} else target.data.push(v);
+				} else {
 					target.data.push(REPORTED);
 					problems.add({ row: row.line, column: target.header, code: 'non-numeric', message: nonNumeric(text, row.line, delimiter) });
 				}
@@ -811,7 +864,7 @@ export async function parseRecording(input: AsyncIterable<Uint8Array | string> |
 	}
 	const t = time.take();
 	let sampleHz = NaN;
-	if (n >= 2 && !problems.has('time-not-increasing') && !problems.has('time-blank') && !problems.has('non-numeric')) {
+	if (n >= 2 && !timeImpossible && !problems.has('time-not-increasing') && !problems.has('time-blank') && !problems.has('non-numeric')) {
 		sampleHz = checkSampling(t, lines, opts.samplingTolerance ?? DEFAULT_SAMPLING_TOLERANCE, 10 ** -timeDecimals * (pl.timeUnit === 'ms' ? 1e-3 : 1), header[pl.timeIndex].text, problems);
 	}
 	const maxGap = opts.maxGapSamples ?? DEFAULT_MAX_GAP_SAMPLES;
@@ -839,6 +892,33 @@ export async function parseRecording(input: AsyncIterable<Uint8Array | string> |
 		ok: true,
 		recording: { time: t, sampleHz, channels, warnings: problems.done(), header: header.map((h) => h.text), delimiter }
 	};
+}
+
+/** A target's hard limit in its column's own unit (HARD_LIMITS converted: 720° = 4π rad, 100 m = 100 000 mm). */
+function hardLimitOf(tg: Target): number {
+	switch (tg.unit) {
+		case 'deg':
+			return HARD_LIMITS.angleDeg;
+		case 'rad':
+			return HARD_LIMITS.angleDeg * DEG;
+		case 'm':
+			return HARD_LIMITS.positionM;
+		case 'mm':
+			return HARD_LIMITS.positionM * 1000;
+	}
+}
+
+function impossibleMessage(text: string, line: number, index: number, header: string, fault: 'overflow' | 'underflow' | 'limit', tg?: Target, v = NaN): string {
+	const where = `Line ${line}, column ${index + 1} ("${header}")`;
+	const cell = `"${preview(text)}"`;
+	const fix = 'Correct the cell in the exported file (or leave it empty to mark a gap), or re-export the recording.';
+	if (fault === 'overflow') return `${where}: ${cell} is too large to be held as a number at all (it overflows to infinity); no recording of a person contains it. ${fix}`;
+	if (fault === 'underflow')
+		return `${where}: ${cell} is not zero but is smaller than the smallest number held at full precision (about 2.2e-308), so it would be read as 0 or lose its digits (an underflow); no recording of a person contains it. ${fix}`;
+	const angle = tg!.channel.kind === 'angle';
+	const shown = angle ? `${fmt(tg!.unit === 'rad' ? v / DEG : v)}°` : `${fmt(tg!.unit === 'mm' ? v / 1000 : v)} m`;
+	const limit = angle ? `±${HARD_LIMITS.angleDeg}° (two full turns)` : `±${HARD_LIMITS.positionM} m from the lab origin`;
+	return `${where}: ${cell} (${tg!.unit}) is ${shown}, beyond the hard limit of ${limit} that no recording of a person can exceed: the cell is corrupt, or the column or its unit is wrong. ${fix}`;
 }
 
 function nonNumeric(text: string, line: number, delimiter: string): string {

@@ -272,7 +272,8 @@ describe('validation rules', () => {
 });
 
 describe('mapping files from other systems', () => {
-	const foreign = file('Time_ms;R Hip Flex [deg];R Knee Flex;R Ankle DF;Marker X', 40, (i) => [10, 20 + i, -5, 999], { hz: 0.1, timeDigits: 0, d: ';' });
+	// the knee column is mapped as radians below, so its values are radians a knee can reach (20 rad would be refused)
+	const foreign = file('Time_ms;R Hip Flex [deg];R Knee Flex;R Ankle DF;Marker X', 40, (i) => [10, (20 + i) / 10, -5, 999], { hz: 0.1, timeDigits: 0, d: ';' });
 
 	test('headers outside our scheme ask for a mapping with suggestions a person confirms', async () => {
 		const r = await parseRecording(foreign, opts());
@@ -316,7 +317,7 @@ describe('mapping files from other systems', () => {
 		expect(rec.time[1]).toBe(0.01);
 		expect(rec.sampleHz).toBeCloseTo(100, 9);
 		expect(rec.channels[0].values[0]).toBe(10 * (Math.PI / 180));
-		expect(rec.channels[1].values[3]).toBe(-23);
+		expect(rec.channels[1].values[3]).toBe(-2.3);
 		expect(rec.channels[2].values[0]).toBe(5 * (Math.PI / 180));
 	});
 
@@ -393,5 +394,165 @@ describe('checking without keeping values (keepValues: false, as the upload does
 		await same(inner, opts({ fillGaps: true }));
 		const ok = recording(await parseRecording(inner, opts({ fillGaps: true, keepValues: false })));
 		expect(ok.warnings.map((w) => w.code).sort()).toEqual(['gap-filled', 'out-of-range']);
+	});
+});
+
+describe('hard limits: values no recording of a person can hold are refused (impossible-value)', () => {
+	// the knee cell of line 19 (sample 17) replaced by `cell`; everything else a valid file
+	const kneeAt17 = (cell: string) => legFile(40, (i) => [10, i === 17 ? cell : 30, 0]);
+	const refusedAt = async (text: string, o: Partial<ParseOptions> = {}) => {
+		const p = problems(await parseRecording(text, opts(o)));
+		const hits = p.filter((x) => x.code === 'impossible-value');
+		expect(hits, JSON.stringify(p)).toHaveLength(1);
+		// the same verdict when only checking (the upload) and when fed in 7-byte chunks
+		const scan = await parseRecording(chunked(utf8(text), 7), opts({ ...o, keepValues: false }));
+		expect(scan.ok ? [] : scan.problems).toEqual(p);
+		return hits[0];
+	};
+
+	test.each([
+		['7e13', /7000000000000\d*°.*±720°/],
+		['1e308', /1e\+308°.*±720°/],
+		['-721', /-721°.*±720°/],
+		['720.001', /720°.*±720°/]
+	])('an angle of %s° is refused with file, line and column', async (cell, text) => {
+		const p = await refusedAt(kneeAt17(cell));
+		expect(p).toMatchObject({ file: 'trial.csv', row: 19, column: 'right.knee.flexion (deg)', severity: 'error' });
+		expect(p.message).toContain(`Line 19, column 3 ("right.knee.flexion (deg)"): "${cell}"`);
+		expect(p.message).toMatch(text);
+	});
+
+	test.each(['1e400', '-1e400'])('%s overflows (parses to ±Infinity) and is refused, not read as text', async (cell) => {
+		const p = await refusedAt(kneeAt17(cell));
+		expect(p).toMatchObject({ row: 19, column: 'right.knee.flexion (deg)' });
+		expect(p.message).toMatch(/overflows to infinity/);
+	});
+
+	// IEEE 754-2008 binary64: the smallest positive normal number is 2^−1022 ≈ 2.2250738585072014e-308; below it lie the
+	// subnormals (down to 2^−1074 ≈ 4.9e-324) and then 0
+	test.each(['1e-400', '-1e-400', '2.2e-308', '5e-324', '0.0000001e-320'])('%s underflows (a non-zero literal read as 0 or as a subnormal) and is refused', async (cell) => {
+		const p = await refusedAt(kneeAt17(cell));
+		expect(p).toMatchObject({ row: 19, column: 'right.knee.flexion (deg)' });
+		expect(p.message).toMatch(/underflow/);
+	});
+
+	test('before this check 1e-400 was read as 0 silently: now it is not, while real zeros stay zeros', async () => {
+		expect(Number('1e-400')).toBe(0);
+		const zeros = recording(await parseRecording(legFile(40, (i) => [10, 30, i === 3 ? '0' : i === 4 ? '-0.000' : i === 5 ? '0e-400' : i === 6 ? '2.2250738585072014e-308' : 0]), opts()));
+		expect(zeros.channels[2].values[5]).toBe(0);
+		expect(zeros.channels[2].values[6]).toBe(2.2250738585072014e-308 * (Math.PI / 180));
+	});
+
+	test('values just inside the limits are accepted (with the usual range warning)', async () => {
+		for (const cell of ['720', '-720', '719.999', '-719.999']) {
+			const rec = recording(await parseRecording(kneeAt17(cell), opts()));
+			expect(rec.channels[1].values[17]).toBe(Number(cell) * (Math.PI / 180));
+			expect(rec.warnings.map((w) => w.code)).toEqual(['out-of-range']);
+		}
+	});
+
+	test('radians are compared with 4π (720°): 12.566 rad accepted, 12.567 rad refused', async () => {
+		const rad = (cell: string) => file('time (s),right.hip.flexion (rad),right.knee.flexion (rad),right.ankle.dorsiflexion (rad)', 40, (i) => [0.1, i === 17 ? cell : 0.5, 0]);
+		expect(4 * Math.PI).toBeGreaterThan(12.566);
+		expect(4 * Math.PI).toBeLessThan(12.567);
+		expect(recording(await parseRecording(rad('12.566'), opts())).channels[1].values[17]).toBe(12.566);
+		const p = await refusedAt(rad('-12.567'));
+		expect(p.message).toMatch(/"-12\.567" \(rad\) is -720°/);
+	});
+
+	const MOVING = channels(['right.knee.flexion', 'right.leg.base.px', 'right.leg.base.py']);
+	const based = (unit: 'm' | 'mm', cell: string) => file(`time (s),right.knee.flexion (deg),right.leg.base.px (${unit}),right.leg.base.py (${unit})`, 40, (i) => [30, i === 17 ? cell : unit === 'm' ? 0.2 : 200, unit === 'm' ? 0.9 : 900]);
+
+	test('a base position of 101 m is refused; 100 m is accepted; a column in mm is compared in m', async () => {
+		const m = await refusedAt(based('m', '101'), { expected: MOVING });
+		expect(m).toMatchObject({ row: 19, column: 'right.leg.base.px (m)' });
+		expect(m.message).toMatch(/"101" \(m\) is 101 m, beyond the hard limit of ±100 m/);
+		const mm = await refusedAt(based('mm', '-101000'), { expected: MOVING });
+		expect(mm.message).toMatch(/"-101000" \(mm\) is -101 m/);
+		for (const [unit, cell] of [['m', '100'], ['m', '-99.999'], ['mm', '100000'], ['mm', '-99999.9']] as const)
+			expect(recording(await parseRecording(based(unit, cell), opts({ expected: MOVING }))).channels[1].values[17]).toBeCloseTo(Number(cell) / (unit === 'mm' ? 1000 : 1), 12);
+	});
+
+	test('mapped files are held to the same limits after unit conversion (and a sign flip changes nothing)', async () => {
+		const text = file('T;Knee;Pelvis X', 40, (i) => [30, i === 17 ? '100500' : '200'], { d: ';' });
+		const mapping: ColumnMapping = {
+			timeColumn: 'T',
+			timeUnit: 's',
+			columns: { Knee: { channel: 'right.knee.flexion', unit: 'deg', flip: true }, 'Pelvis X': { channel: 'right.leg.base.px', unit: 'mm', flip: true } }
+		};
+		const expected = channels(['right.knee.flexion', 'right.leg.base.px']);
+		const p = await refusedAt(text, { expected, mapping });
+		expect(p).toMatchObject({ row: 19, column: 'Pelvis X' });
+		expect(p.message).toMatch(/100\.5 m/);
+		const ok = recording(await parseRecording(file('T;Knee;Pelvis X', 40, () => [30, '99999'], { d: ';' }), opts({ expected, mapping })));
+		expect(ok.channels[1].values[0]).toBeCloseTo(-99.999, 12);
+	});
+
+	test('an overflowing or underflowing time cell is refused too', async () => {
+		const lines = legFile().split('\n');
+		lines[9] = lines[9].replace(/^[^,]+/, '1e-400');
+		const p = await refusedAt(lines.join('\n'));
+		expect(p).toMatchObject({ row: 10, column: 'time (s)' });
+		lines[9] = legFile().split('\n')[9].replace(/^[^,]+/, '1e400');
+		expect((await refusedAt(lines.join('\n'))).message).toMatch(/overflows/);
+	});
+});
+
+describe('line ends: LF, CRLF and lone CR, also mixed in one file', () => {
+	const lf = legFile(40, (i) => [10 + i, 20 + i, -5]);
+	/** The same file with line k ended by LF, CRLF or CR in turn (as after editing on other systems). */
+	const mixed = (text: string) =>
+		text
+			.split('\n')
+			.map((line, k, all) => (k === all.length - 1 ? line : line + ['\n', '\r', '\r\n'][k % 3]))
+			.join('');
+
+	test('a mixed file gives the LF file\'s recording, fed in 1-byte, 7-byte and whole chunks and as strings', async () => {
+		const text = mixed(lf);
+		expect(text).toMatch(/\r[^\n]/);
+		expect(text).toMatch(/[^\r]\n/);
+		expect(text).toMatch(/\r\n/);
+		const want = recording(await parseRecording(lf, opts()));
+		const bytes = utf8(text);
+		const whole = await parseRecording(bytes, opts());
+		expect(recording(whole)).toEqual(want);
+		expect(await parseRecording(chunked(bytes, 1), opts())).toEqual(whole);
+		expect(await parseRecording(chunked(bytes, 7), opts())).toEqual(whole);
+		expect(await parseRecording(chunked(bytes, bytes.length), opts())).toEqual(whole);
+		async function* strings() {
+			for (let i = 0; i < text.length; i += 2) yield text.slice(i, i + 2);
+		}
+		expect(await parseRecording(strings(), opts())).toEqual(whole);
+	});
+
+	test('a CRLF pair split across two chunks ends one line, not two', async () => {
+		const text = lf.replace(/\n/g, '\r\n');
+		const bytes = utf8(text);
+		const at = text.indexOf('\r\n', 200) + 1; // chunk boundary between the CR and the LF
+		async function* split() {
+			yield bytes.slice(0, at);
+			yield bytes.slice(at);
+		}
+		const r = await parseRecording(split(), opts());
+		expect(r).toEqual(await parseRecording(lf, opts()));
+	});
+
+	test('line numbers in problems count every kind of line end once', async () => {
+		const lines = lf.split('\n');
+		lines[19] = lines[19].replace(/,-5$/, ',oops'); // line 20
+		lines[30] = lines[30] + ',1'; // line 31
+		const text = mixed(lines.join('\n'));
+		const want = problems(await parseRecording(lines.join('\n'), opts()));
+		expect(want.map((p) => [p.code, p.row])).toEqual([
+			['non-numeric', 20],
+			['cell-count', 31]
+		]);
+		for (const size of [1, 7, text.length]) expect(problems(await parseRecording(chunked(utf8(text), size), opts()))).toEqual(want);
+	});
+
+	test('the malformed and good samples still read the same with every LF replaced by a lone CR', async () => {
+		const rec = recording(await parseRecording(new Uint8Array(readFileSync(join(FIX, 'good', 'bom-crlf.csv'))), opts()));
+		const cr = new TextDecoder().decode(readFileSync(join(FIX, 'good', 'bom-crlf.csv'))).replace(/\r\n/g, '\r');
+		expect(recording(await parseRecording(chunked(utf8(cr), 7), opts()))).toEqual(rec);
 	});
 });
