@@ -265,6 +265,9 @@ export function runPipeline(
 	timings.summary = now() - t0;
 	report('summary', 1);
 
+	// 5. a result with a non-finite number fails the run whole: nothing of it may be stored, shown or exported
+	assertFiniteResults(rec.time, dofs, base, centres, summary);
+
 	return {
 		time: rec.time,
 		edgeZone,
@@ -356,4 +359,85 @@ export function summarise(
 	const kept = reliableRange(x.length, zone);
 	const outside = !kept ? statsOf(x, time, 0, -1) : kept.first === 0 && kept.last === x.length - 1 ? { ...wholeTrial } : statsOf(x, time, kept.first, kept.last);
 	return { dof, quantity, ...outside, unit, wholeTrial };
+}
+
+/** The results hold a value that is not a finite number: the run fails with this message and stores nothing. */
+export class NonFiniteResultError extends PipelineError {
+	constructor(
+		message: string,
+		/** What was not finite, for tests and logs: the quantity, the DOF or joint, and the first sample. */
+		readonly at: { quantity: string; dof: string; sample: number; time: number; value: number }
+	) {
+		super(message);
+	}
+}
+
+/** Index of the first value of x (every `stride`-th from `offset`) that is not finite, or −1. */
+function firstNonFinite(x: Float64Array, stride = 1, offset = 0): number {
+	for (let i = offset; i < x.length; i += stride) {
+		const v = x[i];
+		// v − v is 0 for a finite v and NaN for ±Infinity or NaN
+		if (v - v !== 0) return (i - offset) / stride;
+	}
+	return -1;
+}
+
+/**
+ * Throws NonFiniteResultError at the first non-finite number of a run's results: the earliest sample of any series,
+ * and at that sample the first quantity in the order the pipeline makes them (time; angles, velocities and
+ * accelerations of the DOFs and base coordinates; moments, moments per kg and powers; reaction forces), so that
+ * the name points at the cause (a velocity that overflowed) rather than what followed (every moment). Then the
+ * summary figures (those taken over at least one sample: a row with `samples` 0 has no figures by design).
+ * Overflowing numbers (e.g. angles far beyond any movement, or gravity of 1e308) would otherwise be stored as
+ * Infinity or NaN and become empty cells in JSON and exports.
+ */
+export function assertFiniteResults(
+	time: Float64Array,
+	dofs: readonly DofSeries[],
+	base: PipelineResult['base'],
+	reactions: readonly { joint: string; force: Float64Array }[],
+	summary: readonly SummaryRow[]
+): void {
+	type Series = { quantity: string; kind: string; name: string; x: Float64Array; stride: number; offset: number };
+	const series: Series[] = [{ quantity: 'time', kind: 'the', name: 'recording', x: time, stride: 1, offset: 0 }];
+	const one = (quantity: string, kind: string, name: string, x: Float64Array) => series.push({ quantity, kind, name, x, stride: 1, offset: 0 });
+	for (const b of base) one('position or angle', 'base coordinate', b.name, b.value);
+	for (const d of dofs) one('angle', 'DOF', d.name, d.angle);
+	for (const b of base) one('velocity', 'base coordinate', b.name, b.velocity);
+	for (const d of dofs) one('velocity', 'DOF', d.name, d.velocity);
+	for (const b of base) one('acceleration', 'base coordinate', b.name, b.acceleration);
+	for (const d of dofs) one('acceleration', 'DOF', d.name, d.acceleration);
+	for (const d of dofs) one('moment', 'DOF', d.name, d.moment);
+	for (const d of dofs) one('moment per kg', 'DOF', d.name, d.momentPerKg);
+	for (const d of dofs) one('power', 'DOF', d.name, d.power);
+	for (const r of reactions) for (let c = 0; c < 3; c++) series.push({ quantity: `reaction force (${'xyz'[c]})`, kind: 'joint', name: r.joint, x: r.force, stride: 3, offset: c });
+	let worst: { s: Series; k: number } | null = null;
+	for (const s of series) {
+		const k = firstNonFinite(s.x, s.stride, s.offset);
+		if (k >= 0 && (!worst || k < worst.k)) worst = { s, k };
+	}
+	if (worst) {
+		const { s, k } = worst;
+		const value = s.x[k * s.stride + s.offset];
+		const t = time[k];
+		const when = Number.isFinite(t) ? `at ${Number(t.toPrecision(6))} s (sample ${k + 1})` : `at sample ${k + 1}`;
+		throw new NonFiniteResultError(
+			`The results are not finite numbers: the ${s.quantity} of ${s.kind} ${s.name} is ${value} ${when}, the first such value. The run stores nothing. ` +
+				'Check the recording for values far beyond any movement (and the run options, e.g. gravity), then run it again.',
+			{ quantity: s.quantity, dof: s.name, sample: k, time: t, value }
+		);
+	}
+	for (const row of summary) {
+		const figures = [row.peakPositive, row.peakPositiveTime, row.peakNegative, row.peakNegativeTime, row.range, row.mean];
+		const whole = row.wholeTrial ? [row.wholeTrial.peakPositive, row.wholeTrial.peakPositiveTime, row.wholeTrial.peakNegative, row.wholeTrial.peakNegativeTime, row.wholeTrial.range, row.wholeTrial.mean] : [];
+		const bad = (row.samples === 0 ? [] : figures).concat(row.wholeTrial?.samples === 0 ? [] : whole).find((v) => !Number.isFinite(v));
+		if (bad !== undefined)
+			throw new NonFiniteResultError(`The results are not finite numbers: the summary of the ${row.quantity} of DOF ${row.dof} holds ${bad}. The run stores nothing. Check the recording, then run it again.`, {
+				quantity: `summary of ${row.quantity}`,
+				dof: row.dof,
+				sample: -1,
+				time: NaN,
+				value: bad
+			});
+	}
 }

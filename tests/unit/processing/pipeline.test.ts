@@ -1,7 +1,7 @@
 // Pipeline mechanics: progress by stage, summaries and power against closed forms, and precise refusals.
 import { describe, expect, it } from 'vitest';
 import { buildSessionModel } from '../../../src/lib/processing/session-model';
-import { PipelineError, runPipeline, runOptionsSchema } from '../../../src/lib/processing/pipeline';
+import { assertFiniteResults, NonFiniteResultError, PipelineError, runPipeline, runOptionsSchema } from '../../../src/lib/processing/pipeline';
 import { makeRecording } from './helpers';
 
 const person = { sex: 'male' as const, bodyMass: 80, stature: 1.8 };
@@ -87,5 +87,50 @@ describe('reuseInput (the worker filters its freshly parsed recording in place)'
 			// with it, the recording's arrays became the filtered angles
 			expect(b.dofs[0].angle).toBe(reused.channels[0].values);
 		}
+	});
+});
+
+describe('a result that is not a finite number fails the run (NonFiniteResultError)', () => {
+	it('an angle spike of 1e200 rad, unfiltered: derivatives and moments overflow; the error names quantity, DOF and first time', () => {
+		// 1e200 / dt² (dt = 0.01 s) is 1e204 rad/s², finite; moment × velocity (about 1e204 · 1e202) overflows to ±Infinity (IEEE 754: beyond ~1.8e308)
+		const spike = makeRecording(built, 401, 100, (n, t) => (n === 'right.knee.flexion' ? (Math.abs(t - 2) < 1e-9 ? 1e200 : knee(t)) : 0));
+		let err: unknown;
+		try {
+			runPipeline(built, spike, { cutoffHz: null });
+		} catch (e) {
+			err = e;
+		}
+		expect(err).toBeInstanceOf(NonFiniteResultError);
+		expect(err).toBeInstanceOf(PipelineError);
+		// the worker's list of deterministic failures goes by this name: the run fails at once, without retries
+		expect((err as Error).name).toBe('PipelineError');
+		const at = (err as NonFiniteResultError).at;
+		expect(Number.isFinite(at.value)).toBe(false);
+		expect((err as Error).message).toContain(`the ${at.quantity} of DOF ${at.dof} is ${at.value} at ${Number(at.time.toPrecision(6))} s (sample ${at.sample + 1})`);
+		expect((err as Error).message).toMatch(/stores nothing/);
+		expect(['moment', 'moment per kg', 'power']).toContain(at.quantity);
+		// the first sample that overflows lies next to the spike (sample 201, t = 2 s)
+		expect(Math.abs(at.time - 2)).toBeLessThanOrEqual(0.01 + 1e-12);
+	});
+
+	it('gravity of 1e308 m/s²: every moment overflows from the first sample, named with its time 0 s', () => {
+		expect(() => runPipeline(built, rec, { gravity: [0, -1e308, 0] })).toThrow(/the moment of DOF right\.hip\.flexion is (-?Infinity|NaN) at 0 s \(sample 1\)/);
+	});
+
+	it('a NaN that reaches the results (a recording built around the parser) is named too', () => {
+		const bad = { ...rec, channels: rec.channels.map((c, j) => (j === 3 ? { ...c, values: c.values.map((v, k) => (k === 7 ? Infinity : v)) } : c)) };
+		// the velocity next to it (central difference, sample 7 at 0.06 s) is the first: named before the moments it spoils
+		expect(() => runPipeline(built, bad, { cutoffHz: null })).toThrow(/the velocity of DOF right\.knee\.flexion is -?Infinity at 0\.06 s \(sample 7\)/);
+	});
+
+	it('assertFiniteResults passes finite results and refuses a summary figure that is not finite', () => {
+		const r = runPipeline(built, rec, {});
+		expect(() => assertFiniteResults(r.time, r.dofs, r.base, r.reactions, r.summary)).not.toThrow();
+		const summary = r.summary.map((s, i) => (i === 4 ? { ...s, mean: Infinity } : s));
+		expect(() => assertFiniteResults(r.time, r.dofs, r.base, r.reactions, summary)).toThrow(new RegExp(`summary of the ${r.summary[4].quantity} of DOF ${r.summary[4].dof.replace(/\./g, '\\.')} holds Infinity`));
+		const force = Float64Array.from(r.reactions[1].force);
+		force[3 * 10 + 2] = NaN;
+		const reactions = r.reactions.map((x, i) => (i === 1 ? { ...x, force } : x));
+		expect(() => assertFiniteResults(r.time, r.dofs, r.base, reactions, r.summary)).toThrow(new RegExp(`reaction force \\(z\\) of joint ${r.reactions[1].joint.replace(/\./g, '\\.')} is NaN at 0\\.1 s \\(sample 11\\)`));
 	});
 });
