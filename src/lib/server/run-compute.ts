@@ -1,7 +1,8 @@
 // One run's computation without I/O: session model + recording + options → the rows we store (series as bytes, summary, model record).
-import { encodeFloat64 } from './results-codec';
+import os from 'node:os';
+import { decodeFloat64, encodeFloat64 } from './results-codec';
 import { buildSessionModel, type SessionModel, type SessionSetup } from '../processing/session-model';
-import { runPipeline, type PipelineResult, type RunOptions } from '../processing/pipeline';
+import { NonFiniteResultError, runPipeline, type PipelineResult, type RunOptions } from '../processing/pipeline';
 import type { Recording } from '../processing/recording';
 import type { ParticipantBody } from '../anthropometry/scale';
 
@@ -82,4 +83,53 @@ export function computeRun(
 	// the recording was parsed for this run alone: its arrays are filtered in place
 	const result = runPipeline(built, recording, options, onProgress, { reuseInput: true });
 	return { series: seriesRows(result, built), summary: result.summary, model: modelRecord(built, options), timings: result.timings };
+}
+
+/** The samples of an encoded series without a copy where the bytes are aligned (as encodeFloat64 leaves them). */
+function samplesOf(data: Buffer): Float64Array {
+	return data.byteOffset % 8 === 0 && os.endianness() === 'LE' ? new Float64Array(data.buffer, data.byteOffset, data.byteLength / 8) : decodeFloat64(data);
+}
+
+/**
+ * The storage boundary's own check (writeResults calls it before a row is written): every stored number of a run
+ * is finite: each series, the summary figures (a part with `samples` 0 has none by design) and the edge zone. The
+ * pipeline refuses such results already (assertFiniteResults); this keeps a done run finite whatever produced the
+ * rows, so no API answer or export shows an empty cell in place of a failure. Throws NonFiniteResultError (a
+ * PipelineError: the worker fails the run at once, with the message).
+ */
+export function assertStorable(computed: ComputedRun): void {
+	const refuse = (what: string, value: number, at: { quantity: string; dof: string; sample: number; time: number }): never => {
+		throw new NonFiniteResultError(`The results cannot be stored: ${what} is ${value}, not a finite number. The run stores nothing; check the recording and run it again.`, { ...at, value });
+	};
+	const timeRow = computed.series.find((s) => s.quantity === 'time');
+	const time = timeRow ? samplesOf(timeRow.data) : new Float64Array(0);
+	for (const s of computed.series) {
+		const x = s === timeRow ? time : samplesOf(s.data);
+		for (let i = 0; i < x.length; i++) {
+			const v = x[i];
+			if (v - v === 0) continue;
+			const k = Math.floor(i / s.components);
+			const t = time[k];
+			const axis = s.components === 3 ? ` (${'xyz'[i % 3]})` : '';
+			refuse(`the ${s.quantity.replace(/_/g, ' ')}${axis} of ${s.name} at ${Number.isFinite(t) ? `${Number(t.toPrecision(6))} s (sample ${k + 1})` : `sample ${k + 1}`}`, v, { quantity: s.quantity, dof: s.name, sample: k, time: t });
+		}
+	}
+	const FIGURES = ['peakPositive', 'peakPositiveTime', 'peakNegative', 'peakNegativeTime', 'range', 'mean'] as const;
+	for (const row of computed.summary) {
+		const parts: [string, Partial<Record<(typeof FIGURES)[number] | 'samples', number>> | undefined][] = [
+			['', row],
+			[' (whole trial)', row.wholeTrial]
+		];
+		for (const [label, part] of parts) {
+			if (!part || part.samples === 0) continue;
+			for (const f of FIGURES) {
+				const v = part[f];
+				if (typeof v === 'number' && !Number.isFinite(v)) refuse(`the summary's ${f}${label} of the ${row.quantity} of ${row.dof}`, v, { quantity: `summary of ${row.quantity}`, dof: row.dof, sample: -1, time: NaN });
+			}
+		}
+	}
+	// (the edge zone is stored with the run; read loosely, so this check does not depend on its exact shape)
+	const zone = (computed as unknown as { edgeZone?: Record<string, unknown> }).edgeZone;
+	for (const [k, v] of Object.entries(zone ?? {}))
+		if (typeof v === 'number' && !Number.isFinite(v)) refuse(`the edge zone's ${k}`, v, { quantity: 'edge zone', dof: k, sample: -1, time: NaN });
 }

@@ -22,7 +22,7 @@ import { contextOf, FormProblem, guardStudy } from './study-records';
 import { may } from './access';
 import { component, decodeFloat64 } from './results-codec';
 import { reduceForPlot } from '../processing/reduce';
-import { computeRun, type ComputedRun, type SeriesRow } from './run-compute';
+import { assertStorable, computeRun, type ComputedRun, type SeriesRow } from './run-compute';
 import type { RunThreadInput, RunThreadMessage } from './jobs/run-thread-types';
 import { buildSessionModel, sessionSetupSchema, type SessionSetup } from '../processing/session-model';
 import { runOptionsSchema, type RunOptions } from '../processing/pipeline';
@@ -785,6 +785,12 @@ export async function storeResults(runId: string, attempt: number, participantId
 
 /** Inside the caller's transaction: replaces the run's series by these and marks it done with its summary and model. */
 export async function writeResults(runId: string, computed: ComputedRun, transaction: Transaction): Promise<void> {
+	// a done run holds finite numbers only: anything else fails the run (no retry would change it), nothing written
+	try {
+		assertStorable(computed);
+	} catch (err) {
+		throw new RunFailure((err as Error).message);
+	}
 	const sequelize = db();
 	await RunSeries.destroy({ where: { runId }, transaction });
 	// one insert per series with bind parameters, so pg sends the bytes as binary (not as hex text twice their size)
