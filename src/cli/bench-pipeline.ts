@@ -113,7 +113,7 @@ async function main() {
 			c0 = cpu();
 			const series = seriesRows(r, built);
 			const bytes = series.reduce((a, x) => a + x.data.byteLength, 0);
-			await store.store({ series, summary: r.summary, model: modelRecord(built, runOptionsSchema.parse({ cutoffHz: 6 })), timings: r.timings });
+			await store.store({ series, summary: r.summary, edgeZone: r.edgeZone, model: modelRecord(built, runOptionsSchema.parse({ cutoffHz: 6 })), timings: r.timings });
 			stages.push([`store in PostgreSQL (${series.length} series, ${(bytes / 2 ** 20).toFixed(0)} MiB)`, performance.now() - t0, cpu() - c0]);
 		} finally {
 			await store.close();

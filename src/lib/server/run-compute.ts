@@ -19,6 +19,8 @@ export interface SeriesRow {
 export interface ComputedRun {
 	series: SeriesRow[];
 	summary: PipelineResult['summary'];
+	/** Where the results are not reliable near the trial's ends; stored in runs.edge_zone. */
+	edgeZone: PipelineResult['edgeZone'];
 	/** What the run used, stored with it: the scaled parameters, loads, set-up, gravity and the DOF sign rules. */
 	model: Record<string, unknown>;
 	timings: Record<string, number>;
@@ -82,7 +84,7 @@ export function computeRun(
 	const built = buildSessionModel(body, setup);
 	// the recording was parsed for this run alone: its arrays are filtered in place
 	const result = runPipeline(built, recording, options, onProgress, { reuseInput: true });
-	return { series: seriesRows(result, built), summary: result.summary, model: modelRecord(built, options), timings: result.timings };
+	return { series: seriesRows(result, built), summary: result.summary, edgeZone: result.edgeZone, model: modelRecord(built, options), timings: result.timings };
 }
 
 /** The samples of an encoded series without a copy where the bytes are aligned (as encodeFloat64 leaves them). */

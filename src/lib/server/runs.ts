@@ -25,7 +25,8 @@ import { reduceForPlot } from '../processing/reduce';
 import { assertStorable, computeRun, type ComputedRun, type SeriesRow } from './run-compute';
 import type { RunThreadInput, RunThreadMessage } from './jobs/run-thread-types';
 import { buildSessionModel, sessionSetupSchema, type SessionSetup } from '../processing/session-model';
-import { runOptionsSchema, type RunOptions } from '../processing/pipeline';
+import { runOptionsSchema, type RunOptions, type SummaryRow, type SummaryStats } from '../processing/pipeline';
+import { edgeZoneView, type EdgeZoneView } from '../processing/zone-exclusion';
 import { parseRecording, columnMappingSchema, type Recording, type Problem } from '../processing/recording';
 import { residualAnalysis } from '../processing/signal';
 import type { ParticipantBody } from '../anthropometry/scale';
@@ -371,6 +372,8 @@ export interface SeriesAnswer {
 	points: number | null;
 	curves: Curve[];
 	bodyMassKg: number | null;
+	/** Where the run's results are not reliable near its ends (computed: false, all zero, for runs made before edge zones). */
+	edgeZone: EdgeZoneView;
 }
 
 const seriesQuery = z.object({
@@ -401,13 +404,16 @@ export interface StoredCurve {
  * The stored series of one quantity of a run (optionally of one DOF or joint) as typed arrays, in the model's DOF
  * order, with the one time axis they share. For the API's answers and for the review's own reductions.
  */
-export async function storedSeries(runId: string, q: { quantity: ResultQuantity; dof?: string }): Promise<{ time: Float64Array; curves: StoredCurve[]; bodyMassKg: number | null }> {
+export async function storedSeries(
+	runId: string,
+	q: { quantity: ResultQuantity; dof?: string }
+): Promise<{ time: Float64Array; curves: StoredCurve[]; bodyMassKg: number | null; edgeZone: EdgeZoneView }> {
 	db();
 	const rows = await RunSeries.findAll({
 		where: { runId, quantity: ['time', q.quantity], ...(q.dof ? { name: ['time', q.dof] } : {}) },
 		order: [['name', 'ASC']]
 	});
-	const run = await Run.findByPk(runId, { attributes: ['model'] });
+	const run = await Run.findByPk(runId, { attributes: ['model', 'edgeZone'] });
 	const model = (run?.model ?? {}) as StoredModel;
 	const positive = new Map((model.dofs ?? []).map((d) => [d.name, d.positive]));
 	const order = new Map((model.dofs ?? []).map((d, i) => [d.name, i]));
@@ -427,7 +433,7 @@ export async function storedSeries(runId: string, q: { quantity: ResultQuantity;
 			});
 		}
 	}
-	return { time: decodeFloat64(timeRow.data), curves, bodyMassKg: model.bodyMassKg ?? null };
+	return { time: decodeFloat64(timeRow.data), curves, bodyMassKg: model.bodyMassKg ?? null, edgeZone: edgeZoneView(run?.edgeZone) };
 }
 
 /** The time axis of a run (s), or null when it has none. */
@@ -442,13 +448,13 @@ export async function timeOfRun(runId: string): Promise<Float64Array | null> {
  * for plotting (the review's reduction: LTTB plus every bucket's minimum and maximum).
  */
 export async function seriesOfRun(runId: string, q: { quantity: ResultQuantity; dof?: string; points?: number }): Promise<SeriesAnswer> {
-	const { time, curves: stored, bodyMassKg } = await storedSeries(runId, q);
+	const { time, curves: stored, bodyMassKg, edgeZone } = await storedSeries(runId, q);
 	const curves: Curve[] = stored.map(({ values, ...c }) => {
 		const red = q.points ? reduceForPlot(time, values, q.points) : { t: Array.from(time), v: Array.from(values) };
 		return { ...c, quantity: q.quantity, t: red.t, v: red.v.map((x) => (Number.isFinite(x) ? x : null)) };
 	});
 	if (q.dof && !curves.length) error(404, `This run has no ${q.quantity} series named ${q.dof}.`);
-	return { runId, quantity: q.quantity, samples: time.length, points: q.points ?? null, curves, bodyMassKg };
+	return { runId, quantity: q.quantity, samples: time.length, points: q.points ?? null, curves, bodyMassKg, edgeZone };
 }
 
 /** GET …/series: query parameters validated (400 naming the parameter), run in study, run done. */
@@ -462,17 +468,89 @@ export async function loadSeries(event: RequestEvent, rawStudyId: string, rawRun
 	return seriesOfRun(run.id, parsed.data);
 }
 
+// ---------------------------------------------------------------------------------------------- summaries and the edge zone
+
+/** The name of the switch, in URLs and forms: 1 includes the edge zones in peaks, summaries and repetitions. */
+export const INCLUDE_EDGE_ZONES = 'includeEdgeZones';
+
+/** The switch as pages read it: on only for 1 (or true); anything else leaves the edge zones out. */
+export function includeEdgeZonesOf(sp: URLSearchParams): boolean {
+	const v = sp.get(INCLUDE_EDGE_ZONES);
+	return v === '1' || v === 'true';
+}
+
+/** The switch as the JSON API reads it: 1/true or 0/false (absent = 0); anything else is refused with 400. */
+function includeEdgeZonesStrict(sp: URLSearchParams): boolean {
+	const v = sp.get(INCLUDE_EDGE_ZONES);
+	if (v === null || v === '0' || v === 'false') return false;
+	if (v === '1' || v === 'true') return true;
+	error(400, `${INCLUDE_EDGE_ZONES} must be 1 (include the edge zones) or 0 (leave them out, the default); got “${v.slice(0, 40)}”.`);
+}
+
+/** One row of a run's summary as pages and the API show it: the figures of the chosen scope (null: no samples). */
+export interface SummaryView {
+	dof: string;
+	quantity: string;
+	unit: string;
+	peakPositive: number | null;
+	peakPositiveTime: number | null;
+	peakNegative: number | null;
+	peakNegativeTime: number | null;
+	range: number | null;
+	mean: number | null;
+	/** Samples the figures are taken over (null for runs stored before this was recorded). */
+	samples: number | null;
+}
+
+type StoredSummaryRow = Partial<Record<keyof SummaryStats, number | null>> & Pick<SummaryRow, 'dof' | 'quantity' | 'unit'> & { wholeTrial?: Partial<Record<keyof SummaryStats, number | null>> };
+
+/**
+ * The stored summary rows in the chosen scope: outside the edge zones (the rows' own figures, the default) or the
+ * whole trial (`wholeTrial`). Runs stored before edge zones have one set of figures, over every sample: both scopes.
+ */
+export function summaryRows(stored: unknown, includeEdgeZones: boolean): SummaryView[] {
+	if (!Array.isArray(stored)) return [];
+	return (stored as StoredSummaryRow[]).map((r) => {
+		const f = includeEdgeZones && r.wholeTrial ? r.wholeTrial : r;
+		const n = (x: number | null | undefined) => (typeof x === 'number' && Number.isFinite(x) ? x : null);
+		return {
+			dof: r.dof,
+			quantity: r.quantity,
+			unit: r.unit,
+			peakPositive: n(f.peakPositive),
+			peakPositiveTime: n(f.peakPositiveTime),
+			peakNegative: n(f.peakNegative),
+			peakNegativeTime: n(f.peakNegativeTime),
+			range: n(f.range),
+			mean: n(f.mean),
+			samples: n(f.samples)
+		};
+	});
+}
+
+/** What a summary's figures cover, in words. */
+export function summaryScope(edgeZone: EdgeZoneView, includeEdgeZones: boolean): string {
+	if (!edgeZone.computed) return 'every sample (the run was made before edge zones were introduced: its edge zone was not computed)';
+	return includeEdgeZones ? 'every sample, edge zones included' : 'the samples outside the edge zones (the first and last stretches where results are not reliable)';
+}
+
+/** GET …/runs/[rid]/summary[?includeEdgeZones=1]: peaks, range and mean per DOF, without the edge zones unless asked. */
 export async function loadSummary(event: RequestEvent, rawStudyId: string, rawRunId: string) {
 	const { study } = await guardStudy(event, 'study.read', rawStudyId);
 	const { run } = await runIn(study.id, rawRunId);
+	const include = includeEdgeZonesStrict(event.url.searchParams);
 	requireDone(run);
-	const row = await Run.findByPk(run.id, { attributes: ['summary', 'model'] });
+	const row = await Run.findByPk(run.id, { attributes: ['summary', 'model', 'edgeZone'] });
 	const model = (row?.model ?? {}) as StoredModel;
+	const edgeZone = edgeZoneView(row?.edgeZone);
 	return {
 		runId: run.id,
 		convention: 'Internal joint moments: the moment the proximal segment exerts on the distal one; positive in the DOF’s positive sense.',
 		bodyMassKg: model.bodyMassKg ?? null,
-		summary: row?.summary ?? []
+		edgeZone,
+		edgeZonesIncluded: include,
+		scope: summaryScope(edgeZone, include),
+		summary: summaryRows(row?.summary, include)
 	};
 }
 
@@ -480,14 +558,19 @@ export async function loadSummary(event: RequestEvent, rawStudyId: string, rawRu
 export async function loadRunPage(event: RequestEvent, rawStudyId: string, rawRunId: string) {
 	const { actor, study } = await guardStudy(event, 'study.read', rawStudyId);
 	const { run, trial } = await runIn(study.id, rawRunId);
-	const row = await Run.findByPk(run.id, { attributes: ['summary', 'model'] });
+	const row = await Run.findByPk(run.id, { attributes: ['summary', 'model', 'edgeZone'] });
 	const done = run.state === 'done';
+	const include = includeEdgeZonesOf(event.url.searchParams);
+	const edgeZone = edgeZoneView(row?.edgeZone);
 	return {
 		study: { id: study.id, code: study.code, title: study.title },
 		trial: { id: trial.trialId, fileName: trial.fileName, sessionId: trial.sessionId, participantCode: trial.participantCode, sampleHz: trial.sampleHz },
 		run,
 		canStart: may(actor, 'run.start', study.id),
-		summary: done ? ((row?.summary ?? []) as unknown[]) : [],
+		summary: done ? summaryRows(row?.summary, include) : [],
+		includeEdgeZones: include,
+		summaryScope: summaryScope(edgeZone, include),
+		edgeZone: done ? edgeZone : null,
 		model: done ? (row?.model ?? null) : null,
 		moments: done ? await seriesOfRun(run.id, { quantity: 'moment', points: 600 }) : null
 	};
@@ -802,8 +885,9 @@ export async function writeResults(runId: string, computed: ComputedRun, transac
 		});
 	}
 	await sequelize.query(
-		`UPDATE runs SET state = 'done', progress = 1, stage = NULL, error = NULL, finished_at = now(), summary = CAST(:summary AS jsonb), model = CAST(:model AS jsonb) WHERE id = :runId`,
-		{ replacements: { runId, summary: JSON.stringify(computed.summary), model: JSON.stringify(computed.model) }, transaction }
+		`UPDATE runs SET state = 'done', progress = 1, stage = NULL, error = NULL, finished_at = now(), summary = CAST(:summary AS jsonb), model = CAST(:model AS jsonb),
+		        edge_zone = CAST(:edgeZone AS jsonb) WHERE id = :runId`,
+		{ replacements: { runId, summary: JSON.stringify(computed.summary), model: JSON.stringify(computed.model), edgeZone: JSON.stringify(computed.edgeZone) }, transaction }
 	);
 }
 

@@ -364,6 +364,8 @@ export class Run extends Model<InferAttributes<Run>, InferCreationAttributes<Run
 	declare startedAt: CreationOptional<Date | null>;
 	declare finishedAt: CreationOptional<Date | null>;
 	declare summary: CreationOptional<unknown | null>;
+	/** Where results are not reliable near the trial's ends (EdgeZone of the pipeline); null for runs made before edge zones. */
+	declare edgeZone: CreationOptional<Record<string, unknown> | null>;
 	declare flaggedReason: CreationOptional<string | null>;
 	declare flagDecision: CreationOptional<string | null>;
 	declare flagDecidedBy: CreationOptional<string | null>;
@@ -467,6 +469,7 @@ export function initSessionModels(sequelize: Sequelize): void {
 			startedAt: { type: DataTypes.DATE, allowNull: true },
 			finishedAt: { type: DataTypes.DATE, allowNull: true },
 			summary: { type: DataTypes.JSONB, allowNull: true },
+			edgeZone: { type: DataTypes.JSONB, allowNull: true },
 			flaggedReason: { type: DataTypes.TEXT, allowNull: true },
 			flagDecision: { type: DataTypes.TEXT, allowNull: true },
 			flagDecidedBy: { type: DataTypes.UUID, allowNull: true },

@@ -7,6 +7,7 @@ import * as m0004 from './0004-consent';
 import * as m0005 from './0005-sessions-trials-runs';
 import * as m0006 from './0006-session-review';
 import * as m0007 from './0007-cycle-events';
+import * as m0008 from './0008-run-edge-zones';
 
 export const migrations: { name: string; up: Migration; down: Migration }[] = [
 	{ name: '0001-lab-foundation', ...m0001 },
@@ -15,5 +16,6 @@ export const migrations: { name: string; up: Migration; down: Migration }[] = [
 	{ name: '0004-consent', ...m0004 },
 	{ name: '0005-sessions-trials-runs', ...m0005 },
 	{ name: '0006-session-review', ...m0006 },
-	{ name: '0007-cycle-events', ...m0007 }
+	{ name: '0007-cycle-events', ...m0007 },
+	{ name: '0008-run-edge-zones', ...m0008 }
 ];
