@@ -161,6 +161,25 @@ describe('session export', () => {
 		await app.sql.query(`DELETE FROM cycle_events WHERE run_id = $1`, [app.ids.runA]);
 	}, 60_000);
 
+	it('refuses (409, naming run, trial and series) a run holding a non-finite value, rather than exporting an empty cell', async () => {
+		// such a run can only come from before the storage check (writeResults refuses it now): made here by hand
+		const row = (await app.sql.query(`SELECT name, data FROM run_series WHERE run_id = $1 AND quantity = 'moment' ORDER BY name LIMIT 1`, [app.ids.runA])).rows[0];
+		// NaN as IEEE 754 float64, little-endian: 0x7FF8000000000000
+		await app.sql.query(`UPDATE run_series SET data = overlay(data placing '\\x000000000000f87f'::bytea from 17 for 8) WHERE run_id = $1 AND quantity = 'moment' AND name = $2`, [app.ids.runA, row.name]);
+		try {
+			const before = (await app.sql.query(`SELECT count(*) n FROM audit_events WHERE action = 'session.exported'`)).rows[0].n;
+			const res = await fetch(app.base + exportPath(), { headers: { cookie: app.cookies.piA, accept: 'application/json' } });
+			expect(res.status).toBe(409);
+			const message = ((await res.json()) as { message: string }).message;
+			expect(message).toContain(`moment of ${row.name}, value 3`);
+			expect(message).toMatch(/Run 1 of trial “[^”]+” holds a value that is not a finite number/);
+			expect((await app.sql.query(`SELECT count(*) n FROM audit_events WHERE action = 'session.exported'`)).rows[0].n).toBe(before);
+		} finally {
+			await app.sql.query(`UPDATE run_series SET data = $3 WHERE run_id = $1 AND quantity = 'moment' AND name = $2`, [app.ids.runA, row.name, row.data]);
+		}
+		expect((await get('piA', exportPath())).status).toBe(200);
+	}, 60_000);
+
 	it('renders the printable report with its print stylesheet, signature block and caution', async () => {
 		const reportPath = `/studies/${app.ids.studyA}/sessions/${app.ids.sessionA}/report`;
 		let res = await get('technicianA', reportPath);

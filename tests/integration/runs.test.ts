@@ -314,6 +314,26 @@ describe('a run through the HTTP API', () => {
 		expect(await count()).toBe(n);
 	});
 
+	it('fails a run whose results are not finite numbers, with the reason naming quantity, DOF and time, storing nothing', async () => {
+		// gravity of 1e308 m/s² passes the options' finite check, but every moment overflows (IEEE 754 doubles end near 1.8e308)
+		const started = await api('researcherA', 'POST', `/api/studies/${app.ids.studyA}/trials/${trialId}/runs`, { cutoffHz: 6, gravity: [0, -1e308, 0] });
+		expect(started.status, JSON.stringify(started.json)).toBe(201);
+		const run = await waitForRun(app.ids.studyA, started.json.run.id, (r) => r.state === 'done' || r.state === 'failed');
+		expect(run.state).toBe('failed');
+		expect(run.error).toMatch(/^The results are not finite numbers: the moment of DOF right\.shoulder\.flexion is (-?Infinity|NaN) at 0 s \(sample 1\)/);
+		expect(run.error).toMatch(/stores nothing/);
+		// a deterministic failure: not tried again
+		expect(run.attempts).toBe(1);
+		expect(await seriesCount(run.id)).toBe(0);
+		const { rows } = await app.sql.query(`SELECT summary, model FROM runs WHERE id = $1`, [run.id]);
+		expect(rows[0].summary).toBeNull();
+		// nothing to show or export: the results API refuses a run that is not done
+		const sum = await api('researcherA', 'GET', `/api/studies/${app.ids.studyA}/runs/${run.id}/summary`);
+		expect(sum.status).toBe(409);
+		const ser = await api('researcherA', 'GET', `/api/studies/${app.ids.studyA}/runs/${run.id}/series?quantity=moment`);
+		expect(ser.status).toBe(409);
+	});
+
 	it('answers residual analysis per channel with a suggested cutoff', async () => {
 		const r = await api('researcherA', 'GET', `/api/studies/${app.ids.studyA}/trials/${trialId}/residuals`);
 		expect(r.status).toBe(200);

@@ -206,6 +206,27 @@ describe('the malformed corpus', () => {
 		expect(q.column).toBeTruthy();
 	});
 
+	it('refuses a value no recording can hold (1e308 in a cell; 1e-400) with 422 naming file, line and column, storing nothing', async () => {
+		const before = await counts();
+		for (const [cell, text] of [
+			['1e308', /"1e308" \(deg\) is 1e\+308°, beyond the hard limit of ±720°/],
+			['1e-400', /underflow/]
+		] as const) {
+			const lines = legCsv(60).toString('utf8').split('\n');
+			const cells = lines[25].split(',');
+			cells[4] = cell; // line 26, column 5: right.knee.flexion (deg)
+			lines[25] = cells.join(',');
+			const { status, body } = await uploadJson(legSession, [{ name: 'spiked.csv', bytes: Buffer.from(lines.join('\n')) }]);
+			expect(status, JSON.stringify(body).slice(0, 300)).toBe(422);
+			expect(body.message).toContain('spiked.csv');
+			expect(body.problems).toHaveLength(1);
+			expect(body.problems[0]).toMatchObject({ file: 'spiked.csv', row: 26, column: 'right.knee.flexion (deg)', code: 'impossible-value', severity: 'error' });
+			expect(body.problems[0].message).toContain(`Line 26, column 5 ("right.knee.flexion (deg)"): "${cell}"`);
+			expect(body.problems[0].message).toMatch(text);
+		}
+		expect(await counts()).toEqual(before);
+	});
+
 	it('keeps the file name, size, hash and problem codes of a rejected file in the audit log', async () => {
 		const bytes = fs.readFileSync(MALFORMED + 'binary-garbage.csv');
 		await uploadJson(legSession, [{ name: 'binary-garbage.csv', bytes }]);

@@ -69,7 +69,36 @@ export async function exportTrials(sessionId: string): Promise<ExportTrial[]> {
 }
 
 const csvText = (s: string) => (/[",\r\n]/.test(s) ? `"${s.replace(/"/g, '""')}"` : s);
-const num = (v: number) => (Number.isFinite(v) ? String(v) : '');
+/** A value as written; never an empty cell in place of a number (refuseNonFinite has checked every exported series). */
+const num = (v: number) => {
+	if (!Number.isFinite(v)) throw new Error(`a non-finite value (${v}) reached the export`);
+	return String(v);
+};
+
+/**
+ * 409 before anything is streamed when an exported run is not done or any number it stored is not finite (runs
+ * stored before the storage check may hold such values); the message names the run, its trial and the series.
+ */
+export async function refuseNonFinite(trials: ExportTrial[]): Promise<void> {
+	for (const { trial, run } of trials) {
+		if (!run) continue;
+		if (run.state !== 'done') error(409, `Run ${run.number} of trial “${trial.file_name}” is ${run.state}, not done; it cannot be exported.`);
+		const meta = await db().query<{ name: string; quantity: string }>(`SELECT name, quantity FROM run_series WHERE run_id = :id ORDER BY name, quantity`, {
+			replacements: { id: run.id },
+			type: QueryTypes.SELECT
+		});
+		for (const s of meta) {
+			const rows = await db().query<{ data: Buffer }>(`SELECT data FROM run_series WHERE run_id = $1 AND name = $2 AND quantity = $3`, { bind: [run.id, s.name, s.quantity], type: QueryTypes.SELECT });
+			const values = decodeFloat64(rows[0].data);
+			const k = values.findIndex((v) => !Number.isFinite(v));
+			if (k >= 0)
+				error(
+					409,
+					`Run ${run.number} of trial “${trial.file_name}” holds a value that is not a finite number (${s.quantity.replace(/_/g, ' ')} of ${s.name}, value ${k + 1}), so the session cannot be exported. Run the trial again (new runs are checked before they are stored), then export.`
+				);
+		}
+	}
+}
 const QUANTITY_ORDER = ['angle', 'velocity', 'acceleration', 'moment', 'moment_per_kg', 'power', 'reaction_force'];
 
 /** results.csv, produced block by block: one series of one run at a time (never the whole file in memory). */
@@ -140,7 +169,7 @@ results.csv — one row per value, long format. Columns:
   axis         what x is: time_s (time in seconds from the start of the trial) or cycle_percent
   repetition   for cycle_percent rows, the repetition (1, 2, …); empty for time_s rows
   x            the time (s) or the percentage of the cycle
-  value        the value; empty where it is not a number (a gap in the recording)
+  value        the value (always a finite number: a run with any other value is never exported)
   Angles are positive in the sense each DOF states in provenance.json (model.dofs[].positive); a positive
   moment acts on the distal segment in that same sense.
   Of each trial only its newest finished run is exported; a run excluded after a consent withdrawal never is.
@@ -167,6 +196,7 @@ export async function exportSession(event: RequestEvent, rawId: string, rawSid: 
 	if (s.state !== 'approved') error(409, `Only an approved session can be exported; this session is ${s.state.replace('_', ' ')}.`);
 	const p = (await Participant.findByPk(s.participantId, { attributes: ['id', 'code'] }))!;
 	const trials = await exportTrials(s.id);
+	await refuseNonFinite(trials);
 	const approval = await approvalOf(s.id);
 	const exportedAt = new Date();
 	const runs = await Promise.all(trials.map(async (t) => (t.run ? ((await Run.findByPk(t.run.id, { attributes: ['model'] }))?.model ?? null) : null)));
