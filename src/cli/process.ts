@@ -1,4 +1,4 @@
-// `npm run process -- --participant p.json --angles trial.csv --out moments.csv [--setup setup.json] [--cutoff 6|none]`: one trial through the same parse + pipeline code the worker runs.
+// `npm run process -- --participant p.json --angles trial.csv --out moments.csv [--setup setup.json] [--cutoff 6|none] [--angle-unit deg|rad]`: one trial through the same parse + pipeline code the worker runs.
 import { createReadStream, createWriteStream, openSync, readFileSync, readSync, closeSync } from 'node:fs';
 import { basename } from 'node:path';
 import { participantBodySchema, participantProblems, ScalingError, LIMBS, type Limb } from '../lib/anthropometry/scale';
@@ -7,7 +7,22 @@ import { parseRecording, detectDelimiter } from '../lib/processing/recording';
 import { buildSessionModel, sessionSetupProblems, SessionModelError, type SessionSetupInput } from '../lib/processing/session-model';
 import { PipelineError, runPipeline, type PipelineResult } from '../lib/processing/pipeline';
 
-const USAGE = 'usage: npm run process -- --participant p.json --angles trial.csv --out moments.csv [--setup setup.json] [--cutoff 6|none]';
+const USAGE = 'usage: npm run process -- --participant p.json --angles trial.csv --out moments.csv [--setup setup.json] [--cutoff 6|none] [--angle-unit deg|rad]';
+
+const HELP = `${USAGE}
+
+One trial through the same reading and processing the worker runs, without the database: joint angles in,
+internal joint moments (the proximal segment on the distal one) out.
+
+  --participant p.json   the participant's body: sex, bodyMass (kg), stature (m), optional measuredLengths, table
+  --angles trial.csv     the recording (our layout: time column, one column per DOF, e.g. right.knee.flexion (deg))
+  --out moments.csv      where to write the results, one row per sample (angles in deg, moments in N·m, …)
+  --setup setup.json     the session set-up (limbs, bases, loads, gravity); default: the limbs whose columns the
+                         file has, bases fixed upright (moving where <limb>.base.* columns exist), no loads
+  --cutoff 6|none        low-pass cutoff in Hz (zero-lag Butterworth), or none; default 6
+  --angle-unit deg|rad   the unit of angle columns whose header has no (deg) or (rad) suffix; a suffix in the
+                         header wins. Without it, such a file is refused until the unit is chosen
+  --help                 this text`;
 
 class CliError extends Error {}
 
@@ -17,13 +32,15 @@ function args(argv: string[]): Record<string, string> {
 		const a = argv[i];
 		if (!a.startsWith('--')) throw new CliError(`unexpected argument "${a}"\n${USAGE}`);
 		const key = a.slice(2);
-		if (!['participant', 'angles', 'out', 'setup', 'cutoff'].includes(key)) throw new CliError(`unknown option --${key}\n${USAGE}`);
+		if (!['participant', 'angles', 'out', 'setup', 'cutoff', 'angle-unit'].includes(key)) throw new CliError(`unknown option --${key}\n${USAGE}`);
 		const v = argv[i + 1];
 		if (v === undefined || v.startsWith('--')) throw new CliError(`--${key} needs a value\n${USAGE}`);
 		out[key] = v;
 		i++;
 	}
 	for (const k of ['participant', 'angles', 'out']) if (!out[k]) throw new CliError(`--${k} is required\n${USAGE}`);
+	if (out['angle-unit'] !== undefined && out['angle-unit'] !== 'deg' && out['angle-unit'] !== 'rad')
+		throw new CliError(`--angle-unit must be deg or rad (got "${out['angle-unit']}")\n${USAGE}`);
 	return out;
 }
 
@@ -109,6 +126,10 @@ async function writeWide(path: string, r: PipelineResult): Promise<void> {
 }
 
 async function main(): Promise<void> {
+	if (process.argv.slice(2).some((x) => x === '--help' || x === '-h')) {
+		console.log(HELP);
+		return;
+	}
 	const a = args(process.argv.slice(2));
 	const pj = readJson(a.participant) as Record<string, unknown>;
 	if (!pj || typeof pj !== 'object') throw new CliError(`${a.participant}: must be a JSON object with sex, bodyMass, stature`);
@@ -137,9 +158,12 @@ async function main(): Promise<void> {
 	}
 
 	const built = buildSessionModel(body, setup);
-	const parsed = await parseRecording(createReadStream(a.angles), { fileName: basename(a.angles), expected: built.expected });
+	const defaultAngleUnit = a['angle-unit'] as 'deg' | 'rad' | undefined;
+	const parsed = await parseRecording(createReadStream(a.angles), { fileName: basename(a.angles), expected: built.expected, defaultAngleUnit });
 	if (!parsed.ok) {
 		const lines = parsed.problems.map((p) => `${a.angles}${p.row ? `:${p.row}` : ''}${p.column ? ` [${p.column}]` : ''}: ${p.severity}: ${p.message} (${p.code})`);
+		if (parsed.problems.some((p) => p.code === 'unit-unknown' && /choose degrees or radians/.test(p.message)))
+			lines.push('on the command line, choose the unit of angle columns without a suffix with --angle-unit deg or --angle-unit rad');
 		if (parsed.needsMapping) lines.push(`the columns do not follow our scheme; map them in the app (or rename them to: ${built.expected.map((e) => e.name).join(', ')})`);
 		throw new CliError(lines.join('\n'));
 	}
