@@ -1,12 +1,17 @@
 // Builds a participant's arm and leg segment trees for the engine from a chosen published table.
 import { z } from 'zod';
 import type { BodyInput, Mat3, ModelInput, Vec3 } from '../dynamics/model';
-import { tables, SEGMENT_TABLES, SEGMENT_TABLE_IDS, type SegmentName, type SegmentTableId, type SexParams, type TableSex } from './tables';
+import { tables, modelEndpointsOf, SEGMENT_TABLES, SEGMENT_TABLE_IDS, type SegmentName, type SegmentTableId, type SexParams, type TableSex } from './tables';
 
 export const SIDES = ['right', 'left'] as const;
 export type Side = (typeof SIDES)[number];
 export const LIMBS = ['right.arm', 'left.arm', 'right.leg', 'left.leg'] as const;
 export type Limb = (typeof LIMBS)[number];
+/**
+ * The limb trees. Each segment hangs from the joint centre that MODEL_ENDPOINTS (endpoints.ts) names as its proximal
+ * endpoint and places the next joint centre (its distal endpoint) one segment length further on; the table loader
+ * refuses rows measured between other endpoints unless the table file states why they may stand for these.
+ */
 const LIMB_SEGMENTS: Record<'arm' | 'leg', SegmentName[]> = { arm: ['upperarm', 'forearm', 'hand'], leg: ['thigh', 'shank', 'foot'] };
 export const LENGTH_KEYS = SIDES.flatMap((s) => (['upperarm', 'forearm', 'hand', 'thigh', 'shank', 'foot'] as const).map((g) => `${s}.${g}` as const));
 export type LengthKey = (typeof LENGTH_KEYS)[number];
@@ -50,8 +55,11 @@ export interface ScaledSegment {
 	key: LengthKey;
 	side: Side;
 	segment: SegmentName;
+	/** The endpoints of the table row the fractions come from. */
 	proximal: string;
 	distal: string;
+	/** Set when the row is applied between other endpoints (the model's), with the table file's reason. */
+	takenAs?: { proximal: string; distal: string; note: string };
 	length: Provenance;
 	mass: Provenance;
 	/** Distance of the centre of mass from the proximal joint centre, m. */
@@ -225,6 +233,9 @@ export function scaleLimbs(input: ParticipantBody, tableId: SegmentTableId, limb
 	const dofs: DofInfo[] = [];
 	const segments: ScaledSegment[] = [];
 	const notes: string[] = [];
+	const note = (text: string) => {
+		if (!notes.includes(text)) notes.push(text);
+	};
 
 	function segmentFor(side: Side, segment: SegmentName): ScaledSegment {
 		const params = sex.params(segment);
@@ -245,12 +256,20 @@ export function scaleLimbs(input: ParticipantBody, tableId: SegmentTableId, limb
 			source: `mass × (${r.value} × length)²; ${r.source}`
 		});
 		const def = tableId === 'dempster-winter-2009' ? tables.dempster.segments[segment] : tables.deLeva.segments[segment];
+		const label = segment === 'upperarm' ? 'Upper arm' : segment[0].toUpperCase() + segment.slice(1);
+		// a row applied between other endpoints than its own says so on the model page (the table file gives why)
+		const sourceName = tableId === 'dempster-winter-2009' ? 'Winter 2009, Table 4.1' : 'de Leva 1996, Table 4';
+		if (def.takenAs) note(`${label} (${sourceName}): ${def.takenAs.note}`);
+		else if (length.kind === 'estimated' && tableId === 'dempster-winter-2009' && tables.drillis.lengths[segment].takenAs) {
+			note(`${label} length (stature proportions, Winter 2009, Fig. 4.1): ${tables.drillis.lengths[segment].takenAs!.note}`);
+		}
 		const seg: ScaledSegment = {
 			key,
 			side,
 			segment,
 			proximal: def.proximal,
 			distal: def.distal,
+			...(def.takenAs ? { takenAs: { ...modelEndpointsOf(def), note: def.takenAs.note } } : {}),
 			length,
 			mass,
 			comDistance: { value: params.comFraction.value * L, unit: 'm', kind: 'estimated', source: `${params.comFraction.value} × length; ${params.comFraction.source}` },
@@ -323,7 +342,7 @@ export function scaleLimbs(input: ParticipantBody, tableId: SegmentTableId, limb
 		notes.push('Winter (2009) Table 4.1 gives one radius of gyration per segment; Momentry uses it for both transverse axes and takes the longitudinal radius from de Leva (1996) male values, as the table file records.');
 	}
 	if (limbs.some((l) => l.endsWith('leg'))) {
-		notes.push('Foot: its long axis is taken horizontal and anterior through the ankle joint centre, with the proximal endpoint at the ankle (Momentry’s simplification).');
+		notes.push('Foot: its long axis is taken horizontal and anterior through the ankle joint centre (Momentry’s simplification).');
 	}
 	notes.push('Shoulder angles use the Cardan sequence flexion, abduction, internal rotation (as the hip), not ISB’s Euler sequence for the humerus, which is singular with the arm at the side.');
 	const t = SEGMENT_TABLES[tableId];

@@ -4,6 +4,7 @@ import dempster from '../../../anthropometry/dempster-winter-2009.json';
 import deLeva from '../../../anthropometry/de-leva-1996.json';
 import zatsiorsky from '../../../anthropometry/zatsiorsky-regression-2002.json';
 import drillis from '../../../anthropometry/drillis-contini-winter-2009.json';
+import { LANDMARK_NAMES, LENGTH_END, MODEL_ENDPOINTS, type Landmark } from './endpoints';
 
 export const SEGMENTS = ['upperarm', 'forearm', 'hand', 'thigh', 'shank', 'foot'] as const;
 export type SegmentName = (typeof SEGMENTS)[number];
@@ -23,12 +24,36 @@ const sexParams = z.object({
 
 const citation = z.string().min(20, 'needs the full citation');
 
+const landmark = z.enum(LANDMARK_NAMES, { error: (i) => `unknown landmark ${JSON.stringify(i.input)}: name one of those listed in src/lib/anthropometry/endpoints.ts` });
+/** A row applied between other endpoints than its own: which model endpoints it stands for, and why. */
+const takenAs = z
+	.object({
+		proximal: landmark.optional(),
+		distal: landmark.optional(),
+		note: z.string().min(40, 'say why the row may stand for these endpoints and what that changes')
+	})
+	.refine((t) => t.proximal || t.distal, 'name the proximal or distal endpoint the row is taken as');
+const endpoints = {
+	proximal: landmark,
+	distal: landmark,
+	/** The source's own wording or abbreviation of the endpoints. */
+	printedAs: z.string().min(3).optional(),
+	takenAs: takenAs.optional()
+};
+const fractionsRow = z.object({ ...endpoints, any: sexParams.optional(), female: sexParams.optional(), male: sexParams.optional() });
+const fractionsSegment = fractionsRow.extend({
+	/** Further rows of the source for this segment, with other endpoints: kept for reference, not used. */
+	otherRows: z.array(fractionsRow.extend({ unused: z.string().min(10, 'say why the model does not use this row') })).optional()
+});
+
 export const fractionsTableSchema = z.object({
 	id: z.string().min(1),
 	kind: z.literal('segment-fractions'),
 	title: z.string().min(1),
 	citation,
 	population: z.string().min(1),
+	/** How the recalled values were checked. */
+	verification: z.string().min(20).optional(),
 	sexes: z.array(z.enum(['any', 'female', 'male'])).min(1),
 	lengths: z.object({
 		from: z.string().min(1),
@@ -36,10 +61,7 @@ export const fractionsTableSchema = z.object({
 		referenceStature: z.record(z.string(), sourced(positive)).optional()
 	}),
 	columns: z.record(z.string(), z.string().min(1)),
-	segments: z.record(
-		z.enum(SEGMENTS),
-		z.object({ proximal: z.string().min(1), distal: z.string().min(1), any: sexParams.optional(), female: sexParams.optional(), male: sexParams.optional() })
-	)
+	segments: z.record(z.enum(SEGMENTS), fractionsSegment)
 });
 
 export const statureTableSchema = z.object({
@@ -48,7 +70,11 @@ export const statureTableSchema = z.object({
 	title: z.string().min(1),
 	citation,
 	columns: z.record(z.string(), z.string().min(1)),
-	lengths: z.record(z.string(), z.object({ fraction: sourced(fraction), between: z.string().min(1) }))
+	/** Segment lengths (keyed by segment, with endpoints) and other body dimensions (keyed by name). */
+	lengths: z.record(
+		z.string(),
+		z.object({ fraction: sourced(fraction), between: z.string().min(1), proximal: landmark.optional(), distal: landmark.optional(), takenAs: takenAs.optional(), note: z.string().min(20).optional() })
+	)
 });
 
 export const regressionTableSchema = z.object({
@@ -64,7 +90,14 @@ export const regressionTableSchema = z.object({
 	geometry: z.object({ from: z.string().min(1), sex: z.enum(['female', 'male']), note: z.string().min(1) }),
 	segments: z.record(
 		z.enum(SEGMENTS),
-		z.object({ b0: sourced(z.number()), b1: sourced(z.number()), b2: sourced(z.number()), standardError: z.object({ value: positive.nullable(), source }) })
+		z.object({
+			proximal: landmark,
+			distal: landmark,
+			b0: sourced(z.number()),
+			b1: sourced(z.number()),
+			b2: sourced(z.number()),
+			standardError: z.object({ value: positive.nullable(), source })
+		})
 	)
 });
 
@@ -72,6 +105,8 @@ export type FractionsTable = z.infer<typeof fractionsTableSchema>;
 export type StatureTable = z.infer<typeof statureTableSchema>;
 export type RegressionTable = z.infer<typeof regressionTableSchema>;
 export type SexParams = z.infer<typeof sexParams>;
+export type FractionsRow = z.infer<typeof fractionsRow>;
+export type TakenAs = z.infer<typeof takenAs>;
 
 /** Validates one table file; throws a message naming the file and every bad field. */
 export function parseTable<T>(file: string, schema: z.ZodType<T>, data: unknown): T {
@@ -82,27 +117,127 @@ export function parseTable<T>(file: string, schema: z.ZodType<T>, data: unknown)
 	return r.data;
 }
 
-/** Checks beyond the schema: every listed sex has parameters for every segment. */
-function checkComplete(file: string, t: FractionsTable): FractionsTable {
+/** Checks beyond the schema: every listed sex has parameters for every segment, in every row. */
+export function checkComplete(file: string, t: FractionsTable): FractionsTable {
 	for (const seg of SEGMENTS) {
 		const s = t.segments[seg];
 		if (!s) throw new Error(`anthropometry/${file}: segments.${seg}: missing`);
-		for (const sex of t.sexes) if (!s[sex]) throw new Error(`anthropometry/${file}: segments.${seg}.${sex}: missing`);
-		if (t.lengths.from === 'own') {
-			for (const sex of t.sexes) {
-				if (!s[sex]?.meanLength) throw new Error(`anthropometry/${file}: segments.${seg}.${sex}.meanLength: needed when lengths come from the table itself`);
-				if (!t.lengths.referenceStature?.[sex]) throw new Error(`anthropometry/${file}: lengths.referenceStature.${sex}: missing`);
+		const rows: [string, FractionsRow][] = [[`segments.${seg}`, s], ...(s.otherRows ?? []).map((r, i): [string, FractionsRow] => [`segments.${seg}.otherRows.${i}`, r])];
+		for (const [path, row] of rows) {
+			for (const sex of t.sexes) if (!row[sex]) throw new Error(`anthropometry/${file}: ${path}.${sex}: missing`);
+			if (t.lengths.from === 'own') {
+				for (const sex of t.sexes) {
+					if (!row[sex]?.meanLength) throw new Error(`anthropometry/${file}: ${path}.${sex}.meanLength: needed when lengths come from the table itself`);
+					if (!t.lengths.referenceStature?.[sex]) throw new Error(`anthropometry/${file}: lengths.referenceStature.${sex}: missing`);
+				}
 			}
 		}
 	}
 	return t;
 }
 
+// ---------------------------------------------------------------------------------------------------------------
+// Endpoints: a row is used only between the endpoints the model needs (MODEL_ENDPOINTS in endpoints.ts).
+// ---------------------------------------------------------------------------------------------------------------
+
+type Endpoints = { proximal: Landmark; distal: Landmark };
+type EndpointRow = Endpoints & { takenAs?: TakenAs };
+
+/** The endpoints the model applies a row between: its own, or those it is explicitly taken as. */
+export function modelEndpointsOf(row: EndpointRow): Endpoints {
+	return { proximal: row.takenAs?.proximal ?? row.proximal, distal: row.takenAs?.distal ?? row.distal };
+}
+const arrow = (e: { proximal: string; distal: string }) => `${e.proximal} → ${e.distal}`;
+function describe(row: EndpointRow): string {
+	return row.takenAs ? `${arrow(row)} (taken as ${arrow(modelEndpointsOf(row))})` : arrow(row);
+}
+
+/**
+ * The endpoints the model needs for one segment of a table. Hand and foot end where their length ends: for a
+ * table with its own mean lengths that is the row's own distal endpoint; otherwise the stature-proportion row's.
+ */
+function needed(seg: SegmentName, lengthRow: EndpointRow | null, lengthPath: string): { proximal: Landmark; distal: Landmark | null; why: string } {
+	const m = MODEL_ENDPOINTS[seg];
+	if (m.distal !== LENGTH_END) return { proximal: m.proximal, distal: m.distal, why: '' };
+	if (!lengthRow) return { proximal: m.proximal, distal: null, why: '' };
+	return { proximal: m.proximal, distal: modelEndpointsOf(lengthRow).distal, why: ` (its ${seg} ends where the length it is scaled by ends, ${lengthPath})` };
+}
+function mismatch(row: EndpointRow, need: { proximal: Landmark; distal: Landmark | null }): boolean {
+	const got = modelEndpointsOf(row);
+	return got.proximal !== need.proximal || (need.distal !== null && got.distal !== need.distal);
+}
+
+/**
+ * Refuses a segment-fractions table any of whose used rows does not run between the model's endpoints (after the
+ * substitutions the file states in `takenAs`), and a substitution where the table has a row with the model's own
+ * endpoints. `stature` is the table unmeasured lengths come from when the table has none of its own.
+ */
+export function checkFractionsEndpoints(file: string, t: FractionsTable, stature: { file: string; table: StatureTable }): FractionsTable {
+	const where = `anthropometry/${file} (table ${t.id})`;
+	if (t.lengths.from !== 'own' && t.lengths.from !== stature.table.id) {
+		throw new Error(`${where}: lengths.from: "${t.lengths.from}" is not a stature-proportion table Momentry has (${stature.table.id})`);
+	}
+	for (const seg of SEGMENTS) {
+		const row = t.segments[seg];
+		const lengthRow = t.lengths.from === 'own' ? null : (stature.table.lengths[seg] as EndpointRow);
+		const need = needed(seg, lengthRow, `anthropometry/${stature.file} lengths.${seg}`);
+		if (mismatch(row, need)) {
+			throw new Error(
+				`${where}: segments.${seg}: endpoints ${describe(row)} do not match the model, whose ${seg} runs ${need.proximal} → ${need.distal ?? 'the end of its length'}${need.why}; use a row with these endpoints, or state in takenAs why this row may stand for them`
+			);
+		}
+		if (row.takenAs) {
+			const i = (row.otherRows ?? []).findIndex((r) => !r.takenAs && !mismatch(r, need));
+			if (i >= 0) {
+				throw new Error(`${where}: segments.${seg}: the row ${describe(row)} stands in for the model’s endpoints, but otherRows.${i} (${arrow(row.otherRows![i])}) has them: use that row`);
+			}
+		}
+	}
+	return t;
+}
+
+/** Refuses a stature-proportion table whose segment lengths do not run between the model's endpoints. */
+export function checkStatureEndpoints(file: string, t: StatureTable): StatureTable {
+	for (const seg of SEGMENTS) {
+		const row = t.lengths[seg];
+		const path = `anthropometry/${file} (table ${t.id}): lengths.${seg}`;
+		if (!row) throw new Error(`${path}: missing`);
+		if (!row.proximal || !row.distal) throw new Error(`${path}: name the proximal and distal endpoints of the length`);
+		const need = needed(seg, null, '');
+		if (mismatch(row as EndpointRow, need)) {
+			throw new Error(
+				`${path}: endpoints ${describe(row as EndpointRow)} do not match the model, whose ${seg} runs ${need.proximal} → ${need.distal ?? 'the end of its length'}; use a length with these endpoints, or state in takenAs why this one may stand for them`
+			);
+		}
+	}
+	return t;
+}
+
+/** Refuses a mass regression whose rows are not for the same segments (endpoints) as the geometry rows they are combined with. */
+export function checkRegressionEndpoints(file: string, r: RegressionTable, geometry: { file: string; table: FractionsTable }): RegressionTable {
+	const where = `anthropometry/${file} (table ${r.id})`;
+	if (r.geometry.from !== geometry.table.id) throw new Error(`${where}: geometry.from: "${r.geometry.from}" is not ${geometry.table.id}`);
+	for (const seg of SEGMENTS) {
+		const a = r.segments[seg],
+			b = geometry.table.segments[seg];
+		if (a.proximal !== b.proximal || a.distal !== b.distal) {
+			throw new Error(`${where}: segments.${seg}: endpoints ${arrow(a)} do not match those of the geometry row it is combined with, anthropometry/${geometry.file} segments.${seg} (${arrow(b)})`);
+		}
+	}
+	return r;
+}
+
+const drillisTable = checkStatureEndpoints('drillis-contini-winter-2009.json', parseTable('drillis-contini-winter-2009.json', statureTableSchema, drillis));
+const stature = { file: 'drillis-contini-winter-2009.json', table: drillisTable };
+const fractions = (file: string, data: unknown) => checkFractionsEndpoints(file, checkComplete(file, parseTable(file, fractionsTableSchema, data)), stature);
+const deLevaTable = fractions('de-leva-1996.json', deLeva);
+
+/** The validated tables; loading this module refuses any table whose endpoints do not match the model's. */
 export const tables = {
-	dempster: checkComplete('dempster-winter-2009.json', parseTable('dempster-winter-2009.json', fractionsTableSchema, dempster)),
-	deLeva: checkComplete('de-leva-1996.json', parseTable('de-leva-1996.json', fractionsTableSchema, deLeva)),
-	zatsiorsky: parseTable('zatsiorsky-regression-2002.json', regressionTableSchema, zatsiorsky),
-	drillis: parseTable('drillis-contini-winter-2009.json', statureTableSchema, drillis)
+	dempster: fractions('dempster-winter-2009.json', dempster),
+	deLeva: deLevaTable,
+	zatsiorsky: checkRegressionEndpoints('zatsiorsky-regression-2002.json', parseTable('zatsiorsky-regression-2002.json', regressionTableSchema, zatsiorsky), { file: 'de-leva-1996.json', table: deLevaTable }),
+	drillis: drillisTable
 };
 
 /** The tables a study can choose for segment parameters, by id. */

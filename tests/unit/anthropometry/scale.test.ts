@@ -41,8 +41,10 @@ describe('worked examples by hand (80 kg, 1.80 m)', () => {
 		// Hand calculation (de Leva Table 4, male, from memory): stature ratio 1.80 / 1.741
 		// thigh: L = 0.4222 × 1.80 / 1.741 = 0.436508 m; m = 0.1416 × 80 = 11.328 kg;
 		//        COM 0.4095 × L = 0.178750 m; I_flex = 11.328 × (0.329 L)² = 0.233630 kg·m²; I_long = 11.328 × (0.149 L)² = 0.047919
-		// shank: L = 0.4340 × 1.80 / 1.741 = 0.448708 m; m = 0.0433 × 80 = 3.464 kg;
-		//        COM 0.4459 × L = 0.200079 m; I_flex = 3.464 × (0.249 L)² = 0.043242 kg·m²
+		// shank (the row from the knee joint centre to the ankle joint centre, KJC–AJC; its mean length 440.3 mm is
+		//        derived from the KJC–LMAL row, as the table file says):
+		//        L = 0.4403 × 1.80 / 1.741 = 0.455221 m; m = 0.0433 × 80 = 3.464 kg;
+		//        COM 0.4395 × L = 0.200070 m; I_flex = 3.464 × (0.246 L)² = 0.043440 kg·m²
 		// foot:  L = 0.2581 × 1.80 / 1.741 = 0.266847 m; m = 0.0137 × 80 = 1.096 kg;
 		//        COM 0.4415 × L = 0.117813 m; I_flex = 1.096 × (0.245 L)² = 0.004685 kg·m²
 		const thigh = seg(m, 'right.thigh'),
@@ -53,10 +55,10 @@ describe('worked examples by hand (80 kg, 1.80 m)', () => {
 		near(thigh.comDistance.value, 0.17875, 5);
 		near(thigh.inertia.flexion.value, 0.23363, 6);
 		near(thigh.inertia.longitudinal.value, 0.047919, 6);
-		near(shank.length.value, 0.448708, 6);
+		near(shank.length.value, 0.455221, 6);
 		near(shank.mass.value, 3.464, 6);
-		near(shank.comDistance.value, 0.200079, 5);
-		near(shank.inertia.flexion.value, 0.043242, 6);
+		near(shank.comDistance.value, 0.20007, 5);
+		near(shank.inertia.flexion.value, 0.04344, 6);
 		near(foot.length.value, 0.266847, 6);
 		near(foot.mass.value, 1.096, 6);
 		near(foot.comDistance.value, 0.117813, 5);

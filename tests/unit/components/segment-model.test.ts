@@ -78,6 +78,21 @@ describe('SegmentTable', () => {
 	});
 });
 
+describe('SegmentTable, a row applied between the model’s endpoints rather than its own', () => {
+	it('shows the table’s endpoints, the endpoints they are applied as, and the reason among the notes', () => {
+		const dempster = scaleLimbs(male, 'dempster-winter-2009', ['right.arm']);
+		const html = clean(render(SegmentTable, { props: { scaled: dempster } }).body);
+		const hand = element(html, 'tr', 'data-segment="right.hand"');
+		// Winter 2009 Table 4.1 (from memory): the hand runs from the wrist axis to knuckle II of the middle finger
+		expect(hand).toContain('wrist joint centre → knuckle II of the middle finger');
+		expect(hand).toMatch(/data-taken-as[^>]*>applied as wrist joint centre → tip of the middle finger/);
+		expect(decode(element(html, 'caption', '<caption'))).toContain('Hand (Winter 2009, Table 4.1): Winter’s hand fractions run from the wrist axis to knuckle II of the middle finger, not to the fingertip.');
+		// de Leva's upper arm runs between joint centres: nothing to apply
+		const deLeva = clean(render(SegmentTable, { props: { scaled } }).body);
+		expect(element(deLeva, 'tr', 'data-segment="right.upperarm"')).not.toContain('data-taken-as');
+	});
+});
+
 describe('SegmentTreeDrawing', () => {
 	const front = clean(render(SegmentTreeDrawing, { props: { scaled } }).body);
 	const side = clean(render(SegmentTreeDrawing, { props: { scaled, view: 'side' } }).body);
