@@ -1,5 +1,6 @@
 // Model format of the multibody engine: the zod schema that validates a tree of bodies, and its compiled typed-array form.
 import { z } from 'zod';
+import { checkRotation } from './rotation';
 
 export type Vec3 = [number, number, number];
 export type Mat3 = [Vec3, Vec3, Vec3];
@@ -7,6 +8,21 @@ export type Mat3 = [Vec3, Vec3, Vec3];
 const finite = z.number({ error: 'must be a finite number' }).refine(Number.isFinite, 'must be a finite number');
 const vec3 = z.tuple([finite, finite, finite], { error: 'must be three numbers [x, y, z]' });
 const mat3 = z.tuple([vec3, vec3, vec3], { error: 'must be a 3×3 array of numbers' });
+
+/**
+ * A rotation matrix as typed (row-major): accepted within ROTATION_TOLERANCE of orthonormal with determinant > 0,
+ * and replaced by the nearest proper rotation (polar decomposition), so 6-decimal entries work; otherwise refused
+ * with the size of the error, the tolerance, and whether the determinant is negative (rotation.ts).
+ */
+export const rotationSchema = mat3
+	.superRefine((R, ctx) => {
+		const c = checkRotation(R as Mat3);
+		if (!c.ok) ctx.addIssue({ code: 'custom', message: c.message });
+	})
+	.transform((R) => {
+		const c = checkRotation(R as Mat3);
+		return (c.ok ? c.rotation : R) as Mat3;
+	});
 
 /**
  * One rigid body and the one-DOF joint that joins it to its parent.
@@ -22,7 +38,7 @@ export const bodySchema = z.object({
 		axis: vec3
 	}),
 	anchor: vec3,
-	rotation: mat3.optional(),
+	rotation: rotationSchema.optional(),
 	mass: finite.refine((m) => m >= 0, 'must not be negative'),
 	com: vec3,
 	/** Inertia tensor about the centre of mass, body-frame axes: angular momentum h = I·ω. */
@@ -49,21 +65,6 @@ export const modelSchema = z
 
 			const [ax, ay, az] = b.joint.axis;
 			if (Math.hypot(ax, ay, az) < 1e-12) issue(i, ['joint', 'axis'], 'must not be the zero vector');
-
-			if (b.rotation) {
-				const R = b.rotation;
-				let worst = 0;
-				for (let r = 0; r < 3; r++)
-					for (let c = 0; c < 3; c++) {
-						const dot = R[0][r] * R[0][c] + R[1][r] * R[1][c] + R[2][r] * R[2][c];
-						worst = Math.max(worst, Math.abs(dot - (r === c ? 1 : 0)));
-					}
-				const det =
-					R[0][0] * (R[1][1] * R[2][2] - R[1][2] * R[2][1]) -
-					R[0][1] * (R[1][0] * R[2][2] - R[1][2] * R[2][0]) +
-					R[0][2] * (R[1][0] * R[2][1] - R[1][1] * R[2][0]);
-				if (worst > 1e-9 || det < 0) issue(i, ['rotation'], 'must be a proper rotation matrix (orthonormal, determinant +1)');
-			}
 
 			const I = b.inertia;
 			const scale = Math.max(1e-300, ...I.flat().map(Math.abs));

@@ -79,7 +79,7 @@ describe('model schema', () => {
 
 	it('rejects a rotation that is not a proper rotation', () => {
 		expect(problemsWith((m) => (m.bodies[1].rotation = [[1, 0, 0], [0, 1, 0], [0, 0, -1]]))).toEqual([
-			'body 1 "lower": rotation: must be a proper rotation matrix (orthonormal, determinant +1)'
+			'body 1 "lower": rotation: must be a proper rotation matrix (orthonormal, determinant +1): its determinant is -1, negative: an improper rotation (a reflection; one axis has the wrong sign, e.g. a left-handed frame)'
 		]);
 	});
 
