@@ -3,7 +3,8 @@ import { z } from 'zod';
 import { compileModel, createWorkspace, inverseDynamicsBatch, PRISMATIC, type Vec3 } from '../dynamics/index';
 import type { Recording } from './recording';
 import type { SessionModel } from './session-model';
-import { differentiate, fillGaps, lowPassZeroLag, MIN_SAMPLES_FOR_FILTER, SignalError } from './signal';
+import { DEFAULT_END_TREATMENT, END_TREATMENTS, END_TREATMENT_LABELS, EDGE_ZONE_FAMILY, differentiateWithEnds, edgeZoneSamples, smoothWithEnds, type EndTreatment, type SmoothedSignal } from './edges';
+import { fillGaps, MIN_SAMPLES_FOR_FILTER, SignalError } from './signal';
 import { reliableRange, type ZoneSamples } from './zone-exclusion';
 
 const finite = z.number({ error: 'must be a number' }).refine(Number.isFinite, 'must be a finite number');
@@ -14,6 +15,11 @@ export const runOptionsSchema = z.object({
 	cutoffHz: cutoff.nullable().default(6),
 	/** Per-channel cutoffs (channel name → Hz), overriding cutoffHz for those channels. */
 	perChannelCutoffHz: z.record(z.string(), cutoff).optional(),
+	/**
+	 * How each channel is continued beyond its first and last samples before filtering and differentiation
+	 * (src/lib/processing/edges.ts; docs/processing.md, "Ends of a recording"). Also used without a filter.
+	 */
+	endTreatment: z.enum(END_TREATMENTS, { error: `endTreatment must be one of ${END_TREATMENTS.join(', ')}` }).default(DEFAULT_END_TREATMENT),
 	/** Fill short gaps (empty cells) by cubic interpolation before filtering. */
 	fillGaps: z.boolean().default(false),
 	/** Gravity in lab axes, m/s²; default the session set-up's. */
@@ -151,6 +157,8 @@ export function runPipeline(
 	const cutoffs: Record<string, number | null> = {};
 	const filledGaps: Record<string, number> = {};
 	const angle: Float64Array[] = [];
+	// each channel continued beyond its ends by the end treatment, filtered, and kept with its continued neighbours for the derivatives
+	const smoothed: SmoothedSignal[] = [];
 	for (let j = 0; j < n; j++) {
 		const name = built.dofs[j].name;
 		let x = rec.channels[j].values;
@@ -168,17 +176,17 @@ export function runPipeline(
 		const fc = options.perChannelCutoffHz?.[name] ?? options.cutoffHz;
 		cutoffs[name] = fc;
 		const own = reuseInput || x !== rec.channels[j].values; // gap filling already made a copy of its own
-		if (fc === null) {
-			angle.push(own ? x : Float64Array.from(x));
-		} else {
+		if (fc !== null) {
 			if (fc >= nyquist) throw new PipelineError(`cutoff ${fc} Hz for "${name}" must be below half the sampling rate (${nyquist} Hz)`);
 			if (frames < MIN_SAMPLES_FOR_FILTER) throw new PipelineError(`the recording has ${frames} samples; filtering needs at least ${MIN_SAMPLES_FOR_FILTER} (or run without a filter)`);
-			try {
-				angle.push(lowPassZeroLag(x, rec.sampleHz, fc, own ? x : new Float64Array(frames)));
-			} catch (e) {
-				if (e instanceof SignalError) throw new PipelineError(`channel "${name}": ${e.message}`);
-				throw e;
-			}
+		}
+		try {
+			const s = smoothWithEnds(x, rec.sampleHz, fc, options.endTreatment, own ? x : new Float64Array(frames));
+			smoothed.push(s);
+			angle.push(s.value);
+		} catch (e) {
+			if (e instanceof SignalError) throw new PipelineError(`channel "${name}": ${e.message}`);
+			throw e;
 		}
 		report('filter', (j + 1) / n);
 	}
@@ -190,7 +198,7 @@ export function runPipeline(
 	const velocity: Float64Array[] = [];
 	const acceleration: Float64Array[] = [];
 	for (let j = 0; j < n; j++) {
-		const d = differentiate(angle[j], dt, { velocity: new Float64Array(frames), acceleration: new Float64Array(frames) });
+		const d = differentiateWithEnds(smoothed[j], dt, { velocity: new Float64Array(frames), acceleration: new Float64Array(frames) });
 		velocity.push(d.velocity);
 		acceleration.push(d.acceleration);
 		report('differentiate', (j + 1) / n);
@@ -254,7 +262,7 @@ export function runPipeline(
 	// 4. summary: peaks, range and mean outside the edge zone, and over the whole trial
 	t0 = now();
 	report('summary', 0);
-	const edgeZone = edgeZoneOf(rec.sampleHz, frames, cutoffs);
+	const edgeZone = edgeZoneOf(rec.sampleHz, frames, cutoffs, options.endTreatment);
 	const summary: SummaryRow[] = [];
 	for (const s of dofs) {
 		const prismatic = s.momentUnit === 'N';
@@ -281,12 +289,42 @@ export function runPipeline(
 	};
 }
 
-/** PROVISIONAL (being replaced by the end-treatment analysis): a conservative zone from the lowest cutoff used. */
-function edgeZoneOf(sampleHz: number, frames: number, cutoffs: Record<string, number | null>): EdgeZone {
-	const used = Object.values(cutoffs).filter((c): c is number => c !== null);
-	const lowest = used.length ? Math.min(...used) : null;
-	const samples = Math.min(Math.floor(frames / 2), lowest === null ? 1 : Math.ceil((0.75 * sampleHz) / lowest));
-	return { startSamples: samples, endSamples: samples, startSeconds: samples / sampleHz, endSeconds: samples / sampleHz, basis: 'provisional' };
+/**
+ * The edge zone of a run: for each distinct cutoff used (null = no filter), edgeZoneSamples of edges.ts — the
+ * samples at each end where the end treatment's own error, measured on a family of smooth random movements with
+ * and without 0.15° noise, exceeds half the middle's error (the rule is in edges.ts and docs/processing.md);
+ * the run's zone is the longest, capped at half the recording. The same at both ends: the rule pools them.
+ */
+export function edgeZoneOf(sampleHz: number, frames: number, cutoffs: Record<string, number | null>, treatment: EndTreatment = DEFAULT_END_TREATMENT): EdgeZone {
+	const distinct = [...new Set(Object.values(cutoffs))];
+	if (!distinct.length) distinct.push(null);
+	let samples = 0,
+		worst: number | null = null;
+	for (const fc of distinct) {
+		const z = edgeZoneSamples(sampleHz, fc, treatment);
+		if (z > samples || (z === samples && fc !== null && worst === null)) {
+			samples = z;
+			worst = fc;
+		}
+	}
+	samples = Math.min(samples, Math.floor(frames / 2));
+	const seconds = samples / sampleHz;
+	const filter =
+		worst === null
+			? 'no filter'
+			: `zero-lag Butterworth low-pass at ${worst} Hz${distinct.length > 1 ? ` (the longest zone among cutoffs ${distinct.map((c) => (c === null ? 'none' : `${c} Hz`)).join(', ')})` : ''}`;
+	const rule =
+		worst === null
+			? 'without a filter only the first and last samples use anything but their measured neighbours for the central differences'
+			: `where the end's own error exceeds half the middle's error for the angle, velocity or acceleration, measured on smooth random movements sampled at ${sampleHz} Hz with and without ${EDGE_ZONE_FAMILY.noiseDeg}° noise`;
+	const diff = treatment === 'reflect-9' ? 'one-sided differences at the ends, central elsewhere' : 'central differences throughout';
+	return {
+		startSamples: samples,
+		endSamples: samples,
+		startSeconds: seconds,
+		endSeconds: seconds,
+		basis: `${samples} sample${samples === 1 ? '' : 's'} (${seconds.toFixed(3)} s) at each end: ${filter}, ${END_TREATMENT_LABELS[treatment]}, ${diff}; ${rule}.`
+	};
 }
 
 // Small loops of their own, so the JIT optimises each on its own (one big function deoptimised as a whole).

@@ -95,24 +95,40 @@ export function butterworthLowPass(
 	};
 }
 
+/** How filtfilt extends a signal before filtering, as scipy.signal.filtfilt's `padtype` (null = no extension). */
+export type PadType = 'odd' | 'even' | 'constant' | null;
+
 /**
- * Zero-phase filtering, the same computation as scipy.signal.filtfilt(b, a, x) with its defaults
- * (method 'pad', padtype 'odd', padlen = 3·max(len(a), len(b))): extend x at both ends by point reflection
- * about its end samples, run lfilter (transposed direct form II) forward with initial state lfilter_zi·(first
- * extended sample), run it backward over the result with initial state lfilter_zi·(last forward output), and
- * keep the middle. The extensions are generated on the fly, so `out` may be `x` itself.
+ * Zero-phase filtering, the same computation as scipy.signal.filtfilt(b, a, x, padtype, padlen) with method 'pad'
+ * (defaults padtype 'odd', padlen = 3·max(len(a), len(b))): extend x at both ends by `padLen` samples — 'odd':
+ * point reflection about the end sample (2x₀ − x_k), 'even': mirror (x_k), 'constant': the end sample, null or
+ * padLen 0: none — run lfilter (transposed direct form II) forward with initial state lfilter_zi·(first extended
+ * sample), run it backward over the result with initial state lfilter_zi·(last forward output), and keep the
+ * middle. The signal needs more than padLen samples (as scipy's). The extensions are generated on the fly, so
+ * `out` may be `x` itself.
  */
-export function filtfilt(b: ArrayLike<number>, a: ArrayLike<number>, x: Float64Array, out?: Float64Array): Float64Array {
+export function filtfilt(
+	b: ArrayLike<number>,
+	a: ArrayLike<number>,
+	x: Float64Array,
+	out?: Float64Array,
+	opts?: { padType?: PadType; padLen?: number }
+): Float64Array {
 	const m = Math.max(a.length, b.length);
 	if (a.length === 0 || b.length === 0 || a[0] === 0 || !Number.isFinite(a[0])) {
 		throw new SignalError('invalid-coefficients', 'Filter coefficients need at least one b and one a value, with a[0] non-zero.');
 	}
 	const n = x.length;
-	const edge = 3 * m;
-	if (n <= edge) {
+	const padType = opts?.padType === undefined ? 'odd' : opts.padType;
+	const padLen = opts?.padLen ?? 3 * m;
+	if (!Number.isInteger(padLen) || padLen < 0) {
+		throw new SignalError('invalid-argument', `The padding length must be a whole number of samples (0 or more); got ${padLen}.`);
+	}
+	const edge = padType === null ? 0 : padLen;
+	if (n <= edge || n === 0) {
 		throw new SignalError(
 			'too-few-samples',
-			`The signal has ${n} sample${n === 1 ? '' : 's'}; zero-lag filtering needs at least ${edge + 1} (it pads ${edge} samples at each end).`
+			`The signal has ${n} sample${n === 1 ? '' : 's'}; zero-lag filtering needs at least ${edge + 1}${edge ? ` (it pads ${edge} samples at each end)` : ''}.`
 		);
 	}
 	for (let i = 0; i < n; i++) {
@@ -153,14 +169,22 @@ export function filtfilt(b: ArrayLike<number>, a: ArrayLike<number>, x: Float64A
 		}
 	}
 
-	// Odd extensions, taken before `y` (possibly x itself) is overwritten.
+	// Extensions, taken before `y` (possibly x itself) is overwritten.
 	const head = new Float64Array(edge);
 	const tail = new Float64Array(edge);
 	const x0 = x[0],
 		xn = x[n - 1];
 	for (let j = 0; j < edge; j++) {
-		head[j] = 2 * x0 - x[edge - j];
-		tail[j] = 2 * xn - x[n - 2 - j];
+		if (padType === 'odd') {
+			head[j] = 2 * x0 - x[edge - j];
+			tail[j] = 2 * xn - x[n - 2 - j];
+		} else if (padType === 'even') {
+			head[j] = x[edge - j];
+			tail[j] = x[n - 2 - j];
+		} else {
+			head[j] = x0;
+			tail[j] = xn;
+		}
 	}
 	const tailOut = new Float64Array(edge);
 	const z = new Float64Array(Math.max(nz, 1));
@@ -175,13 +199,13 @@ export function filtfilt(b: ArrayLike<number>, a: ArrayLike<number>, x: Float64A
 	};
 
 	// Forward pass over [head, x, tail]; the head's outputs are not needed by the backward pass's kept part.
-	for (let k = 0; k < nz; k++) z[k] = zi[k] * head[0];
+	for (let k = 0; k < nz; k++) z[k] = zi[k] * (edge ? head[0] : x0);
 	for (let j = 0; j < edge; j++) step(head[j]);
 	for (let i = 0; i < n; i++) y[i] = step(x[i]);
 	for (let j = 0; j < edge; j++) tailOut[j] = step(tail[j]);
 
 	// Backward pass from the end of the extended forward output.
-	const last = tailOut[edge - 1];
+	const last = edge ? tailOut[edge - 1] : y[n - 1];
 	for (let k = 0; k < nz; k++) z[k] = zi[k] * last;
 	for (let j = edge - 1; j >= 0; j--) step(tailOut[j]);
 	for (let i = n - 1; i >= 0; i--) y[i] = step(y[i]);

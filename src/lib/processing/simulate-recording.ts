@@ -5,6 +5,13 @@ import { buildSessionModel, type SessionModel, type SessionSetupInput } from './
 
 /** A target path for one DOF: waypoints joined by minimum-jerk segments (Flash & Hogan 1985), holding before the first and after the last. */
 export type Waypoints = { t: number; value: number }[];
+/** A target path given as a smooth function of time: [position, velocity, acceleration] (SI). Lets a trial start and end in motion. */
+export type TargetPath = (t: number) => [number, number, number];
+
+/** Position, velocity and acceleration of a target at time t. */
+function targetAt(w: Waypoints | TargetPath, t: number): [number, number, number] {
+	return typeof w === 'function' ? w(t) : minJerk(w, t);
+}
 
 /** Minimum-jerk position, velocity and acceleration along waypoints at time t. */
 export function minJerk(w: Waypoints, t: number): [number, number, number] {
@@ -28,7 +35,7 @@ export interface RecordingSpec {
 	sampleHz: number;
 	duration: number;
 	/** Target per DOF name (SI: rad or m); DOFs without a target hold 0. */
-	targets: Record<string, Waypoints>;
+	targets: Record<string, Waypoints | TargetPath>;
 	/** Natural frequency (Hz) and damping ratio of the tracking error; default 4 Hz, 1 (critically damped). */
 	trackingHz?: number;
 	damping?: number;
@@ -50,7 +57,8 @@ export interface SimulatedRecording {
 }
 
 /**
- * Simulates the session model from rest at the targets' start under computed-torque tracking:
+ * Simulates the session model from the targets' start (position and velocity: at rest for waypoints, in motion
+ * for a TargetPath that moves at t = 0) under computed-torque tracking:
  * Q(t, q, q̇) = ID(q, q̇, q̈ref + Kp (qref − q) + Kd (q̇ref − q̇)), a smooth law whose value is saved as the
  * known joint moment. The motion itself comes from forward dynamics (M⁻¹(Q − c), RK4), so recovering Q from
  * the sampled angles exercises differentiation and inverse dynamics against the integrator.
@@ -60,7 +68,7 @@ export function simulateRecording(spec: RecordingSpec): SimulatedRecording {
 	const model = compileModel(built.model);
 	const n = model.n;
 	const gravity = built.setup.gravity;
-	const targets = built.dofs.map((d) => spec.targets[d.name] ?? [{ t: 0, value: 0 }]);
+	const targets: (Waypoints | TargetPath)[] = built.dofs.map((d) => spec.targets[d.name] ?? [{ t: 0, value: 0 }]);
 	for (const name of Object.keys(spec.targets))
 		if (!built.dofs.some((d) => d.name === name)) throw new Error(`target for "${name}", which is not a DOF of the model (${built.dofs.map((d) => d.name).join(', ')})`);
 	const wn = 2 * Math.PI * (spec.trackingHz ?? 4),
@@ -71,15 +79,16 @@ export function simulateRecording(spec: RecordingSpec): SimulatedRecording {
 	const a = new Float64Array(n);
 	const law = (t: number, q: ArrayLike<number>, qd: ArrayLike<number>, out: Float64Array) => {
 		for (let i = 0; i < n; i++) {
-			const [r, rd, rdd] = minJerk(targets[i], t);
+			const [r, rd, rdd] = targetAt(targets[i], t);
 			a[i] = rdd + Kp * (r - q[i]) + Kd * (rd - qd[i]);
 		}
 		out.set(inverseDynamics(model, q, qd, a, { gravity }, ws).Q);
 	};
 	const frames = Math.round(spec.duration * spec.sampleHz) + 1;
 	const times = Float64Array.from({ length: frames }, (_, k) => k / spec.sampleHz);
-	const q0 = targets.map((w) => minJerk(w, 0)[0]);
-	const sim = simulate(model, { q0, qd0: new Float64Array(n), times, torque: law, method: 'rk4', step: spec.step ?? 5e-4, gravity });
+	const q0 = targets.map((w) => targetAt(w, 0)[0]);
+	const qd0 = targets.map((w) => targetAt(w, 0)[1]);
+	const sim = simulate(model, { q0, qd0, times, torque: law, method: 'rk4', step: spec.step ?? 5e-4, gravity });
 	const Q = new Float64Array(frames * n);
 	const Qk = new Float64Array(n);
 	for (let k = 0; k < frames; k++) {

@@ -65,7 +65,7 @@ describe('runPipeline', () => {
 	});
 
 	it('defaults: 6 Hz, no gap filling', () => {
-		expect(runOptionsSchema.parse({})).toEqual({ cutoffHz: 6, fillGaps: false });
+		expect(runOptionsSchema.parse({})).toEqual({ cutoffHz: 6, endTreatment: 'prediction', fillGaps: false });
 	});
 });
 

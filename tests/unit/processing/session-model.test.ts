@@ -159,9 +159,10 @@ describe('moving base (prescribed px, py, pz, rx, ry, rz)', () => {
 
 	it('accelerating upward at a = g doubles every static moment (equivalence of gravity and base acceleration)', () => {
 		const pose = (n: string) => (n.endsWith('shoulder.flexion') ? 70 * deg : n.endsWith('elbow.flexion') ? 40 * deg : n.endsWith('abduction') ? 15 * deg : 0);
-		// py = y0 + ½ g t²: its second differences are exactly g, also at the ends
-		const rm = runPipeline(moving, makeRecording(moving, 60, 100, (n, t) => (n.endsWith('base.py') ? root[1] + 0.5 * G * t * t : n.endsWith('base.px') ? root[0] : n.endsWith('base.pz') ? root[2] : n.includes('.base.') ? 0 : pose(n))), { cutoffHz: null });
-		const rf = runPipeline(fixed, makeRecording(fixed, 60, 100, pose), { cutoffHz: null });
+		// py = y0 + ½ g t²: its second differences are exactly g, also at the ends — with the `cubic` end treatment,
+		// whose continuation without a filter is the cubic through the last four samples (exact for a quadratic)
+		const rm = runPipeline(moving, makeRecording(moving, 60, 100, (n, t) => (n.endsWith('base.py') ? root[1] + 0.5 * G * t * t : n.endsWith('base.px') ? root[0] : n.endsWith('base.pz') ? root[2] : n.includes('.base.') ? 0 : pose(n))), { cutoffHz: null, endTreatment: 'cubic' });
+		const rf = runPipeline(fixed, makeRecording(fixed, 60, 100, pose), { cutoffHz: null, endTreatment: 'cubic' });
 		expect(Math.abs(rf.dofs[0].moment[0])).toBeGreaterThan(1);
 		for (let j = 0; j < rf.dofs.length; j++) for (let k = 0; k < 60; k += 7) expect(rm.dofs[j].moment[k]).toBeCloseTo(2 * rf.dofs[j].moment[k], 8);
 	});
