@@ -1,4 +1,4 @@
-// Tailwind theme: Momentry's own palette ("fjord" blues, "lichen" greens, "amber" cautions) and Source Sans 3.
+// Tailwind theme: Momentry's own palette ("fjord" blues, "lichen" greens, "amber" cautions, "sand" edge zones) and Source Sans 3.
 import type { Config } from 'tailwindcss';
 
 export default {
@@ -54,6 +54,16 @@ export default {
 					500: '#c98a12',
 					700: '#8a5c08',
 					900: '#4d3305'
+				},
+				// Edge zones of plots (where results are not reliable): a quiet warm grey, apart from the amber of cautions.
+				// 200 fills the band, 500 hatches it; src/lib/components/review/palette.ts writes the two out for exported SVGs.
+				sand: {
+					50: '#f8f5ef',
+					100: '#eee7da',
+					200: '#ddd0b8',
+					300: '#c6b392',
+					500: '#8f7a55',
+					700: '#5e4f36'
 				},
 				// Errors and destructive actions.
 				brick: {

@@ -1,4 +1,5 @@
 // Shapes of result curves as the API and the pages hand them to plots (no server imports).
+import type { EdgeZoneView } from '../../processing/zone-exclusion';
 
 export interface PlotCurve {
 	name: string;
@@ -16,6 +17,8 @@ export interface PlotSeries {
 	samples: number;
 	curves: PlotCurve[];
 	bodyMassKg: number | null;
+	/** Where the run's results are not reliable near its ends (absent or computed: false: not known). */
+	edgeZone?: EdgeZoneView;
 }
 
 /** "right.shoulder.internalRotation" → "right shoulder internal rotation". */

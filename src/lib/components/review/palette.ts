@@ -14,3 +14,10 @@ export const SERIES_DASHES = ['', '7 4', '2 3', '8 3 2 3', '12 4', '8 3 2 3 2 3'
 export function seriesStyle(k: number): { colour: string; dash: string } {
 	return { colour: SERIES_COLOURS[k % SERIES_COLOURS.length], dash: SERIES_DASHES[k % SERIES_DASHES.length] };
 }
+
+/**
+ * The edge-zone band of every plot: hatched, over a light fill, in the `sand` scale of tailwind.config.ts (200 fills,
+ * 500 hatches; tests/unit/components/edge-zone-style.test.ts keeps them equal). Written out as colours, not classes,
+ * so that exported SVG and PNG files keep them. The hatching and the legend's words carry the meaning, not the hue.
+ */
+export const EDGE_ZONE_STYLE = { fill: '#ddd0b8', fillOpacity: 0.45, hatch: '#8f7a55', hatchOpacity: 0.8 } as const;

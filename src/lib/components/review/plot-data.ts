@@ -26,6 +26,13 @@ export interface PlotPanel {
 	lines: PlotLine[];
 }
 
+/** A shaded edge-zone band on the x axis (s): where a run's results are not reliable; `title` says how long and why. */
+export interface PlotZone {
+	from: number;
+	to: number;
+	title: string;
+}
+
 const QUANTITY_WORD: Record<string, string> = { moment: 'moment', moment_per_kg: 'moment', angle: 'angle', power: 'power', velocity: 'velocity' };
 
 

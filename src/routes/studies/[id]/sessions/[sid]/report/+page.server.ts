@@ -3,7 +3,8 @@ import { guardStudy } from '$lib/server/study-records';
 import { sessionIn } from '$lib/server/sessions';
 import { exportTrials } from '$lib/server/session-export';
 import { approvalOf } from '$lib/server/session-workflow';
-import { seriesOfRun } from '$lib/server/runs';
+import { includeEdgeZonesOf, seriesOfRun, summaryRows, summaryScope } from '$lib/server/runs';
+import { edgeZoneView } from '$lib/processing/zone-exclusion';
 import { Participant, Run } from '$lib/server/db/models';
 import type { PageServerLoad } from './$types';
 
@@ -11,9 +12,12 @@ export const load: PageServerLoad = async (event) => {
 	const { study } = await guardStudy(event, 'study.read', event.params.id);
 	const s = await sessionIn(study.id, event.params.sid);
 	const p = (await Participant.findByPk(s.participantId, { attributes: ['id', 'code'] }))!;
+	// peaks leave the edge zones out unless ?includeEdgeZones=1
+	const include = includeEdgeZonesOf(event.url.searchParams);
 	const trials = await Promise.all(
 		(await exportTrials(s.id)).map(async (t) => {
-			const row = t.run ? await Run.findByPk(t.run.id, { attributes: ['summary', 'model'] }) : null;
+			const row = t.run ? await Run.findByPk(t.run.id, { attributes: ['summary', 'model', 'edgeZone'] }) : null;
+			const edgeZone = edgeZoneView(row?.edgeZone);
 			const model = (row?.model ?? null) as { parameters?: { segments?: unknown[]; table?: { id: string; title: string; citation: string } } } | null;
 			return {
 				fileName: t.trial.file_name,
@@ -29,7 +33,9 @@ export const load: PageServerLoad = async (event) => {
 					inertia: { flexion: { value: number }; abduction: { value: number }; longitudinal: { value: number } };
 				}[],
 				table: model?.parameters?.table ?? null,
-				summary: (row?.summary ?? []) as { dof: string; quantity: string; peakPositive: number; peakPositiveTime: number; peakNegative: number; peakNegativeTime: number; unit: string }[],
+				summary: summaryRows(row?.summary, include),
+				summaryScope: summaryScope(edgeZone, include),
+				edgeZone: t.run ? edgeZone : null,
 				moments: t.run ? await seriesOfRun(t.run.id, { quantity: 'moment', points: 600 }) : null
 			};
 		})
@@ -39,6 +45,7 @@ export const load: PageServerLoad = async (event) => {
 		participant: { code: p.code },
 		session: { id: s.id, sessionOn: s.sessionOn, task: s.task, conditions: s.conditions, state: s.state },
 		approval: s.state === 'approved' ? await approvalOf(s.id) : null,
-		trials
+		trials,
+		includeEdgeZones: include
 	};
 };
