@@ -11,10 +11,11 @@ import { assertSessionUnlocked } from './session-lock';
 import { isUuid } from './studies';
 import { contextOf, guardStudy } from './study-records';
 import { may } from './access';
-import { runIn, SERIES_QUANTITIES, storedSeries, timeOfRun, type ResultQuantity } from './runs';
+import { includeEdgeZonesOf, runIn, SERIES_QUANTITIES, storedSeries, timeOfRun, type ResultQuantity } from './runs';
 import { sessionIn } from './sessions';
 import { reduceForPlot } from '../processing/reduce';
 import { cyclePeaks, eventProblems, meanSd, meanSdOf, normaliseCycles } from '../processing/cycles';
+import { reliableSpan, repetitionsInEdgeZone, type EdgeZoneView } from '../processing/zone-exclusion';
 
 // ---------------------------------------------------------------------------------------------- compact numbers
 
@@ -77,6 +78,8 @@ export interface ReviewRun {
 	t: number[];
 	curves: ReviewCurve[];
 	events: EventSet | null;
+	/** Where the run's results are not reliable near its ends (computed: false, all zero, for runs made before edge zones). */
+	edgeZone: EdgeZoneView;
 }
 
 export interface ReviewAnswer {
@@ -120,7 +123,8 @@ export async function reviewRun(row: DoneRunRow, quantity: ResultQuantity, maxPo
 		samples: time.length,
 		t: Array.from(time, roundTime),
 		curves,
-		events: await eventSetOfRun(row.id)
+		events: await eventSetOfRun(row.id),
+		edgeZone: s.edgeZone
 	};
 }
 
@@ -280,29 +284,51 @@ export interface CompareGroup {
 	cycles: number;
 	byEvents: number;
 	wholeTrials: number;
+	/** Repetitions left out because they overlap an edge zone (0 when edge zones are included). */
+	leftOut: number;
+	/** Whole trials normalised without their edge zones (0 when edge zones are included). */
+	trimmed: number;
 	dofs: { name: string; unit: string; positive: string | null; mean: (number | null)[]; sd: (number | null)[]; n: number; peakMax: { mean: number | null; sd: number | null }; peakMin: { mean: number | null; sd: number | null } }[];
 }
 
 /** Per DOF: its unit, sign rule and time-normalised cycles. */
 type Pooled = Map<string, { unit: string; positive: string | null; cycles: number[][] }>;
 
-/** Normalised cycles (events) or the whole trial of one run, per DOF. */
-async function runCycles(runId: string, quantity: CompareQuantity): Promise<{ basis: 'events' | 'whole'; count: number; byDof: Pooled }> {
+/**
+ * Normalised cycles (events) or the whole trial of one run, per DOF. Unless edge zones are included, a repetition
+ * that overlaps the run's edge zone is left out, and a whole trial is normalised from its first to its last sample
+ * outside the zone (nothing when the zone covers the trial).
+ */
+async function runCycles(runId: string, quantity: CompareQuantity, includeEdgeZones: boolean): Promise<{ basis: 'events' | 'whole'; count: number; leftOut: number; trimmed: boolean; byDof: Pooled }> {
 	const s = await storedSeries(runId, { quantity });
 	const events = await eventsOfRun(runId);
-	const byDof: Pooled = new Map();
-	let count = 0;
-	for (const c of s.curves) {
-		const cuts = events && events.length >= 2 ? events : [s.time[0], s.time[s.time.length - 1]];
-		const { cycles } = normaliseCycles(s.time, c.values, cuts);
-		count = cycles.length;
-		byDof.set(c.name, { unit: c.unit, positive: c.positive, cycles });
+	const byEvents = Boolean(events && events.length >= 2);
+	const zone = includeEdgeZones ? { startSamples: 0, endSamples: 0 } : s.edgeZone;
+	const span = reliableSpan(s.time, zone);
+	let cuts: number[] = [];
+	let keep: boolean[] = [];
+	let trimmed = false;
+	if (byEvents) {
+		cuts = events!;
+		keep = repetitionsInEdgeZone(s.time, cuts, zone).map((inZone) => !inZone);
+	} else if (span && span.to > span.from) {
+		cuts = [span.from, span.to];
+		keep = [true];
+		trimmed = zone.startSamples > 0 || zone.endSamples > 0;
+	} else {
+		keep = [false];
 	}
-	return { basis: events && events.length >= 2 ? 'events' : 'whole', count, byDof };
+	const byDof: Pooled = new Map();
+	for (const c of s.curves) {
+		const { cycles } = cuts.length >= 2 ? normaliseCycles(s.time, c.values, cuts) : { cycles: [] as number[][] };
+		byDof.set(c.name, { unit: c.unit, positive: c.positive, cycles: cycles.filter((_, k) => keep[k]) });
+	}
+	const count = keep.filter(Boolean).length;
+	return { basis: byEvents ? 'events' : 'whole', count, leftOut: keep.length - count, trimmed, byDof };
 }
 
 /** Pools per-DOF cycles into mean ± SD with the per-cycle peaks summarised. */
-function summarise(label: string, pooled: Pooled, counts: { runs: number; cycles: number; byEvents: number; wholeTrials: number }): CompareGroup {
+function summarise(label: string, pooled: Pooled, counts: Counts): CompareGroup {
 	const percent = Array.from({ length: 101 }, (_, j) => j);
 	return {
 		label,
@@ -335,14 +361,19 @@ function pool(into: Pooled, from: Pooled): void {
 }
 
 
+type Counts = { runs: number; cycles: number; byEvents: number; wholeTrials: number; leftOut: number; trimmed: number };
+const noCounts = (): Counts => ({ runs: 0, cycles: 0, byEvents: 0, wholeTrials: 0, leftOut: 0, trimmed: 0 });
+
 /** The cycles of these runs pooled per DOF; `counts` adds up the runs, cycles and how each run was normalised. */
-async function collect(rows: DoneRunRow[], quantity: CompareQuantity, counts: { runs: number; cycles: number; byEvents: number; wholeTrials: number }): Promise<Pooled> {
+async function collect(rows: DoneRunRow[], quantity: CompareQuantity, counts: Counts, includeEdgeZones: boolean): Promise<Pooled> {
 	const pooled: Pooled = new Map();
 	for (const r of rows) {
-		const rc = await runCycles(r.id, quantity);
+		const rc = await runCycles(r.id, quantity, includeEdgeZones);
 		pool(pooled, rc.byDof);
 		counts.runs++;
 		counts.cycles += rc.count;
+		counts.leftOut += rc.leftOut;
+		if (rc.trimmed) counts.trimmed++;
 		if (rc.basis === 'events') counts.byEvents++;
 		else counts.wholeTrials++;
 	}
@@ -373,12 +404,13 @@ export async function loadCompare(event: RequestEvent, rawStudyId: string) {
 		: [];
 	const groups: CompareGroup[] = [];
 	const allRuns = sp.get('runs') === 'all';
+	const includeEdgeZones = includeEdgeZonesOf(sp);
 	if (mode === 'sessions' && chosenP) {
 		for (const sid of ids(sp, 'session').filter((x) => sessions.some((s) => s.id === x))) {
 			const s = sessions.find((x) => x.id === sid)!;
 			const rows = (await doneRuns('s.id = :sid', { sid })).filter((r) => allRuns || r.latest);
-			const counts = { runs: 0, cycles: 0, byEvents: 0, wholeTrials: 0 };
-			const pooled = await collect(rows, quantity, counts);
+			const counts = noCounts();
+			const pooled = await collect(rows, quantity, counts, includeEdgeZones);
 			groups.push(summarise(`${chosenP.code}, session ${s.sessionOn}`, pooled, counts));
 		}
 	}
@@ -386,12 +418,13 @@ export async function loadCompare(event: RequestEvent, rawStudyId: string) {
 		const chosen = ids(sp, 'p').filter((x) => participants.some((p) => p.id === x));
 		// each participant contributes one curve (the mean of their cycles), so many repetitions do not outweigh others
 		const perParticipant: Pooled = new Map();
-		const counts = { runs: 0, cycles: 0, byEvents: 0, wholeTrials: 0 };
+		const counts = noCounts();
 		for (const pid of chosen) {
 			const rows = (await doneRuns('p.id = :pid AND s.study_id = :studyId', { pid, studyId: study.id })).filter((r) => allRuns || r.latest);
-			const own = await collect(rows, quantity, counts);
+			const own = await collect(rows, quantity, counts, includeEdgeZones);
 			const means: Pooled = new Map();
-			for (const [name, d] of own) means.set(name, { ...d, cycles: [meanSd(d.cycles).mean] });
+			// a participant all of whose repetitions were left out contributes no curve
+			for (const [name, d] of own) if (d.cycles.length) means.set(name, { ...d, cycles: [meanSd(d.cycles).mean] });
 			pool(perParticipant, means);
 		}
 		if (chosen.length) groups.push(summarise(`Group of ${chosen.length} participant${chosen.length === 1 ? '' : 's'}`, perParticipant, counts));
@@ -402,6 +435,7 @@ export async function loadCompare(event: RequestEvent, rawStudyId: string) {
 		quantity,
 		quantities: COMPARE_QUANTITIES,
 		allRuns,
+		includeEdgeZones,
 		participants: participants.map((p) => ({ id: p.id, code: p.code, doneRuns: Number(p.done) })),
 		participant: chosenP ? { id: chosenP.id, code: chosenP.code } : null,
 		sessions,
