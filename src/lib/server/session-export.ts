@@ -1,5 +1,6 @@
-// Export of an approved session as one ZIP streamed to the client: results.csv (long format, one row per value),
-// provenance.json, README.txt and the raw uploads byte for byte. Never any participant's personal data.
+// Export of an approved session as one ZIP streamed to the client: results.csv (long format, one row per value, each
+// marked in or out of its run's edge zone), provenance.json (with each run's edge zone and its peaks without the
+// edge zones), README.txt and the raw uploads byte for byte. Never any participant's personal data.
 import type { RequestEvent } from '@sveltejs/kit';
 import { error } from '@sveltejs/kit';
 import { Readable } from 'node:stream';
@@ -11,15 +12,16 @@ import { record } from './audit';
 import { readRaw } from './raw-store';
 import { contextOf, guardStudy } from './study-records';
 import { sessionIn } from './sessions';
-import { listRunsForSession, softwareVersion, type RunView } from './runs';
+import { listRunsForSession, softwareVersion, summaryRows, type RunView } from './runs';
 import { component, decodeFloat64 } from './results-codec';
 import { SEGMENT_TABLES, type SegmentTableId } from '../anthropometry/tables';
 import { approvalOf } from './session-workflow';
 import { eventsOfRun } from './review';
 import { normaliseCycles } from '../processing/cycles';
+import { EDGE_ZONE_NOT_COMPUTED, edgeZoneView, inEdgeZone, reliableSpan, timeInEdgeZone } from '../processing/zone-exclusion';
 
 /** Column names of results.csv, in order (documented in README.txt and the project README). */
-export const RESULT_COLUMNS = ['participant', 'trial', 'run', 'dof', 'quantity', 'unit', 'axis', 'repetition', 'x', 'value'] as const;
+export const RESULT_COLUMNS = ['participant', 'trial', 'run', 'dof', 'quantity', 'unit', 'axis', 'repetition', 'x', 'value', 'in_edge_zone'] as const;
 
 interface TrialRow {
 	id: string;
@@ -116,7 +118,11 @@ async function* resultsCsv(participantCode: string, trials: ExportTrial[]): Asyn
 		const saved = await eventsOfRun(run.id);
 		// events outside this run's time span (never saved that way, but the run could be re-made) are left out
 		const events = saved && saved.length >= 2 && saved[0] >= time[0] && saved[saved.length - 1] <= time[time.length - 1] ? saved : null;
-		const model = ((await Run.findByPk(run.id, { attributes: ['model'] }))?.model ?? {}) as { dofs?: { name: string }[] };
+		const stored = await Run.findByPk(run.id, { attributes: ['model', 'edgeZone'] });
+		const model = (stored?.model ?? {}) as { dofs?: { name: string }[] };
+		// a run made before edge zones has none: every row is outside it
+		const zone = edgeZoneView(stored?.edgeZone);
+		const span = reliableSpan(time, zone);
 		const order = new Map((model.dofs ?? []).map((d, i) => [d.name, i]));
 		meta.sort((a, b) => (order.get(a.name) ?? 1e9) - (order.get(b.name) ?? 1e9) || a.name.localeCompare(b.name) || QUANTITY_ORDER.indexOf(a.quantity) - QUANTITY_ORDER.indexOf(b.quantity));
 		const head = `${csvText(participantCode)},${csvText(trial.file_name)},${run.number},`;
@@ -132,7 +138,7 @@ async function* resultsCsv(participantCode: string, trials: ExportTrial[]): Asyn
 				const prefix = `${head}${csvText(s.name)},${quantity},${csvText(s.unit)},time_s,,`;
 				let block: string[] = [];
 				for (let i = 0; i < values.length && i < time.length; i++) {
-					block.push(`${prefix}${num(time[i])},${num(values[i])}\n`);
+					block.push(`${prefix}${num(time[i])},${num(values[i])},${inEdgeZone(i, time.length, zone)}\n`);
 					if (block.length === 5000) {
 						yield Buffer.from(block.join(''));
 						block = [];
@@ -144,7 +150,14 @@ async function* resultsCsv(participantCode: string, trials: ExportTrial[]): Asyn
 					const { percent, cycles } = normaliseCycles(time, values, events);
 					const cyclePrefix = `${head}${csvText(s.name)},${quantity},${csvText(s.unit)},cycle_percent,`;
 					const rows: string[] = [];
-					cycles.forEach((cycle, k) => percent.forEach((x, j) => rows.push(`${cyclePrefix}${k + 1},${num(x)},${num(cycle[j])}\n`)));
+					const last = percent.length - 1;
+					cycles.forEach((cycle, k) =>
+						percent.forEach((x, j) => {
+							// the time of this point, as normaliseCycles places it: in the zone when it lies before the first or after the last sample outside it
+							const t = j === last ? events[k + 1] : events[k] + ((events[k + 1] - events[k]) * j) / last;
+							rows.push(`${cyclePrefix}${k + 1},${num(x)},${num(cycle[j])},${timeInEdgeZone(t, span)}\n`);
+						})
+					);
 					if (rows.length) yield Buffer.from(rows.join(''));
 				}
 			}
@@ -170,14 +183,25 @@ results.csv — one row per value, long format. Columns:
   repetition   for cycle_percent rows, the repetition (1, 2, …); empty for time_s rows
   x            the time (s) or the percentage of the cycle
   value        the value (always a finite number: a run with any other value is never exported)
+  in_edge_zone true where the row lies in its run's edge zone, false elsewhere: the first and last stretch of
+               the trial, where filtered and differentiated angles, hence joint moments, are not reliable
+               (time_s rows: the sample is in the zone; cycle_percent rows: the point's time is in it or between a
+               sample in it and the first or last sample outside it). Each run's zone, in seconds and samples, is
+               in provenance.json (trials[].run.edgeZone). Runs made before edge zones were introduced have none
+               recorded: every row is false. Leave the true rows out of peaks and means unless you mean to
+               include the edge zones.
   Angles are positive in the sense each DOF states in provenance.json (model.dofs[].positive); a positive
   moment acts on the distal segment in that same sense.
   Of each trial only its newest finished run is exported; a run excluded after a consent withdrawal never is.
 
 provenance.json — software version, export time, the study (code, title, ethics reference), the participant's
   code, the session (date, task, conditions, model set-up), per trial its file name, SHA-256, size, sample rate and
-  frames, the exported run's options (filter and cutoffs, gravity), the scaled model parameters, the
-  anthropometric table with its full citation, and the session's approval (approver, time, meaning).
+  frames, the exported run's options (filter and cutoffs, gravity), its edge zone (edgeZone: startSeconds,
+  endSeconds, startSamples, endSamples, basis, endTreatment; computed false for runs made before edge zones),
+  its peaks, range and mean per DOF (peaks.outsideEdgeZone, the default: over the samples outside the edge
+  zone, as peaks.scope states; peaks.wholeTrial: every sample, edge zones included), the scaled model
+  parameters, the anthropometric table with its full citation, and the session's approval (approver, time,
+  meaning).
 
 raw/ — each trial's file exactly as uploaded; its SHA-256 is in provenance.json (trials[].rawSha256).
 
@@ -189,6 +213,13 @@ const filterOf = (o: RunView['options']) =>
 		? { kind: 'none' }
 		: { kind: 'zero-lag Butterworth low-pass (run forward and backward)', cutoffHz: o.cutoffHz, perChannelCutoffHz: o.perChannelCutoffHz ?? {} };
 
+/** A run's edge zone for provenance.json, with the end treatment from the run's options (null where none was recorded). */
+function edgeZoneOf(run: RunView, stored: unknown) {
+	const zone = edgeZoneView(stored);
+	const endTreatment = (run.options as { endTreatment?: unknown }).endTreatment ?? null;
+	return { ...zone, endTreatment, ...(zone.computed ? {} : { note: EDGE_ZONE_NOT_COMPUTED }) };
+}
+
 /** GET …/sessions/[sid]/export: guard, approved sessions only, audited, then the ZIP as a web stream. */
 export async function exportSession(event: RequestEvent, rawId: string, rawSid: string): Promise<Response> {
 	const { actor, study } = await guardStudy(event, 'session.export', rawId);
@@ -199,7 +230,8 @@ export async function exportSession(event: RequestEvent, rawId: string, rawSid: 
 	await refuseNonFinite(trials);
 	const approval = await approvalOf(s.id);
 	const exportedAt = new Date();
-	const runs = await Promise.all(trials.map(async (t) => (t.run ? ((await Run.findByPk(t.run.id, { attributes: ['model'] }))?.model ?? null) : null)));
+	const stored = await Promise.all(trials.map(async (t) => (t.run ? await Run.findByPk(t.run.id, { attributes: ['model', 'summary', 'edgeZone'] }) : null)));
+	const runs = stored.map((r) => r?.model ?? null);
 	const provenance = {
 		format: 'momentry-session-export/1',
 		software: { name: 'Momentry', version: softwareVersion() },
@@ -230,6 +262,14 @@ export async function exportSession(event: RequestEvent, rawId: string, rawSid: 
 					softwareVersion: t.run.softwareVersion,
 					finishedAt: t.run.finishedAt,
 					flagDecision: t.run.flagDecision,
+					edgeZone: edgeZoneOf(t.run, stored[i]?.edgeZone),
+					peaks: {
+						scope: edgeZoneView(stored[i]?.edgeZone).computed
+							? 'outsideEdgeZone (the default): over the samples outside the edge zone; wholeTrial: over every sample, edge zones included'
+							: `over every sample in both (edge zone ${EDGE_ZONE_NOT_COMPUTED})`,
+						outsideEdgeZone: summaryRows(stored[i]?.summary, false),
+						wholeTrial: summaryRows(stored[i]?.summary, true)
+					},
 					anthropometricTable: { id: tableId, ...(SEGMENT_TABLES[tableId] ?? {}) },
 					model
 				},
