@@ -156,6 +156,26 @@ describe('sessions', () => {
 		expect(await wrongSegment.text()).toContain('right.leg has no hand');
 	});
 
+	it('take a base rotation matrix typed to 6 decimals (stored orthonormal), and refuse one off by 1e-3 or a reflection with the numbers', async () => {
+		// Rz(30°): cos 30° = 0.866025…, sin 30° = 0.5 (rounded to 6 decimals as a person types them)
+		const typed = '0.866025, -0.5, 0; 0.5, 0.866025, 0; 0, 0, 1';
+		const ok = await createSession(ald001, app.cookies.technicianA, { 'base.right.leg': 'custom', 'cardan.right.leg': typed });
+		expect(ok.status).toBe(303);
+		const setup = (await app.sql.query(`SELECT setup FROM sessions WHERE id = $1`, [sessionIdOf(ok)])).rows[0].setup;
+		const R = setup.bases['right.leg'].rotationMatrix as number[][];
+		expect(R[0][0]).toBeCloseTo(Math.sqrt(3) / 2, 12);
+		expect(R[1][0]).toBeCloseTo(0.5, 12);
+		let off = 0;
+		for (let r = 0; r < 3; r++) for (let c = 0; c < 3; c++) off += (R[0][r] * R[0][c] + R[1][r] * R[1][c] + R[2][r] * R[2][c] - (r === c ? 1 : 0)) ** 2;
+		expect(Math.sqrt(off)).toBeLessThan(1e-12);
+		const wrong = await createSession(ald001, app.cookies.technicianA, { 'base.right.leg': 'custom', 'cardan.right.leg': '0.867025, -0.5, 0; 0.5, 0.866025, 0; 0, 0, 1' });
+		expect(wrong.status).toBe(400);
+		expect(await wrong.text()).toMatch(/is 0\.00\d+, more than the tolerance 1\.00e-5/);
+		const mirror = await createSession(ald001, app.cookies.technicianA, { 'base.right.leg': 'custom', 'cardan.right.leg': '0.866025, -0.5, 0; 0.5, 0.866025, 0; 0, 0, -1' });
+		expect(mirror.status).toBe(400);
+		expect(await mirror.text()).toMatch(/determinant is -1, negative: an improper rotation/);
+	});
+
 	it('cannot be created for a participant without valid consent', async () => {
 		const ald005 = (await app.sql.query(`SELECT id FROM participants WHERE code = 'ALD-005'`)).rows[0].id;
 		const res = await createSession(ald005, app.cookies.technicianA);

@@ -1,6 +1,6 @@
 // A session's engine model: scaled limbs, how each limb's base is held (fixed orientation or prescribed motion), and point-mass loads.
 import { z } from 'zod';
-import type { BodyInput, Mat3, ModelInput, Vec3 } from '../dynamics/model';
+import { rotationSchema, type BodyInput, type Mat3, type ModelInput, type Vec3 } from '../dynamics/model';
 import { LIMBS, scaleLimbs, type DofInfo, type Limb, type ParticipantBody, type ScaledModel } from '../anthropometry/scale';
 import { SEGMENT_TABLE_IDS, type SegmentTableId } from '../anthropometry/tables';
 import type { ExpectedChannel } from './recording';
@@ -18,18 +18,25 @@ export const fixedBaseSchema = z
 		 * upright: the scaled model as it is (thorax or pelvis upright, limb hanging at q = 0);
 		 * thigh-on-seat (legs only): the limb root turned +90° about the lab Z axis, so at q = 0 the thigh lies
 		 * horizontal, pointing anterior, and hip angles are measured from that seated posture;
-		 * custom: the limb root turned by R = Rx(a)·Ry(b)·Rz(c) from cardanXYZDeg [a, b, c] (degrees).
+		 * custom: the limb root turned by R = Rx(a)·Ry(b)·Rz(c) from cardanXYZDeg [a, b, c] (degrees), or by
+		 * rotationMatrix R (row-major, body → lab) as typed: within ‖RᵀR − I‖ ≤ 1e-5 it is replaced by the nearest
+		 * rotation, else refused with the numbers (src/lib/dynamics/rotation.ts).
 		 */
 		orientation: z.enum(['upright', 'thigh-on-seat', 'custom'], { error: 'orientation must be "upright", "thigh-on-seat" or "custom"' }),
 		cardanXYZDeg: vec3.optional(),
+		rotationMatrix: rotationSchema.optional(),
 		/** Lab position of the limb's proximal joint centre (hip or shoulder), m; default the scaled model's. */
 		positionM: vec3.optional()
 	})
 	.superRefine((b, ctx) => {
-		if (b.orientation === 'custom' && !b.cardanXYZDeg)
-			ctx.addIssue({ code: 'custom', path: ['cardanXYZDeg'], message: 'a custom orientation needs cardanXYZDeg: three angles (°), X, then Y, then Z' });
+		if (b.orientation === 'custom' && !b.cardanXYZDeg && !b.rotationMatrix)
+			ctx.addIssue({ code: 'custom', path: ['cardanXYZDeg'], message: 'a custom orientation needs cardanXYZDeg: three angles (°), X, then Y, then Z (or rotationMatrix: the 3×3 rotation, row by row)' });
+		if (b.cardanXYZDeg && b.rotationMatrix)
+			ctx.addIssue({ code: 'custom', path: ['rotationMatrix'], message: 'give the orientation once: cardanXYZDeg or rotationMatrix, not both' });
 		if (b.orientation !== 'custom' && b.cardanXYZDeg)
 			ctx.addIssue({ code: 'custom', path: ['cardanXYZDeg'], message: `cardanXYZDeg is only used with orientation "custom" (this base is "${b.orientation}")` });
+		if (b.orientation !== 'custom' && b.rotationMatrix)
+			ctx.addIssue({ code: 'custom', path: ['rotationMatrix'], message: `rotationMatrix is only used with orientation "custom" (this base is "${b.orientation}")` });
 	});
 
 /** The limb's base follows the recording's `<limb>.base.px … rz` columns (prescribed motion). */
@@ -165,6 +172,8 @@ export function fixedBaseRotation(base: z.infer<typeof fixedBaseSchema>): Mat3 |
 	if (base.orientation === 'upright') return null;
 	// hip flexion is +Z on both sides: +90° about lab Z turns the thigh's −Y onto lab +X (anterior)
 	if (base.orientation === 'thigh-on-seat') return clean(rotZ(Math.PI / 2));
+	// the schema has already made a typed matrix orthonormal (nearest rotation)
+	if (base.rotationMatrix) return clean(base.rotationMatrix);
 	const [a, b, c] = base.cardanXYZDeg!;
 	return clean(cardanXYZ(a * rad, b * rad, c * rad));
 }
@@ -297,6 +306,8 @@ export function buildSessionModel(body: ParticipantBody, setupInput: SessionSetu
 			const where = base?.positionM ? ` with its proximal joint centre at [${base.positionM.join(', ')}] m` : '';
 			if (o === 'thigh-on-seat')
 				return `${limb}: base fixed, thigh on the seat (limb root turned 90° about lab Z; hip angles are measured from the seated posture)${where}. The seat's support of the thigh is not modelled: hip moments include holding the thigh's own weight; knee and ankle moments are unaffected.`;
+			if (o === 'custom' && base?.rotationMatrix)
+				return `${limb}: base fixed, turned by the rotation matrix ${JSON.stringify(base.rotationMatrix)} (body → lab, as typed made orthonormal)${where}.`;
 			if (o === 'custom') return `${limb}: base fixed, turned by Cardan X-Y-Z angles [${base?.cardanXYZDeg?.join(', ')}]°${where}.`;
 			return `${limb}: base fixed upright${where}.`;
 		}

@@ -52,6 +52,15 @@ function triple(text: string): [number, number, number] | null {
 	return v.every(Number.isFinite) ? (v as [number, number, number]) : null;
 }
 
+/** Nine finite numbers, row by row ("r11, r12, r13; r21, …"), as a 3×3 matrix, or null. */
+function matrix9(text: string): [[number, number, number], [number, number, number], [number, number, number]] | null {
+	const parts = text.split(/[,;\s]+/).filter(Boolean);
+	if (parts.length !== 9) return null;
+	const v = parts.map(Number);
+	if (!v.every(Number.isFinite)) return null;
+	return [v.slice(0, 3), v.slice(3, 6), v.slice(6, 9)] as [[number, number, number], [number, number, number], [number, number, number]];
+}
+
 /**
  * Reads the session form into meta fields and a SessionSetup; errors are keyed by the form's own field names
  * (sessionOn, limbs, base.right.arm, cardan.right.arm, load.0.massKg …) so each shows beside its input.
@@ -74,9 +83,13 @@ export function parseSessionForm(form: FormData): { meta: SessionMeta; setup: Se
 		}
 		if (choice === 'moving') bases[limb] = { kind: 'moving' };
 		else if (choice === 'custom') {
-			const c = triple(str(form, `cardan.${limb}`));
-			if (!c) errors[`cardan.${limb}`] = 'Enter three angles (°), X then Y then Z (e.g. "0, 0, 90").';
-			else bases[limb] = { kind: 'fixed', orientation: 'custom', cardanXYZDeg: c };
+			// three Cardan angles, or the nine entries of the rotation matrix (body → lab) row by row
+			const text = str(form, `cardan.${limb}`);
+			const c = triple(text);
+			const m = c ? null : matrix9(text);
+			if (c) bases[limb] = { kind: 'fixed', orientation: 'custom', cardanXYZDeg: c };
+			else if (m) bases[limb] = { kind: 'fixed', orientation: 'custom', rotationMatrix: m };
+			else errors[`cardan.${limb}`] = 'Enter three angles (°), X then Y then Z (e.g. "0, 0, 90"), or the nine entries of the rotation matrix row by row.';
 		} else bases[limb] = { kind: 'fixed', orientation: choice };
 	}
 
@@ -108,7 +121,7 @@ export function parseSessionForm(form: FormData): { meta: SessionMeta; setup: Se
 		for (const i of s.error.issues) {
 			const [head, a, b] = i.path as (string | number)[];
 			let key = String(head ?? 'form');
-			if (head === 'bases' && a !== undefined) key = b === 'cardanXYZDeg' ? `cardan.${a}` : `base.${a}`;
+			if (head === 'bases' && a !== undefined) key = b === 'cardanXYZDeg' || b === 'rotationMatrix' ? `cardan.${a}` : `base.${a}`;
 			if (head === 'loads' && typeof a === 'number') key = `load.${loadRow[a]}.${b === 'pointM' ? 'point' : String(b ?? 'massKg')}`;
 			// sentence case, except a message that opens with a name such as right.leg
 			const msg = /^[a-z]+ /.test(i.message) ? i.message.charAt(0).toUpperCase() + i.message.slice(1) : i.message;
@@ -134,6 +147,7 @@ export function formValuesOf(meta: Partial<SessionMeta>, setup: SessionSetup | n
 		const b = setup.bases[limb];
 		v[`base.${limb}`] = !b ? 'upright' : b.kind === 'moving' ? 'moving' : b.orientation;
 		if (b?.kind === 'fixed' && b.cardanXYZDeg) v[`cardan.${limb}`] = b.cardanXYZDeg.join(', ');
+		if (b?.kind === 'fixed' && b.rotationMatrix) v[`cardan.${limb}`] = b.rotationMatrix.map((row) => row.join(', ')).join('; ');
 	}
 	setup.loads.forEach((l, i) => {
 		v[`load.${i}.limb`] = l.limb;
