@@ -163,8 +163,12 @@ describe('sessions', () => {
 		expect(ok.status).toBe(303);
 		const setup = (await app.sql.query(`SELECT setup FROM sessions WHERE id = $1`, [sessionIdOf(ok)])).rows[0].setup;
 		const R = setup.bases['right.leg'].rotationMatrix as number[][];
-		expect(R[0][0]).toBeCloseTo(Math.sqrt(3) / 2, 12);
-		expect(R[1][0]).toBeCloseTo(0.5, 12);
+		// M = [[a, −b], [b, a]] ⊕ 1 is √(a² + b²) times a rotation: its nearest rotation (polar factor) is M / √(a² + b²)
+		const norm = Math.hypot(0.866025, 0.5);
+		expect(R[0][0]).toBeCloseTo(0.866025 / norm, 12);
+		expect(R[1][0]).toBeCloseTo(0.5 / norm, 12);
+		expect(R[0][1]).toBeCloseTo(-0.5 / norm, 12);
+		expect(R[2][2]).toBeCloseTo(1, 12);
 		let off = 0;
 		for (let r = 0; r < 3; r++) for (let c = 0; c < 3; c++) off += (R[0][r] * R[0][c] + R[1][r] * R[1][c] + R[2][r] * R[2][c] - (r === c ? 1 : 0)) ** 2;
 		expect(Math.sqrt(off)).toBeLessThan(1e-12);
