@@ -18,6 +18,11 @@ Contents:
     scipy.signal.filtfilt(b, a, x) outputs (default padtype 'odd', padlen 3*max(len(a), len(b))).
   * residual: a sum of sinusoids of at most 3.6 Hz plus white noise of known sigma, sampled at 100 Hz, with
     the residual R(fc) = sqrt(mean((x - filtfilt(x))^2)) at cutoffs 1, 1.5, ..., 25 Hz.
+  * padding (end treatments, src/lib/processing/edges.ts): for the 200 Hz signals, scipy.signal.filtfilt with
+    padtype 'odd', 'even', 'constant' and padlen = the settling length L, and padtype None; L itself from the
+    pole radius |numpy.roots(a)| (L = ceil(ln 1e-8 / ln r)); and least-squares polynomial continuations of the
+    first and last samples by numpy.polyfit / numpy.polyval (cubic over round(fs/fc) samples, line over
+    round(fs/(3 fc)) samples, evaluated 1..L samples beyond the end).
 """
 
 import argparse
@@ -93,6 +98,32 @@ def main():
         _, b, a = design(fc, fs, True)
         residuals.append(float(np.sqrt(np.mean((x - ss.filtfilt(b, a, x)) ** 2))))
 
+    padding = {"settling": [], "filtfilt": [], "polynomial": []}
+    for pfs in (100, 200, 1000):
+        for pfc in (3, 6, 12):
+            _, pb, pa = design(pfc, pfs, True)
+            r = float(np.max(np.abs(np.roots(pa))))
+            padding["settling"].append({"sampleHz": pfs, "cutoffHz": pfc, "poleRadius": r,
+                                        "samples": int(math.ceil(math.log(1e-8) / math.log(r)))})
+    for sig in (g for g in signals if g["sampleHz"] == 200):
+        xs = np.array(sig["x"])
+        pfs, pfc = 200, 6
+        _, pb, pa = design(pfc, pfs, True)
+        L = int(math.ceil(math.log(1e-8) / math.log(float(np.max(np.abs(np.roots(pa)))))))
+        L = min(L, len(xs) - 1)
+        for padtype, padlen in (("odd", L), ("even", L), ("constant", L), (None, 0), ("odd", 3)):
+            y = ss.filtfilt(pb, pa, xs, padtype=padtype, padlen=padlen if padtype else None)
+            padding["filtfilt"].append({"name": sig["name"], "sampleHz": pfs, "cutoffHz": pfc, "padType": padtype,
+                                        "padLen": padlen, "y": y.tolist()})
+        for degree, window in ((3, round(pfs / pfc)), (1, round(pfs / (3 * pfc)))):
+            ends = {}
+            for end, seg in (("start", xs[:window]), ("end", xs[::-1][:window])):
+                j = np.arange(window)  # distance from the end sample, inward
+                c = np.polyfit(j, seg, degree)
+                ends[end] = np.polyval(c, -np.arange(1, L + 1)).tolist()  # 1..L samples beyond the end
+            padding["polynomial"].append({"name": sig["name"], "sampleHz": pfs, "cutoffHz": pfc, "degree": degree,
+                                          "window": window, "samples": L, **ends})
+
     fixture = {
         "source": f"scipy {scipy.__version__}, numpy {np.__version__}: tests/reference/scipy_filter.py",
         "designs": designs,
@@ -101,6 +132,7 @@ def main():
             "sampleHz": fs, "sigma": sigma, "noiseRms": float(np.sqrt(np.mean(noise ** 2))),
             "highestSignalHz": 3.6, "x": x.tolist(), "cutoffs": cutoffs.tolist(), "residuals": residuals,
         },
+        "padding": padding,
     }
     os.makedirs(os.path.dirname(os.path.abspath(args.out)), exist_ok=True)
     with open(args.out, "w") as f:

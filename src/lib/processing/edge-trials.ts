@@ -1,56 +1,10 @@
 // Trials that are in motion at their first and last samples (an arm and a leg), for measuring what the ends of a recording do to the results.
 import { demoParticipant, type DemoParticipantsFile } from './demo-recordings';
-import { minJerk, type RecordingSpec, type TargetPath } from './simulate-recording';
+import { seededGaussian, smoothRandom } from './edges';
+import type { PipelineResult } from './pipeline';
+import { minJerk, type RecordingSpec, type SimulatedRecording, type TargetPath } from './simulate-recording';
 
 const deg = Math.PI / 180;
-
-/** Uniform numbers in [0, 1) from a seed (mulberry32, a small well-known 32-bit generator), so trials and noise repeat exactly. */
-export function seededUniform(seed: number): () => number {
-	let a = seed >>> 0;
-	return () => {
-		a = (a + 0x6d2b79f5) >>> 0;
-		let t = Math.imul(a ^ (a >>> 15), 1 | a);
-		t = (t + Math.imul(t ^ (t >>> 7), 61 | t)) ^ t;
-		return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-	};
-}
-
-/** Standard normal numbers from a seed (Box–Muller transform of seededUniform). */
-export function seededGaussian(seed: number): () => number {
-	const u = seededUniform(seed);
-	return () => Math.sqrt(-2 * Math.log(1 - u())) * Math.cos(2 * Math.PI * u());
-}
-
-/**
- * A smooth random path: Σ w_k exp(−(t − c_k)² / (2 s²)), Gaussian bumps of width s every `spacing` seconds from
- * before `from` to after `to`, weights w_k normal with standard deviation `ampDeg` (°), with exact derivatives.
- * Its spectrum falls as exp(−(2π f s)²/2): smooth like a movement, yet neither a polynomial nor a finite sum of
- * sinusoids, so no end treatment continues it exactly.
- */
-export function smoothRandom(seed: number, ampDeg: number, s: number, spacing: number, from: number, to: number): TargetPath {
-	const g = seededGaussian(seed);
-	const centres: number[] = [],
-		weights: number[] = [];
-	for (let c = from - 4 * s; c <= to + 4 * s; c += spacing) {
-		centres.push(c);
-		weights.push(ampDeg * deg * g());
-	}
-	const s2 = s * s;
-	return (t) => {
-		let q = 0,
-			v = 0,
-			a = 0;
-		for (let k = 0; k < centres.length; k++) {
-			const d = t - centres[k];
-			if (Math.abs(d) > 9 * s) continue;
-			const e = weights[k] * Math.exp(-(d * d) / (2 * s2));
-			q += e;
-			v -= (d / s2) * e;
-			a += ((d * d) / (s2 * s2) - 1 / s2) * e;
-		}
-		return [q, v, a];
-	};
-}
 
 /**
  * A movement that is under way when the recording starts and still under way when it stops: minimum-jerk strokes
@@ -61,7 +15,7 @@ export function smoothRandom(seed: number, ampDeg: number, s: number, spacing: n
  */
 export function movement(waypoints: [number, number][], seed: number, ampDeg: number, duration: number): TargetPath {
 	const w = waypoints.map(([t, v]) => ({ t, value: v * deg }));
-	const r = smoothRandom(seed, ampDeg, 0.15, 0.1, -1, duration + 1);
+	const r = smoothRandom(seed, ampDeg * deg, 0.15, 0.1, -1, duration + 1);
 	return (t) => {
 		const [q, v, a] = minJerk(w, t);
 		const [rq, rv, ra] = r(t);
@@ -72,7 +26,7 @@ export function movement(waypoints: [number, number][], seed: number, ampDeg: nu
 /**
  * A right leg swinging freely from an upright pelvis (KNE-001, Dempster via Winter 2009), 4 s at 200 Hz, moving at
  * both ends: hip, knee and ankle swings of 1.7–2 s per stroke (hip −5…45°, knee 10…70°), smaller out-of-plane
- * motions, each with a sinusoid of 0.6–1.1 Hz on top. Content mostly below 2 Hz, well below the default 6 Hz cutoff.
+ * motions, each with a smooth random part of 2–5° bumps on top. Content mostly below 3 Hz, under the default 6 Hz cutoff.
  */
 export function movingLegSpec(file: DemoParticipantsFile, duration = 4): RecordingSpec {
 	const { body, table } = demoParticipant(file, 'KNEE-60', 'KNE-001');
@@ -96,7 +50,7 @@ export function movingLegSpec(file: DemoParticipantsFile, duration = 4): Recordi
 /**
  * A right arm (ALD-001, de Leva 1996) moving a 2 kg box held near the hand's centre of mass, thorax upright, 4 s at
  * 200 Hz, moving at both ends: shoulder flexion 30…110° and elbow 20…90° in strokes of 1.6–1.9 s, smaller forearm
- * and wrist motions, each with a sinusoid of 0.6–1.1 Hz on top.
+ * and wrist motions, each with a smooth random part of 2–5° bumps on top.
  */
 export function movingArmSpec(file: DemoParticipantsFile, duration = 4): RecordingSpec {
 	const { body, table } = demoParticipant(file, 'SHELF-REACH', 'ALD-001');
@@ -122,4 +76,67 @@ export function movingArmSpec(file: DemoParticipantsFile, duration = 4): Recordi
 			'right.wrist.ulnarDeviation': movement([[-0.2, 2], [2.0, 10], [4.3, 0]], 113, 2, duration)
 		}
 	};
+}
+
+/** The simulated trial with Gaussian noise of noiseDeg (°) added to every angle (seeded per channel), as a marker-based recording would carry. */
+export function withNoise(sim: SimulatedRecording, noiseDeg: number, seed: number): SimulatedRecording {
+	const n = sim.built.dofs.length,
+		F = sim.time.length;
+	const q = Float64Array.from(sim.q);
+	sim.built.dofs.forEach((d, j) => {
+		if (d.kind !== 'angle' || noiseDeg === 0) return;
+		const g = seededGaussian(seed * 1000 + j);
+		for (let k = 0; k < F; k++) q[k * n + j] += noiseDeg * deg * g();
+	});
+	return { ...sim, q };
+}
+
+/** Largest moment errors against the simulation's known torques, as N·m (every reported DOF, every sample in each stretch). */
+export interface MomentErrors {
+	/** Largest |known moment| over the trial. */
+	peak: number;
+	/** Samples at least middleSeconds from both ends. */
+	middle: number;
+	whole: number;
+	/** Outside the result's edge zone. */
+	outsideZone: number;
+	/** Inside the edge zone (0 when it is empty). */
+	insideZone: number;
+	/** Root mean square over the middle, and over the flanks: outside the edge zone but closer than middleSeconds to an end. */
+	middleRms: number;
+	flankRms: number;
+}
+
+export function momentErrors(sim: SimulatedRecording, r: PipelineResult, middleSeconds = 0.5): MomentErrors {
+	const n = sim.built.dofs.length,
+		F = sim.time.length;
+	const m = Math.round(middleSeconds * r.sampleHz);
+	const z0 = r.edgeZone.startSamples,
+		z1 = F - r.edgeZone.endSamples;
+	const e = { peak: 0, middle: 0, whole: 0, outsideZone: 0, insideZone: 0, middleRms: 0, flankRms: 0 };
+	let middleCount = 0,
+		flankCount = 0;
+	const col = new Map(sim.built.dofs.map((d, j) => [d.name, j]));
+	for (const d of r.dofs) {
+		const j = col.get(d.name)!;
+		for (let k = 0; k < F; k++) {
+			const known = sim.Q[k * n + j];
+			const err = Math.abs(d.moment[k] - known);
+			e.peak = Math.max(e.peak, Math.abs(known));
+			e.whole = Math.max(e.whole, err);
+			if (k >= m && k < F - m) {
+				e.middle = Math.max(e.middle, err);
+				e.middleRms += err * err;
+				middleCount++;
+			} else if (k >= z0 && k < z1) {
+				e.flankRms += err * err;
+				flankCount++;
+			}
+			if (k >= z0 && k < z1) e.outsideZone = Math.max(e.outsideZone, err);
+			else e.insideZone = Math.max(e.insideZone, err);
+		}
+	}
+	e.middleRms = Math.sqrt(e.middleRms / middleCount);
+	e.flankRms = flankCount ? Math.sqrt(e.flankRms / flankCount) : 0;
+	return e;
 }
