@@ -141,11 +141,11 @@ function continueEnd(x: Float64Array, fromStart: boolean, treatment: EndTreatmen
 			const d = new Float64Array(w);
 			for (let i = 0; i < w; i++) d[i] = at(i);
 			d.sort();
-			const mean = w % 2 ? d[(w - 1) / 2] : (d[w / 2 - 1] + d[w / 2]) / 2;
+			const centre = w % 2 ? d[(w - 1) / 2] : (d[w / 2 - 1] + d[w / 2]) / 2;
 			let scale = 0;
-			for (let i = 0; i < w; i++) scale = Math.max(scale, Math.abs(at(i) - mean));
+			for (let i = 0; i < w; i++) scale = Math.max(scale, Math.abs(at(i) - centre));
 			if (!(scale > 0) || !Number.isFinite(scale)) scale = 1;
-			for (let i = 0; i < w; i++) d[i] = (at(w - 1 - i) - mean) / scale;
+			for (let i = 0; i < w; i++) d[i] = (at(w - 1 - i) - centre) / scale;
 			const a = burgCoefficients(d, p);
 			const hist = new Float64Array(p + L); // hist[p − 1] is the end sample, predictions follow
 			for (let i = 0; i < p; i++) hist[i] = d[w - p + i];
@@ -153,7 +153,7 @@ function continueEnd(x: Float64Array, fromStart: boolean, treatment: EndTreatmen
 				let v = 0;
 				for (let i = 1; i <= p; i++) v -= a[i] * hist[p - 1 + j + 1 - i];
 				hist[p + j] = v;
-				out[j] = v * scale + mean;
+				out[j] = v * scale + centre;
 			}
 			return;
 		}
