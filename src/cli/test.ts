@@ -39,18 +39,20 @@ function readJson(file: string): Record<string, unknown> | null {
 }
 
 const CHROMIUM = '/usr/bin/chromium';
+/** Debian's packages of the reference libraries the fixture scripts in tests/reference use. */
+const REFERENCE_PACKAGES = ['python3-sympy', 'python3-scipy', 'python3-statsmodels'];
 
 /**
  * What a fresh machine lacks for the tests, installed as root: Debian's Chromium for the end-to-end tests, and
- * python3's sympy and scipy that regenerate the reference fixtures (without them the committed fixtures are used).
+ * python3's sympy, scipy and statsmodels that regenerate the reference fixtures (without them the committed fixtures are used).
  * Returns a problem to count as a failure, or null.
  */
 function ensureTestPackages(e2e: boolean): string | null {
-	const references = ['python3', '/usr/bin/python3'].some((py) => spawnSync(py, ['-c', 'import sympy, scipy'], { stdio: 'ignore' }).status === 0);
-	const need = [...(e2e && !fs.existsSync(CHROMIUM) ? ['chromium'] : []), ...(references ? [] : ['python3-sympy', 'python3-scipy'])];
+	const references = ['python3', '/usr/bin/python3'].some((py) => spawnSync(py, ['-c', 'import sympy, scipy, statsmodels'], { stdio: 'ignore' }).status === 0);
+	const need = [...(e2e && !fs.existsSync(CHROMIUM) ? ['chromium'] : []), ...(references ? [] : REFERENCE_PACKAGES)];
 	if (!need.length) return null;
 	if (aptInstall(need, log)) return null;
-	if (!references) log(`sympy/scipy not found: the committed reference fixtures are used (install them with: sudo sh -c '${aptCommand(['python3-sympy', 'python3-scipy'])}')`);
+	if (!references) log(`sympy/scipy/statsmodels not found: the committed reference fixtures are used (install them with: sudo sh -c '${aptCommand(REFERENCE_PACKAGES)}')`);
 	return e2e && !fs.existsSync(CHROMIUM) ? `Chromium is not at ${CHROMIUM}; install it with: sudo sh -c '${aptCommand(['chromium'])}'` : null;
 }
 
