@@ -799,7 +799,9 @@ export async function processRun(
 			throw err;
 		}
 		const options = (() => {
-			const r = runOptionsSchema.safeParse(claimed[0].options);
+			// a run stored before end treatments existed was made with scipy's 9-sample reflection: a retry keeps that
+			const stored = claimed[0].options;
+			const r = runOptionsSchema.safeParse(stored && typeof stored === 'object' && !('endTreatment' in stored) ? { ...stored, endTreatment: 'reflect-9' } : stored);
 			if (!r.success) throw new RunFailure(`The run's options are not valid: ${r.error.issues.map((i) => `${i.path.join('.')}: ${i.message}`).join('; ')}`);
 			return r.data;
 		})();
