@@ -26,6 +26,15 @@ export const runOptionsSchema = z.object({
 	gravity: z.tuple([finite, finite, finite]).optional()
 });
 export type RunOptions = z.infer<typeof runOptionsSchema>;
+
+/**
+ * Options read back from a stored run. A run stored before end treatments existed was made with scipy's 9-sample
+ * reflection and one-sided end differences, so a retry of it keeps that rather than taking today's default.
+ */
+export function storedRunOptions(stored: unknown) {
+	const legacy = stored !== null && typeof stored === 'object' && !('endTreatment' in stored);
+	return runOptionsSchema.safeParse(legacy ? { ...stored, endTreatment: 'reflect-9' } : stored);
+}
 export type RunOptionsInput = z.input<typeof runOptionsSchema>;
 
 export const PIPELINE_STAGES = ['filter', 'differentiate', 'dynamics', 'summary'] as const;

@@ -25,7 +25,7 @@ import { reduceForPlot } from '../processing/reduce';
 import { assertStorable, computeRun, type ComputedRun, type SeriesRow } from './run-compute';
 import type { RunThreadInput, RunThreadMessage } from './jobs/run-thread-types';
 import { buildSessionModel, sessionSetupSchema, type SessionSetup } from '../processing/session-model';
-import { runOptionsSchema, type RunOptions, type SummaryRow, type SummaryStats } from '../processing/pipeline';
+import { runOptionsSchema, storedRunOptions, type RunOptions, type SummaryRow, type SummaryStats } from '../processing/pipeline';
 import { edgeZoneView, type EdgeZoneView } from '../processing/zone-exclusion';
 import { parseRecording, columnMappingSchema, type Recording, type Problem } from '../processing/recording';
 import { residualAnalysis } from '../processing/signal';
@@ -243,6 +243,7 @@ export function runOptionsFromForm(form: FormData): RunOptions {
 		cutoffHz: filter === 'none' ? null : cutoff,
 		...(filter === 'lowpass' && Object.keys(perChannel).length ? { perChannelCutoffHz: perChannel } : {}),
 		fillGaps: form.get('fillGaps') === 'on',
+		...(form.get('endTreatment') ? { endTreatment: String(form.get('endTreatment')) } : {}),
 		...(gravity ? { gravity } : {})
 	});
 }
@@ -799,9 +800,7 @@ export async function processRun(
 			throw err;
 		}
 		const options = (() => {
-			// a run stored before end treatments existed was made with scipy's 9-sample reflection: a retry keeps that
-			const stored = claimed[0].options;
-			const r = runOptionsSchema.safeParse(stored && typeof stored === 'object' && !('endTreatment' in stored) ? { ...stored, endTreatment: 'reflect-9' } : stored);
+			const r = storedRunOptions(claimed[0].options);
 			if (!r.success) throw new RunFailure(`The run's options are not valid: ${r.error.issues.map((i) => `${i.path.join('.')}: ${i.message}`).join('; ')}`);
 			return r.data;
 		})();
