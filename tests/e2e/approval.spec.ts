@@ -119,7 +119,7 @@ test('researcher submits, the PI signs from the e-mailed link, the export holds 
 	expect(trial.run.rawSha256).toBe(trial.rawSha256);
 
 	const csv = fs.readFileSync(path.join(dir, 'x', 'results.csv'), 'utf8').trimEnd().split('\n');
-	expect(csv[0]).toBe('participant,trial,run,dof,quantity,unit,axis,repetition,x,value');
+	expect(csv[0]).toBe('participant,trial,run,dof,quantity,unit,axis,repetition,x,value,in_edge_zone');
 	const moments = csv.filter((l) => /^KNE-001,[^,]+,1,right\.knee\.[^,]+,moment,N·m,time_s,,/.test(l));
 	expect(moments.length).toBe(trial.frames);
 	const first = moments[0].split(',');

@@ -91,7 +91,7 @@ describe('session export', () => {
 
 		// results.csv: header, one row per frame and series component, values equal to the stored float64 series
 		const csv = fs.readFileSync(path.join(out, 'x', 'results.csv'), 'utf8').trimEnd().split('\n');
-		expect(csv[0]).toBe('participant,trial,run,dof,quantity,unit,axis,repetition,x,value');
+		expect(csv[0]).toBe('participant,trial,run,dof,quantity,unit,axis,repetition,x,value,in_edge_zone');
 		const series = (await app.sql.query(`SELECT name, quantity, components, data FROM run_series WHERE run_id = $1`, [app.ids.runA])).rows;
 		const time = decodeFloat64(series.find((r) => r.quantity === 'time')!.data);
 		const comps = series.filter((r) => r.quantity !== 'time').reduce((a, r) => a + r.components, 0);
@@ -108,6 +108,26 @@ describe('session export', () => {
 			expect(Number(f[9])).toBe(stored[i]);
 			expect(f.slice(0, 3)).toEqual(['ALD-001', trial.file_name, '1']);
 		}
+
+		// the edge zone: provenance.json gives the run's stored zone; in_edge_zone is true on exactly its samples
+		const zone = (await app.sql.query(`SELECT edge_zone FROM runs WHERE id = $1`, [app.ids.runA])).rows[0].edge_zone;
+		expect(zone.startSamples + zone.endSamples).toBeGreaterThan(0);
+		expect(prov.trials[0].run.edgeZone).toMatchObject({ computed: true, ...zone, endTreatment: prov.trials[0].run.options.endTreatment ?? null });
+		const flags = rows.map((l) => l.split(',')[10]);
+		expect(new Set(flags)).toEqual(new Set(['true', 'false']));
+		flags.forEach((f, i) => expect(f, `sample ${i}`).toBe(String(i < zone.startSamples || i >= time.length - zone.endSamples)));
+		// peaks in provenance leave the zone out (as stated), the whole trial beside them: checked on the stored moment series
+		const kept = Array.from(stored).slice(zone.startSamples, time.length - zone.endSamples);
+		const peak = prov.trials[0].run.peaks.outsideEdgeZone.find((r: { dof: string; quantity: string }) => r.dof === moment.name && r.quantity === 'moment');
+		expect(peak.peakPositive).toBe(Math.max(...kept));
+		expect(peak.peakNegative).toBe(Math.min(...kept));
+		expect(peak.samples).toBe(kept.length);
+		const whole = prov.trials[0].run.peaks.wholeTrial.find((r: { dof: string; quantity: string }) => r.dof === moment.name && r.quantity === 'moment');
+		expect(whole.peakPositive).toBe(Math.max(...stored));
+		expect(prov.trials[0].run.peaks.scope).toMatch(/outside the edge zone/);
+		const readme = fs.readFileSync(path.join(out, 'x', 'README.txt'), 'utf8');
+		expect(readme).toMatch(/in_edge_zone true where the row lies in its run's edge zone/);
+		expect(readme).toMatch(/peaks\.outsideEdgeZone, the default: over the samples outside the edge/);
 
 		// no participant's name, e-mail or phone anywhere in the archive
 		for (const name of entries(out)) {
@@ -151,7 +171,11 @@ describe('session export', () => {
 		expect(mine.length).toBe(202);
 		// by hand: 0 % of repetition 1 is halfway between samples 10 and 11 (linear interpolation);
 		// 100 % of repetition 1 and 0 % of repetition 2 are sample 60; 50 % of repetition 2 is sample 85
-		expect(mine[0].slice(7)).toEqual(['1', '0', expect.any(String)]);
+		expect(mine[0].slice(7, 9)).toEqual(['1', '0']);
+		// in_edge_zone of a % point: its time (sample 10.5 here) lies before the first sample outside the zone, or not
+		const zone = (await app.sql.query(`SELECT edge_zone FROM runs WHERE id = $1`, [app.ids.runA])).rows[0].edge_zone;
+		expect(mine[0][10]).toBe(String(10.5 < zone.startSamples));
+		expect(mine[151][10]).toBe(String(85 < zone.startSamples));
 		expect(Number(mine[0][9])).toBeCloseTo((v[10] + v[11]) / 2, 9);
 		expect(mine[100].slice(7, 9)).toEqual(['1', '100']);
 		expect(Number(mine[100][9])).toBeCloseTo(v[60], 9);
@@ -159,6 +183,20 @@ describe('session export', () => {
 		expect(mine[151].slice(7, 9)).toEqual(['2', '50']);
 		expect(Number(mine[151][9])).toBeCloseTo(v[85], 9);
 		await app.sql.query(`DELETE FROM cycle_events WHERE run_id = $1`, [app.ids.runA]);
+	}, 60_000);
+
+	it('a run made before edge zones: provenance says "not computed", every row is outside a zone', async () => {
+		const saved = (await app.sql.query(`SELECT edge_zone FROM runs WHERE id = $1`, [app.ids.runA])).rows[0].edge_zone;
+		await app.sql.query(`UPDATE runs SET edge_zone = NULL WHERE id = $1`, [app.ids.runA]);
+		try {
+			const { out } = await download('piA');
+			const prov = JSON.parse(fs.readFileSync(path.join(out, 'x', 'provenance.json'), 'utf8'));
+			expect(prov.trials[0].run.edgeZone).toMatchObject({ computed: false, startSamples: 0, endSamples: 0, startSeconds: 0, endSeconds: 0, note: 'not computed (run before edge zones were introduced)' });
+			const flags = new Set(fs.readFileSync(path.join(out, 'x', 'results.csv'), 'utf8').trimEnd().split('\n').slice(1).map((l) => l.split(',')[10]));
+			expect(flags).toEqual(new Set(['false']));
+		} finally {
+			await app.sql.query(`UPDATE runs SET edge_zone = $2 WHERE id = $1`, [app.ids.runA, JSON.stringify(saved)]);
+		}
 	}, 60_000);
 
 	it('refuses (409, naming run, trial and series) a run holding a non-finite value, rather than exporting an empty cell', async () => {

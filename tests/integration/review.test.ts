@@ -59,6 +59,10 @@ describe('session review data', () => {
 			expect(c.positive).toBeTruthy();
 		}
 		expect(r.text.toLowerCase()).not.toContain(secrets[0].toLowerCase());
+		// the run's stored edge zone comes with it, for the hatched bands
+		const zone = (await app.sql.query(`SELECT edge_zone FROM runs WHERE id = $1`, [app.ids.runA])).rows[0].edge_zone;
+		expect(zone.startSamples + zone.endSamples).toBeGreaterThan(0);
+		expect(run.edgeZone).toEqual({ computed: true, ...zone });
 	});
 
 	it('gzips the large answer for a client that accepts it, and only then', async () => {
@@ -181,10 +185,36 @@ describe('compare page', () => {
 		for (const s of secrets) expect(data.text.toLowerCase()).not.toContain(s.toLowerCase());
 	});
 
+	it('leaves out a repetition that overlaps the edge zone, says so, and takes it in with the switch', async () => {
+		const zone = (await app.sql.query(`SELECT edge_zone FROM runs WHERE id = $1`, [app.ids.runA])).rows[0].edge_zone;
+		const run = (await get('researcherA', reviewPath('angle'))).json.runs.find((x: any) => x.runId === app.ids.runA);
+		const first = run.t[0];
+		// repetition 1 starts on the first sample (inside the zone); repetition 2 lies clear of it
+		const times = [first, first + zone.startSeconds + 0.2, first + zone.startSeconds + 0.4];
+		expect((await postEvents('researcherA', { times, source: 'manual' })).status).toBe(200);
+		const q = `mode=sessions&participant=${app.ids.participantA}&session=${app.ids.sessionA}&quantity=moment`;
+		const out = await get('researcherA', comparePath(q), 'text/html');
+		expect(out.text).toContain('time-normalised repetitions between marked events (1 repetitions from 1 run)');
+		expect(out.text).toContain('1 repetition was left out because it overlaps an edge zone, where results are not reliable');
+		expect(out.text).toMatch(/name="includeEdgeZones" value="1"(?![^>]*checked)/);
+		const data = await get('researcherA', `/studies/${app.ids.studyA}/compare/__data.json?${q}`, '*/*');
+		expect(data.status).toBe(200);
+		const incl = await get('researcherA', comparePath(`${q}&includeEdgeZones=1`), 'text/html');
+		expect(incl.text).toContain('time-normalised repetitions between marked events (2 repetitions from 1 run)');
+		expect(incl.text).not.toContain('left out because');
+		expect(incl.text).toMatch(/name="includeEdgeZones" value="1" checked/);
+		// group mode: the participant's mean is made of the kept repetition only (n counts participants)
+		const group = await get('researcherA', comparePath(`mode=group&p=${app.ids.participantA}`), 'text/html');
+		expect(group.text).toContain('1 repetition was left out because it overlaps an edge zone');
+	});
+
 	it('uses whole trials without events and never an excluded run', async () => {
 		await app.sql.query(`DELETE FROM cycle_events WHERE run_id = $1`, [app.ids.runA]);
 		const whole = await get('researcherA', comparePath(`mode=group&p=${app.ids.participantA}`), 'text/html');
 		expect(whole.text).toContain('time-normalised whole trials (no events marked; 1 run)');
+		expect(whole.text).toContain('1 whole trial was normalised without its edge zones');
+		const incl = await get('researcherA', comparePath(`mode=group&p=${app.ids.participantA}&includeEdgeZones=1`), 'text/html');
+		expect(incl.text).not.toContain('whole trial was normalised without');
 		await app.sql.query(`UPDATE runs SET flag_decision = 'exclude' WHERE id = $1`, [app.ids.runA]);
 		try {
 			const ex = await get('researcherA', comparePath(`mode=group&p=${app.ids.participantA}`), 'text/html');

@@ -9,6 +9,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import fs from 'node:fs';
 import { startApp, type AppUnderTest, type Persona } from './app-under-test';
 import { start, stop, type Child } from '../../src/cli/lib/proc';
+import { runOptionsSchema } from '../../src/lib/processing/pipeline';
 
 const REC = 'seeds/recordings/ald-001-shelf-reach';
 let app: AppUnderTest;
@@ -224,7 +225,8 @@ describe('a run through the HTTP API', () => {
 
 	it('records the options, the scaled model and the raw file hash with the run', async () => {
 		const { rows } = await app.sql.query(`SELECT r.options, r.model, r.raw_sha256, t.sha256 FROM runs r JOIN trials t ON t.id = r.trial_id WHERE r.id = $1`, [runId]);
-		expect(rows[0].options).toEqual({ cutoffHz: null, fillGaps: false });
+		// as sent, with the schema's defaults for what was not (gap filling off, the default end treatment)
+		expect(rows[0].options).toEqual(runOptionsSchema.parse({ cutoffHz: null }));
 		expect(rows[0].raw_sha256).toBe(rows[0].sha256);
 		expect(rows[0].model.table).toBe('de-leva-1996');
 		expect(rows[0].model.parameters.model.bodies.length).toBeGreaterThan(0);
@@ -260,26 +262,83 @@ describe('a run through the HTTP API', () => {
 		expect(bad.json.message).toMatch(/quantity must be one of/);
 	});
 
-	it('has a summary whose peaks, their times, range and mean match the stored series (direct max and min)', async () => {
-		const sum = await api('researcherA', 'GET', `/api/studies/${app.ids.studyA}/runs/${runId}/summary`);
-		expect(sum.status).toBe(200);
-		const rows = sum.json.summary as any[];
+	it('stores the edge zone the worker computed, and answers it with the series', async () => {
+		const { rows } = await app.sql.query<{ edge_zone: any; frames: number; sample_hz: number }>(
+			`SELECT r.edge_zone, t.frame_count AS frames, t.sample_hz FROM runs r JOIN trials t ON t.id = r.trial_id WHERE r.id = $1`,
+			[runId]
+		);
+		const z = rows[0].edge_zone;
+		expect(z).toBeTruthy();
+		for (const k of ['startSamples', 'endSamples']) expect(Number.isInteger(z[k]) && z[k] >= 0, k).toBe(true);
+		expect(z.startSamples + z.endSamples).toBeLessThanOrEqual(rows[0].frames);
+		expect(z.startSeconds).toBeCloseTo(z.startSamples / rows[0].sample_hz, 9);
+		expect(z.endSeconds).toBeCloseTo(z.endSamples / rows[0].sample_hz, 9);
+		expect(typeof z.basis).toBe('string');
+		const s = await api('researcherA', 'GET', `/api/studies/${app.ids.studyA}/runs/${runId}/series?quantity=moment&dof=right.elbow.flexion`);
+		expect(s.json.edgeZone).toEqual({ computed: true, ...z });
+		// a run made before edge zones (NULL) answers "not computed", all zero
+		await app.sql.query(`UPDATE runs SET edge_zone = NULL WHERE id = $1`, [runId]);
+		try {
+			const old = await api('researcherA', 'GET', `/api/studies/${app.ids.studyA}/runs/${runId}/summary`);
+			expect(old.json.edgeZone).toEqual({ computed: false, startSeconds: 0, endSeconds: 0, startSamples: 0, endSamples: 0, basis: 'not computed (run before edge zones were introduced)' });
+			expect(old.json.scope).toMatch(/before edge zones were introduced/);
+		} finally {
+			await app.sql.query(`UPDATE runs SET edge_zone = $2 WHERE id = $1`, [runId, JSON.stringify(z)]);
+		}
+	});
+
+	it('has a summary that leaves the edge zone out by default and takes it in with ?includeEdgeZones=1 (direct max and min of the stored series)', async () => {
+		const zone = (await app.sql.query(`SELECT edge_zone FROM runs WHERE id = $1`, [runId])).rows[0].edge_zone;
+		const outside = await api('researcherA', 'GET', `/api/studies/${app.ids.studyA}/runs/${runId}/summary`);
+		const whole = await api('researcherA', 'GET', `/api/studies/${app.ids.studyA}/runs/${runId}/summary?includeEdgeZones=1`);
+		expect(outside.status).toBe(200);
+		expect(whole.status).toBe(200);
+		expect(outside.json.edgeZonesIncluded).toBe(false);
+		expect(whole.json.edgeZonesIncluded).toBe(true);
+		expect(outside.json.edgeZone).toEqual({ computed: true, ...zone });
+		expect(outside.json.scope).toMatch(/outside the edge zones/);
 		for (const quantity of ['moment', 'angle', 'power'] as const) {
 			const s = await api('researcherA', 'GET', `/api/studies/${app.ids.studyA}/runs/${runId}/series?quantity=${quantity}`);
 			for (const c of s.json.curves) {
-				const row = rows.find((x) => x.dof === c.name && x.quantity === quantity);
-				expect(row, `${quantity} ${c.name}`).toBeTruthy();
-				const v = c.v as number[];
-				const max = Math.max(...v);
-				const min = Math.min(...v);
-				expect(row.peakPositive).toBeCloseTo(max, 9);
-				expect(row.peakNegative).toBeCloseTo(min, 9);
-				expect(row.peakPositiveTime).toBeCloseTo(c.t[v.indexOf(max)], 9);
-				expect(row.peakNegativeTime).toBeCloseTo(c.t[v.indexOf(min)], 9);
-				expect(row.range).toBeCloseTo(max - min, 9);
-				expect(row.mean).toBeCloseTo(v.reduce((a, b) => a + b, 0) / v.length, 9);
+				const all = c.v as number[];
+				const n = all.length;
+				const from = zone.startSamples;
+				const to = n - zone.endSamples; // exclusive
+				for (const [answer, lo, hi] of [[outside, from, to], [whole, 0, n]] as const) {
+					const row = (answer.json.summary as any[]).find((x) => x.dof === c.name && x.quantity === quantity);
+					expect(row, `${quantity} ${c.name}`).toBeTruthy();
+					const v = all.slice(lo, hi);
+					const max = Math.max(...v);
+					const min = Math.min(...v);
+					expect(row.peakPositive).toBeCloseTo(max, 9);
+					expect(row.peakNegative).toBeCloseTo(min, 9);
+					expect(row.peakPositiveTime).toBeCloseTo(c.t[lo + v.indexOf(max)], 9);
+					expect(row.peakNegativeTime).toBeCloseTo(c.t[lo + v.indexOf(min)], 9);
+					expect(row.range).toBeCloseTo(max - min, 9);
+					expect(row.mean).toBeCloseTo(v.reduce((a, b) => a + b, 0) / v.length, 9);
+					expect(row.samples).toBe(v.length);
+				}
 			}
 		}
+		const bad = await api('researcherA', 'GET', `/api/studies/${app.ids.studyA}/runs/${runId}/summary?includeEdgeZones=yes`);
+		expect(bad.status).toBe(400);
+		expect(bad.json.message).toMatch(/includeEdgeZones must be 1 .* or 0/);
+	});
+
+	it('the run page hatches the edge zone and says what the summary leaves out, with a switch', async () => {
+		// the seeded run (low-pass filtered, so its edge zone is not empty)
+		const seeded = (await app.sql.query(`SELECT edge_zone FROM runs WHERE id = $1`, [app.ids.runA])).rows[0].edge_zone;
+		expect(seeded.startSamples + seeded.endSamples).toBeGreaterThan(0);
+		const page = await fetch(`${app.base}/studies/${app.ids.studyA}/runs/${app.ids.runA}`, { headers: { cookie: app.cookies.researcherA, accept: 'text/html' } });
+		const html = await page.text();
+		expect(page.status).toBe(200);
+		expect(html).toContain('data-testid="edge-zone-band"');
+		expect(html).toContain('edge zone: results not reliable');
+		expect(html).toContain('Recording extra frames before and after the movement of interest is common practice');
+		expect(html).toMatch(/Peaks, range and mean over the samples outside the edge zones/);
+		expect(html).toMatch(/name="includeEdgeZones" value="1"(?![^>]*checked)/);
+		const on = await (await fetch(`${app.base}/studies/${app.ids.studyA}/runs/${app.ids.runA}?includeEdgeZones=1`, { headers: { cookie: app.cookies.researcherA, accept: 'text/html' } })).text();
+		expect(on).toMatch(/Peaks, range and mean over every sample, edge zones included/);
 	});
 
 	it('adds a second run when run again with other options; the first stays as it was', async () => {
