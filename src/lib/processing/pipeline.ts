@@ -200,6 +200,12 @@ export function runPipeline(
 		report('filter', (j + 1) / n);
 	}
 	timings.filter = now() - t0;
+	// a recording wholly inside its edge zones has nothing reliable to report: refuse it rather than give empty figures
+	const edgeZone = edgeZoneOf(rec.sampleHz, frames, cutoffs, options.endTreatment);
+	if (frames - edgeZone.startSamples - edgeZone.endSamples < 1)
+		throw new PipelineError(
+			`the recording (${frames} samples, ${((frames - 1) / rec.sampleHz).toFixed(3)} s) lies wholly inside its edge zones (${edgeZone.startSeconds.toFixed(3)} s at each end, where the filtered and differentiated values are not reliable): record more frames before and after the movement, or run without a filter`
+		);
 
 	// 2. derivatives
 	t0 = now();
@@ -271,7 +277,6 @@ export function runPipeline(
 	// 4. summary: peaks, range and mean outside the edge zone, and over the whole trial
 	t0 = now();
 	report('summary', 0);
-	const edgeZone = edgeZoneOf(rec.sampleHz, frames, cutoffs, options.endTreatment);
 	const summary: SummaryRow[] = [];
 	for (const s of dofs) {
 		const prismatic = s.momentUnit === 'N';

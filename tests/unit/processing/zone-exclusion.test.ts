@@ -163,3 +163,18 @@ describe('samples, times and repetitions in the zone', () => {
 		});
 	});
 });
+
+describe('a recording wholly inside its edge zones', () => {
+	it('fails the run with a reason instead of giving empty figures (the zone is 11 samples at each end at 6 Hz, 200 Hz)', async () => {
+		const { buildSessionModel } = await import('../../../src/lib/processing/session-model');
+		const { runPipeline, PipelineError } = await import('../../../src/lib/processing/pipeline');
+		const { makeRecording } = await import('./helpers');
+		const built = buildSessionModel({ sex: 'female', bodyMass: 64, stature: 1.68 }, { table: 'de-leva-1996', limbs: ['right.leg'], bases: {}, loads: [], gravity: [0, -9.81, 0] });
+		const short = () => makeRecording(built, 20, 200, (n, t) => (n === 'right.knee.flexion' ? 0.6 + 0.4 * Math.sin(Math.PI * t) : 0));
+		expect(() => runPipeline(built, short(), { cutoffHz: 6 })).toThrow(PipelineError);
+		expect(() => runPipeline(built, short(), { cutoffHz: 6 })).toThrow(/lies wholly inside its edge zones .*record more frames/);
+		// without a filter the zone is one sample at each end, and the same recording is processed
+		const r = runPipeline(built, short(), { cutoffHz: null });
+		expect(r.summary.every((row) => row.samples === 18 && Number.isFinite(row.peakPositive))).toBe(true);
+	});
+});
