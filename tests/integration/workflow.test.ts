@@ -7,8 +7,7 @@ import { lockedMessage } from '../../src/lib/server/session-lock';
 import { start, stop, type Child } from '../../src/cli/lib/proc';
 
 let app: AppUnderTest;
-const STEPS = ['submit', 'approve', 'return', 'reopen', 'code'] as const;
-type Step = (typeof STEPS)[number];
+type Step = 'submit' | 'approve' | 'return' | 'reopen' | 'code';
 const ROLES: Persona[] = ['piA', 'researcherA', 'technicianA', 'memberB', 'anonymous'];
 
 const pagePath = (sid = app.ids.sessionA) => `/studies/${app.ids.studyA}/sessions/${sid}`;
