@@ -5,8 +5,8 @@ import { randomBytes } from 'node:crypto';
 import { fileURLToPath } from 'node:url';
 import { QueryTypes, type Sequelize, type Transaction } from 'sequelize';
 import { z } from 'zod';
-import { hashToken } from '../src/lib/server/tokens';
-import { CONSENT_LINK_LIFETIME_MS } from '../src/lib/server/consent-links';
+import { hashToken } from '../src/lib/server/auth/tokens';
+import { CONSENT_LINK_LIFETIME_MS } from '../src/lib/server/consent/links';
 
 const here = path.dirname(fileURLToPath(import.meta.url));
 const day = z.string().regex(/^\d{4}-\d{2}-\d{2}$/);

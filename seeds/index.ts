@@ -5,7 +5,7 @@ import { fileURLToPath } from 'node:url';
 import type { Sequelize } from 'sequelize';
 import { z } from 'zod';
 import { ConsentFormVersion, Lab, Participant, ParticipantLength, ParticipantPersonal, Study, StudyMember, User } from '../src/lib/server/db/models';
-import { record } from '../src/lib/server/audit';
+import { record } from '../src/lib/server/audit/record';
 import { hashPassword } from '../src/lib/server/auth/password';
 import { seedConsent } from './consent';
 import { seedSessionsAndRuns } from './runs';

@@ -8,7 +8,7 @@ declare global {
 		}
 		interface Locals {
 			/** The signed-in person, re-checked against the database on every request; null when signed out. */
-			actor: import('$lib/server/access').Actor | null;
+			actor: import('$lib/server/access/guard').Actor | null;
 		}
 		// interface PageData {}
 		// interface PageState {}

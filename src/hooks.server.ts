@@ -5,8 +5,8 @@ import { randomUUID } from 'node:crypto';
 // Validates the published anthropometric tables at start-up: a broken table file stops the server with its name.
 import '$lib/anthropometry/tables';
 import { authHandle } from '$lib/server/auth';
-import { loadActor } from '$lib/server/access';
-import { withRequestContext } from '$lib/server/request-context';
+import { loadActor } from '$lib/server/access/guard';
+import { withRequestContext } from '$lib/server/http/request-context';
 
 const clientAddress: Handle = ({ event, resolve }) => {
 	// Auth.js sees only the Request; pass it the client's address (never trust one the client sent).

@@ -5,7 +5,7 @@
 import { gzipSync } from 'node:zlib';
 import { reduceForPlot, DEFAULT_PLOT_POINTS } from '../lib/processing/reduce';
 import { cyclePeaks, detectPeaks, meanSd, normaliseCycles } from '../lib/processing/cycles';
-import { round6 } from '../lib/server/review';
+import { round6 } from '../lib/server/review/review';
 
 const sampleHz = 200;
 const frames = Number(process.env.BENCH_FRAMES ?? 120_000);

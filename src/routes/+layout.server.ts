@@ -1,7 +1,7 @@
 // Shell data for every page: the lab's name, who is signed in, and their work queues (the count in the navigation;
 // the home page lists them). The shell still renders when the database is down.
-import { currentLab } from '$lib/server/lab';
-import { workQueuesOf } from '$lib/server/session-workflow';
+import { currentLab } from '$lib/server/studies/lab';
+import { workQueuesOf } from '$lib/server/sessions/workflow';
 import type { LayoutServerLoad } from './$types';
 
 export const load: LayoutServerLoad = async ({ locals }) => {

@@ -36,7 +36,7 @@ export const MATRIX: MatrixEntry[] = [
 	// POST /signout is exercised by its own tests (it ends the persona's session)
 
 	// studies: the list shows one's own studies (administrators: all); a study page is for its team only.
-	// Administrators who hold no role get 404 like any non-member (decision in src/lib/server/studies.ts, readStudy).
+	// Administrators who hold no role get 404 like any non-member (decision in src/lib/server/studies/studies.ts, readStudy).
 	{ route: '/studies', method: 'GET', expect: signedIn(200) },
 	{ route: '/studies/[id]', method: 'GET', params: { id: 'studyA' }, expect: { anonymous: 303, admin: 404, piA: 200, researcherA: 200, technicianA: 200, memberB: 404 } },
 	{ route: '/studies/[id]', method: 'GET', params: { id: 'studyB' }, expect: { anonymous: 303, admin: 404, piA: 200, researcherA: 404, technicianA: 404, memberB: 200 } },

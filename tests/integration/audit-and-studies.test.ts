@@ -4,7 +4,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { randomUUID } from 'node:crypto';
 import pg from 'pg';
 import { DEMO_PASSWORD, PERSONAS, signInAs, startApp, type AppUnderTest } from './app-under-test';
-import { CSV_COLUMNS, csvField, parseAuditQuery } from '../../src/lib/server/audit-log';
+import { CSV_COLUMNS, csvField, parseAuditQuery } from '../../src/lib/server/audit/log';
 
 let app: AppUnderTest;
 let dbc: pg.Client;

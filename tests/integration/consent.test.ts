@@ -90,7 +90,7 @@ describe('the demo seed', () => {
 			'ALD-001': 'consented/1', 'ALD-002': 'consented/1', 'ALD-003': 'consented/1', 'ALD-004': 'consented/1', 'ALD-005': 'invited/1',
 			'KNE-001': 'consented/1', 'KNE-002': 'consented/1', 'KNE-003': 'withdrawn/1'
 		});
-		const { consentStateOf } = await import('../../src/lib/server/consent');
+		const { consentStateOf } = await import('../../src/lib/server/consent/check');
 		expect((await consentStateOf(app.ids.participantA)).state).toBe('consented');
 	});
 	it('shows the consent state by word in the participant list and on the participant page', async () => {
@@ -255,7 +255,7 @@ describe('the consent link', () => {
 		expect(html).toContain('data-reason="expired"');
 		expect(html).toContain('pi@alder-creek.example');
 		expect((await agree(token, p.id, v1.id, 3)).status).toBe(410);
-		const { consentStateOf } = await import('../../src/lib/server/consent');
+		const { consentStateOf } = await import('../../src/lib/server/consent/check');
 		expect((await consentStateOf(p.id)).state).toBe('expired');
 		const staff = await (await get(consentPath(p.id), app.cookies.technicianA)).text();
 		expect(staff).toContain('data-state="expired"');
@@ -320,7 +320,7 @@ describe('withdrawal', () => {
 		await invite(p.id);
 		const token = linkIn(await nthMail(address, 1), 'consent');
 		const current = (await formVersionIds()).at(-1)!;
-		const { requireValidConsent } = await import('../../src/lib/server/consent');
+		const { requireValidConsent } = await import('../../src/lib/server/consent/check');
 		// before consent: refused with a message naming the participant and the state
 		await expect(requireValidConsent(p.id, 'upload')).rejects.toMatchObject({ status: 409, body: { message: `${p.code} has not given consent (state: invited); uploads are refused until they consent.` } });
 		expect((await agree(token, p.id, current.id, current.version === 1 ? 3 : 2)).status).toBe(200);

@@ -7,7 +7,7 @@ import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
 import { startApp, type AppUnderTest, type Persona } from './app-under-test';
-import { decodeFloat64 } from '../../src/lib/server/results-codec';
+import { decodeFloat64 } from '../../src/lib/server/runs/results-codec';
 
 const seed = JSON.parse(fs.readFileSync('seeds/demo/participants.json', 'utf8')) as {
 	studies: Record<string, { participants: { fullName: string; email: string; phone: string | null }[] }>;

@@ -5,7 +5,7 @@ import { readFileSync } from 'node:fs';
 import { LOCK_MATRIX, type LockEntry } from './lock-matrix';
 import { startApp, type AppUnderTest } from './app-under-test';
 import { routeTree } from './route-tree';
-import { lockedMessage } from '../../src/lib/server/session-lock';
+import { lockedMessage } from '../../src/lib/server/sessions/lock';
 
 const key = (route: string, method: string, action?: string) => `${method} ${route}${action ? ` ?/${action}` : ''}`;
 

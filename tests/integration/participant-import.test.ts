@@ -4,7 +4,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import fs from 'node:fs';
 import pg from 'pg';
 import { startApp, type AppUnderTest } from './app-under-test';
-import { checkImportText, describeProblem, IMPORT_CHUNK, IMPORT_MAX_ROWS } from '../../src/lib/server/participant-import';
+import { checkImportText, describeProblem, IMPORT_CHUNK, IMPORT_MAX_ROWS } from '../../src/lib/server/participants/import';
 
 const SAMPLE = 'tests/fixtures/participants/import-sample.csv';
 let app: AppUnderTest;
@@ -163,7 +163,7 @@ describe('a file with bad rows', () => {
 		expect(await counter()).toBe(first);
 
 		// a hand-made import of the same file (right hash, no check) is checked again and refused
-		const { canonicalText, sha256Hex } = await import('../../src/lib/server/participant-import');
+		const { canonicalText, sha256Hex } = await import('../../src/lib/server/participants/import');
 		const forged = new FormData();
 		forged.set('content', bad);
 		forged.set('sha256', sha256Hex(canonicalText(bad)));

@@ -7,9 +7,9 @@ import type { Sequelize } from 'sequelize';
 import { db, closeDb } from '../../src/lib/server/db/index';
 import { migrateUp } from '../../src/lib/server/db/migrate';
 import { AuditEvent, OneTimeToken, Study, StudyMember, User } from '../../src/lib/server/db/models';
-import { loadActor, type Actor } from '../../src/lib/server/access';
+import { loadActor, type Actor } from '../../src/lib/server/access/guard';
 import { closeMail } from '../../src/lib/server/mail/index';
-import { consume, hashToken, inspectToken, issueToken } from '../../src/lib/server/tokens';
+import { consume, hashToken, inspectToken, issueToken } from '../../src/lib/server/auth/tokens';
 import {
 	deactivatePerson,
 	invitePerson,
@@ -21,7 +21,7 @@ import {
 	setLabAdmin,
 	setStudyRole,
 	type RequestContext
-} from '../../src/lib/server/people';
+} from '../../src/lib/server/people/manage';
 import { loadDemoSeed } from '../../seeds/index';
 import { freshDatabase } from './helpers';
 import { DEMO_PASSWORD, PERSONAS, signInAs, startApp, type AppUnderTest } from './app-under-test';

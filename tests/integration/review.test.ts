@@ -3,7 +3,7 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import fs from 'node:fs';
 import { startApp, type AppUnderTest, type Persona } from './app-under-test';
-import { lockedMessage } from '../../src/lib/server/session-lock';
+import { lockedMessage } from '../../src/lib/server/sessions/lock';
 
 let app: AppUnderTest;
 beforeAll(async () => {

@@ -3,7 +3,7 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { DEMO_PASSWORD, PERSONAS, startApp, type AppUnderTest, type Persona } from './app-under-test';
 import type { InboxMessage } from './helpers';
-import { lockedMessage } from '../../src/lib/server/session-lock';
+import { lockedMessage } from '../../src/lib/server/sessions/lock';
 import { start, stop, type Child } from '../../src/cli/lib/proc';
 
 let app: AppUnderTest;

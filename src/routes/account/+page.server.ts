@@ -1,7 +1,7 @@
 // The signed-in person's account: who they are, their study roles, changing the password (then signing in again).
 import { fail } from '@sveltejs/kit';
 import { signOut } from '$lib/server/auth';
-import { accountOverview, changePassword } from '$lib/server/account';
+import { accountOverview, changePassword } from '$lib/server/people/account';
 import type { Actions, PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async (event) => ({ account: await accountOverview(event) });

@@ -1,5 +1,5 @@
 // The audit log for administrators: filters from the query string, 50 events a page, newest first.
-import { auditPage, filterQuery, parseAuditQuery } from '$lib/server/audit-log';
+import { auditPage, filterQuery, parseAuditQuery } from '$lib/server/audit/log';
 import type { PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async (event) => {

@@ -1,6 +1,6 @@
 // People list (lab administrators): search, sort and paging from the URL, so every view can be bookmarked.
-import { requireLab } from '$lib/server/access';
-import { listPeople, parsePeopleQuery, ROLE_LABELS } from '$lib/server/people';
+import { requireLab } from '$lib/server/access/guard';
+import { listPeople, parsePeopleQuery, ROLE_LABELS } from '$lib/server/people/manage';
 import type { PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async (event) => {

@@ -1,8 +1,8 @@
 // Sign-out (POST only): ends this session; "everywhere" also invalidates every other session of the account.
 import { redirect } from '@sveltejs/kit';
 import { signOut } from '$lib/server/auth';
-import { signOutEverywhere } from '$lib/server/people';
-import { record } from '$lib/server/audit';
+import { signOutEverywhere } from '$lib/server/people/manage';
+import { record } from '$lib/server/audit/record';
 import type { Actions, PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async () => redirect(303, '/');

@@ -1,7 +1,7 @@
 // Consent form Markdown: raw HTML in the source comes out as text, never as a tag; ethics expiry states.
 import { describe, expect, it } from 'vitest';
-import { renderMarkdown } from '../../../src/lib/server/markdown';
-import { ethicsState } from '../../../src/lib/server/study-records';
+import { renderMarkdown } from '../../../src/lib/server/consent/markdown';
+import { ethicsState } from '../../../src/lib/server/studies/records';
 
 describe('renderMarkdown', () => {
 	it('renders ordinary Markdown', () => {

@@ -1,6 +1,6 @@
 // The participant list check without a database: row numbers as in the file, delimiters, quotes, decimal commas.
 import { describe, expect, it } from 'vitest';
-import { canonicalText, checkImportText, decodeUtf8, describeProblem, sha256Hex } from '../../../src/lib/server/participant-import';
+import { canonicalText, checkImportText, decodeUtf8, describeProblem, sha256Hex } from '../../../src/lib/server/participants/import';
 
 const problems = (text: string, mayImportPersonal = true) => {
 	const r = checkImportText(text, { mayImportPersonal });

@@ -1,6 +1,6 @@
 // Result series codec: bytes round trip (IEEE-754 special values) and the min/max plot reduction keeps every extreme.
 import { describe, expect, it } from 'vitest';
-import { component, decodeFloat64, encodeFloat64 } from '../../../src/lib/server/results-codec';
+import { component, decodeFloat64, encodeFloat64 } from '../../../src/lib/server/runs/results-codec';
 
 describe('encodeFloat64 / decodeFloat64', () => {
 	it('round-trips ordinary and special values bit for bit', () => {

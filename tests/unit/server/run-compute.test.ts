@@ -1,6 +1,6 @@
 // The storage boundary: a run's rows are only written when every number in them is finite.
 import { describe, expect, it } from 'vitest';
-import { assertStorable, computeRun } from '../../../src/lib/server/run-compute';
+import { assertStorable, computeRun } from '../../../src/lib/server/runs/compute';
 import { NonFiniteResultError } from '../../../src/lib/processing/pipeline';
 import { runOptionsSchema } from '../../../src/lib/processing/pipeline';
 import { buildSessionModel, type SessionSetup } from '../../../src/lib/processing/session-model';

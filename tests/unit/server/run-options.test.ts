@@ -1,6 +1,6 @@
 // Run options as a person chooses them in the "New run" form, and as a stored run is read back for a retry.
 import { describe, expect, it } from 'vitest';
-import { runOptionsFromForm } from '../../../src/lib/server/runs';
+import { runOptionsFromForm } from '../../../src/lib/server/runs/runs';
 import { storedRunOptions } from '../../../src/lib/processing/pipeline';
 import { DEFAULT_END_TREATMENT } from '../../../src/lib/processing/edges';
 

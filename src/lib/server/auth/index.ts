@@ -9,8 +9,8 @@ import { db } from '../db/index';
 import { User } from '../db/models';
 import { config } from '../config';
 import { sendMail } from '../mail/index';
-import { record } from '../audit';
-import { currentClientAddress } from '../request-context';
+import { record } from '../audit/record';
+import { currentClientAddress } from '../http/request-context';
 import { verifyPassword } from './password';
 import { checkThrottle, recordFailure, LIMITS } from './rate-limit';
 

@@ -1,5 +1,5 @@
 // Messages between the worker and a run's computation thread.
-import type { ComputedRun } from '../run-compute';
+import type { ComputedRun } from '../runs/compute';
 import type { SessionSetup } from '../../processing/session-model';
 import type { RunOptions } from '../../processing/pipeline';
 import type { Recording } from '../../processing/recording';

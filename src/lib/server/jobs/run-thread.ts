@@ -1,7 +1,7 @@
 // Worker thread for one run: the pipeline is synchronous, so it runs here while the worker's event loop stays free
 // to write progress and answer the queue.
 import { parentPort, workerData } from 'node:worker_threads';
-import { computeRun } from '../run-compute';
+import { computeRun } from '../runs/compute';
 import type { RunThreadInput, RunThreadMessage } from './run-thread-types';
 
 const port = parentPort!;

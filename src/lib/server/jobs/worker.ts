@@ -2,7 +2,7 @@
 import type PgBoss from 'pg-boss';
 import { queue, QUEUES } from './queue';
 import { sendMail, mailMessage } from '../mail/index';
-import { abandonRun, processRun } from '../runs';
+import { abandonRun, processRun } from '../runs/runs';
 
 const runJob = (data: unknown): string => {
 	const runId = (data as { runId?: unknown })?.runId;

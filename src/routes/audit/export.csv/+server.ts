@@ -1,5 +1,5 @@
 // GET /audit/export.csv: the audit events matching the page's filters, as CSV with a header row (administrators only).
-import { auditCsv, parseAuditQuery } from '$lib/server/audit-log';
+import { auditCsv, parseAuditQuery } from '$lib/server/audit/log';
 import type { RequestHandler } from './$types';
 
 export const GET: RequestHandler = async (event) => {

@@ -1,7 +1,7 @@
 // The page a consent link opens (no account needed: the single-use link is the proof): read, then agree or decline.
 import { fail } from '@sveltejs/kit';
-import { consentPageFor, decide, ReReadProblem } from '$lib/server/consent-workflow';
-import { FormProblem } from '$lib/server/study-records';
+import { consentPageFor, decide, ReReadProblem } from '$lib/server/consent/workflow';
+import { FormProblem } from '$lib/server/studies/records';
 import type { Actions, PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async (event) => {

@@ -1,7 +1,7 @@
 // Accepting an invitation (no sign-in needed: the single-use link is the proof): name and an optional password.
 import { fail, redirect } from '@sveltejs/kit';
-import { acceptInvitation, contextOf, invitationFor, PeopleProblem } from '$lib/server/people';
-import { LINK_REFUSED_MESSAGE } from '$lib/server/tokens';
+import { acceptInvitation, contextOf, invitationFor, PeopleProblem } from '$lib/server/people/manage';
+import { LINK_REFUSED_MESSAGE } from '$lib/server/auth/tokens';
 import type { Actions, PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async ({ params, setHeaders }) => {

@@ -1,6 +1,6 @@
 // One person (lab administrators): study roles, the lab administrator flag, deactivation and reactivation.
 import { error, fail, redirect, type RequestEvent } from '@sveltejs/kit';
-import { requireLab, type Actor } from '$lib/server/access';
+import { requireLab, type Actor } from '$lib/server/access/guard';
 import {
 	contextOf,
 	deactivatePerson,
@@ -13,7 +13,7 @@ import {
 	setLabAdmin,
 	setStudyRole,
 	STUDY_ROLES
-} from '$lib/server/people';
+} from '$lib/server/people/manage';
 import type { Actions, PageServerLoad } from './$types';
 
 const NO_SUCH_PERSON = 'There is no such person in this lab. Find them in the people list.';

@@ -1,8 +1,8 @@
 // Inviting a person (lab administrators): account if new, study roles, and an e-mailed single-use link.
 import { fail, redirect } from '@sveltejs/kit';
-import { requireLab } from '$lib/server/access';
-import { contextOf, invitePerson, listStudies, parseInvitation, PeopleProblem, ROLE_LABELS, STUDY_ROLES } from '$lib/server/people';
-import { TOKEN_LIFETIME_MS } from '$lib/server/tokens';
+import { requireLab } from '$lib/server/access/guard';
+import { contextOf, invitePerson, listStudies, parseInvitation, PeopleProblem, ROLE_LABELS, STUDY_ROLES } from '$lib/server/people/manage';
+import { TOKEN_LIFETIME_MS } from '$lib/server/auth/tokens';
 import type { Actions, PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async (event) => {

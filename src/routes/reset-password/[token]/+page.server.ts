@@ -1,7 +1,7 @@
 // The page a password-reset link opens: a new password, after which every session of the account ends.
 import { fail, redirect } from '@sveltejs/kit';
-import { contextOf, PeopleProblem, resetLinkFor, resetPassword } from '$lib/server/people';
-import { LINK_REFUSED_MESSAGE } from '$lib/server/tokens';
+import { contextOf, PeopleProblem, resetLinkFor, resetPassword } from '$lib/server/people/manage';
+import { LINK_REFUSED_MESSAGE } from '$lib/server/auth/tokens';
 import type { Actions, PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async ({ params, setHeaders }) => {

@@ -1,7 +1,7 @@
 // "Forgot your password?": e-mails a reset link. The answer is the same whether or not the address has an account.
 import { fail } from '@sveltejs/kit';
-import { contextOf, emailProblem, requestPasswordReset } from '$lib/server/people';
-import { TOKEN_LIFETIME_MS } from '$lib/server/tokens';
+import { contextOf, emailProblem, requestPasswordReset } from '$lib/server/people/manage';
+import { TOKEN_LIFETIME_MS } from '$lib/server/auth/tokens';
 import type { Actions, PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async () => ({ linkMinutes: TOKEN_LIFETIME_MS['password-reset'] / 60_000 });

@@ -1,6 +1,6 @@
 // The page a withdrawal link opens (no account needed): what withdrawing means, one confirmation, then it is recorded.
 import { fail } from '@sveltejs/kit';
-import { withdraw, withdrawPageFor } from '$lib/server/consent-workflow';
+import { withdraw, withdrawPageFor } from '$lib/server/consent/workflow';
 import type { Actions, PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async (event) => {

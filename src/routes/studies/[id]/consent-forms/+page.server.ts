@@ -1,7 +1,7 @@
 // Consent form versions of a study: every member reads them; the PI publishes a new version (older ones never change).
 import { fail, redirect } from '@sveltejs/kit';
-import { may } from '$lib/server/access';
-import { FormProblem, guardStudy, listConsentVersions, publishConsentVersion } from '$lib/server/study-records';
+import { may } from '$lib/server/access/guard';
+import { FormProblem, guardStudy, listConsentVersions, publishConsentVersion } from '$lib/server/studies/records';
 import type { Actions, PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async (event) => {

@@ -1,5 +1,5 @@
 // The participants of a study: search by code, sort and paging on the server; personal data only for PI and technicians.
-import { listParticipants } from '$lib/server/participants';
+import { listParticipants } from '$lib/server/participants/records';
 import type { PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async (event) => {

@@ -1,7 +1,7 @@
 // Study settings (PI only): ethics reference and expiry, default segment table; every change is audited.
 import { fail, redirect } from '@sveltejs/kit';
 import { SEGMENT_TABLES } from '$lib/anthropometry';
-import { FormProblem, guardStudy, saveSettings, TABLE_IDS } from '$lib/server/study-records';
+import { FormProblem, guardStudy, saveSettings, TABLE_IDS } from '$lib/server/studies/records';
 import type { Actions, PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async (event) => {

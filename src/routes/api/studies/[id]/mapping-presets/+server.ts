@@ -1,7 +1,7 @@
 // Column-mapping presets of a study: the team lists them, PI and technicians save new ones.
 import { json } from '@sveltejs/kit';
-import { createPreset, listPresets } from '$lib/server/mapping-presets';
-import { FormProblem } from '$lib/server/study-records';
+import { createPreset, listPresets } from '$lib/server/trials/mapping-presets';
+import { FormProblem } from '$lib/server/studies/records';
 import type { RequestHandler } from './$types';
 
 export const GET: RequestHandler = async (event) => json({ presets: await listPresets(event, event.params.id) });

@@ -1,9 +1,9 @@
 // One participant: research data, measured segment lengths (history) and, for PI and technicians, personal data.
 import { fail, redirect } from '@sveltejs/kit';
-import { addLength, readParticipant, savePersonal, updateResearchFields } from '$lib/server/participants';
-import { FormProblem } from '$lib/server/study-records';
-import { consentStateOf } from '$lib/server/consent';
-import { listSessionsOfParticipant } from '$lib/server/sessions';
+import { addLength, readParticipant, savePersonal, updateResearchFields } from '$lib/server/participants/records';
+import { FormProblem } from '$lib/server/studies/records';
+import { consentStateOf } from '$lib/server/consent/check';
+import { listSessionsOfParticipant } from '$lib/server/sessions/sessions';
 import type { Actions, PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async (event) => ({

@@ -1,6 +1,6 @@
 // Import participants from a CSV file (PI, technician): "check" is a dry run with a preview; "import" writes all rows or none.
 import { fail, redirect } from '@sveltejs/kit';
-import { checkImportUpload, importPage, runImport } from '$lib/server/participant-import';
+import { checkImportUpload, importPage, runImport } from '$lib/server/participants/import';
 import type { Actions, PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async (event) => importPage(event, event.params.id);

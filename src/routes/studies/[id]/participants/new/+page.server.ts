@@ -1,7 +1,7 @@
 // Adding a participant (PI, technician): research fields and personal data in one form; Momentry issues the code.
 import { fail, redirect } from '@sveltejs/kit';
-import { createParticipant } from '$lib/server/participants';
-import { FormProblem, guardStudy } from '$lib/server/study-records';
+import { createParticipant } from '$lib/server/participants/records';
+import { FormProblem, guardStudy } from '$lib/server/studies/records';
 import type { Actions, PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async (event) => {

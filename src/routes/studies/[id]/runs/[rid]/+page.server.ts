@@ -1,6 +1,6 @@
 // One run's results: moment curves, summary per DOF and what produced them (options, model, raw file hash, software version).
 import { redirect } from '@sveltejs/kit';
-import { loadRunPage, retryRun } from '$lib/server/runs';
+import { loadRunPage, retryRun } from '$lib/server/runs/runs';
 import type { Actions, PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async (event) => ({ ...(await loadRunPage(event, event.params.id, event.params.rid)), perKg: event.url.searchParams.get('perKg') === '1' });

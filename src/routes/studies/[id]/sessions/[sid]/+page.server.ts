@@ -1,11 +1,11 @@
 // The session page: set-up summary, its trials with their runs, and the upload area (posting to the trials API).
-import { readSession } from '$lib/server/sessions';
-import { decodeFlash, flashCookieName } from '$lib/server/upload-flash';
-import { uploadLimitText } from '$lib/server/uploads';
-import { latestMomentsBySession, listRunsForSession } from '$lib/server/runs';
+import { readSession } from '$lib/server/sessions/sessions';
+import { decodeFlash, flashCookieName } from '$lib/server/trials/upload-flash';
+import { uploadLimitText } from '$lib/server/trials/uploads';
+import { latestMomentsBySession, listRunsForSession } from '$lib/server/runs/runs';
 import { fail, redirect } from '@sveltejs/kit';
-import { sendSignatureCode, transition, workflowOf, type Transition } from '$lib/server/session-workflow';
-import { FormProblem } from '$lib/server/study-records';
+import { sendSignatureCode, transition, workflowOf, type Transition } from '$lib/server/sessions/workflow';
+import { FormProblem } from '$lib/server/studies/records';
 import type { Actions, PageServerLoad, RequestEvent } from './$types';
 
 export const load: PageServerLoad = async (event) => {

@@ -1,7 +1,7 @@
 // One trial: its runs, residual analysis on request, and the form action that starts a run (also used by the session page).
 import { fail, redirect } from '@sveltejs/kit';
-import { loadTrialPage, sessionOfTrial, startRun } from '$lib/server/runs';
-import { FormProblem } from '$lib/server/study-records';
+import { loadTrialPage, sessionOfTrial, startRun } from '$lib/server/runs/runs';
+import { FormProblem } from '$lib/server/studies/records';
 import type { Actions, PageServerLoad, RequestEvent } from './$types';
 
 export const load: PageServerLoad = async (event) => loadTrialPage(event, event.params.id, event.params.tid);

@@ -1,9 +1,9 @@
 // A participant's consent for the study team: state and history (no personal data); invitations for PI and
 // technicians; after a withdrawal, the PI's keep/exclude decision on each flagged run.
 import { fail, redirect, type RequestEvent } from '@sveltejs/kit';
-import { consentOverview, sendConsentLink } from '$lib/server/consent-workflow';
-import { decideFlaggedRun } from '$lib/server/run-flags';
-import { FormProblem } from '$lib/server/study-records';
+import { consentOverview, sendConsentLink } from '$lib/server/consent/workflow';
+import { decideFlaggedRun } from '$lib/server/runs/flags';
+import { FormProblem } from '$lib/server/studies/records';
 import type { Actions, PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async (event) => ({

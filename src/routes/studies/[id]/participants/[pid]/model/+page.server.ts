@@ -1,6 +1,6 @@
 // A participant's scaled segment model: parameters, drawing and the comparison of tables (research data only).
 import { scaleLimbs, compareTables, ScalingError, SEGMENT_TABLES, SEGMENT_TABLE_IDS, LIMBS, type Limb, type SegmentTableId, type ParticipantBody } from '$lib/anthropometry';
-import { segmentModelInput } from '$lib/server/participants';
+import { segmentModelInput } from '$lib/server/participants/records';
 import type { PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async (event) => {

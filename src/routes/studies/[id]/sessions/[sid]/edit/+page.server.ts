@@ -1,7 +1,7 @@
 // Change a session's record and set-up while it is a draft or returned.
 import { fail, redirect } from '@sveltejs/kit';
-import { editSession, editSessionForm, formValuesFrom } from '$lib/server/sessions';
-import { FormProblem } from '$lib/server/study-records';
+import { editSession, editSessionForm, formValuesFrom } from '$lib/server/sessions/sessions';
+import { FormProblem } from '$lib/server/studies/records';
 import type { Actions, PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async (event) => ({

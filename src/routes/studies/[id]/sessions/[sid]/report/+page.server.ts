@@ -1,9 +1,9 @@
 // The printable report of a session (any state; marked as a draft unless approved).
-import { guardStudy } from '$lib/server/study-records';
-import { sessionIn } from '$lib/server/sessions';
-import { exportTrials } from '$lib/server/session-export';
-import { approvalOf } from '$lib/server/session-workflow';
-import { includeEdgeZonesOf, seriesOfRun, summaryRows, summaryScope } from '$lib/server/runs';
+import { guardStudy } from '$lib/server/studies/records';
+import { sessionIn } from '$lib/server/sessions/sessions';
+import { exportTrials } from '$lib/server/sessions/export';
+import { approvalOf } from '$lib/server/sessions/workflow';
+import { includeEdgeZonesOf, seriesOfRun, summaryRows, summaryScope } from '$lib/server/runs/runs';
 import { edgeZoneView } from '$lib/processing/zone-exclusion';
 import { Participant, Run } from '$lib/server/db/models';
 import type { PageServerLoad } from './$types';

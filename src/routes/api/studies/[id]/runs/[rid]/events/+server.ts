@@ -1,7 +1,7 @@
 // GET: a run's cycle events. POST (JSON {times, source, rule} or a form with `times`): replaces them; 400 with
 // messages per field, 409 on an approved session. A plain form post is sent back to the session page.
 import { json, redirect } from '@sveltejs/kit';
-import { EventsProblem, readRunEvents, saveRunEvents } from '$lib/server/review';
+import { EventsProblem, readRunEvents, saveRunEvents } from '$lib/server/review/review';
 import type { RequestHandler } from './$types';
 
 export const GET: RequestHandler = async (event) => json(await readRunEvents(event, event.params.id, event.params.rid));

@@ -1,5 +1,5 @@
 // GET /api/studies/[id]/sessions/[sid]/export: the approved session as a ZIP (results.csv, provenance.json, README.txt, raw/).
-import { exportSession } from '$lib/server/session-export';
+import { exportSession } from '$lib/server/sessions/export';
 import type { RequestHandler } from './$types';
 
 export const GET: RequestHandler = (event) => exportSession(event, event.params.id, event.params.sid);

@@ -1,8 +1,8 @@
 // Trial upload: a streamed multipart body (one or several files); JSON answers per file, or for a plain form
 // post without JavaScript a 303 back to the session page with the outcome in a short-lived cookie.
 import { json, redirect } from '@sveltejs/kit';
-import { receiveTrials } from '$lib/server/uploads';
-import { flashCookieName, encodeFlash } from '$lib/server/upload-flash';
+import { receiveTrials } from '$lib/server/trials/uploads';
+import { flashCookieName, encodeFlash } from '$lib/server/trials/upload-flash';
 import type { RequestHandler } from './$types';
 
 export const POST: RequestHandler = async (event) => {

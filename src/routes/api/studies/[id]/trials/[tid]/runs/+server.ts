@@ -1,7 +1,7 @@
 // POST: starts a run of the trial with JSON options ({ cutoffHz, perChannelCutoffHz, fillGaps, gravity }); 201 with the run.
 import { json } from '@sveltejs/kit';
-import { jsonBody, startRun } from '$lib/server/runs';
-import { FormProblem } from '$lib/server/study-records';
+import { jsonBody, startRun } from '$lib/server/runs/runs';
+import { FormProblem } from '$lib/server/studies/records';
 import type { RequestHandler } from './$types';
 
 export const POST: RequestHandler = async (event) => {

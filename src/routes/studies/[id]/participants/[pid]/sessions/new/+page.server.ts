@@ -1,7 +1,7 @@
 // New session for a participant: the visit, the limbs and their bases, the table and loads; needs valid consent.
 import { fail, redirect } from '@sveltejs/kit';
-import { createSession, formValuesFrom, newSessionForm } from '$lib/server/sessions';
-import { FormProblem } from '$lib/server/study-records';
+import { createSession, formValuesFrom, newSessionForm } from '$lib/server/sessions/sessions';
+import { FormProblem } from '$lib/server/studies/records';
 import type { Actions, PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async (event) => ({

@@ -1,8 +1,8 @@
 // Consent and withdrawal links: 32 random bytes sent once by e-mail, only their SHA-256 hash stored.
 import { randomBytes } from 'node:crypto';
 import { QueryTypes, type Transaction } from 'sequelize';
-import { db } from './db/index';
-import { hashToken } from './tokens';
+import { db } from '../db/index';
+import { hashToken } from '../auth/tokens';
 
 /** A consent link works for 14 days; a withdrawal link has no end (people may withdraw at any time). */
 export const CONSENT_LINK_LIFETIME_MS = 14 * 24 * 3600_000;

@@ -2,10 +2,10 @@
 import type { RequestEvent } from '@sveltejs/kit';
 import { error } from '@sveltejs/kit';
 import { QueryTypes, type Transaction } from 'sequelize';
-import { db } from './db/index';
-import { record } from './audit';
-import { isUuid } from './studies';
-import { contextOf, FormProblem, guardStudy } from './study-records';
+import { db } from '../db/index';
+import { record } from '../audit/record';
+import { isUuid } from '../studies/studies';
+import { contextOf, FormProblem, guardStudy } from '../studies/records';
 
 export type FlagDecision = 'keep' | 'exclude';
 

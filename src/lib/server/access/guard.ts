@@ -1,8 +1,8 @@
 // The one access check: may this person do this action to a record of that study? Default deny.
 import { error, redirect, type RequestEvent } from '@sveltejs/kit';
-import { db } from './db/index';
-import { User, StudyMember, type StudyRole } from './db/models';
-import { record } from './audit';
+import { db } from '../db/index';
+import { User, StudyMember, type StudyRole } from '../db/models';
+import { record } from '../audit/record';
 
 export interface Actor {
 	id: string;

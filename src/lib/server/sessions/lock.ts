@@ -1,8 +1,8 @@
 // The lock of an approved session: every route that changes a session, its trials, runs or review data calls this.
 import { error } from '@sveltejs/kit';
 import type { Transaction } from 'sequelize';
-import { db } from './db/index';
-import { Session, type SessionState } from './db/models';
+import { db } from '../db/index';
+import { Session, type SessionState } from '../db/models';
 
 export const LOCKED_STATES: readonly SessionState[] = ['approved'];
 

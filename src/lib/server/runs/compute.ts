@@ -1,10 +1,10 @@
 // One run's computation without I/O: session model + recording + options → the rows we store (series as bytes, summary, model record).
 import os from 'node:os';
 import { decodeFloat64, encodeFloat64 } from './results-codec';
-import { buildSessionModel, type SessionModel, type SessionSetup } from '../processing/session-model';
-import { NonFiniteResultError, runPipeline, type PipelineResult, type RunOptions } from '../processing/pipeline';
-import type { Recording } from '../processing/recording';
-import type { ParticipantBody } from '../anthropometry/scale';
+import { buildSessionModel, type SessionModel, type SessionSetup } from '../../processing/session-model';
+import { NonFiniteResultError, runPipeline, type PipelineResult, type RunOptions } from '../../processing/pipeline';
+import type { Recording } from '../../processing/recording';
+import type { ParticipantBody } from '../../anthropometry/scale';
 
 export type SeriesQuantity = 'time' | 'angle' | 'velocity' | 'acceleration' | 'moment' | 'moment_per_kg' | 'power' | 'reaction_force';
 

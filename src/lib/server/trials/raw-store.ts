@@ -1,7 +1,7 @@
 // Raw uploads kept byte for byte in PostgreSQL: written in ~1 MiB chunks as a file streams in, read back one chunk at a time.
 import { createHash } from 'node:crypto';
 import { QueryTypes, type Transaction } from 'sequelize';
-import { db } from './db/index';
+import { db } from '../db/index';
 
 /** Size of one stored chunk; a file is split at these boundaries whatever the network's packet sizes were. */
 export const RAW_CHUNK_BYTES = 1024 * 1024;

@@ -1,7 +1,7 @@
 // Writes to the append-only audit log; every security- or data-relevant action calls record().
 import type { Transaction } from 'sequelize';
-import { db } from './db/index';
-import { AuditEvent } from './db/models';
+import { db } from '../db/index';
+import { AuditEvent } from '../db/models';
 
 export interface AuditEntry {
 	action: string;

@@ -1,20 +1,20 @@
 // Sessions of a participant (one visit): date, operator, task, conditions and the model set-up, created only
 // with valid consent; the set-up form is checked by the session model's own schema, field by field.
-import { isLocked, refuseIfLocked } from './session-lock';
+import { isLocked, refuseIfLocked } from './lock';
 import type { RequestEvent } from '@sveltejs/kit';
 import { error } from '@sveltejs/kit';
 import type { Transaction } from 'sequelize';
 import { z } from 'zod';
-import { db } from './db/index';
-import { MappingPreset, Participant, ParticipantLength, Session, Trial, type SessionState } from './db/models';
-import { may } from './access';
-import { record } from './audit';
-import { isUuid } from './studies';
-import { contextOf, FormProblem, guardStudy } from './study-records';
-import { consentStateOf, requireValidConsent, CONSENT_STATE_LABEL } from './consent';
-import { LIMBS, type ParticipantBody } from '../anthropometry/scale';
-import { SEGMENT_TABLES, SEGMENT_TABLE_IDS, type SegmentTableId } from '../anthropometry/tables';
-import { buildSessionModel, LOAD_SEGMENTS, sessionSetupSchema, type SessionSetup } from '../processing/session-model';
+import { db } from '../db/index';
+import { MappingPreset, Participant, ParticipantLength, Session, Trial, type SessionState } from '../db/models';
+import { may } from '../access/guard';
+import { record } from '../audit/record';
+import { isUuid } from '../studies/studies';
+import { contextOf, FormProblem, guardStudy } from '../studies/records';
+import { consentStateOf, requireValidConsent, CONSENT_STATE_LABEL } from '../consent/check';
+import { LIMBS, type ParticipantBody } from '../../anthropometry/scale';
+import { SEGMENT_TABLES, SEGMENT_TABLE_IDS, type SegmentTableId } from '../../anthropometry/tables';
+import { buildSessionModel, LOAD_SEGMENTS, sessionSetupSchema, type SessionSetup } from '../../processing/session-model';
 
 /** States in which the session's record and trials may still change (approved sessions are locked). */
 export const EDITABLE_STATES: readonly SessionState[] = ['draft', 'returned'];

@@ -1,8 +1,8 @@
 // Single-use e-mailed links (invitations, password resets): random tokens of which only a SHA-256 hash is stored.
 import { createHash, randomBytes } from 'node:crypto';
 import { Op, type Transaction } from 'sequelize';
-import { db } from './db/index';
-import { OneTimeToken } from './db/models';
+import { db } from '../db/index';
+import { OneTimeToken } from '../db/models';
 
 export type TokenPurpose = OneTimeToken['purpose'];
 

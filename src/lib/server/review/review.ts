@@ -5,17 +5,17 @@ import type { RequestEvent } from '@sveltejs/kit';
 import { error } from '@sveltejs/kit';
 import { QueryTypes } from 'sequelize';
 import { z } from 'zod';
-import { db } from './db/index';
-import { record } from './audit';
-import { assertSessionUnlocked } from './session-lock';
-import { isUuid } from './studies';
-import { contextOf, guardStudy } from './study-records';
-import { may } from './access';
-import { includeEdgeZonesOf, runIn, SERIES_QUANTITIES, storedSeries, timeOfRun, type ResultQuantity } from './runs';
-import { sessionIn } from './sessions';
-import { reduceForPlot } from '../processing/reduce';
-import { cyclePeaks, eventProblems, meanSd, meanSdOf, normaliseCycles } from '../processing/cycles';
-import { reliableSpan, repetitionsInEdgeZone, type EdgeZoneView } from '../processing/zone-exclusion';
+import { db } from '../db/index';
+import { record } from '../audit/record';
+import { assertSessionUnlocked } from '../sessions/lock';
+import { isUuid } from '../studies/studies';
+import { contextOf, guardStudy } from '../studies/records';
+import { may } from '../access/guard';
+import { includeEdgeZonesOf, runIn, SERIES_QUANTITIES, storedSeries, timeOfRun, type ResultQuantity } from '../runs/runs';
+import { sessionIn } from '../sessions/sessions';
+import { reduceForPlot } from '../../processing/reduce';
+import { cyclePeaks, eventProblems, meanSd, meanSdOf, normaliseCycles } from '../../processing/cycles';
+import { reliableSpan, repetitionsInEdgeZone, type EdgeZoneView } from '../../processing/zone-exclusion';
 
 // ---------------------------------------------------------------------------------------------- compact numbers
 

@@ -4,12 +4,12 @@ import type { RequestEvent } from '@sveltejs/kit';
 import { createHash } from 'node:crypto';
 import Papa from 'papaparse';
 import { UniqueConstraintError } from 'sequelize';
-import { db } from './db/index';
-import { Participant, ParticipantPersonal, Study } from './db/models';
-import { may } from './access';
-import { record } from './audit';
-import { contextOf, guardStudy } from './study-records';
-import { formatCode, participantSchema, prefixOf, type ParticipantInput } from './participants';
+import { db } from '../db/index';
+import { Participant, ParticipantPersonal, Study } from '../db/models';
+import { may } from '../access/guard';
+import { record } from '../audit/record';
+import { contextOf, guardStudy } from '../studies/records';
+import { formatCode, participantSchema, prefixOf, type ParticipantInput } from './records';
 
 /**
  * Largest file accepted. The Node adapter refuses request bodies over BODY_SIZE_LIMIT (512 KB unless set) before

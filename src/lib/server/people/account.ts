@@ -1,14 +1,14 @@
 // The signed-in person's own account: what the account page shows, and changing one's password (audited).
 import type { RequestEvent } from '@sveltejs/kit';
-import { db } from './db/index';
-import { User } from './db/models';
-import { requireActor } from './access';
-import { record } from './audit';
-import { hashPassword, passwordProblem, verifyPassword } from './auth/password';
-import { checkThrottle, recordFailure } from './auth/rate-limit';
-import { signOutEverywhere } from './people';
-import { enqueueMail } from './jobs/queue';
-import { rolesOf } from './studies';
+import { db } from '../db/index';
+import { User } from '../db/models';
+import { requireActor } from '../access/guard';
+import { record } from '../audit/record';
+import { hashPassword, passwordProblem, verifyPassword } from '../auth/password';
+import { checkThrottle, recordFailure } from '../auth/rate-limit';
+import { signOutEverywhere } from './manage';
+import { enqueueMail } from '../jobs/queue';
+import { rolesOf } from '../studies/studies';
 
 export interface AccountOverview {
 	name: string | null;

@@ -1,7 +1,7 @@
 // Consent state of a participant and the server-side rule that work needs valid consent (shared contract).
 import { error } from '@sveltejs/kit';
 import { QueryTypes, type Transaction } from 'sequelize';
-import { db } from './db/index';
+import { db } from '../db/index';
 
 export type ConsentState = 'not_invited' | 'invited' | 'consented' | 'declined' | 'withdrawn' | 'expired';
 export type ConsentWork = 'upload' | 'run' | 'approval' | 'session';

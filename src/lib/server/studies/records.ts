@@ -2,14 +2,14 @@
 import type { RequestEvent } from '@sveltejs/kit';
 import { error } from '@sveltejs/kit';
 import { z } from 'zod';
-import { db } from './db/index';
-import { ConsentFormVersion, Study } from './db/models';
-import { requireStudy, type StudyAction } from './access';
-import { record } from './audit';
+import { db } from '../db/index';
+import { ConsentFormVersion, Study } from '../db/models';
+import { requireStudy, type StudyAction } from '../access/guard';
+import { record } from '../audit/record';
 import { isUuid } from './studies';
-import { renderMarkdown } from './markdown';
+import { renderMarkdown } from '../consent/markdown';
 
-import { SEGMENT_TABLE_IDS, type SegmentTableId } from '../anthropometry/tables';
+import { SEGMENT_TABLE_IDS, type SegmentTableId } from '../../anthropometry/tables';
 
 // the segment tables a study may choose are the ones the anthropometry module publishes
 export const TABLE_IDS = SEGMENT_TABLE_IDS as [SegmentTableId, ...SegmentTableId[]];

@@ -1,10 +1,10 @@
 // Reading the audit log (administrators only): URL filters, pages of 50 newest first, CSV export. Writing is audit.ts.
 import type { RequestEvent } from '@sveltejs/kit';
 import { Op, QueryTypes, type WhereOptions } from 'sequelize';
-import { db } from './db/index';
-import { AuditEvent, Study, User } from './db/models';
-import { requireLab } from './access';
-import { record } from './audit';
+import { db } from '../db/index';
+import { AuditEvent, Study, User } from '../db/models';
+import { requireLab } from '../access/guard';
+import { record } from './record';
 
 export const PAGE_SIZE = 50;
 export const OUTCOMES = ['ok', 'denied', 'failed'] as const;

@@ -1,9 +1,9 @@
 // Studies as people see them: the list of one's studies and one study's team, each read behind the access check.
 import type { RequestEvent } from '@sveltejs/kit';
 import { error } from '@sveltejs/kit';
-import { db } from './db/index';
-import { Participant, Study, StudyMember, User, type StudyRole } from './db/models';
-import { may, requireActor, requireStudy, type Actor } from './access';
+import { db } from '../db/index';
+import { Participant, Study, StudyMember, User, type StudyRole } from '../db/models';
+import { may, requireActor, requireStudy, type Actor } from '../access/guard';
 
 /** The words the UI uses for each role (one name per idea: the stored value stays 'pi', 'researcher', 'technician'). */
 export const ROLE_LABELS: Record<StudyRole, string> = {

@@ -1,6 +1,6 @@
 // Reads the lab this installation serves (shown in the shell and on the home page).
-import { db } from './db/index';
-import { Lab } from './db/models';
+import { db } from '../db/index';
+import { Lab } from '../db/models';
 
 export interface LabSummary {
 	name: string;

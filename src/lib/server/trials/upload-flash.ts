@@ -1,6 +1,6 @@
 // The outcome of a plain (no-JavaScript) upload form post, carried to the session page in a short-lived cookie.
 import type { UploadOutcome } from './uploads';
-import type { ColumnMapping } from '../processing/recording';
+import type { ColumnMapping } from '../../processing/recording';
 
 export const flashCookieName = 'momentry-upload';
 

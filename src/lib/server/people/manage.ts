@@ -1,15 +1,15 @@
 // People and their accounts: what the account pages and the people pages change, each change audited.
 import type { RequestEvent } from '@sveltejs/kit';
 import { Op, fn, col, type Transaction, type WhereOptions } from 'sequelize';
-import { db } from './db/index';
-import { OneTimeToken, Study, StudyMember, User, type StudyRole } from './db/models';
-import { may, type Actor } from './access';
-import { record } from './audit';
-import { config } from './config';
-import { currentLab } from './lab';
-import { sendMail } from './mail/index';
-import { hashPassword, passwordProblem } from './auth/password';
-import { consume, inspectToken, issueToken, TOKEN_LIFETIME_MS, type TokenRefusal } from './tokens';
+import { db } from '../db/index';
+import { OneTimeToken, Study, StudyMember, User, type StudyRole } from '../db/models';
+import { may, type Actor } from '../access/guard';
+import { record } from '../audit/record';
+import { config } from '../config';
+import { currentLab } from '../studies/lab';
+import { sendMail } from '../mail/index';
+import { hashPassword, passwordProblem } from '../auth/password';
+import { consume, inspectToken, issueToken, TOKEN_LIFETIME_MS, type TokenRefusal } from '../auth/tokens';
 
 /** Every session of the account stops working at its next request (they carry the old version number). */
 export async function signOutEverywhere(userId: string, transaction?: Transaction): Promise<void> {

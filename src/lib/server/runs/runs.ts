@@ -9,27 +9,27 @@ import path from 'node:path';
 import { Worker } from 'node:worker_threads';
 import { QueryTypes, type Transaction } from 'sequelize';
 import { z } from 'zod';
-import { db } from './db/index';
-import { Run, RunSeries, type RunState, type SessionState } from './db/models';
-import { participantBodyOf } from './sessions';
-import { record } from './audit';
-import { requireValidConsent } from './consent';
-import { enqueueRun } from './jobs/queue';
-import { readRaw } from './raw-store';
-import { assertSessionUnlocked, refuseIfLocked } from './session-lock';
-import { isUuid } from './studies';
-import { contextOf, FormProblem, guardStudy } from './study-records';
-import { may } from './access';
+import { db } from '../db/index';
+import { Run, RunSeries, type RunState, type SessionState } from '../db/models';
+import { participantBodyOf } from '../sessions/sessions';
+import { record } from '../audit/record';
+import { requireValidConsent } from '../consent/check';
+import { enqueueRun } from '../jobs/queue';
+import { readRaw } from '../trials/raw-store';
+import { assertSessionUnlocked, refuseIfLocked } from '../sessions/lock';
+import { isUuid } from '../studies/studies';
+import { contextOf, FormProblem, guardStudy } from '../studies/records';
+import { may } from '../access/guard';
 import { component, decodeFloat64 } from './results-codec';
-import { reduceForPlot } from '../processing/reduce';
-import { assertStorable, computeRun, type ComputedRun, type SeriesRow } from './run-compute';
-import type { RunThreadInput, RunThreadMessage } from './jobs/run-thread-types';
-import { buildSessionModel, sessionSetupSchema, type SessionSetup } from '../processing/session-model';
-import { runOptionsSchema, storedRunOptions, type RunOptions, type SummaryRow, type SummaryStats } from '../processing/pipeline';
-import { edgeZoneView, type EdgeZoneView } from '../processing/zone-exclusion';
-import { parseRecording, columnMappingSchema, type Recording, type Problem } from '../processing/recording';
-import { residualAnalysis } from '../processing/signal';
-import type { ParticipantBody } from '../anthropometry/scale';
+import { reduceForPlot } from '../../processing/reduce';
+import { assertStorable, computeRun, type ComputedRun, type SeriesRow } from './compute';
+import type { RunThreadInput, RunThreadMessage } from '../jobs/run-thread-types';
+import { buildSessionModel, sessionSetupSchema, type SessionSetup } from '../../processing/session-model';
+import { runOptionsSchema, storedRunOptions, type RunOptions, type SummaryRow, type SummaryStats } from '../../processing/pipeline';
+import { edgeZoneView, type EdgeZoneView } from '../../processing/zone-exclusion';
+import { parseRecording, columnMappingSchema, type Recording, type Problem } from '../../processing/recording';
+import { residualAnalysis } from '../../processing/signal';
+import type { ParticipantBody } from '../../anthropometry/scale';
 
 // ---------------------------------------------------------------------------------------------- provenance
 
@@ -695,7 +695,7 @@ function computeInThread(input: RunThreadInput, onProgress: (fraction: number, s
 	// bundler does not try to bundle the thread (the app never processes runs)
 	// (Node 20 does not pass the parent's tsx loader on to threads: the plain .mjs entry registers it)
 	const file = ['run-thread-boot', 'mjs'].join('.');
-	const url = new URL(`./jobs/${file}`, import.meta.url);
+	const url = new URL(`../jobs/${file}`, import.meta.url);
 	return new Promise((resolve, reject) => {
 		const w = new Worker(url, { workerData: input });
 		let settled = false;

@@ -2,12 +2,12 @@
 import type { RequestEvent } from '@sveltejs/kit';
 import { UniqueConstraintError } from 'sequelize';
 import { z } from 'zod';
-import { db } from './db/index';
-import { MappingPreset } from './db/models';
-import { record } from './audit';
-import { contextOf, FormProblem, guardStudy } from './study-records';
-import { columnMappingSchema } from '../processing/recording';
-import type { PresetView } from './sessions';
+import { db } from '../db/index';
+import { MappingPreset } from '../db/models';
+import { record } from '../audit/record';
+import { contextOf, FormProblem, guardStudy } from '../studies/records';
+import { columnMappingSchema } from '../../processing/recording';
+import type { PresetView } from '../sessions/sessions';
 
 const view = (m: MappingPreset): PresetView => ({ id: m.id, name: m.name, mapping: m.mapping, createdAt: m.createdAt.toISOString() });
 
