@@ -1,4 +1,5 @@
-// `npm test`: a throw-away PostgreSQL and maildev, a fresh build, vitest then Playwright; prints "N passed, N failed".
+// `npm test`: svelte-check, ESLint and Prettier, then a throw-away PostgreSQL and maildev, a fresh build, vitest then Playwright;
+// prints "N passed, N failed".
 import { spawnSync } from 'node:child_process';
 import { randomBytes } from 'node:crypto';
 import fs from 'node:fs';
@@ -18,6 +19,8 @@ const vitestFiles = files.filter((f) => f.endsWith('.test.ts'));
 const e2eFiles = files.filter((f) => f.endsWith('.spec.ts'));
 const only = (name: 'vitest' | 'e2e') =>
 	args.length === 0 || args.includes(name) || (name === 'vitest' ? vitestFiles.length > 0 : e2eFiles.length > 0);
+/** Types, lint and formatting are checked by a full `npm test` only, not when a runner or some files are named. */
+const staticChecks = args.length === 0;
 
 interface Counts {
 	passed: number;
@@ -28,6 +31,38 @@ interface Counts {
 function run(cmd: string[], env: NodeJS.ProcessEnv): number {
 	const r = spawnSync(cmd[0], cmd.slice(1), { stdio: 'inherit', env });
 	return r.status ?? 1;
+}
+
+/**
+ * The checks that need neither a database nor a build, each counted as one test: svelte-check (types, after
+ * `svelte-kit sync` as `npm run check` does), ESLint and `prettier --check` (as `npm run lint`). Their output is shown as
+ * they print it; returns one line per check for the end of the run.
+ */
+function runStaticChecks(total: Counts): string[] {
+	// each step is a script under node_modules run with this Node; a check passes when all its steps do, in order
+	const checks: { name: string; steps: string[][]; fix: string }[] = [
+		{
+			name: 'svelte-check',
+			steps: [
+				['node_modules/@sveltejs/kit/svelte-kit.js', 'sync'],
+				['node_modules/svelte-check/bin/svelte-check', '--tsconfig', './tsconfig.json']
+			],
+			fix: 'npm run check'
+		},
+		{ name: 'eslint', steps: [['node_modules/eslint/bin/eslint.js', '.']], fix: 'npx eslint .' },
+		{ name: 'prettier', steps: [['node_modules/prettier/bin/prettier.cjs', '--check', '.']], fix: 'npm run format' }
+	];
+	const lines: string[] = [];
+	for (const check of checks) {
+		log(`${check.name} …`);
+		const started = performance.now();
+		const ok = check.steps.every((step) => run([process.execPath, ...step], process.env) === 0);
+		const seconds = ((performance.now() - started) / 1000).toFixed(1);
+		if (ok) total.passed += 1;
+		else total.failed += 1;
+		lines.push(ok ? `${check.name}: passed (${seconds} s)` : `${check.name}: FAILED (${seconds} s), counted as one failure; see its output above, or run: ${check.fix}`);
+	}
+	return lines;
 }
 
 function readJson(file: string): Record<string, unknown> | null {
@@ -66,7 +101,9 @@ async function main(): Promise<number> {
 	let mail: MailSink | null = null;
 	const total: Counts = { passed: 0, failed: 0, skipped: 0 };
 	const runDir = path.join('.test-artifacts', `run-${process.pid}`);
+	let staticResults: string[] = [];
 	try {
+		if (staticChecks) staticResults = runStaticChecks(total);
 		cluster = await startCluster({ dataDir: path.join(tmp, 'pg'), port: await freePort(), database: 'momentry_e2e', ephemeral: true, quiet: true, log });
 		mail = await startMaildev({ smtpPort: await freePort(), webPort: await freePort(), quiet: true });
 		log(`PostgreSQL on port ${cluster.port}, maildev on ${mail.smtpUrl} / ${mail.webUrl}`);
@@ -131,6 +168,7 @@ async function main(): Promise<number> {
 		if (cluster) await cluster.stop();
 		fs.rmSync(tmp, { recursive: true, force: true });
 		fs.rmSync(runDir, { recursive: true, force: true });
+		for (const line of staticResults) log(line);
 		log(`finished in ${((performance.now() - started) / 1000).toFixed(1)} s`);
 		if (total.skipped) log(`${total.skipped} skipped (tests that need an optional tool, e.g. regenerating a fixture with scipy)`);
 		const line = `${total.passed} passed, ${total.failed} failed`;
