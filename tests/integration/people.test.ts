@@ -1,5 +1,7 @@
 // People: single-use tokens, the people list and changes (direct calls on real PostgreSQL), then invitations,
 // password resets and deactivation over HTTP against the built app, with the e-mails read from maildev.
+import { type RequestContext } from '../../src/lib/server/access/context';
+import { FormProblem } from '../../src/lib/server/errors';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { createHash, randomBytes } from 'node:crypto';
 import pg from 'pg';
@@ -10,23 +12,12 @@ import { AuditEvent, OneTimeToken, Study, StudyMember, User } from '../../src/li
 import { loadActor, type Actor } from '../../src/lib/server/access/guard';
 import { closeMail } from '../../src/lib/server/mail/index';
 import { consume, hashToken, inspectToken, issueToken } from '../../src/lib/server/auth/tokens';
-import {
-	deactivatePerson,
-	invitePerson,
-	listPeople,
-	parsePeopleQuery,
-	PeopleProblem,
-	reactivatePerson,
-	requestPasswordReset,
-	setLabAdmin,
-	setStudyRole,
-	type RequestContext
-} from '../../src/lib/server/people/manage';
+import { deactivatePerson, invitePerson, listPeople, parsePeopleQuery, reactivatePerson, requestPasswordReset, setLabAdmin, setStudyRole } from '../../src/lib/server/people/manage';
 import { loadDemoSeed } from '../../seeds/index';
 import { freshDatabase } from './helpers';
 import { DEMO_PASSWORD, PERSONAS, signInAs, startApp, type AppUnderTest } from './app-under-test';
 
-const ctx: RequestContext = { ipAddress: '127.0.0.1', origin: 'http://people.test' };
+const ctx: RequestContext = { ipAddress: '127.0.0.1', origin: 'http://people.test', method: 'TEST', path: '/people' };
 
 interface Mail {
 	subject: string;
@@ -211,7 +202,7 @@ describe('direct calls on a fresh database', () => {
 		it('refuses someone who is not a lab administrator', async () => {
 			const pi = await User.findOne({ where: { email: PERSONAS.piA } });
 			const piActor = (await loadActor(pi!.id, pi!.sessionVersion))!;
-			await expect(listPeople(piActor, q(''))).rejects.toBeInstanceOf(PeopleProblem);
+			await expect(listPeople(piActor, q(''))).rejects.toBeInstanceOf(FormProblem);
 		});
 	});
 
@@ -260,7 +251,7 @@ describe('direct calls on a fresh database', () => {
 
 		it('a refused change leaves no audit row behind', async () => {
 			const count = await AuditEvent.count();
-			await expect(setStudyRole(admin, ctx, '00000000-0000-4000-8000-000000000000', (await Study.findOne())!.id, 'pi')).rejects.toMatchObject({ status: 404 });
+			await expect(setStudyRole(admin, ctx, '00000000-0000-4000-8000-000000000000', (await Study.findOne())!.id, 'pi')).rejects.toMatchObject({ kind: 'not-found' });
 			expect(await AuditEvent.count()).toBe(count);
 		});
 

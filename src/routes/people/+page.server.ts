@@ -1,5 +1,5 @@
 // People list (lab administrators): search, sort and paging from the URL, so every view can be bookmarked.
-import { requireLab } from '$lib/server/access/guard';
+import { requireLab } from '$lib/server/http/edge';
 import { listPeople, parsePeopleQuery, ROLE_LABELS } from '$lib/server/people/manage';
 import type { PageServerLoad } from './$types';
 

@@ -1,7 +1,7 @@
 // The consent form's answers: every confirmation ticked, a typed name, and a date of today ± 1 day.
+import { FormProblem } from '../../../src/lib/server/errors';
 import { describe, expect, it } from 'vitest';
 import { parseConsentAnswers } from '../../../src/lib/server/consent/workflow';
-import { FormProblem } from '../../../src/lib/server/studies/records';
 
 const form = (fields: Record<string, string>) => {
 	const f = new FormData();

@@ -1,8 +1,9 @@
 // The one access check: may this person do this action to a record of that study? Default deny.
-import { error, redirect, type RequestEvent } from '@sveltejs/kit';
 import { db } from '../db/index';
 import { User, StudyMember, type StudyRole } from '../db/models';
 import { record } from '../audit/record';
+import { forbidden, notFound, unauthenticated } from '../errors';
+import type { RequestContext } from './context';
 
 export interface Actor {
 	id: string;
@@ -61,42 +62,39 @@ export async function loadActor(userId: string | undefined, sessionVersion: numb
 	return { id: user.id, email: user.email, name: user.name, isAdmin: user.isAdmin, roles: new Map(members.map((m) => [m.studyId, m.role])) };
 }
 
-async function deny(event: RequestEvent, action: string, studyId: string | null, status: 403 | 404): Promise<never> {
-	const actor = event.locals.actor;
+async function deny(actor: Actor | null, ctx: RequestContext, action: string, studyId: string | null, kind: 'not-found' | 'forbidden'): Promise<never> {
 	await record({
 		action: 'access.denied',
 		actorUserId: actor?.id ?? null,
 		actorLabel: actor?.email ?? 'anonymous',
 		outcome: 'denied',
 		studyId,
-		ipAddress: event.getClientAddress(),
-		details: { attempted: action, path: event.url.pathname, method: event.request.method, answered: status }
+		ipAddress: ctx.ipAddress,
+		details: { attempted: action, path: ctx.path, method: ctx.method, answered: kind === 'not-found' ? 404 : 403 }
 	});
-	error(status, status === 404 ? 'Not found' : 'You do not have permission to do this.');
+	throw kind === 'not-found' ? notFound() : forbidden();
 }
 
-/** Requires a signed-in person: pages redirect to sign-in, API routes answer 401. */
-export function requireActor(event: RequestEvent): Actor {
-	const actor = event.locals.actor;
-	if (actor) return actor;
-	if (event.url.pathname.startsWith('/api/')) error(401, 'Sign in first.');
-	redirect(303, `/signin?next=${encodeURIComponent(event.url.pathname + event.url.search)}`);
-}
-
-/** Guards a lab-wide action (administrators only). */
-export async function requireLab(event: RequestEvent, action: LabAction): Promise<Actor> {
-	const actor = requireActor(event);
-	if (!may(actor, action)) await deny(event, action, null, 403);
+/** Requires a signed-in person (the edge sends pages to sign-in and answers the API with 401). */
+export function requireActor(actor: Actor | null): Actor {
+	if (!actor) throw unauthenticated();
 	return actor;
+}
+
+/** Guards a lab-wide action (administrators only); a denial is audited. */
+export async function guardLab(actor: Actor | null, ctx: RequestContext, action: LabAction): Promise<Actor> {
+	const a = requireActor(actor);
+	if (!may(a, action)) await deny(a, ctx, action, null, 'forbidden');
+	return a;
 }
 
 /**
- * Guards an action on a record of `studyId`. Someone with no role in the study gets 404, so that the
- * record's existence does not leak; a member whose role does not allow it gets 403.
+ * Guards an action on a record of `studyId`. Someone with no role in the study gets not-found, so that the
+ * record's existence does not leak; a member whose role does not allow it gets forbidden. Denials are audited.
  */
-export async function requireStudy(event: RequestEvent, action: StudyAction, studyId: string | null | undefined): Promise<Actor> {
-	const actor = requireActor(event);
-	if (!studyId || !actor.roles.has(studyId)) await deny(event, action, studyId ?? null, 404);
-	if (!may(actor, action, studyId!)) await deny(event, action, studyId!, 403);
-	return actor;
+export async function guardStudyAction(actor: Actor | null, ctx: RequestContext, action: StudyAction, studyId: string | null | undefined): Promise<Actor> {
+	const a = requireActor(actor);
+	if (!studyId || !a.roles.has(studyId)) await deny(a, ctx, action, studyId ?? null, 'not-found');
+	if (!may(a, action, studyId!)) await deny(a, ctx, action, studyId!, 'forbidden');
+	return a;
 }

@@ -3,7 +3,7 @@ import type { RequestEvent } from '@sveltejs/kit';
 import { Op, QueryTypes, type WhereOptions } from 'sequelize';
 import { db } from '../db/index';
 import { AuditEvent, Study, User } from '../db/models';
-import { requireLab } from '../access/guard';
+import { requireLab } from '../http/edge';
 import { record } from './record';
 
 export const PAGE_SIZE = 50;

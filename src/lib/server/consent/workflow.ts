@@ -1,5 +1,7 @@
 // The e-mailed consent workflow: invitations, resends and reminders by staff; consent, decline and withdrawal by
 // the participant through single-use links; each state change written with its history row and audit event.
+import { FormProblem } from '../errors';
+import { contextOf } from '../http/edge';
 import type { RequestEvent } from '@sveltejs/kit';
 import { error } from '@sveltejs/kit';
 import { QueryTypes, type Transaction } from 'sequelize';
@@ -12,7 +14,7 @@ import { isUuid } from '../studies/studies';
 import { renderMarkdown } from './markdown';
 import { currentLab } from '../studies/lab';
 import { sendMail } from '../mail/index';
-import { contextOf, FormProblem, guardStudy } from '../studies/records';
+import { guardStudy } from '../studies/records';
 import { CONSENT_STATE_LABEL, STATE_SQL, type ConsentState } from './check';
 import { checkLink, CONSENT_LINK_LIFETIME_DAYS, issueLink, markLinksMailed, markLinkUsed, revokeOpenConsentLinks, type LinkKind, type LinkRefusal } from './links';
 import { flagRunsOfParticipant, listFlaggedRuns } from '../runs/flags';
@@ -285,19 +287,19 @@ const SEND_WORD: Record<SendKind, string> = { invitation: 'invitation', resend: 
 export async function sendConsentLink(event: RequestEvent, rawId: string, rawPid: string, kind: SendKind): Promise<SendOutcome> {
 	const { actor, study } = await guardStudy(event, 'consent.invite', rawId);
 	const target = await participantOfStudy(study.id, rawPid);
-	const ip = contextOf(event).ip;
+	const ip = contextOf(event).ipAddress;
 	const prepared = await db().transaction(async (t) => {
 		const p = await settleExpiry(t, await lockParticipant(t, target.id));
 		const personal = await personalOf(p.id, t);
 		if (!personal.email) {
-			throw new FormProblem({ form: `${p.code} has no e-mail address in their personal data. Add one on the participant page, then send the ${SEND_WORD[kind]}.` }, 409);
+			throw new FormProblem({ form: `${p.code} has no e-mail address in their personal data. Add one on the participant page, then send the ${SEND_WORD[kind]}.` }, 'conflict');
 		}
 		const form = await currentFormVersion(study.id, t);
-		if (!form) throw new FormProblem({ form: 'This study has no consent form yet. The principal investigator publishes one under “Consent forms” first.' }, 409);
+		if (!form) throw new FormProblem({ form: 'This study has no consent form yet. The principal investigator publishes one under “Consent forms” first.' }, 'conflict');
 		if (!SEND_ALLOWED[kind].includes(p.state)) {
 			const hint =
 				kind === 'invitation' ? (p.state === 'invited' ? 'An invitation is open: send a reminder or a new link instead.' : 'There is nothing to invite to.') : 'Send an invitation instead.';
-			throw new FormProblem({ form: `${p.code} is ${CONSENT_STATE_LABEL[p.state]}: a ${SEND_WORD[kind]} cannot be sent now. ${hint}` }, 409);
+			throw new FormProblem({ form: `${p.code} is ${CONSENT_STATE_LABEL[p.state]}: a ${SEND_WORD[kind]} cannot be sent now. ${hint}` }, 'conflict');
 		}
 		const superseded = await revokeOpenConsentLinks(t, p.id);
 		const consentLink = await issueLink(t, { participantId: p.id, purpose: 'consent', kind, formVersionId: form.id, sentBy: actor.id });
@@ -450,7 +452,7 @@ export class ReReadProblem extends FormProblem {}
  * (so the version recorded is always the one the person read). The link is used up in the decision's transaction.
  */
 export async function decide(event: RequestEvent, token: string, form: FormData, decision: 'consented' | 'declined'): Promise<DecisionOutcome> {
-	const ip = contextOf(event).ip;
+	const ip = contextOf(event).ipAddress;
 	const postedParticipant = String(form.get('participantId') ?? '');
 	const postedVersion = String(form.get('formVersionId') ?? '');
 	// refused links are answered after the transaction, so their audit row is not rolled back with it
@@ -476,7 +478,7 @@ export async function decide(event: RequestEvent, token: string, form: FormData,
 		if (postedVersion !== current.id) {
 			throw new ReReadProblem(
 				{ form: `The consent form was updated to version ${current.version} after you opened this page. Please read the new version below and decide again; nothing has been recorded yet.` },
-				409
+				'conflict'
 			);
 		}
 		const answers = decision === 'consented' ? parseConsentAnswers(form, current.confirmations) : null;
@@ -524,7 +526,7 @@ export async function decide(event: RequestEvent, token: string, form: FormData,
 	});
 	if (wrongParticipant) {
 		await record({ action: 'consent.link.refused', actorLabel: PARTICIPANT_LABEL, outcome: 'denied', recordType: 'participant', recordId: wrongParticipant, ipAddress: ip, details: { reason: 'wrong-participant', posted: postedParticipant.slice(0, 64) } });
-		throw new FormProblem({ form: 'This form does not belong to the link it was sent with, so nothing was recorded. Open the link from your e-mail again.' }, 403);
+		throw new FormProblem({ form: 'This form does not belong to the link it was sent with, so nothing was recorded. Open the link from your e-mail again.' }, 'forbidden');
 	}
 	if (!done) {
 		const r = refusedFor as unknown as { reason: LinkRefusal | 'decided'; participantId: string | null; state?: ConsentState };
@@ -593,7 +595,7 @@ export type WithdrawOutcome = { ok: true; effect: 'withdraw' | 'decline'; mailed
  * work takes a share lock on the participant row), existing runs are flagged for the PI's decision, never deleted.
  */
 export async function withdraw(event: RequestEvent, token: string): Promise<WithdrawOutcome> {
-	const ip = contextOf(event).ip;
+	const ip = contextOf(event).ipAddress;
 	let refusedFor: { reason: LinkRefusal | 'decided'; participantId: string | null; state?: ConsentState } | null = null;
 	const done = await db().transaction(async (t) => {
 		const check = await checkLink('withdraw', token, t);

@@ -1,5 +1,6 @@
 // CSV import of a study's participant list: a dry run that checks every row with the create form's rules and shows
 // the code each row would get, then the import itself in one transaction (every row or none).
+import { contextOf } from '../http/edge';
 import type { RequestEvent } from '@sveltejs/kit';
 import { createHash } from 'node:crypto';
 import Papa from 'papaparse';
@@ -8,7 +9,7 @@ import { db } from '../db/index';
 import { Participant, ParticipantPersonal, Study } from '../db/models';
 import { may } from '../access/guard';
 import { record } from '../audit/record';
-import { contextOf, guardStudy } from '../studies/records';
+import { guardStudy } from '../studies/records';
 import { formatCode, participantSchema, prefixOf, type ParticipantInput } from './records';
 
 /**
@@ -295,7 +296,7 @@ export async function runImport(event: RequestEvent, rawId: string, form: FormDa
 	const check = checkImportText(content, { mayImportPersonal: may(actor, 'participant.personal.edit', study.id) });
 	const meta = { fileName, sizeBytes: Buffer.byteLength(content, 'utf8'), sha256, content };
 	if (!check.ok) return { status: 400, view: viewOf(check, meta, study) };
-	const ip = contextOf(event).ip;
+	const ip = contextOf(event).ipAddress;
 	try {
 		return await db().transaction(async (transaction) => {
 			// the same row lock as adding one participant: imports and additions take turns, codes stay consecutive

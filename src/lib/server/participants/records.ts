@@ -1,5 +1,7 @@
 // Participants of a study: research data for the whole team, personal data (name, e-mail, phone) only for
 // roles allowed 'participant.personal.read'; codes are issued from the study's counter in one transaction.
+import { FormProblem } from '../errors';
+import { contextOf } from '../http/edge';
 import type { RequestEvent } from '@sveltejs/kit';
 import { error } from '@sveltejs/kit';
 import { Op, type WhereOptions } from 'sequelize';
@@ -9,7 +11,7 @@ import { Participant, ParticipantLength, ParticipantPersonal, Study, type Sex } 
 import { may } from '../access/guard';
 import { record } from '../audit/record';
 import { isUuid } from '../studies/studies';
-import { contextOf, fieldErrors, FormProblem, guardStudy } from '../studies/records';
+import { fieldErrors, guardStudy } from '../studies/records';
 import { consentStatesOf } from '../consent/check';
 import { LENGTH_KEYS, participantBodySchema } from '../../anthropometry/scale';
 
@@ -160,7 +162,7 @@ export async function updateResearchFields(event: RequestEvent, rawId: string, r
 				studyId: study.id,
 				recordType: 'participant',
 				recordId: p.id,
-				ipAddress: contextOf(event).ip,
+				ipAddress: contextOf(event).ipAddress,
 				details: { code: p.code, changed, before, after }
 			},
 			transaction
@@ -188,7 +190,7 @@ export async function savePersonal(event: RequestEvent, rawId: string, rawPid: s
 				studyId: study.id,
 				recordType: 'participant',
 				recordId: p.id,
-				ipAddress: contextOf(event).ip,
+				ipAddress: contextOf(event).ipAddress,
 				details: { code: p.code, changed }
 			},
 			transaction
@@ -240,7 +242,7 @@ export async function createParticipant(event: RequestEvent, rawId: string, form
 				studyId: study.id,
 				recordType: 'participant',
 				recordId: p.id,
-				ipAddress: contextOf(event).ip,
+				ipAddress: contextOf(event).ipAddress,
 				// which personal fields were entered, never their values
 				details: { code, personalFields: (['fullName', 'email', 'phone'] as const).filter((k) => input[k] !== null) }
 			},
@@ -292,7 +294,7 @@ export async function readParticipant(event: RequestEvent, rawId: string, rawPid
 			studyId: study.id,
 			recordType: 'participant',
 			recordId: p.id,
-			ipAddress: contextOf(event).ip
+			ipAddress: contextOf(event).ipAddress
 		});
 	}
 	return {
@@ -352,7 +354,7 @@ export async function addLength(event: RequestEvent, rawId: string, rawPid: stri
 				studyId: study.id,
 				recordType: 'participant',
 				recordId: p.id,
-				ipAddress: contextOf(event).ip,
+				ipAddress: contextOf(event).ipAddress,
 				details: { lengthId: l.id, segment: l.segment, lengthM: l.lengthM, measuredOn: l.measuredOn }
 			},
 			transaction

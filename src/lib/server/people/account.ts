@@ -2,7 +2,7 @@
 import type { RequestEvent } from '@sveltejs/kit';
 import { db } from '../db/index';
 import { User } from '../db/models';
-import { requireActor } from '../access/guard';
+import { requireActor } from '../http/edge';
 import { record } from '../audit/record';
 import { hashPassword, passwordProblem, verifyPassword } from '../auth/password';
 import { checkThrottle, recordFailure } from '../auth/rate-limit';

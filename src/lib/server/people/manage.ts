@@ -1,9 +1,10 @@
 // People and their accounts: what the account pages and the people pages change, each change audited.
-import type { RequestEvent } from '@sveltejs/kit';
 import { Op, fn, col, type Transaction, type WhereOptions } from 'sequelize';
 import { db } from '../db/index';
 import { OneTimeToken, Study, StudyMember, User, type StudyRole } from '../db/models';
 import { may, type Actor } from '../access/guard';
+import { linkBase, type RequestContext } from '../access/context';
+import { FormProblem, type FieldErrors } from '../errors';
 import { record } from '../audit/record';
 import { config } from '../config';
 import { currentLab } from '../studies/lab';
@@ -20,28 +21,6 @@ export async function signOutEverywhere(userId: string, transaction?: Transactio
 export const STUDY_ROLES: readonly StudyRole[] = ['pi', 'researcher', 'technician'];
 /** The words the UI uses for each study role. */
 export const ROLE_LABELS: Record<StudyRole, string> = { pi: 'principal investigator', researcher: 'researcher', technician: 'technician' };
-
-/** Who is asking, from where: what the audit log keeps next to each change. */
-export interface RequestContext {
-	ipAddress: string | null;
-	/** The origin the request came in on; links in e-mails use ORIGIN when it is configured. */
-	origin: string;
-}
-
-export const contextOf = (event: RequestEvent): RequestContext => ({ ipAddress: event.getClientAddress(), origin: event.url.origin });
-
-/** Field name → what is wrong with it, in words a person can act on. */
-export type FieldErrors = Record<string, string>;
-
-/** A refused change: which fields are wrong (or `form` for the whole request) and the HTTP status to answer with. */
-export class PeopleProblem extends Error {
-	constructor(
-		readonly errors: FieldErrors,
-		readonly status: 400 | 403 | 404 | 409 | 502 = 400
-	) {
-		super(Object.values(errors).join(' '));
-	}
-}
 
 /** A link that cannot be used; `reason` goes to the audit log, people see one message. */
 export interface LinkRefused {
@@ -62,12 +41,9 @@ export function emailProblem(email: string, whose = 'the person’s'): string | 
 
 function assertManager(actor: Actor): void {
 	// the routes call requireLab() first; this is the second lock on the same door
-	if (!may(actor, 'people.manage')) throw new PeopleProblem({ form: 'Only a lab administrator can manage people.' }, 403);
+	if (!may(actor, 'people.manage')) throw new FormProblem({ form: 'Only a lab administrator can manage people.' }, 'forbidden');
 }
 
-function linkBase(ctx: RequestContext): string {
-	return (config().ORIGIN ?? ctx.origin).replace(/\/+$/, '');
-}
 
 const days = (ms: number) => Math.round(ms / 86_400_000);
 const minutes = (ms: number) => Math.round(ms / 60_000);
@@ -200,7 +176,7 @@ export async function getPerson(actor: Actor, id: string): Promise<PersonSummary
 
 async function lockedPerson(id: string, transaction: Transaction): Promise<User> {
 	const u = UUID.test(id) ? await User.findByPk(id, { transaction, lock: transaction.LOCK.UPDATE }) : null;
-	if (!u) throw new PeopleProblem({ form: 'There is no such person.' }, 404);
+	if (!u) throw new FormProblem({ form: 'There is no such person.' }, 'not-found');
 	return u;
 }
 
@@ -209,7 +185,7 @@ export function parseRole(value: FormDataEntryValue | null, studyCode: string, f
 	const v = String(value ?? '');
 	if (v === '') return null;
 	if (!(STUDY_ROLES as readonly string[]).includes(v)) {
-		throw new PeopleProblem({ [field]: `Choose a role for ${studyCode} from the list (or “no role”).` });
+		throw new FormProblem({ [field]: `Choose a role for ${studyCode} from the list (or “no role”).` });
 	}
 	return v as StudyRole;
 }
@@ -230,7 +206,7 @@ export async function setStudyRole(actor: Actor, ctx: RequestContext, userId: st
 	return db().transaction(async (transaction) => {
 		const person = await lockedPerson(userId, transaction);
 		const study = UUID.test(studyId) ? await Study.findByPk(studyId, { transaction }) : null;
-		if (!study) throw new PeopleProblem({ studyId: 'That study does not exist (any more). Reload the page and choose again.' });
+		if (!study) throw new FormProblem({ studyId: 'That study does not exist (any more). Reload the page and choose again.' });
 		const { before, after } = await applyRole(person.id, study, role, transaction);
 		if (before === after) return false;
 		await record(
@@ -254,7 +230,7 @@ export async function setStudyRole(actor: Actor, ctx: RequestContext, userId: st
 export async function setLabAdmin(actor: Actor, ctx: RequestContext, userId: string, isAdmin: boolean): Promise<boolean> {
 	assertManager(actor);
 	if (userId === actor.id && !isAdmin) {
-		throw new PeopleProblem({ isAdmin: 'You cannot remove your own lab administrator role. Ask another administrator to do it.' }, 409);
+		throw new FormProblem({ isAdmin: 'You cannot remove your own lab administrator role. Ask another administrator to do it.' }, 'conflict');
 	}
 	return db().transaction(async (transaction) => {
 		const person = await lockedPerson(userId, transaction);
@@ -282,10 +258,10 @@ export async function setLabAdmin(actor: Actor, ctx: RequestContext, userId: str
  */
 export async function deactivatePerson(actor: Actor, ctx: RequestContext, userId: string): Promise<void> {
 	assertManager(actor);
-	if (userId === actor.id) throw new PeopleProblem({ form: 'You cannot deactivate your own account. Ask another administrator to do it.' }, 409);
+	if (userId === actor.id) throw new FormProblem({ form: 'You cannot deactivate your own account. Ask another administrator to do it.' }, 'conflict');
 	await db().transaction(async (transaction) => {
 		const person = await lockedPerson(userId, transaction);
-		if (person.deactivatedAt) throw new PeopleProblem({ form: `${person.email} is already deactivated.` }, 409);
+		if (person.deactivatedAt) throw new FormProblem({ form: `${person.email} is already deactivated.` }, 'conflict');
 		await person.update({ deactivatedAt: new Date(), sessionVersion: person.sessionVersion + 1 }, { transaction });
 		await record(
 			{ action: 'people.deactivated', actorUserId: actor.id, actorLabel: actor.email, recordType: 'user', recordId: person.id, ipAddress: ctx.ipAddress, details: { email: person.email } },
@@ -299,7 +275,7 @@ export async function reactivatePerson(actor: Actor, ctx: RequestContext, userId
 	assertManager(actor);
 	await db().transaction(async (transaction) => {
 		const person = await lockedPerson(userId, transaction);
-		if (!person.deactivatedAt) throw new PeopleProblem({ form: `${person.email} is already active.` }, 409);
+		if (!person.deactivatedAt) throw new FormProblem({ form: `${person.email} is already active.` }, 'conflict');
 		const since = person.deactivatedAt;
 		await person.update({ deactivatedAt: null }, { transaction });
 		await record(
@@ -326,7 +302,7 @@ export interface InvitationInput {
 	roles: Map<string, StudyRole>;
 }
 
-/** Reads the invitation form (fields email, name, role-<studyId>); throws PeopleProblem naming each wrong field. */
+/** Reads the invitation form (fields email, name, role-<studyId>); throws FormProblem naming each wrong field. */
 export function parseInvitation(form: FormData, studies: StudyChoice[]): InvitationInput {
 	const errors: FieldErrors = {};
 	const email = String(form.get('email') ?? '').trim().toLowerCase();
@@ -341,10 +317,10 @@ export function parseInvitation(form: FormData, studies: StudyChoice[]): Invitat
 			const role = parseRole(form.get(field), s.code, field);
 			if (role) roles.set(s.id, role);
 		} catch (err) {
-			Object.assign(errors, (err as PeopleProblem).errors);
+			Object.assign(errors, (err as FormProblem).errors);
 		}
 	}
-	if (Object.keys(errors).length) throw new PeopleProblem(errors);
+	if (Object.keys(errors).length) throw new FormProblem(errors);
 	return { email, name: name || null, roles };
 }
 
@@ -358,7 +334,7 @@ export async function invitePerson(actor: Actor, ctx: RequestContext, input: Inv
 	return db().transaction(async (transaction) => {
 		let person = await User.findOne({ where: { email: input.email }, transaction, lock: transaction.LOCK.UPDATE });
 		if (person?.deactivatedAt) {
-			throw new PeopleProblem({ email: `${input.email} belongs to a deactivated account. Reactivate it on that person’s page, then invite them again.` }, 409);
+			throw new FormProblem({ email: `${input.email} belongs to a deactivated account. Reactivate it on that person’s page, then invite them again.` }, 'conflict');
 		}
 		const created = !person;
 		if (!person) person = await User.create({ email: input.email, name: input.name, emailVerified: null }, { transaction });
@@ -368,7 +344,7 @@ export async function invitePerson(actor: Actor, ctx: RequestContext, input: Inv
 		const held: string[] = [];
 		for (const [studyId, role] of input.roles) {
 			const study = await Study.findByPk(studyId, { transaction });
-			if (!study) throw new PeopleProblem({ [`role-${studyId}`]: 'That study does not exist (any more). Reload the page and choose again.' });
+			if (!study) throw new FormProblem({ [`role-${studyId}`]: 'That study does not exist (any more). Reload the page and choose again.' });
 			const change = await applyRole(person.id, study, role, transaction);
 			if (change.before !== change.after) changes.push({ study: study.code, ...change });
 			held.push(`${study.code}: ${ROLE_LABELS[role]}`);
@@ -401,7 +377,7 @@ export async function invitePerson(actor: Actor, ctx: RequestContext, input: Inv
 					`Without a password you sign in with a link e-mailed to you each time.\nIf you were not expecting this invitation, ignore this e-mail.`
 			});
 		} catch (err) {
-			throw new PeopleProblem({ form: `The invitation e-mail to ${person.email} could not be sent (${(err as Error).message}). Nothing was saved; try again, or check the mail server on the status page.` }, 502);
+			throw new FormProblem({ form: `The invitation e-mail to ${person.email} could not be sent (${(err as Error).message}). Nothing was saved; try again, or check the mail server on the status page.` }, 'upstream');
 		}
 		return { userId: person.id, created };
 	});
@@ -447,7 +423,7 @@ export async function acceptInvitation(ctx: RequestContext, token: string, form:
 	// a refused link matters more than a mistyped field: say that first
 	const peek = await inspectToken('invitation', token);
 	if (!peek.ok) return linkRefused('people.invitation-accepted', peek.reason, ctx, null);
-	if (Object.keys(errors).length) throw new PeopleProblem(errors);
+	if (Object.keys(errors).length) throw new FormProblem(errors);
 	// argon2 is deliberately slow: hash before the transaction takes its locks
 	const passwordHash = password ? await hashPassword(password) : null;
 	return db().transaction(async (transaction) => {
@@ -526,7 +502,7 @@ export async function resetPassword(ctx: RequestContext, token: string, form: Fo
 	const password = parseNewPassword(form, false, errors);
 	const peek = await inspectToken('password-reset', token);
 	if (!peek.ok) return linkRefused('auth.password-reset', peek.reason, ctx, null);
-	if (Object.keys(errors).length || !password) throw new PeopleProblem(errors);
+	if (Object.keys(errors).length || !password) throw new FormProblem(errors);
 	const passwordHash = await hashPassword(password);
 	return db().transaction(async (transaction) => {
 		const used = await consume('password-reset', token, transaction);

@@ -1,6 +1,7 @@
 // Reviewing results: the plot data of a session's runs (full resolution for the read-out, reduced for drawing), the
 // cycle events of a run (read, saved under the session lock, audited) and comparisons across sessions or
 // participants of a study (codes only; done runs only, never excluded ones).
+import { contextOf } from '../http/edge';
 import type { RequestEvent } from '@sveltejs/kit';
 import { error } from '@sveltejs/kit';
 import { QueryTypes } from 'sequelize';
@@ -9,7 +10,7 @@ import { db } from '../db/index';
 import { record } from '../audit/record';
 import { assertSessionUnlocked } from '../sessions/lock';
 import { isUuid } from '../studies/studies';
-import { contextOf, guardStudy } from '../studies/records';
+import { guardStudy } from '../studies/records';
 import { may } from '../access/guard';
 import { includeEdgeZonesOf, runIn, SERIES_QUANTITIES, storedSeries, timeOfRun, type ResultQuantity } from '../runs/runs';
 import { sessionIn } from '../sessions/sessions';
@@ -263,7 +264,7 @@ export async function saveRunEvents(event: RequestEvent, rawStudyId: string, raw
 				studyId: study.id,
 				recordType: 'run',
 				recordId: run.id,
-				ipAddress: contextOf(event).ip,
+				ipAddress: contextOf(event).ipAddress,
 				details: { source, rule, times, previous: before?.times ?? null }
 			},
 			t

@@ -1,11 +1,13 @@
 // Results of a participant who withdrew consent: flagged (never deleted) until the PI decides to keep or exclude each run.
+import { FormProblem } from '../errors';
+import { contextOf } from '../http/edge';
 import type { RequestEvent } from '@sveltejs/kit';
 import { error } from '@sveltejs/kit';
 import { QueryTypes, type Transaction } from 'sequelize';
 import { db } from '../db/index';
 import { record } from '../audit/record';
 import { isUuid } from '../studies/studies';
-import { contextOf, FormProblem, guardStudy } from '../studies/records';
+import { guardStudy } from '../studies/records';
 
 export type FlagDecision = 'keep' | 'exclude';
 
@@ -90,8 +92,8 @@ export async function decideFlaggedRun(event: RequestEvent, rawStudyId: string, 
 		);
 		const run = rows[0];
 		if (!run) error(404, 'Not found');
-		if (!run.flagged_reason) throw new FormProblem({ decision: 'This run is not flagged: there is nothing to decide.' }, 409);
-		if (run.flag_decision) throw new FormProblem({ decision: `This run was already decided (${run.flag_decision}).` }, 409);
+		if (!run.flagged_reason) throw new FormProblem({ decision: 'This run is not flagged: there is nothing to decide.' }, 'conflict');
+		if (run.flag_decision) throw new FormProblem({ decision: `This run was already decided (${run.flag_decision}).` }, 'conflict');
 		await db().query(`UPDATE runs SET flag_decision = :decision, flag_decided_by = :userId, flag_decided_at = now() WHERE id = :runId`, {
 			replacements: { decision, userId: actor.id, runId: run.id },
 			transaction
@@ -104,7 +106,7 @@ export async function decideFlaggedRun(event: RequestEvent, rawStudyId: string, 
 				studyId: study.id,
 				recordType: 'run',
 				recordId: run.id,
-				ipAddress: contextOf(event).ip,
+				ipAddress: contextOf(event).ipAddress,
 				details: { participantId: run.participant_id, decision, reason: run.flagged_reason, note: cleanNote || null }
 			},
 			transaction

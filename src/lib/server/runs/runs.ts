@@ -1,5 +1,7 @@
 // Processing runs of trials: starting one (guarded, consent-checked, queued), the worker's processing with progress
 // and all-or-nothing results, retries, and reading results for the API and the pages.
+import { FormProblem } from '../errors';
+import { contextOf } from '../http/edge';
 import type { RequestEvent } from '@sveltejs/kit';
 import { error, isHttpError } from '@sveltejs/kit';
 import { execFileSync } from 'node:child_process';
@@ -18,7 +20,7 @@ import { enqueueRun } from '../jobs/queue';
 import { readRaw } from '../trials/raw-store';
 import { assertSessionUnlocked, refuseIfLocked } from '../sessions/lock';
 import { isUuid } from '../studies/studies';
-import { contextOf, FormProblem, guardStudy } from '../studies/records';
+import { guardStudy } from '../studies/records';
 import { may } from '../access/guard';
 import { component, decodeFloat64 } from './results-codec';
 import { reduceForPlot } from '../../processing/reduce';
@@ -290,7 +292,7 @@ export async function startRun(event: RequestEvent, rawStudyId: string, rawTrial
 				studyId: study.id,
 				recordType: 'run',
 				recordId: run.id,
-				ipAddress: contextOf(event).ip,
+				ipAddress: contextOf(event).ipAddress,
 				details: { trialId: trial.trialId, sessionId: trial.sessionId, options: opts }
 			},
 			transaction
@@ -305,7 +307,7 @@ export async function startRun(event: RequestEvent, rawStudyId: string, rawTrial
 export function jsonBody(event: RequestEvent): () => Promise<unknown> {
 	return async () => {
 		const type = event.request.headers.get('content-type') ?? '';
-		if (!type.includes('application/json')) throw new FormProblem({ form: 'Send the run options as JSON (content-type: application/json), e.g. {"cutoffHz": 6}.' }, 415);
+		if (!type.includes('application/json')) throw new FormProblem({ form: 'Send the run options as JSON (content-type: application/json), e.g. {"cutoffHz": 6}.' }, 'unsupported');
 		try {
 			const text = await event.request.text();
 			return text.trim() ? JSON.parse(text) : {};
@@ -330,7 +332,7 @@ export async function retryRun(event: RequestEvent, rawStudyId: string, rawRunId
 		)) as [unknown[], unknown];
 		if (!rows.length) return false;
 		await record(
-			{ action: 'run.retried', actorUserId: actor.id, actorLabel: actor.email, studyId: study.id, recordType: 'run', recordId: run.id, ipAddress: contextOf(event).ip, details: { previousError: run.error, attempts: run.attempts } },
+			{ action: 'run.retried', actorUserId: actor.id, actorLabel: actor.email, studyId: study.id, recordType: 'run', recordId: run.id, ipAddress: contextOf(event).ipAddress, details: { previousError: run.error, attempts: run.attempts } },
 			transaction
 		);
 		return true;

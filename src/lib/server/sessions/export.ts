@@ -1,6 +1,7 @@
 // Export of an approved session as one ZIP streamed to the client: results.csv (long format, one row per value, each
 // marked in or out of its run's edge zone), provenance.json (with each run's edge zone and its peaks without the
 // edge zones), README.txt and the raw uploads byte for byte. Never any participant's personal data.
+import { contextOf } from '../http/edge';
 import type { RequestEvent } from '@sveltejs/kit';
 import { error } from '@sveltejs/kit';
 import { Readable } from 'node:stream';
@@ -10,7 +11,7 @@ import { db } from '../db/index';
 import { Participant, Run } from '../db/models';
 import { record } from '../audit/record';
 import { readRaw } from '../trials/raw-store';
-import { contextOf, guardStudy } from '../studies/records';
+import { guardStudy } from '../studies/records';
 import { sessionIn } from './sessions';
 import { listRunsForSession, softwareVersion, summaryRows, type RunView } from '../runs/runs';
 import { component, decodeFloat64 } from '../runs/results-codec';
@@ -284,7 +285,7 @@ export async function exportSession(event: RequestEvent, rawId: string, rawSid: 
 		studyId: study.id,
 		recordType: 'session',
 		recordId: s.id,
-		ipAddress: contextOf(event).ip,
+		ipAddress: contextOf(event).ipAddress,
 		details: { runs: trials.filter((t) => t.run).map((t) => t.run!.id), trials: trials.length }
 	});
 

@@ -1,5 +1,7 @@
 // Sessions of a participant (one visit): date, operator, task, conditions and the model set-up, created only
 // with valid consent; the set-up form is checked by the session model's own schema, field by field.
+import { FormProblem } from '../errors';
+import { contextOf } from '../http/edge';
 import { isLocked, refuseIfLocked } from './lock';
 import type { RequestEvent } from '@sveltejs/kit';
 import { error } from '@sveltejs/kit';
@@ -10,7 +12,7 @@ import { MappingPreset, Participant, ParticipantLength, Session, Trial, type Ses
 import { may } from '../access/guard';
 import { record } from '../audit/record';
 import { isUuid } from '../studies/studies';
-import { contextOf, FormProblem, guardStudy } from '../studies/records';
+import { guardStudy } from '../studies/records';
 import { consentStateOf, requireValidConsent, CONSENT_STATE_LABEL } from '../consent/check';
 import { LIMBS, type ParticipantBody } from '../../anthropometry/scale';
 import { SEGMENT_TABLES, SEGMENT_TABLE_IDS, type SegmentTableId } from '../../anthropometry/tables';
@@ -257,7 +259,7 @@ export async function createSession(event: RequestEvent, rawId: string, rawPid: 
 				studyId: study.id,
 				recordType: 'session',
 				recordId: s.id,
-				ipAddress: contextOf(event).ip,
+				ipAddress: contextOf(event).ipAddress,
 				details: { participant: p.code, sessionOn: meta.sessionOn, task: meta.task, limbs: setup.limbs, table: setup.table }
 			},
 			transaction
@@ -315,7 +317,7 @@ export async function editSession(event: RequestEvent, rawId: string, rawSid: st
 				studyId: study.id,
 				recordType: 'session',
 				recordId: s.id,
-				ipAddress: contextOf(event).ip,
+				ipAddress: contextOf(event).ipAddress,
 				details: { changed }
 			},
 			transaction

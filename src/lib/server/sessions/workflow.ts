@@ -1,4 +1,6 @@
 // The review workflow of a session: submit, approve (signed), return, reopen; its history, signing codes and e-mails.
+import { FormProblem } from '../errors';
+import { contextOf } from '../http/edge';
 import type { RequestEvent } from '@sveltejs/kit';
 import { error } from '@sveltejs/kit';
 import { createHash, randomBytes, randomInt, timingSafeEqual } from 'node:crypto';
@@ -14,7 +16,7 @@ import { verifyPassword } from '../auth/password';
 import { checkThrottle, recordFailure } from '../auth/rate-limit';
 import { isLocked, lockedMessage } from './lock';
 import { sessionIn } from './sessions';
-import { contextOf, FormProblem, guardStudy } from '../studies/records';
+import { guardStudy } from '../studies/records';
 
 /** What the PI's signature on an approval means; shown in the form, ticked, and stored with the approval. */
 export const SIGNATURE_MEANING = 'approved for analysis';
@@ -146,7 +148,7 @@ async function signatureFailed(event: RequestEvent, actor: Actor, studyId: strin
 		studyId,
 		recordType: 'session',
 		recordId: sessionId,
-		ipAddress: contextOf(event).ip,
+		ipAddress: contextOf(event).ipAddress,
 		details: { method, why }
 	});
 }
@@ -157,7 +159,7 @@ async function checkSignature(event: RequestEvent, actor: Actor, studyId: string
 	const hasPassword = passwordHash !== null;
 	const field = hasPassword ? 'password' : 'code';
 	const throttle = await checkThrottle(`signature:${actor.email}`, null);
-	if (throttle.blocked) throw new FormProblem({ [field]: `Too many wrong signatures. Try again in ${throttle.retryAfterMinutes} minute${throttle.retryAfterMinutes === 1 ? '' : 's'}.` }, 429);
+	if (throttle.blocked) throw new FormProblem({ [field]: `Too many wrong signatures. Try again in ${throttle.retryAfterMinutes} minute${throttle.retryAfterMinutes === 1 ? '' : 's'}.` }, 'rate-limited');
 	if (hasPassword) {
 		const password = String(form.get('password') ?? '');
 		if (!password) throw new FormProblem({ password: 'Enter your password to sign the approval.' });
@@ -182,12 +184,12 @@ export async function sendSignatureCode(event: RequestEvent, rawId: string, rawS
 	const { actor, study } = await guardStudy(event, 'session.approve', rawId);
 	const s = await sessionIn(study.id, rawSid);
 	if (s.state !== 'in_review') refuseState('approve', s.state);
-	if ((await passwordHashOf(actor.id)) !== null) throw new FormProblem({ code: 'Your account has a password: sign with your password instead.' }, 409);
+	if ((await passwordHashOf(actor.id)) !== null) throw new FormProblem({ code: 'Your account has a password: sign with your password instead.' }, 'conflict');
 	const recent = await db().query<{ n: string }>(
 		`SELECT count(*) AS n FROM signature_codes WHERE user_id = :u AND session_id = :s AND created_at > now() - make_interval(mins => :w)`,
 		{ replacements: { u: actor.id, s: s.id, w: CODE_WINDOW_MINUTES }, type: QueryTypes.SELECT }
 	);
-	if (Number(recent[0]?.n ?? 0) >= CODE_REQUESTS) throw new FormProblem({ code: `You asked for ${CODE_REQUESTS} codes in ${CODE_WINDOW_MINUTES} minutes. Use the latest one, or wait a few minutes.` }, 429);
+	if (Number(recent[0]?.n ?? 0) >= CODE_REQUESTS) throw new FormProblem({ code: `You asked for ${CODE_REQUESTS} codes in ${CODE_WINDOW_MINUTES} minutes. Use the latest one, or wait a few minutes.` }, 'rate-limited');
 	const code = String(randomInt(0, 1_000_000)).padStart(6, '0');
 	const salt = randomBytes(16).toString('hex');
 	const participant = await participantCodeOf(s.participantId);
@@ -202,7 +204,7 @@ export async function sendSignatureCode(event: RequestEvent, rawId: string, rawS
 			{ replacements: { u: actor.id, s: s.id, h: hashCode(code, salt), salt, m: CODE_MINUTES }, transaction }
 		)) as [{ id: string; expires_at: Date }[], unknown];
 		await record(
-			{ action: 'session.signature-code-sent', actorUserId: actor.id, actorLabel: actor.email, studyId: study.id, recordType: 'session', recordId: s.id, ipAddress: contextOf(event).ip, details: { expiresAt: rows[0].expires_at } },
+			{ action: 'session.signature-code-sent', actorUserId: actor.id, actorLabel: actor.email, studyId: study.id, recordType: 'session', recordId: s.id, ipAddress: contextOf(event).ipAddress, details: { expiresAt: rows[0].expires_at } },
 			transaction
 		);
 		return new Date(rows[0].expires_at);
@@ -293,7 +295,7 @@ export async function transition(event: RequestEvent, rawId: string, rawSid: str
 				studyId: study.id,
 				recordType: 'session',
 				recordId: found.id,
-				ipAddress: contextOf(event).ip,
+				ipAddress: contextOf(event).ipAddress,
 				details: { from, to, ...(note ? { [STEPS[step].field]: note } : {}), ...(signature ? { meaning: SIGNATURE_MEANING, method: signature.method } : {}) }
 			},
 			transaction

@@ -4,9 +4,12 @@ import { error } from '@sveltejs/kit';
 import { z } from 'zod';
 import { db } from '../db/index';
 import { ConsentFormVersion, Study } from '../db/models';
-import { requireStudy, type StudyAction } from '../access/guard';
+import { type StudyAction } from '../access/guard';
+import { requireStudy } from '../http/edge';
 import { record } from '../audit/record';
 import { isUuid } from './studies';
+import { FormProblem } from '../errors';
+import { contextOf } from '../http/edge';
 import { renderMarkdown } from '../consent/markdown';
 
 import { SEGMENT_TABLE_IDS, type SegmentTableId } from '../../anthropometry/tables';
@@ -28,15 +31,6 @@ export function ethicsState(expiresOn: string | null, today = new Date().toISOSt
 	return { state: daysLeft <= ETHICS_WARNING_DAYS ? 'expiring' : 'valid', daysLeft };
 }
 
-export class FormProblem extends Error {
-	constructor(
-		public readonly errors: Record<string, string>,
-		public readonly status = 400
-	) {
-		super(Object.values(errors).join('; '));
-	}
-}
-
 /** Field messages from a zod error, first message per field. */
 export function fieldErrors(issues: z.core.$ZodIssue[]): Record<string, string> {
 	const out: Record<string, string> = {};
@@ -56,8 +50,6 @@ export async function guardStudy(event: RequestEvent, action: StudyAction, rawId
 	if (!study) error(404, 'Not found');
 	return { actor, study };
 }
-
-export const contextOf = (event: RequestEvent) => ({ ip: event.getClientAddress() });
 
 const ISO_DATE = /^\d{4}-\d{2}-\d{2}$/;
 const settingsSchema = z.object({
@@ -101,7 +93,7 @@ export async function saveSettings(event: RequestEvent, rawId: string, form: For
 				studyId: study.id,
 				recordType: 'study',
 				recordId: study.id,
-				ipAddress: contextOf(event).ip,
+				ipAddress: contextOf(event).ipAddress,
 				details: { before, after: next }
 			},
 			transaction
@@ -166,7 +158,7 @@ export async function publishConsentVersion(event: RequestEvent, rawId: string, 
 				studyId: study.id,
 				recordType: 'consent_form_version',
 				recordId: v.id,
-				ipAddress: contextOf(event).ip,
+				ipAddress: contextOf(event).ipAddress,
 				details: { version: v.version }
 			},
 			transaction

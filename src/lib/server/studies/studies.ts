@@ -3,7 +3,8 @@ import type { RequestEvent } from '@sveltejs/kit';
 import { error } from '@sveltejs/kit';
 import { db } from '../db/index';
 import { Participant, Study, StudyMember, User, type StudyRole } from '../db/models';
-import { may, requireActor, requireStudy, type Actor } from '../access/guard';
+import { may, type Actor } from '../access/guard';
+import { requireActor, requireStudy } from '../http/edge';
 
 /** The words the UI uses for each role (one name per idea: the stored value stays 'pi', 'researcher', 'technician'). */
 export const ROLE_LABELS: Record<StudyRole, string> = {

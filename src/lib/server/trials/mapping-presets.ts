@@ -1,11 +1,13 @@
 // Column-mapping presets of a study: a saved match of another system's columns to model DOFs, reused at upload.
+import { FormProblem } from '../errors';
+import { contextOf } from '../http/edge';
 import type { RequestEvent } from '@sveltejs/kit';
 import { UniqueConstraintError } from 'sequelize';
 import { z } from 'zod';
 import { db } from '../db/index';
 import { MappingPreset } from '../db/models';
 import { record } from '../audit/record';
-import { contextOf, FormProblem, guardStudy } from '../studies/records';
+import { guardStudy } from '../studies/records';
 import { columnMappingSchema } from '../../processing/recording';
 import type { PresetView } from '../sessions/sessions';
 
@@ -46,13 +48,13 @@ export async function createPreset(event: RequestEvent, rawId: string): Promise<
 		return await db().transaction(async (transaction) => {
 			const p = await MappingPreset.create({ studyId: study.id, name: n.data, mapping: m.data as unknown as Record<string, unknown>, createdBy: actor.id }, { transaction });
 			await record(
-				{ action: 'mapping_preset.created', actorUserId: actor.id, actorLabel: actor.email, studyId: study.id, recordType: 'mapping_preset', recordId: p.id, ipAddress: contextOf(event).ip, details: { name: p.name } },
+				{ action: 'mapping_preset.created', actorUserId: actor.id, actorLabel: actor.email, studyId: study.id, recordType: 'mapping_preset', recordId: p.id, ipAddress: contextOf(event).ipAddress, details: { name: p.name } },
 				transaction
 			);
 			return view(p);
 		});
 	} catch (err) {
-		if (err instanceof UniqueConstraintError) throw new FormProblem({ name: `The study already has a preset named “${n.data}”; choose another name.` }, 409);
+		if (err instanceof UniqueConstraintError) throw new FormProblem({ name: `The study already has a preset named “${n.data}”; choose another name.` }, 'conflict');
 		throw err;
 	}
 }

@@ -1,5 +1,6 @@
 // The streamed trial upload: multipart parsed by busboy straight from the request, each file hashed, stored in
 // 1 MiB chunks and parsed as it arrives, all in one transaction per file, so a rejected file leaves only an audit entry.
+import { contextOf } from '../http/edge';
 import type { RequestEvent } from '@sveltejs/kit';
 import { error, isHttpError } from '@sveltejs/kit';
 import busboy from 'busboy';
@@ -13,7 +14,7 @@ import { may, type Actor } from '../access/guard';
 import { record } from '../audit/record';
 import { config } from '../config';
 import { isUuid } from '../studies/studies';
-import { contextOf, guardStudy } from '../studies/records';
+import { guardStudy } from '../studies/records';
 import { requireValidConsent } from '../consent/check';
 import { EDITABLE_STATES, participantBodyOf, sessionIn, trialView, type TrialView } from '../sessions/sessions';
 import { RAW_CHUNK_BYTES, writeRawChunk } from './raw-store';
@@ -284,7 +285,7 @@ async function receiveFile(ctx: FileContext, file: Readable, info: busboy.FileIn
 					const p = await MappingPreset.create({ studyId: ctx.studyId, name: presetName, mapping: mapping as unknown as Record<string, unknown>, createdBy: ctx.actor.id }, { transaction: t });
 					presetSaved = { id: p.id, name: p.name };
 					await record(
-						{ action: 'mapping_preset.created', actorUserId: ctx.actor.id, actorLabel: ctx.actor.email, studyId: ctx.studyId, recordType: 'mapping_preset', recordId: p.id, ipAddress: contextOf(ctx.event).ip, details: { name: p.name } },
+						{ action: 'mapping_preset.created', actorUserId: ctx.actor.id, actorLabel: ctx.actor.email, studyId: ctx.studyId, recordType: 'mapping_preset', recordId: p.id, ipAddress: contextOf(ctx.event).ipAddress, details: { name: p.name } },
 						t
 					);
 				}
@@ -297,7 +298,7 @@ async function receiveFile(ctx: FileContext, file: Readable, info: busboy.FileIn
 					studyId: ctx.studyId,
 					recordType: 'trial',
 					recordId: trial.id,
-					ipAddress: contextOf(ctx.event).ip,
+					ipAddress: contextOf(ctx.event).ipAddress,
 					details: { sessionId: ctx.session.id, participant: ctx.participantCode, fileName, byteSize, sha256, frames, sampleHz: rec.sampleHz, mapped: !!mapping, presetId: presetId ?? null, warnings: rec.warnings.length }
 				},
 				t
@@ -337,7 +338,7 @@ async function receiveFile(ctx: FileContext, file: Readable, info: busboy.FileIn
 			studyId: ctx.studyId,
 			recordType: 'session',
 			recordId: ctx.session.id,
-			ipAddress: contextOf(ctx.event).ip,
+			ipAddress: contextOf(ctx.event).ipAddress,
 			details: {
 				participant: ctx.participantCode,
 				fileName,

@@ -1,7 +1,8 @@
 // The page a consent link opens (no account needed: the single-use link is the proof): read, then agree or decline.
+import { FormProblem } from '$lib/server/errors';
+import { statusOf } from '$lib/server/http/edge';
 import { fail } from '@sveltejs/kit';
 import { consentPageFor, decide, ReReadProblem } from '$lib/server/consent/workflow';
-import { FormProblem } from '$lib/server/studies/records';
 import type { Actions, PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async (event) => {
@@ -21,7 +22,7 @@ async function act(event: Parameters<Actions[string]>[0], decision: 'consented' 
 		if (!outcome.ok) return fail(410, { refused: outcome.refused, errors: {} as Record<string, string>, values, ticked, reRead: false });
 		return { done: { decision: outcome.decision, mailed: outcome.mailed, contact: outcome.contact, formVersion: outcome.formVersion } };
 	} catch (err) {
-		if (err instanceof FormProblem) return fail(err.status, { refused: null, errors: err.errors, values, ticked: err instanceof ReReadProblem ? [] : ticked, reRead: err instanceof ReReadProblem });
+		if (err instanceof FormProblem) return fail(statusOf(err), { refused: null, errors: err.errors, values, ticked: err instanceof ReReadProblem ? [] : ticked, reRead: err instanceof ReReadProblem });
 		throw err;
 	}
 }

@@ -1,6 +1,8 @@
 // Accepting an invitation (no sign-in needed: the single-use link is the proof): name and an optional password.
+import { FormProblem } from '$lib/server/errors';
+import { contextOf, statusOf } from '$lib/server/http/edge';
 import { fail, redirect } from '@sveltejs/kit';
-import { acceptInvitation, contextOf, invitationFor, PeopleProblem } from '$lib/server/people/manage';
+import { acceptInvitation, invitationFor } from '$lib/server/people/manage';
 import { LINK_REFUSED_MESSAGE } from '$lib/server/auth/tokens';
 import type { Actions, PageServerLoad } from './$types';
 
@@ -20,7 +22,7 @@ export const actions: Actions = {
 		try {
 			outcome = await acceptInvitation(contextOf(event), event.params.token, form);
 		} catch (err) {
-			if (err instanceof PeopleProblem) return fail(err.status, { values, errors: err.errors });
+			if (err instanceof FormProblem) return fail(statusOf(err), { values, errors: err.errors });
 			throw err;
 		}
 		if ('refused' in outcome) return fail(410, { values, errors: { form: LINK_REFUSED_MESSAGE } as Record<string, string> });

@@ -1,19 +1,10 @@
 // One person (lab administrators): study roles, the lab administrator flag, deactivation and reactivation.
+import { FormProblem } from '$lib/server/errors';
+import { contextOf, statusOf } from '$lib/server/http/edge';
 import { error, fail, redirect, type RequestEvent } from '@sveltejs/kit';
-import { requireLab, type Actor } from '$lib/server/access/guard';
-import {
-	contextOf,
-	deactivatePerson,
-	getPerson,
-	listStudies,
-	parseRole,
-	PeopleProblem,
-	reactivatePerson,
-	ROLE_LABELS,
-	setLabAdmin,
-	setStudyRole,
-	STUDY_ROLES
-} from '$lib/server/people/manage';
+import { type Actor } from '$lib/server/access/guard';
+import { requireLab } from '$lib/server/http/edge';
+import { deactivatePerson, getPerson, listStudies, parseRole, reactivatePerson, ROLE_LABELS, setLabAdmin, setStudyRole, STUDY_ROLES } from '$lib/server/people/manage';
 import type { Actions, PageServerLoad } from './$types';
 
 const NO_SUCH_PERSON = 'There is no such person in this lab. Find them in the people list.';
@@ -41,9 +32,9 @@ async function attempt<T>(event: RequestEvent, actor: Actor, change: (form: Form
 	try {
 		return await change(form);
 	} catch (err) {
-		if (!(err instanceof PeopleProblem)) throw err;
-		if (err.status === 404) error(404, NO_SUCH_PERSON);
-		return fail(err.status, { errors: err.errors });
+		if (!(err instanceof FormProblem)) throw err;
+		if (err.kind === 'not-found') error(404, NO_SUCH_PERSON);
+		return fail(statusOf(err), { errors: err.errors });
 	}
 }
 
@@ -53,7 +44,7 @@ export const actions: Actions = {
 		return attempt(event, actor, async (form) => {
 			const studyId = String(form.get('studyId') ?? '');
 			const study = (await listStudies(actor)).find((s) => s.id === studyId);
-			if (!study) throw new PeopleProblem({ studyId: 'Choose a study from the list: the one sent does not exist.' });
+			if (!study) throw new FormProblem({ studyId: 'Choose a study from the list: the one sent does not exist.' });
 			const role = parseRole(form.get('role'), study.code, 'role');
 			const changed = await setStudyRole(actor, contextOf(event), event.params.id, study.id, role);
 			const what = role ? `now ${ROLE_LABELS[role]}` : 'no role any more';
@@ -64,7 +55,7 @@ export const actions: Actions = {
 		const actor = await requireLab(event, 'people.manage');
 		return attempt(event, actor, async (form) => {
 			const value = String(form.get('isAdmin') ?? '');
-			if (value !== 'yes' && value !== 'no') throw new PeopleProblem({ isAdmin: 'Say whether the person should be a lab administrator (yes or no).' });
+			if (value !== 'yes' && value !== 'no') throw new FormProblem({ isAdmin: 'Say whether the person should be a lab administrator (yes or no).' });
 			const changed = await setLabAdmin(actor, contextOf(event), event.params.id, value === 'yes');
 			return { done: !changed ? 'Nothing to change.' : value === 'yes' ? 'Now a lab administrator.' : 'No longer a lab administrator.' };
 		});
@@ -72,7 +63,7 @@ export const actions: Actions = {
 	deactivate: async (event) => {
 		const actor = await requireLab(event, 'people.manage');
 		const outcome = await attempt(event, actor, async (form) => {
-			if (form.get('confirm') !== 'yes') throw new PeopleProblem({ form: 'Deactivation was not confirmed. Use “Deactivate account…” and confirm on the panel that opens.' });
+			if (form.get('confirm') !== 'yes') throw new FormProblem({ form: 'Deactivation was not confirmed. Use “Deactivate account…” and confirm on the panel that opens.' });
 			await deactivatePerson(actor, contextOf(event), event.params.id);
 			return null;
 		});
@@ -82,7 +73,7 @@ export const actions: Actions = {
 	reactivate: async (event) => {
 		const actor = await requireLab(event, 'people.manage');
 		const outcome = await attempt(event, actor, async (form) => {
-			if (form.get('confirm') !== 'yes') throw new PeopleProblem({ form: 'Reactivation was not confirmed. Use “Reactivate account…” and confirm on the panel that opens.' });
+			if (form.get('confirm') !== 'yes') throw new FormProblem({ form: 'Reactivation was not confirmed. Use “Reactivate account…” and confirm on the panel that opens.' });
 			await reactivatePerson(actor, contextOf(event), event.params.id);
 			return null;
 		});

@@ -1,7 +1,9 @@
 // Inviting a person (lab administrators): account if new, study roles, and an e-mailed single-use link.
+import { FormProblem } from '$lib/server/errors';
+import { contextOf, statusOf } from '$lib/server/http/edge';
 import { fail, redirect } from '@sveltejs/kit';
-import { requireLab } from '$lib/server/access/guard';
-import { contextOf, invitePerson, listStudies, parseInvitation, PeopleProblem, ROLE_LABELS, STUDY_ROLES } from '$lib/server/people/manage';
+import { requireLab } from '$lib/server/http/edge';
+import { invitePerson, listStudies, parseInvitation, ROLE_LABELS, STUDY_ROLES } from '$lib/server/people/manage';
 import { TOKEN_LIFETIME_MS } from '$lib/server/auth/tokens';
 import type { Actions, PageServerLoad } from './$types';
 
@@ -19,7 +21,7 @@ export const actions: Actions = {
 		try {
 			result = await invitePerson(actor, contextOf(event), parseInvitation(form, await listStudies(actor)));
 		} catch (err) {
-			if (err instanceof PeopleProblem) return fail(err.status, { values, errors: err.errors });
+			if (err instanceof FormProblem) return fail(statusOf(err), { values, errors: err.errors });
 			throw err;
 		}
 		redirect(303, `/people/${result.userId}?done=${result.created ? 'invited' : 'invited-again'}`);

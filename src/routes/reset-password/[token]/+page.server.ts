@@ -1,6 +1,8 @@
 // The page a password-reset link opens: a new password, after which every session of the account ends.
+import { FormProblem } from '$lib/server/errors';
+import { contextOf, statusOf } from '$lib/server/http/edge';
 import { fail, redirect } from '@sveltejs/kit';
-import { contextOf, PeopleProblem, resetLinkFor, resetPassword } from '$lib/server/people/manage';
+import { resetLinkFor, resetPassword } from '$lib/server/people/manage';
 import { LINK_REFUSED_MESSAGE } from '$lib/server/auth/tokens';
 import type { Actions, PageServerLoad } from './$types';
 
@@ -19,7 +21,7 @@ export const actions: Actions = {
 		try {
 			outcome = await resetPassword(contextOf(event), event.params.token, form);
 		} catch (err) {
-			if (err instanceof PeopleProblem) return fail(err.status, { errors: err.errors });
+			if (err instanceof FormProblem) return fail(statusOf(err), { errors: err.errors });
 			throw err;
 		}
 		if ('refused' in outcome) return fail(410, { errors: { form: LINK_REFUSED_MESSAGE } as Record<string, string> });

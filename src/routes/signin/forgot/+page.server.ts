@@ -1,6 +1,7 @@
 // "Forgot your password?": e-mails a reset link. The answer is the same whether or not the address has an account.
+import { contextOf } from '$lib/server/http/edge';
 import { fail } from '@sveltejs/kit';
-import { contextOf, emailProblem, requestPasswordReset } from '$lib/server/people/manage';
+import { emailProblem, requestPasswordReset } from '$lib/server/people/manage';
 import { TOKEN_LIFETIME_MS } from '$lib/server/auth/tokens';
 import type { Actions, PageServerLoad } from './$types';
 

@@ -1,7 +1,9 @@
 // Consent form versions of a study: every member reads them; the PI publishes a new version (older ones never change).
+import { FormProblem } from '$lib/server/errors';
+import { statusOf } from '$lib/server/http/edge';
 import { fail, redirect } from '@sveltejs/kit';
 import { may } from '$lib/server/access/guard';
-import { FormProblem, guardStudy, listConsentVersions, publishConsentVersion } from '$lib/server/studies/records';
+import { guardStudy, listConsentVersions, publishConsentVersion } from '$lib/server/studies/records';
 import type { Actions, PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async (event) => {
@@ -22,7 +24,7 @@ export const actions: Actions = {
 			version = await publishConsentVersion(event, event.params.id, form);
 		} catch (err) {
 			if (err instanceof FormProblem) {
-				return fail(err.status, { values: { bodyMarkdown: String(form.get('bodyMarkdown') ?? ''), confirmations: String(form.get('confirmations') ?? '') }, errors: err.errors });
+				return fail(statusOf(err), { values: { bodyMarkdown: String(form.get('bodyMarkdown') ?? ''), confirmations: String(form.get('confirmations') ?? '') }, errors: err.errors });
 			}
 			throw err;
 		}

@@ -1,7 +1,9 @@
 // Study settings (PI only): ethics reference and expiry, default segment table; every change is audited.
+import { FormProblem } from '$lib/server/errors';
+import { statusOf } from '$lib/server/http/edge';
 import { fail, redirect } from '@sveltejs/kit';
 import { SEGMENT_TABLES } from '$lib/anthropometry';
-import { FormProblem, guardStudy, saveSettings, TABLE_IDS } from '$lib/server/studies/records';
+import { guardStudy, saveSettings, TABLE_IDS } from '$lib/server/studies/records';
 import type { Actions, PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async (event) => {
@@ -20,7 +22,7 @@ export const actions: Actions = {
 			await saveSettings(event, event.params.id, form);
 		} catch (err) {
 			if (err instanceof FormProblem) {
-				return fail(err.status, { values: Object.fromEntries([...form.entries()].map(([k, v]) => [k, String(v)])), errors: err.errors });
+				return fail(statusOf(err), { values: Object.fromEntries([...form.entries()].map(([k, v]) => [k, String(v)])), errors: err.errors });
 			}
 			throw err;
 		}

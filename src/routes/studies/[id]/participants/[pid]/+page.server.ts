@@ -1,7 +1,8 @@
 // One participant: research data, measured segment lengths (history) and, for PI and technicians, personal data.
+import { FormProblem } from '$lib/server/errors';
+import { statusOf } from '$lib/server/http/edge';
 import { fail, redirect } from '@sveltejs/kit';
 import { addLength, readParticipant, savePersonal, updateResearchFields } from '$lib/server/participants/records';
-import { FormProblem } from '$lib/server/studies/records';
 import { consentStateOf } from '$lib/server/consent/check';
 import { listSessionsOfParticipant } from '$lib/server/sessions/sessions';
 import type { Actions, PageServerLoad } from './$types';
@@ -24,7 +25,7 @@ export const actions: Actions = {
 			await addLength(event, event.params.id, event.params.pid, form);
 		} catch (err) {
 			if (err instanceof FormProblem) {
-				return fail(err.status, { personal: false, values: Object.fromEntries([...form.entries()].map(([k, v]) => [k, String(v)])), errors: err.errors });
+				return fail(statusOf(err), { personal: false, values: Object.fromEntries([...form.entries()].map(([k, v]) => [k, String(v)])), errors: err.errors });
 			}
 			throw err;
 		}
@@ -36,7 +37,7 @@ export const actions: Actions = {
 			await updateResearchFields(event, event.params.id, event.params.pid, form);
 		} catch (err) {
 			if (err instanceof FormProblem) {
-				return fail(err.status, { personal: false, research: true, values: Object.fromEntries([...form.entries()].map(([k, v]) => [k, String(v)])), errors: err.errors });
+				return fail(statusOf(err), { personal: false, research: true, values: Object.fromEntries([...form.entries()].map(([k, v]) => [k, String(v)])), errors: err.errors });
 			}
 			throw err;
 		}
@@ -48,7 +49,7 @@ export const actions: Actions = {
 			await savePersonal(event, event.params.id, event.params.pid, form);
 		} catch (err) {
 			if (err instanceof FormProblem) {
-				return fail(err.status, { personal: true, values: Object.fromEntries([...form.entries()].map(([k, v]) => [k, String(v)])), errors: err.errors });
+				return fail(statusOf(err), { personal: true, values: Object.fromEntries([...form.entries()].map(([k, v]) => [k, String(v)])), errors: err.errors });
 			}
 			throw err;
 		}

@@ -1,7 +1,9 @@
 // Adding a participant (PI, technician): research fields and personal data in one form; Momentry issues the code.
+import { FormProblem } from '$lib/server/errors';
+import { statusOf } from '$lib/server/http/edge';
 import { fail, redirect } from '@sveltejs/kit';
 import { createParticipant } from '$lib/server/participants/records';
-import { FormProblem, guardStudy } from '$lib/server/studies/records';
+import { guardStudy } from '$lib/server/studies/records';
 import type { Actions, PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async (event) => {
@@ -17,7 +19,7 @@ export const actions: Actions = {
 			made = await createParticipant(event, event.params.id, form);
 		} catch (err) {
 			if (err instanceof FormProblem) {
-				return fail(err.status, { values: Object.fromEntries([...form.entries()].map(([k, v]) => [k, String(v)])), errors: err.errors });
+				return fail(statusOf(err), { values: Object.fromEntries([...form.entries()].map(([k, v]) => [k, String(v)])), errors: err.errors });
 			}
 			throw err;
 		}

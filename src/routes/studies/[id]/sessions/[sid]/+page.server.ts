@@ -1,11 +1,12 @@
 // The session page: set-up summary, its trials with their runs, and the upload area (posting to the trials API).
+import { FormProblem } from '$lib/server/errors';
+import { statusOf } from '$lib/server/http/edge';
 import { readSession } from '$lib/server/sessions/sessions';
 import { decodeFlash, flashCookieName } from '$lib/server/trials/upload-flash';
 import { uploadLimitText } from '$lib/server/trials/uploads';
 import { latestMomentsBySession, listRunsForSession } from '$lib/server/runs/runs';
 import { fail, redirect } from '@sveltejs/kit';
 import { sendSignatureCode, transition, workflowOf, type Transition } from '$lib/server/sessions/workflow';
-import { FormProblem } from '$lib/server/studies/records';
 import type { Actions, PageServerLoad, RequestEvent } from './$types';
 
 export const load: PageServerLoad = async (event) => {
@@ -38,7 +39,7 @@ const step = (name: Transition) => async (event: RequestEvent) => {
 		if (err instanceof FormProblem) {
 			// never echo a password or code back into the page
 			const values = Object.fromEntries([...form.entries()].filter(([k]) => k !== 'password' && k !== 'code').map(([k, v]) => [k, String(v)]));
-			return fail(err.status, { workflow: { step: name, errors: err.errors, values } });
+			return fail(statusOf(err), { workflow: { step: name, errors: err.errors, values } });
 		}
 		throw err;
 	}
@@ -54,7 +55,7 @@ export const actions: Actions = {
 			const { expiresAt } = await sendSignatureCode(event, event.params.id, event.params.sid);
 			return { workflow: { step: 'approve' as const, codeSent: expiresAt, errors: {} as Record<string, string>, values: {} as Record<string, string> } };
 		} catch (err) {
-			if (err instanceof FormProblem) return fail(err.status, { workflow: { step: 'approve' as const, errors: err.errors, values: {} as Record<string, string> } });
+			if (err instanceof FormProblem) return fail(statusOf(err), { workflow: { step: 'approve' as const, errors: err.errors, values: {} as Record<string, string> } });
 			throw err;
 		}
 	}

@@ -1,7 +1,8 @@
 // One trial: its runs, residual analysis on request, and the form action that starts a run (also used by the session page).
+import { FormProblem } from '$lib/server/errors';
+import { statusOf } from '$lib/server/http/edge';
 import { fail, redirect } from '@sveltejs/kit';
 import { loadTrialPage, sessionOfTrial, startRun } from '$lib/server/runs/runs';
-import { FormProblem } from '$lib/server/studies/records';
 import type { Actions, PageServerLoad, RequestEvent } from './$types';
 
 export const load: PageServerLoad = async (event) => loadTrialPage(event, event.params.id, event.params.tid);
@@ -19,7 +20,7 @@ export const actions: Actions = {
 		try {
 			await startRun(event, event.params.id, event.params.tid, form);
 		} catch (err) {
-			if (err instanceof FormProblem) return fail(err.status, { trialId: event.params.tid, values: Object.fromEntries([...form.entries()].map(([k, v]) => [k, String(v)])), errors: err.errors });
+			if (err instanceof FormProblem) return fail(statusOf(err), { trialId: event.params.tid, values: Object.fromEntries([...form.entries()].map(([k, v]) => [k, String(v)])), errors: err.errors });
 			throw err;
 		}
 		return back(event, form);

@@ -1,9 +1,10 @@
 // A participant's consent for the study team: state and history (no personal data); invitations for PI and
 // technicians; after a withdrawal, the PI's keep/exclude decision on each flagged run.
+import { FormProblem } from '$lib/server/errors';
+import { statusOf } from '$lib/server/http/edge';
 import { fail, redirect, type RequestEvent } from '@sveltejs/kit';
 import { consentOverview, sendConsentLink } from '$lib/server/consent/workflow';
 import { decideFlaggedRun } from '$lib/server/runs/flags';
-import { FormProblem } from '$lib/server/studies/records';
 import type { Actions, PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async (event) => ({
@@ -17,7 +18,7 @@ async function send(event: RequestEvent<{ id: string; pid: string }>, kind: 'inv
 	try {
 		outcome = await sendConsentLink(event, event.params.id, event.params.pid, kind);
 	} catch (err) {
-		if (err instanceof FormProblem) return fail(err.status, { errors: err.errors, mailProblem: null });
+		if (err instanceof FormProblem) return fail(statusOf(err), { errors: err.errors, mailProblem: null });
 		throw err;
 	}
 	// the state change is kept even when the e-mail failed: say so on the page (502: the mail server let us down)
@@ -34,7 +35,7 @@ export const actions: Actions = {
 		try {
 			await decideFlaggedRun(event, event.params.id, String(form.get('runId') ?? ''), String(form.get('decision') ?? ''), String(form.get('note') ?? ''));
 		} catch (err) {
-			if (err instanceof FormProblem) return fail(err.status, { errors: err.errors, mailProblem: null, runId: String(form.get('runId') ?? '') });
+			if (err instanceof FormProblem) return fail(statusOf(err), { errors: err.errors, mailProblem: null, runId: String(form.get('runId') ?? '') });
 			throw err;
 		}
 		redirect(303, `/studies/${event.params.id}/participants/${event.params.pid}/consent?decided=1`);

@@ -1,7 +1,8 @@
 // Change a session's record and set-up while it is a draft or returned.
+import { FormProblem } from '$lib/server/errors';
+import { statusOf } from '$lib/server/http/edge';
 import { fail, redirect } from '@sveltejs/kit';
 import { editSession, editSessionForm, formValuesFrom } from '$lib/server/sessions/sessions';
-import { FormProblem } from '$lib/server/studies/records';
 import type { Actions, PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async (event) => ({
@@ -15,7 +16,7 @@ export const actions: Actions = {
 		try {
 			await editSession(event, event.params.id, event.params.sid, form);
 		} catch (err) {
-			if (err instanceof FormProblem) return fail(err.status, { values: formValuesFrom(form), errors: err.errors });
+			if (err instanceof FormProblem) return fail(statusOf(err), { values: formValuesFrom(form), errors: err.errors });
 			throw err;
 		}
 		redirect(303, `/studies/${event.params.id}/sessions/${event.params.sid}?saved=1`);
