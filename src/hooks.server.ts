@@ -7,6 +7,10 @@ import '$lib/anthropometry/tables';
 import { authHandle } from '$lib/server/auth';
 import { loadActor } from '$lib/server/access/guard';
 import { withRequestContext } from '$lib/server/http/request-context';
+import { db } from '$lib/server/db/index';
+
+// the connection pool and every model, set up once when the server starts (no connection is opened yet)
+db();
 
 const clientAddress: Handle = ({ event, resolve }) => {
 	// Auth.js sees only the Request; pass it the client's address (never trust one the client sent).

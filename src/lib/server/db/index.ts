@@ -6,7 +6,10 @@ import { initModels } from './models';
 
 let instance: Sequelize | null = null;
 
-/** Opens (once) and returns the connection with every model registered. */
+/**
+ * Sets up (once) and returns the connection pool with every model registered. The app's hooks, the worker and the
+ * command line call it at start-up; services use the models without calling it.
+ */
 export function db(url?: string): Sequelize {
 	if (instance) return instance;
 	instance = new Sequelize(url ?? config().DATABASE_URL, {

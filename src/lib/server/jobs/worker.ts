@@ -3,6 +3,7 @@ import type PgBoss from 'pg-boss';
 import { queue, QUEUES } from './queue';
 import { sendMail, mailMessage } from '../mail/index';
 import { abandonRun, processRun } from '../runs/runs';
+import { db } from '../db/index';
 
 const runJob = (data: unknown): string => {
 	const runId = (data as { runId?: unknown })?.runId;
@@ -11,6 +12,7 @@ const runJob = (data: unknown): string => {
 };
 
 export async function startWorker(log: (msg: string) => void = console.log): Promise<PgBoss> {
+	db(); // the connection pool and every model, set up once when the worker starts
 	const boss = await queue();
 	await boss.work(QUEUES.mailSend, { batchSize: 5 }, async (jobs) => {
 		for (const job of jobs) {
