@@ -25,14 +25,13 @@ Contents:
     round(fs/(3 fc)) samples, evaluated 1..L samples beyond the end).
 """
 
-import argparse
-import json
 import math
-import os
 
 import numpy as np
 import scipy
 import scipy.signal as ss
+
+from reference_io import out_path, round12, write_fixture
 
 SEED = 20261202
 C = (2 ** 0.5 - 1) ** 0.25
@@ -44,14 +43,9 @@ def design(fc, fs, corrected):
     return fd, b, a
 
 
-def round12(x):
-    return np.array([float(f"{v:.12g}") for v in x])
-
 
 def main():
-    ap = argparse.ArgumentParser()
-    ap.add_argument("--out", required=True)
-    args = ap.parse_args()
+    out_file = out_path()
     rng = np.random.default_rng(SEED)
 
     designs = []
@@ -134,10 +128,7 @@ def main():
         },
         "padding": padding,
     }
-    os.makedirs(os.path.dirname(os.path.abspath(args.out)), exist_ok=True)
-    with open(args.out, "w") as f:
-        json.dump(fixture, f, separators=(",", ":"))
-        f.write("\n")
+    write_fixture(out_file, fixture)
 
 
 if __name__ == "__main__":

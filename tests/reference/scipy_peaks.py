@@ -15,25 +15,19 @@ Contents, per signal (sampled at `sampleHz`, time = i / sampleHz):
     where scipy's order among equal heights is not defined.
 """
 
-import argparse
-import json
-import os
 
 import numpy as np
 import scipy
 import scipy.signal as ss
 
+from reference_io import out_path, round12, write_fixture
+
 SEED = 20261203
 
 
-def round12(x):
-    return np.array([float(f"{v:.12g}") for v in x])
-
 
 def main():
-    ap = argparse.ArgumentParser()
-    ap.add_argument("--out", required=True)
-    args = ap.parse_args()
+    out_file = out_path()
     rng = np.random.default_rng(SEED)
     signals = []
 
@@ -69,10 +63,7 @@ def main():
     add("quantised sine with plateaus", fs, x, [0.5, 1, 5, 20], [])
 
     fixture = {"source": f"scipy {scipy.__version__}, numpy {np.__version__}: tests/reference/scipy_peaks.py", "signals": signals}
-    os.makedirs(os.path.dirname(os.path.abspath(args.out)), exist_ok=True)
-    with open(args.out, "w") as f:
-        json.dump(fixture, f, separators=(",", ":"))
-        f.write("\n")
+    write_fixture(out_file, fixture)
 
 
 if __name__ == "__main__":

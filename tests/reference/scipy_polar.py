@@ -13,14 +13,13 @@ saw. For each M:
 Also a few matrices that must be refused: one entry off by 1e-3, and a reflection (det -1) rounded to 6 decimals.
 """
 
-import argparse
-import json
-import os
 
 import numpy as np
 import scipy
 import scipy.linalg as sl
 from scipy.spatial.transform import Rotation
+
+from reference_io import out_path, write_fixture
 
 SEED = 20261203
 
@@ -39,9 +38,7 @@ def entry(M):
 
 
 def main():
-    ap = argparse.ArgumentParser()
-    ap.add_argument("--out", required=True)
-    args = ap.parse_args()
+    out_file = out_path()
     rotations = Rotation.random(12, random_state=SEED).as_matrix()
     accepted = [entry(np.round(R, 6)) for R in rotations]
     off = np.round(rotations[0], 6)
@@ -53,10 +50,7 @@ def main():
         "accepted": accepted,
         "refused": refused,
     }
-    os.makedirs(os.path.dirname(os.path.abspath(args.out)), exist_ok=True)
-    with open(args.out, "w") as f:
-        json.dump(fixture, f, indent=1)
-        f.write("\n")
+    write_fixture(out_file, fixture, indent=1)
 
 
 if __name__ == "__main__":

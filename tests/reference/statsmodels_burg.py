@@ -14,26 +14,20 @@ Contents:
     orders 2, 10 and 40 (our routine takes the signal as it is; the caller centres it).
 """
 
-import argparse
-import json
-import os
 
 import numpy as np
 import statsmodels
 from statsmodels.datasets.sunspots import load
 from statsmodels.regression.linear_model import burg
 
+from reference_io import out_path, round12, write_fixture
+
 SEED = 20261203
 
 
-def round12(x):
-    return np.array([float(f"{v:.12g}") for v in x])
-
 
 def main():
-    ap = argparse.ArgumentParser()
-    ap.add_argument("--out", required=True)
-    args = ap.parse_args()
+    out_file = out_path()
     rng = np.random.default_rng(SEED)
 
     spots = np.asarray(load().endog, dtype=float)
@@ -61,10 +55,7 @@ def main():
                      "documented": [1.30934186, -0.48086633, -0.20185982, 0.05501941]},
         "signals": out,
     }
-    os.makedirs(os.path.dirname(os.path.abspath(args.out)), exist_ok=True)
-    with open(args.out, "w") as f:
-        json.dump(fixture, f, separators=(",", ":"))
-        f.write("\n")
+    write_fixture(out_file, fixture)
 
 
 if __name__ == "__main__":
