@@ -195,29 +195,27 @@ describe('de Leva’s KJC–AJC shank row', () => {
 
 describe('scaled shank by hand (de Leva 1996 Table 4, shank KJC–AJC; from memory)', () => {
 	const shankOf = (p: ParticipantBody) => scaleLimbs(p, 'de-leva-1996', ['right.leg']).segments.find((s) => s.segment === 'shank')!;
+	/** Length (m), mass (kg), COM distance (m) and the flexion, abduction and longitudinal inertias (kg·m²) by hand. */
+	const expectShank = (p: ParticipantBody, [length, mass, com, flexion, abduction, longitudinal]: number[]) => {
+		const s = shankOf(p);
+		near(s.length.value, length, 6);
+		near(s.mass.value, mass, 9);
+		near(s.comDistance.value, com, 6);
+		near(s.inertia.flexion.value, flexion, 6);
+		near(s.inertia.abduction.value, abduction, 6);
+		near(s.inertia.longitudinal.value, longitudinal, 6);
+	};
 
 	it('a man of 80 kg and 1.80 m, length from the mean length', () => {
 		// L = 0.4403 m × 1.80 / 1.741 = 0.455221 m; m = 0.0433 × 80 = 3.464 kg; COM 0.4395 L = 0.200070 m;
 		// I_flex = 3.464 × (0.246 L)² = 0.043440; I_abd = 3.464 × (0.251 L)² = 0.045224; I_long = 3.464 × (0.102 L)² = 0.007468 kg·m²
-		const s = shankOf({ sex: 'male', bodyMass: 80, stature: 1.8 });
-		near(s.length.value, 0.455221, 6);
-		near(s.mass.value, 3.464, 9);
-		near(s.comDistance.value, 0.20007, 6);
-		near(s.inertia.flexion.value, 0.04344, 6);
-		near(s.inertia.abduction.value, 0.045224, 6);
-		near(s.inertia.longitudinal.value, 0.007468, 6);
+		expectShank({ sex: 'male', bodyMass: 80, stature: 1.8 }, [0.455221, 3.464, 0.20007, 0.04344, 0.045224, 0.007468]);
 	});
 
 	it('a woman of 64 kg and 1.68 m, length from the mean length', () => {
 		// L = 0.4387 m × 1.68 / 1.735 = 0.424793 m; m = 0.0481 × 64 = 3.0784 kg; COM 0.4352 L = 0.184870 m;
 		// I_flex = 3.0784 × (0.263 L)² = 0.038423; I_abd = 3.0784 × (0.267 L)² = 0.039601; I_long = 3.0784 × (0.092 L)² = 0.004702 kg·m²
-		const s = shankOf({ sex: 'female', bodyMass: 64, stature: 1.68 });
-		near(s.length.value, 0.424793, 6);
-		near(s.mass.value, 3.0784, 9);
-		near(s.comDistance.value, 0.18487, 6);
-		near(s.inertia.flexion.value, 0.038423, 6);
-		near(s.inertia.abduction.value, 0.039601, 6);
-		near(s.inertia.longitudinal.value, 0.004702, 6);
+		expectShank({ sex: 'female', bodyMass: 64, stature: 1.68 }, [0.424793, 3.0784, 0.18487, 0.038423, 0.039601, 0.004702]);
 	});
 
 	it('a man with a measured shank of 0.43 m: the row’s fractions of that length (1.5 % nearer the knee than the KJC–LMAL row’s)', () => {

@@ -7,6 +7,16 @@ import { compileModel, inverseDynamics, massMatrix, choleskyInPlace } from '../.
 const ref: ParticipantBody = { sex: 'male', bodyMass: 80, stature: 1.8 };
 const seg = (m: ReturnType<typeof scaleLimbs>, key: string) => m.segments.find((s) => s.key === key)!;
 const near = (a: number, b: number, digits: number) => expect(a).toBeCloseTo(b, digits);
+/** One segment's scaled values against a hand calculation; `digits` per field where the hand value is rounded. */
+type Hand = Partial<Record<'length' | 'mass' | 'com' | 'flexion' | 'longitudinal', number | [number, number]>>;
+function expectByHand(m: ReturnType<typeof scaleLimbs>, key: string, hand: Hand): void {
+	const s = seg(m, key);
+	const got = { length: s.length.value, mass: s.mass.value, com: s.comDistance.value, flexion: s.inertia.flexion.value, longitudinal: s.inertia.longitudinal.value };
+	for (const [field, want] of Object.entries(hand) as [keyof Hand, number | [number, number]][]) {
+		const [value, digits] = Array.isArray(want) ? want : [want, 6];
+		near(got[field], value, digits);
+	}
+}
 
 describe('worked examples by hand (80 kg, 1.80 m)', () => {
 	it('Dempster via Winter 2009 Table 4.1, lengths from Drillis & Contini (Winter 2009 Fig. 4.1)', () => {
@@ -18,20 +28,10 @@ describe('worked examples by hand (80 kg, 1.80 m)', () => {
 		//        I = 3.720 × (0.302 × 0.4428)² = 0.066523 kg·m²
 		// foot:  L = 0.152 × 1.80 = 0.2736 m; m = 0.0145 × 80 = 1.160 kg; COM 0.50 × 0.2736 = 0.1368 m;
 		//        I = 1.160 × (0.475 × 0.2736)² = 0.019592 kg·m²
-		const thigh = seg(m, 'right.thigh'),
-			shank = seg(m, 'right.shank'),
-			foot = seg(m, 'right.foot');
-		near(thigh.length.value, 0.441, 6);
-		near(thigh.mass.value, 8.0, 6);
-		near(thigh.comDistance.value, 0.190953, 6);
-		near(thigh.inertia.flexion.value, 0.16232, 6);
-		near(shank.length.value, 0.4428, 6);
-		near(shank.mass.value, 3.72, 6);
-		near(shank.comDistance.value, 0.191732, 6);
-		near(shank.inertia.flexion.value, 0.066523, 6);
-		near(foot.mass.value, 1.16, 6);
-		near(foot.comDistance.value, 0.1368, 6);
-		near(foot.inertia.flexion.value, 0.019592, 6);
+		expectByHand(m, 'right.thigh', { length: 0.441, mass: 8.0, com: 0.190953, flexion: 0.16232 });
+		expectByHand(m, 'right.shank', { length: 0.4428, mass: 3.72, com: 0.191732, flexion: 0.066523 });
+		expectByHand(m, 'right.foot', { mass: 1.16, com: 0.1368, flexion: 0.019592 });
+		const thigh = seg(m, 'right.thigh');
 		expect(thigh.length.kind).toBe('estimated');
 		expect(thigh.mass.source).toContain('Table 4.1');
 	});
@@ -47,22 +47,9 @@ describe('worked examples by hand (80 kg, 1.80 m)', () => {
 		//        COM 0.4395 × L = 0.200070 m; I_flex = 3.464 × (0.246 L)² = 0.043440 kg·m²
 		// foot:  L = 0.2581 × 1.80 / 1.741 = 0.266847 m; m = 0.0137 × 80 = 1.096 kg;
 		//        COM 0.4415 × L = 0.117813 m; I_flex = 1.096 × (0.245 L)² = 0.004685 kg·m²
-		const thigh = seg(m, 'right.thigh'),
-			shank = seg(m, 'right.shank'),
-			foot = seg(m, 'right.foot');
-		near(thigh.length.value, 0.436508, 6);
-		near(thigh.mass.value, 11.328, 6);
-		near(thigh.comDistance.value, 0.17875, 5);
-		near(thigh.inertia.flexion.value, 0.23363, 6);
-		near(thigh.inertia.longitudinal.value, 0.047919, 6);
-		near(shank.length.value, 0.455221, 6);
-		near(shank.mass.value, 3.464, 6);
-		near(shank.comDistance.value, 0.20007, 5);
-		near(shank.inertia.flexion.value, 0.04344, 6);
-		near(foot.length.value, 0.266847, 6);
-		near(foot.mass.value, 1.096, 6);
-		near(foot.comDistance.value, 0.117813, 5);
-		near(foot.inertia.flexion.value, 0.004685, 6);
+		expectByHand(m, 'right.thigh', { length: 0.436508, mass: 11.328, com: [0.17875, 5], flexion: 0.23363, longitudinal: 0.047919 });
+		expectByHand(m, 'right.shank', { length: 0.455221, mass: 3.464, com: [0.20007, 5], flexion: 0.04344 });
+		expectByHand(m, 'right.foot', { length: 0.266847, mass: 1.096, com: [0.117813, 5], flexion: 0.004685 });
 		expect(m.sexUsed).toEqual({ value: 'male', reason: 'participant reported male' });
 	});
 
