@@ -1,6 +1,5 @@
 // The one access check: may this person do this action to a record of that study? Default deny.
-import { db } from '../db/index';
-import { User, StudyMember, type StudyRole } from '../db/models';
+import { User, Study, StudyMember, type StudyRole } from '../db/models';
 import { record } from '../audit/record';
 import { forbidden, notFound, unauthenticated } from '../errors';
 import type { RequestContext } from './context';
@@ -40,6 +39,10 @@ export const STUDY_ACTIONS = {
 	'session.reopen': ['pi'],
 	'session.export': ['pi', 'researcher']
 } as const satisfies Record<string, readonly StudyRole[]>;
+const UUID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
+/** Whether a string from a URL or a form is a record id at all (anything else is answered like an unknown id). */
+export const isUuid = (s: string | null | undefined): s is string => typeof s === 'string' && UUID.test(s);
+
 export type LabAction = (typeof LAB_ACTIONS)[number];
 export type StudyAction = keyof typeof STUDY_ACTIONS;
 
@@ -55,10 +58,9 @@ export function may(actor: Actor | null, action: LabAction | StudyAction, studyI
 /** Loads the signed-in person for this request, or null (no session, deactivated, or signed out everywhere). */
 export async function loadActor(userId: string | undefined, sessionVersion: number | undefined): Promise<Actor | null> {
 	if (!userId) return null;
-	db();
 	const user = await User.findByPk(userId, { include: [StudyMember] });
 	if (!user || user.deactivatedAt || (sessionVersion ?? 0) !== user.sessionVersion) return null;
-	const members = (user as unknown as { StudyMembers: StudyMember[] }).StudyMembers ?? [];
+	const members = user.StudyMembers ?? [];
 	return { id: user.id, email: user.email, name: user.name, isAdmin: user.isAdmin, roles: new Map(members.map((m) => [m.studyId, m.role])) };
 }
 
@@ -97,4 +99,21 @@ export async function guardStudyAction(actor: Actor | null, ctx: RequestContext,
 	if (!studyId || !a.roles.has(studyId)) await deny(a, ctx, action, studyId ?? null, 'not-found');
 	if (!may(a, action, studyId!)) await deny(a, ctx, action, studyId!, 'forbidden');
 	return a;
+}
+
+/**
+ * Guards an action on the study `rawStudyId` names (as it came in a URL or a form) and loads it. A malformed or
+ * unknown id is not-found, like a study the person is not on; denials are audited as in guardStudyAction.
+ */
+export async function studyFor(
+	actor: Actor | null,
+	ctx: RequestContext,
+	action: StudyAction,
+	rawStudyId: string | null | undefined
+): Promise<{ actor: Actor; study: Study }> {
+	const id = isUuid(rawStudyId) ? rawStudyId.toLowerCase() : null;
+	const a = await guardStudyAction(actor, ctx, action, id);
+	const study = id ? await Study.findByPk(id) : null;
+	if (!study) throw notFound();
+	return { actor: a, study };
 }

@@ -5,6 +5,7 @@ import {
 	type CreationOptional,
 	type InferAttributes,
 	type InferCreationAttributes,
+	type NonAttribute,
 	type Sequelize
 } from 'sequelize';
 
@@ -78,6 +79,8 @@ export class User extends Model<InferAttributes<User>, InferCreationAttributes<U
 	declare deactivatedAt: CreationOptional<Date | null>;
 	declare sessionVersion: CreationOptional<number>;
 	declare createdAt: CreationOptional<Date>;
+	/** Present when a query includes StudyMember. */
+	declare StudyMembers?: NonAttribute<StudyMember[]>;
 }
 
 export class Study extends Model<InferAttributes<Study>, InferCreationAttributes<Study>> {
@@ -91,6 +94,8 @@ export class Study extends Model<InferAttributes<Study>, InferCreationAttributes
 	declare participantPrefix: CreationOptional<string | null>;
 	declare nextParticipantNumber: CreationOptional<number>;
 	declare createdAt: CreationOptional<Date>;
+	/** Present when a query includes StudyMember. */
+	declare StudyMembers?: NonAttribute<StudyMember[]>;
 }
 
 /** One published consent form of a study; never changed after publishing (a change is a new version). */
@@ -144,6 +149,9 @@ export class StudyMember extends Model<InferAttributes<StudyMember>, InferCreati
 	declare userId: string;
 	declare role: StudyRole;
 	declare createdAt: CreationOptional<Date>;
+	/** Present when a query includes User or Study. */
+	declare User?: NonAttribute<User>;
+	declare Study?: NonAttribute<Study>;
 }
 
 export class OneTimeToken extends Model<InferAttributes<OneTimeToken>, InferCreationAttributes<OneTimeToken>> {

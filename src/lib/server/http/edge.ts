@@ -3,7 +3,7 @@
 // src/lib/server imports SvelteKit (but the Auth.js glue).
 import { error, fail, isHttpError, isRedirect, redirect, type ActionFailure, type RequestEvent } from '@sveltejs/kit';
 import { DomainError, FormProblem, type DomainErrorKind, type FieldErrors } from '../errors';
-import { guardLab, guardStudyAction, type Actor, type LabAction, type StudyAction } from '../access/guard';
+import { guardLab, guardStudyAction, studyFor, type Actor, type LabAction, type StudyAction } from '../access/guard';
 import type { RequestContext } from '../access/context';
 
 export const STATUS: Record<DomainErrorKind, 400 | 401 | 403 | 404 | 409 | 410 | 413 | 415 | 422 | 429 | 502 | 503> = {
@@ -98,3 +98,10 @@ export const requireLab = (event: RequestEvent, action: LabAction): Promise<Acto
 /** A study action's guard for a route: 404 for non-members, 403 for a role without the permission. */
 export const requireStudy = (event: RequestEvent, action: StudyAction, studyId: string | null | undefined): Promise<Actor> =>
 	edge(event, () => guardStudyAction(actorOf(event), contextOf(event), action, studyId));
+
+/** A study action's guard for a route, with the study the URL names loaded (404 for a malformed or unknown id). */
+export const requireStudyRecord = (event: RequestEvent, action: StudyAction, rawStudyId: string | null | undefined) =>
+	edge(event, () => studyFor(actorOf(event), contextOf(event), action, rawStudyId));
+
+/** @deprecated transitional name of requireStudyRecord; services should call studyFor(actor, ctx, …) instead. */
+export const guardStudy = requireStudyRecord;

@@ -1,15 +1,11 @@
 // A study's own records: ethics approval and default segment table (PI settings) and consent form versions.
-import type { RequestEvent } from '@sveltejs/kit';
-import { error } from '@sveltejs/kit';
 import { z } from 'zod';
 import { db } from '../db/index';
 import { ConsentFormVersion, Study } from '../db/models';
-import { type StudyAction } from '../access/guard';
-import { requireStudy } from '../http/edge';
+import { studyFor, type Actor } from '../access/guard';
+import type { RequestContext } from '../access/context';
 import { record } from '../audit/record';
-import { isUuid } from './studies';
 import { FormProblem } from '../errors';
-import { contextOf } from '../http/edge';
 import { renderMarkdown } from '../consent/markdown';
 
 import { SEGMENT_TABLE_IDS, type SegmentTableId } from '../../anthropometry/tables';
@@ -41,15 +37,8 @@ export function fieldErrors(issues: z.core.$ZodIssue[]): Record<string, string> 
 	return out;
 }
 
-/** Guards an action on the study in the URL; a malformed id is denied like an unknown one. */
-export async function guardStudy(event: RequestEvent, action: StudyAction, rawId: string) {
-	const id = isUuid(rawId) ? rawId.toLowerCase() : null;
-	const actor = await requireStudy(event, action, id);
-	db();
-	const study = await Study.findByPk(id!);
-	if (!study) error(404, 'Not found');
-	return { actor, study };
-}
+/** @deprecated transitional: services call studyFor (access/guard.ts), routes requireStudyRecord (http/edge.ts). */
+export { guardStudy } from '../http/edge';
 
 const ISO_DATE = /^\d{4}-\d{2}-\d{2}$/;
 const settingsSchema = z.object({
@@ -68,32 +57,46 @@ export interface StudySettings {
 	defaultTable: TableId;
 }
 
-export function parseSettings(form: FormData): StudySettings {
+/** The settings form as posted (strings; anything missing reads as empty). */
+export type SettingsInput = Partial<Record<keyof StudySettings, unknown>>;
+
+const text = (v: unknown) => (typeof v === 'string' ? v : '');
+
+export function parseSettings(input: SettingsInput): StudySettings {
 	const r = settingsSchema.safeParse({
-		ethicsReference: String(form.get('ethicsReference') ?? ''),
-		ethicsExpiresOn: String(form.get('ethicsExpiresOn') ?? ''),
-		defaultTable: String(form.get('defaultTable') ?? '')
+		ethicsReference: text(input.ethicsReference),
+		ethicsExpiresOn: text(input.ethicsExpiresOn),
+		defaultTable: text(input.defaultTable)
 	});
 	if (!r.success) throw new FormProblem(fieldErrors(r.error.issues));
 	return r.data;
 }
 
+/** The study's settings as the PI's form shows them. */
+export async function settingsOf(actor: Actor | null, ctx: RequestContext, rawStudyId: string) {
+	const { study } = await studyFor(actor, ctx, 'study.edit', rawStudyId);
+	return {
+		study: { id: study.id, code: study.code, title: study.title },
+		values: { ethicsReference: study.ethicsReference ?? '', ethicsExpiresOn: study.ethicsExpiresOn ?? '', defaultTable: study.defaultTable }
+	};
+}
+
 /** The PI changes the ethics approval and default table; the change and its old values are audited. */
-export async function saveSettings(event: RequestEvent, rawId: string, form: FormData): Promise<void> {
-	const { actor, study } = await guardStudy(event, 'study.edit', rawId);
-	const next = parseSettings(form);
+export async function saveSettings(actor: Actor | null, ctx: RequestContext, rawStudyId: string, input: SettingsInput): Promise<void> {
+	const { actor: a, study } = await studyFor(actor, ctx, 'study.edit', rawStudyId);
+	const next = parseSettings(input);
 	const before = { ethicsReference: study.ethicsReference ?? null, ethicsExpiresOn: study.ethicsExpiresOn ?? null, defaultTable: study.defaultTable };
 	await db().transaction(async (transaction) => {
 		await study.update(next, { transaction });
 		await record(
 			{
 				action: 'study.settings.changed',
-				actorUserId: actor.id,
-				actorLabel: actor.email,
+				actorUserId: a.id,
+				actorLabel: a.email,
 				studyId: study.id,
 				recordType: 'study',
 				recordId: study.id,
-				ipAddress: contextOf(event).ipAddress,
+				ipAddress: ctx.ipAddress,
 				details: { before, after: next }
 			},
 			transaction
@@ -111,7 +114,6 @@ export interface ConsentVersionView {
 }
 
 export async function listConsentVersions(studyId: string): Promise<ConsentVersionView[]> {
-	db();
 	const rows = await ConsentFormVersion.findAll({ where: { studyId }, order: [['version', 'DESC']] });
 	return rows.map((v) => ({
 		id: v.id,
@@ -131,12 +133,18 @@ const consentSchema = z.object({
 		.max(20, 'Give at most 20 confirmation statements.')
 });
 
+/** The consent form as posted: its Markdown text and the confirmation statements, one per line. */
+export interface ConsentFormInput {
+	bodyMarkdown?: unknown;
+	confirmations?: unknown;
+}
+
 /** Publishes a new version (the next number); earlier versions are never touched. */
-export async function publishConsentVersion(event: RequestEvent, rawId: string, form: FormData): Promise<number> {
-	const { actor, study } = await guardStudy(event, 'consent.publish', rawId);
+export async function publishConsentVersion(actor: Actor | null, ctx: RequestContext, rawStudyId: string, input: ConsentFormInput): Promise<number> {
+	const { actor: a, study } = await studyFor(actor, ctx, 'consent.publish', rawStudyId);
 	const r = consentSchema.safeParse({
-		bodyMarkdown: String(form.get('bodyMarkdown') ?? ''),
-		confirmations: String(form.get('confirmations') ?? '')
+		bodyMarkdown: text(input.bodyMarkdown),
+		confirmations: text(input.confirmations)
 			.split(/\r?\n/)
 			.map((l) => l.trim())
 			.filter(Boolean)
@@ -147,18 +155,18 @@ export async function publishConsentVersion(event: RequestEvent, rawId: string, 
 		await Study.findByPk(study.id, { transaction, lock: transaction.LOCK.UPDATE });
 		const last = (await ConsentFormVersion.max<number, ConsentFormVersion>('version', { where: { studyId: study.id }, transaction })) ?? 0;
 		const v = await ConsentFormVersion.create(
-			{ studyId: study.id, version: last + 1, bodyMarkdown: r.data.bodyMarkdown, confirmations: r.data.confirmations, publishedBy: actor.id },
+			{ studyId: study.id, version: last + 1, bodyMarkdown: r.data.bodyMarkdown, confirmations: r.data.confirmations, publishedBy: a.id },
 			{ transaction }
 		);
 		await record(
 			{
 				action: 'consent_form.published',
-				actorUserId: actor.id,
-				actorLabel: actor.email,
+				actorUserId: a.id,
+				actorLabel: a.email,
 				studyId: study.id,
 				recordType: 'consent_form_version',
 				recordId: v.id,
-				ipAddress: contextOf(event).ipAddress,
+				ipAddress: ctx.ipAddress,
 				details: { version: v.version }
 			},
 			transaction

@@ -3,7 +3,7 @@ import type { RequestEvent } from '@sveltejs/kit';
 import { error } from '@sveltejs/kit';
 import { db } from '../db/index';
 import { Participant, Study, StudyMember, User, type StudyRole } from '../db/models';
-import { may, type Actor } from '../access/guard';
+import { isUuid, may, type Actor } from '../access/guard';
 import { requireActor, requireStudy } from '../http/edge';
 
 /** The words the UI uses for each role (one name per idea: the stored value stays 'pi', 'researcher', 'technician'). */
@@ -14,8 +14,7 @@ export const ROLE_LABELS: Record<StudyRole, string> = {
 };
 const ROLE_ORDER: Record<StudyRole, number> = { pi: 0, researcher: 1, technician: 2 };
 
-const UUID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
-export const isUuid = (s: string | null | undefined): s is string => typeof s === 'string' && UUID.test(s);
+export { isUuid } from '../access/guard';
 
 export interface StudySummary {
 	id: string;
