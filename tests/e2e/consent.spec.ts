@@ -1,17 +1,13 @@
 // E-mailed consent in Chromium: a technician invites a participant, the participant consents from the e-mailed link
 // (read from maildev's HTTP API), the state changes on the participant page; then the e-mailed withdraw link withdraws.
 import { test, expect } from '@playwright/test';
-import { PASSWORD, mailWith, passwordSignIn } from './helpers';
+import { mailWith, technicianAtShelfReachParticipants } from './helpers';
 
 test('a technician invites, the participant consents from the e-mail, then withdraws with the e-mailed link', async ({ page, browser }) => {
 	test.setTimeout(60_000);
 	// a participant of our own, so other tests' demo participants keep their seeded states
 	const email = `consent.e2e.${Date.now()}@example.org`;
-	await passwordSignIn(page, 'technician@alder-creek.example', PASSWORD);
-	await expect(page.getByTestId('signed-in-as')).toHaveText('Jonah Abernethy');
-	await page.goto('/studies');
-	await page.getByRole('link', { name: 'SHELF-REACH' }).first().click();
-	await page.getByRole('link', { name: /^Participants/ }).click();
+	await technicianAtShelfReachParticipants(page);
 	await page.getByRole('link', { name: 'Add participant' }).click();
 	await page.locator('#field-sex').selectOption('female');
 	await page.locator('#field-bodyMassKg').fill('63.5');

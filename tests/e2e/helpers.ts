@@ -1,5 +1,5 @@
 // Shared steps for the end-to-end tests: the demo password, reading maildev's inbox, the password form.
-import type { Page } from '@playwright/test';
+import { expect, type Page } from '@playwright/test';
 
 export const PASSWORD = 'momentry-demo-2026';
 const inbox = () => process.env.MAILDEV_URL!;
@@ -26,4 +26,13 @@ export async function passwordSignIn(page: Page, email: string, password: string
 	await form.getByLabel('E-mail address').fill(email);
 	await form.getByLabel('Password').fill(password);
 	await form.getByRole('button', { name: 'Sign in' }).click();
+}
+
+/** The demo technician signs in and opens the participants of the shelving-reach study. */
+export async function technicianAtShelfReachParticipants(page: Page): Promise<void> {
+	await passwordSignIn(page, 'technician@alder-creek.example', PASSWORD);
+	await expect(page.getByTestId('signed-in-as')).toHaveText('Jonah Abernethy');
+	await page.goto('/studies');
+	await page.getByRole('link', { name: 'SHELF-REACH' }).first().click();
+	await page.getByRole('link', { name: /^Participants/ }).click();
 }

@@ -1,15 +1,11 @@
 // Participant CSV import in Chromium with JavaScript: a too-large file is refused before sending, a bad file lists its
 // problems by row and column, a good file (CRLF, a value over two lines) is previewed and imported with consecutive codes.
 import { test, expect } from '@playwright/test';
-import { PASSWORD, passwordSignIn } from './helpers';
+import { technicianAtShelfReachParticipants } from './helpers';
 
 test('check a file, see its problems or its preview, then import it', async ({ page }) => {
 	test.setTimeout(60_000);
-	await passwordSignIn(page, 'technician@alder-creek.example', PASSWORD);
-	await expect(page.getByTestId('signed-in-as')).toHaveText('Jonah Abernethy');
-	await page.goto('/studies');
-	await page.getByRole('link', { name: 'SHELF-REACH' }).first().click();
-	await page.getByRole('link', { name: /^Participants/ }).click();
+	await technicianAtShelfReachParticipants(page);
 	await page.getByRole('link', { name: 'Import from CSV' }).click();
 	await expect(page.getByRole('heading', { level: 1, name: 'Import participants from CSV' })).toBeVisible();
 	const file = page.getByLabel('Participant list (.csv, .tsv or .txt)');

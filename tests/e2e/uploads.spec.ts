@@ -4,17 +4,13 @@
 import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { test, expect } from '@playwright/test';
-import { PASSWORD, passwordSignIn } from './helpers';
+import { technicianAtShelfReachParticipants } from './helpers';
 
 const GOOD = readFileSync(join(import.meta.dirname, '../../seeds/recordings/ald-001-shelf-reach.csv'), 'utf8');
 
 test('drop two files, watch each upload, see one stored and one rejected, then run it', async ({ page }) => {
 	test.setTimeout(90_000);
-	await passwordSignIn(page, 'technician@alder-creek.example', PASSWORD);
-	await expect(page.getByTestId('signed-in-as')).toHaveText('Jonah Abernethy');
-	await page.goto('/studies');
-	await page.getByRole('link', { name: 'SHELF-REACH' }).first().click();
-	await page.getByRole('link', { name: /^Participants/ }).click();
+	await technicianAtShelfReachParticipants(page);
 	await page.getByRole('link', { name: 'ALD-002', exact: true }).click();
 	await page.getByRole('link', { name: 'New session' }).click();
 	await page.getByLabel('Operator').fill('E2E operator');
