@@ -1,35 +1,14 @@
-// Reading the audit log (administrators only): URL filters, pages of 50 newest first, CSV export. Writing is audit.ts.
-import type { RequestEvent } from '@sveltejs/kit';
-import { Op, QueryTypes, type WhereOptions } from 'sequelize';
-import { db } from '../db/index';
+// Reading the audit log (administrators only): URL filters, pages of 50 newest first, CSV export. Writing is record.ts.
+import { Op, type WhereOptions } from 'sequelize';
 import { AuditEvent, Study, User } from '../db/models';
-import { requireLab } from '../http/edge';
+import { guardLab, type Actor } from '../access/guard';
+import type { RequestContext } from '../access/context';
+import { OUTCOMES, type AuditFilter, type AuditPage, type AuditQuery, type AuditRow, type Outcome } from '../../types/audit';
 import { record } from './record';
 
+export { OUTCOMES, filterQuery, type AuditFilter, type AuditPage, type AuditQuery, type AuditRow, type Outcome } from '../../types/audit';
+
 export const PAGE_SIZE = 50;
-export const OUTCOMES = ['ok', 'denied', 'failed'] as const;
-export type Outcome = (typeof OUTCOMES)[number];
-
-/** The filters as typed in the URL (kept as text so the form can show them back). */
-export interface AuditFilter {
-	/** Action prefix, e.g. "auth." or "access.denied". */
-	action: string;
-	outcome: Outcome | '';
-	/** Part of the actor's e-mail address (or label: "seed", "anonymous"). */
-	actor: string;
-	/** Study code, exact (case-insensitive). */
-	study: string;
-	/** UTC dates, YYYY-MM-DD, both inclusive. */
-	from: string;
-	to: string;
-}
-
-export interface AuditQuery {
-	filter: AuditFilter;
-	page: number;
-	/** What was wrong with the query; the faulty parts are not applied. */
-	problems: string[];
-}
 
 const DATE = /^(\d{4})-(\d{2})-(\d{2})$/;
 
@@ -66,15 +45,6 @@ export function parseAuditQuery(params: URLSearchParams): AuditQuery {
 	return { filter: { action: text('action'), outcome, actor: text('actor'), study: text('study'), from, to }, page, problems };
 }
 
-/** The query string for these filters (empty fields left out), for paging links and the export. */
-export function filterQuery(filter: AuditFilter, page?: number): string {
-	const p = new URLSearchParams();
-	for (const [k, v] of Object.entries(filter)) if (v) p.set(k, v);
-	if (page && page > 1) p.set('page', String(page));
-	const s = p.toString();
-	return s ? `?${s}` : '';
-}
-
 const escapeLike = (s: string) => s.replace(/[\\%_]/g, (c) => `\\${c}`);
 
 /** The WHERE clause for a filter, or null when it cannot match anything (an unknown study code). */
@@ -93,25 +63,6 @@ async function whereFor(filter: AuditFilter): Promise<WhereOptions<AuditEvent> |
 	if (from) and.push({ occurredAt: { [Op.gte]: from } });
 	if (to) and.push({ occurredAt: { [Op.lt]: new Date(to.getTime() + 86_400_000) } });
 	return and.length ? { [Op.and]: and } : {};
-}
-
-export interface AuditRow {
-	id: string;
-	/** ISO 8601 in UTC, for <time datetime>. */
-	occurredAt: string;
-	/** "2026-03-02 14:05:12 UTC" */
-	when: string;
-	actorLabel: string;
-	actorName: string | null;
-	action: string;
-	outcome: Outcome;
-	studyCode: string | null;
-	/** "user 3f2c…" when the event names a record. */
-	record: string | null;
-	ipAddress: string | null;
-	summary: string;
-	/** The full details as indented JSON, for the disclosure under the summary. */
-	detailsJson: string;
 }
 
 export const formatUtc = (d: Date) => `${d.toISOString().slice(0, 19).replace('T', ' ')} UTC`;
@@ -153,31 +104,19 @@ function toRow(e: AuditEvent, codes: Map<string, string>, names: Map<string, str
 	};
 }
 
-export interface AuditPage {
-	rows: AuditRow[];
-	total: number;
-	page: number;
-	pageCount: number;
-	pageSize: number;
-	/** For the filter form: every study code, and the actions seen so far (for suggestions). */
-	studies: { code: string; title: string }[];
-	actions: string[];
-}
-
 const NEWEST_FIRST: [string, string][] = [
 	['occurredAt', 'DESC'],
 	['id', 'DESC']
 ];
 
 /** One page of the filtered log, newest first. */
-export async function auditPage(event: RequestEvent, query: AuditQuery): Promise<AuditPage> {
-	await requireLab(event, 'audit.read');
-	db();
+export async function auditPage(actor: Actor | null, ctx: RequestContext, query: AuditQuery): Promise<AuditPage> {
+	await guardLab(actor, ctx, 'audit.read');
 	const [where, codes, studies, actions] = await Promise.all([
 		whereFor(query.filter),
 		studyCodes(),
 		Study.findAll({ attributes: ['code', 'title'], order: [['code', 'ASC']] }),
-		db().query<{ action: string }>('SELECT DISTINCT action FROM audit_events ORDER BY action LIMIT 300', { type: QueryTypes.SELECT })
+		AuditEvent.findAll({ attributes: ['action'], group: ['action'], order: [['action', 'ASC']], limit: 300 })
 	]);
 	const found = where
 		? await AuditEvent.findAndCountAll({ where, order: NEWEST_FIRST, limit: PAGE_SIZE, offset: (query.page - 1) * PAGE_SIZE })
@@ -230,9 +169,8 @@ const EXPORT_BATCH = 1000;
  * The filtered log as CSV, newest first, streamed in batches. The export is itself audited. Rows added while it
  * streams are left out (ids above the highest one at the start), so batches neither repeat nor skip rows.
  */
-export async function auditCsv(event: RequestEvent, query: AuditQuery): Promise<ReadableStream<Uint8Array>> {
-	const actor = await requireLab(event, 'audit.read');
-	db();
+export async function auditCsv(who: Actor | null, ctx: RequestContext, query: AuditQuery): Promise<ReadableStream<Uint8Array>> {
+	const actor = await guardLab(who, ctx, 'audit.read');
 	const where = await whereFor(query.filter);
 	const codes = await studyCodes();
 	const maxId = (await AuditEvent.max('id')) as string | number | null;
@@ -240,7 +178,7 @@ export async function auditCsv(event: RequestEvent, query: AuditQuery): Promise<
 		action: 'audit.exported',
 		actorUserId: actor.id,
 		actorLabel: actor.email,
-		ipAddress: event.getClientAddress(),
+		ipAddress: ctx.ipAddress,
 		details: { filter: Object.fromEntries(Object.entries(query.filter).filter(([, v]) => v)), format: 'csv' }
 	});
 	const encoder = new TextEncoder();

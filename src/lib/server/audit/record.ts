@@ -1,6 +1,5 @@
 // Writes to the append-only audit log; every security- or data-relevant action calls record().
 import type { Transaction } from 'sequelize';
-import { db } from '../db/index';
 import { AuditEvent } from '../db/models';
 
 export interface AuditEntry {
@@ -18,7 +17,6 @@ export interface AuditEntry {
 
 /** Appends one event; pass the caller's transaction so the event commits or rolls back with the change. */
 export async function record(entry: AuditEntry, transaction?: Transaction): Promise<AuditEvent> {
-	db();
 	return AuditEvent.create(
 		{
 			action: entry.action,
