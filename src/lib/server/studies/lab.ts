@@ -1,5 +1,4 @@
 // Reads the lab this installation serves (shown in the shell and on the home page).
-import { db } from '../db/index';
 import { Lab } from '../db/models';
 
 export interface LabSummary {
@@ -8,7 +7,6 @@ export interface LabSummary {
 }
 
 export async function currentLab(): Promise<LabSummary | null> {
-	db();
 	const lab = await Lab.findOne({ order: [['id', 'ASC']] });
 	return lab ? { name: lab.name, institution: lab.institution } : null;
 }

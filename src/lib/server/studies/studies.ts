@@ -1,10 +1,8 @@
 // Studies as people see them: the list of one's studies and one study's team, each read behind the access check.
-import type { RequestEvent } from '@sveltejs/kit';
-import { error } from '@sveltejs/kit';
-import { db } from '../db/index';
 import { Participant, Study, StudyMember, User, type StudyRole } from '../db/models';
-import { isUuid, may, type Actor } from '../access/guard';
-import { requireActor, requireStudy } from '../http/edge';
+import { may, requireActor, studyFor, type Actor } from '../access/guard';
+import type { RequestContext } from '../access/context';
+import { notFound } from '../errors';
 
 /** The words the UI uses for each role (one name per idea: the stored value stays 'pi', 'researcher', 'technician'). */
 export const ROLE_LABELS: Record<StudyRole, string> = {
@@ -41,9 +39,8 @@ export interface StudyDetail {
 }
 
 /** The studies the person holds a role in, by code; administrators see every study (they manage the list). */
-export async function listStudies(event: RequestEvent): Promise<{ studies: StudySummary[]; seesAll: boolean }> {
-	const actor = requireActor(event);
-	db();
+export async function listStudies(who: Actor | null): Promise<{ studies: StudySummary[]; seesAll: boolean }> {
+	const actor = requireActor(who);
 	const ids = [...actor.roles.keys()];
 	if (!actor.isAdmin && ids.length === 0) return { studies: [], seesAll: false };
 	const studies = await Study.findAll({
@@ -55,30 +52,28 @@ export async function listStudies(event: RequestEvent): Promise<{ studies: Study
 		seesAll: actor.isAdmin,
 		studies: studies.map((s) => {
 			const role = actor.roles.get(s.id) ?? null;
-			const members = (s as unknown as { StudyMembers?: StudyMember[] }).StudyMembers ?? [];
+			const members = s.StudyMembers ?? [];
 			return { id: s.id, code: s.code, title: s.title, role, roleLabel: role ? ROLE_LABELS[role] : null, teamSize: members.length };
 		})
 	};
 }
 
 /**
- * One study with its team. Guarded by requireStudy('study.read'): a malformed id, an unknown id and a study the
+ * One study with its team. Guarded by studyFor('study.read'): a malformed id, an unknown id and a study the
  * person holds no role in all answer 404 (and are audited), so ids cannot be probed.
  *
  * Administrators get no exception here: a lab administrator manages people and the list of studies, but the study's
  * own pages are the team's (they grow to hold participants, sessions and results), so an administrator who is not
  * on the team gets 404 like anyone else. Team membership stays visible to them through people management.
  */
-export async function readStudy(event: RequestEvent, rawId: string): Promise<StudyDetail> {
-	// validate before anything is queried; a malformed id is denied like an unknown one (its text stays in the audit row's path)
-	const id = isUuid(rawId) ? rawId.toLowerCase() : null;
-	const actor = await requireStudy(event, 'study.read', id);
-	db();
-	const study = await Study.findByPk(id!, { include: [{ model: StudyMember, include: [{ model: User, attributes: ['id', 'name', 'email'] }] }] });
-	if (!study) error(404, 'Not found');
-	const members = (study as unknown as { StudyMembers?: (StudyMember & { user?: User })[] }).StudyMembers ?? [];
+export async function readStudy(who: Actor | null, ctx: RequestContext, rawStudyId: string): Promise<StudyDetail> {
+	// a malformed id is denied like an unknown one before anything is queried (its text stays in the audit row's path)
+	const { actor, study: found } = await studyFor(who, ctx, 'study.read', rawStudyId);
+	const study = await Study.findByPk(found.id, { include: [{ model: StudyMember, include: [{ model: User, attributes: ['id', 'name', 'email'] }] }] });
+	if (!study) throw notFound();
+	const members = study.StudyMembers ?? [];
 	const team = members
-		.map((m) => ({ name: m.user?.name ?? m.user?.email ?? 'Unknown person', role: m.role, roleLabel: ROLE_LABELS[m.role], isYou: m.userId === actor.id }))
+		.map((m) => ({ name: m.User?.name ?? m.User?.email ?? 'Unknown person', role: m.role, roleLabel: ROLE_LABELS[m.role], isYou: m.userId === actor.id }))
 		.sort((a, b) => ROLE_ORDER[a.role] - ROLE_ORDER[b.role] || a.name.localeCompare(b.name));
 	const role = actor.roles.get(study.id)!;
 	return {
@@ -100,7 +95,6 @@ export async function readStudy(event: RequestEvent, rawId: string): Promise<Stu
 export async function rolesOf(actor: Actor): Promise<{ studyId: string; code: string; title: string; roleLabel: string }[]> {
 	const ids = [...actor.roles.keys()];
 	if (ids.length === 0) return [];
-	db();
 	const studies = await Study.findAll({ where: { id: ids }, order: [['code', 'ASC']] });
 	return studies.map((s) => ({ studyId: s.id, code: s.code, title: s.title, roleLabel: ROLE_LABELS[actor.roles.get(s.id)!] }));
 }
