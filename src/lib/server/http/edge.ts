@@ -1,7 +1,7 @@
 // The one HTTP edge: turns a request into (actor, ctx) for the services, and the services' domain errors into
 // status codes, the sign-in redirect and form failures. Routes and form actions go through it; nothing else under
 // src/lib/server imports SvelteKit (but the Auth.js glue).
-import { error, fail, isHttpError, isRedirect, redirect, type ActionFailure, type RequestEvent } from '@sveltejs/kit';
+import { error, fail, isHttpError, isRedirect, json, redirect, type ActionFailure, type RequestEvent } from '@sveltejs/kit';
 import { DomainError, FormProblem, type DomainErrorKind, type FieldErrors } from '../errors';
 import { guardLab, guardStudyAction, studyFor, type Actor, type LabAction, type StudyAction } from '../access/guard';
 import type { RequestContext } from '../access/context';
@@ -60,19 +60,38 @@ export async function edge<T>(event: RequestEvent, work: () => Promise<T> | T): 
 }
 
 /**
- * Runs a form action: a FormProblem comes back to the page as fail(status, { errors, values, ...extra }) so the
- * form shows each field's message and keeps what was typed (minus secrets); other domain errors become HTTP errors.
+ * Runs a JSON handler whose service refuses input with a FormProblem: that comes back as JSON
+ * { message, errors } with the problem's status, so a script can show each field's message; other domain
+ * errors become HTTP errors as in edge().
  */
-export async function formEdge<T>(
-	event: RequestEvent,
-	work: () => Promise<T> | T,
-	opts: { values?: FieldErrors; extra?: Record<string, unknown> } = {}
-): Promise<T | ActionFailure<{ errors: FieldErrors; values: FieldErrors } & Record<string, unknown>>> {
+export async function jsonEdge(event: RequestEvent, work: () => Promise<Response> | Response): Promise<Response> {
 	try {
 		return await work();
 	} catch (err) {
 		if (isHttpError(err) || isRedirect(err)) throw err;
-		if (err instanceof FormProblem) return fail(STATUS[err.kind], { errors: err.errors, values: opts.values ?? {}, ...opts.extra });
+		if (err instanceof FormProblem) return json({ message: err.message, errors: err.errors }, { status: STATUS[err.kind] });
+		toHttp(event, err);
+	}
+}
+
+/**
+ * Runs a form action: a FormProblem comes back to the page as fail(status, { errors, values, ...extra }) so the
+ * form shows each field's message and keeps what was typed (minus secrets); other domain errors become HTTP errors.
+ * `extra` may be a function of the problem, for pages that show more than field messages (e.g. a checked file).
+ */
+export async function formEdge<T, X extends Record<string, unknown> = Record<string, unknown>>(
+	event: RequestEvent,
+	work: () => Promise<T> | T,
+	opts: { values?: FieldErrors; extra?: X | ((problem: FormProblem) => X) } = {}
+): Promise<T | ActionFailure<{ errors: FieldErrors; values: FieldErrors } & X>> {
+	try {
+		return await work();
+	} catch (err) {
+		if (isHttpError(err) || isRedirect(err)) throw err;
+		if (err instanceof FormProblem) {
+			const extra = typeof opts.extra === 'function' ? opts.extra(err) : opts.extra;
+			return fail(STATUS[err.kind], { errors: err.errors, values: opts.values ?? {}, ...(extra as X) });
+		}
 		toHttp(event, err);
 	}
 }
