@@ -1,16 +1,17 @@
 // CSV import of a study's participant list: a dry run that checks every row with the create form's rules and shows
 // the code each row would get, then the import itself in one transaction (every row or none).
-import { contextOf } from '../http/edge';
-import type { RequestEvent } from '@sveltejs/kit';
 import { createHash } from 'node:crypto';
 import Papa from 'papaparse';
 import { UniqueConstraintError } from 'sequelize';
 import { db } from '../db/index';
 import { Participant, ParticipantPersonal, Study } from '../db/models';
-import { may } from '../access/guard';
+import { may, studyFor, type Actor } from '../access/guard';
+import type { RequestContext } from '../access/context';
 import { record } from '../audit/record';
-import { guardStudy } from '../studies/records';
-import { formatCode, participantSchema, prefixOf, type ParticipantInput } from './records';
+import { FormProblem } from '../errors';
+import { formatCode, participantSchema, personalFieldsOf, personalRowOf, prefixOf, researchRowOf, type ParticipantInput } from './records';
+import type { ImportView } from '../../types/participants';
+export type { ImportView };
 
 /**
  * Largest file accepted. The Node adapter refuses request bodies over BODY_SIZE_LIMIT (512 KB unless set) before
@@ -206,25 +207,6 @@ export function checkImportText(raw: string, opts: { mayImportPersonal: boolean 
 	return { ok: rows.every((r) => r.problems.length === 0), fileProblems: [], rows, columns: names, delimiter, personal: names.some((n) => BY_NAME.get(n)?.personal) };
 }
 
-/** What the import page shows after a check (and keeps for the import step when the file is fine). */
-export interface ImportView {
-	fileName: string;
-	sizeBytes: number;
-	sha256: string;
-	delimiter: string;
-	columns: string[];
-	rows: { row: number; code: string; values: Record<string, string>; problems: string[] }[];
-	/** "row 4, column body_mass_kg: …", at most LISTED_PROBLEMS of them. */
-	problems: string[];
-	problemCount: number;
-	ok: boolean;
-	firstNumber: number;
-	/** The canonical file text, sent back with the import (only when ok). */
-	content?: string;
-	/** Why the import did not happen although the check had passed. */
-	notice?: string;
-}
-
 function viewOf(check: CheckResult, meta: { fileName: string; sizeBytes: number; sha256: string; content: string }, study: Study): ImportView {
 	const prefix = prefixOf(study);
 	const first = study.nextParticipantNumber;
@@ -245,37 +227,58 @@ function viewOf(check: CheckResult, meta: { fileName: string; sizeBytes: number;
 }
 
 /** The import page: who may bring which columns, and the code the next participant gets. */
-export async function importPage(event: RequestEvent, rawId: string) {
-	const { actor, study } = await guardStudy(event, 'participant.import', rawId);
+export async function importPage(actor: Actor | null, ctx: RequestContext, rawId: string) {
+	const { actor: a, study } = await studyFor(actor, ctx, 'participant.import', rawId);
 	return {
 		study: { id: study.id, code: study.code, title: study.title },
 		columns: IMPORT_COLUMNS.map(({ name, required, personal, meaning }) => ({ name, required, personal, meaning })),
-		mayImportPersonal: may(actor, 'participant.personal.edit', study.id),
+		mayImportPersonal: may(a, 'participant.personal.edit', study.id),
 		nextCode: formatCode(prefixOf(study), study.nextParticipantNumber),
 		limitBytes: IMPORT_LIMIT_BYTES,
 		maxRows: IMPORT_MAX_ROWS
 	};
 }
 
-export type ImportRefusal = { status: 400 | 409 | 413; view?: ImportView; message?: string };
-export type ImportOutcome = { status: 200; view: ImportView } | ImportRefusal;
+/** A refused check or import: the message for the file as a whole and/or the checked view with its problems. */
+export class ImportRefused extends FormProblem {
+	constructor(
+		kind: 'invalid' | 'conflict' | 'too-large',
+		readonly view?: ImportView,
+		message?: string
+	) {
+		super(message ? { form: message } : {}, kind);
+		this.name = 'ImportRefused';
+	}
+}
 
 const kb = (n: number) => `${Math.ceil(n / 1024).toLocaleString('en')} KB`;
 
 /** Step 1, the dry run: reads the uploaded file and checks it; nothing is written. */
-export async function checkImportUpload(event: RequestEvent, rawId: string, form: FormData): Promise<ImportOutcome> {
-	const { actor, study } = await guardStudy(event, 'participant.import', rawId);
-	const file = form.get('file');
-	if (!(file instanceof File) || (file.size === 0 && file.name === '')) return { status: 400, message: 'Choose a CSV file first.' };
+export async function checkImportUpload(actor: Actor | null, ctx: RequestContext, rawId: string, file: FormDataEntryValue | null): Promise<ImportView> {
+	const { actor: a, study } = await studyFor(actor, ctx, 'participant.import', rawId);
+	if (!(file instanceof File) || (file.size === 0 && file.name === '')) throw new ImportRefused('invalid', undefined, 'Choose a CSV file first.');
 	if (file.size > IMPORT_LIMIT_BYTES) {
-		return { status: 413, message: `${file.name} is ${kb(file.size)}; the limit is ${kb(IMPORT_LIMIT_BYTES)} (about ${IMPORT_MAX_ROWS.toLocaleString('en')} rows). Split the file and import the parts one after another.` };
+		throw new ImportRefused(
+			'too-large',
+			undefined,
+			`${file.name} is ${kb(file.size)}; the limit is ${kb(IMPORT_LIMIT_BYTES)} (about ${IMPORT_MAX_ROWS.toLocaleString('en')} rows). Split the file and import the parts one after another.`
+		);
 	}
 	const decoded = decodeUtf8(new Uint8Array(await file.arrayBuffer()));
-	if (decoded === null) return { status: 400, message: `${file.name} is not UTF-8 text. Save it again as “CSV UTF-8” (or plain UTF-8 text) and check it again.` };
+	if (decoded === null) throw new ImportRefused('invalid', undefined, `${file.name} is not UTF-8 text. Save it again as “CSV UTF-8” (or plain UTF-8 text) and check it again.`);
 	const content = canonicalText(decoded);
-	const check = checkImportText(content, { mayImportPersonal: may(actor, 'participant.personal.edit', study.id) });
+	const check = checkImportText(content, { mayImportPersonal: may(a, 'participant.personal.edit', study.id) });
 	const view = viewOf(check, { fileName: file.name, sizeBytes: file.size, sha256: sha256Hex(content), content }, study);
-	return { status: check.ok ? 200 : 400, view };
+	if (!check.ok) throw new ImportRefused('invalid', view);
+	return view;
+}
+
+/** What the import step gets back from the page: the checked file's text, its hash, name and first code number. */
+export interface CheckedFile {
+	content: string;
+	sha256: string;
+	fileName: string;
+	firstNumber: number;
 }
 
 class CodesMoved extends Error {}
@@ -284,20 +287,19 @@ class CodesMoved extends Error {}
  * Step 2: imports the file that was checked (sent back as text with its SHA-256), checked again here. Codes, personal
  * rows and audit entries are written in one transaction; any failure leaves the study as it was.
  */
-export async function runImport(event: RequestEvent, rawId: string, form: FormData): Promise<ImportRefusal | { status: 303; count: number; firstCode: string; lastCode: string }> {
-	const { actor, study } = await guardStudy(event, 'participant.import', rawId);
-	const content = canonicalText(String(form.get('content') ?? ''));
-	const sha256 = String(form.get('sha256') ?? '');
-	const fileName = String(form.get('fileName') ?? '').slice(0, 200) || 'participants.csv';
-	const firstNumber = Number(form.get('firstNumber'));
-	if (content.trim() === '' || !/^[0-9a-f]{64}$/.test(sha256)) return { status: 400, message: 'There is no checked file to import. Choose the file and check it first.' };
-	if (sha256Hex(content) !== sha256) return { status: 400, message: 'The checked file changed on its way back. Choose the file and check it again.' };
-	if (Buffer.byteLength(content, 'utf8') > IMPORT_LIMIT_BYTES) return { status: 413, message: `The file is over ${kb(IMPORT_LIMIT_BYTES)}. Split it and import the parts one after another.` };
-	const check = checkImportText(content, { mayImportPersonal: may(actor, 'participant.personal.edit', study.id) });
+export async function runImport(actor: Actor | null, ctx: RequestContext, rawId: string, checked: CheckedFile): Promise<{ count: number; firstCode: string; lastCode: string }> {
+	const { actor: a, study } = await studyFor(actor, ctx, 'participant.import', rawId);
+	const content = canonicalText(checked.content);
+	const { sha256, firstNumber } = checked;
+	const fileName = checked.fileName.slice(0, 200) || 'participants.csv';
+	if (content.trim() === '' || !/^[0-9a-f]{64}$/.test(sha256)) throw new ImportRefused('invalid', undefined, 'There is no checked file to import. Choose the file and check it first.');
+	if (sha256Hex(content) !== sha256) throw new ImportRefused('invalid', undefined, 'The checked file changed on its way back. Choose the file and check it again.');
+	if (Buffer.byteLength(content, 'utf8') > IMPORT_LIMIT_BYTES) throw new ImportRefused('too-large', undefined, `The file is over ${kb(IMPORT_LIMIT_BYTES)}. Split it and import the parts one after another.`);
+	const check = checkImportText(content, { mayImportPersonal: may(a, 'participant.personal.edit', study.id) });
 	const meta = { fileName, sizeBytes: Buffer.byteLength(content, 'utf8'), sha256, content };
-	if (!check.ok) return { status: 400, view: viewOf(check, meta, study) };
-	const ip = contextOf(event).ipAddress;
-	try {
+	if (!check.ok) throw new ImportRefused('invalid', viewOf(check, meta, study));
+	const ip = ctx.ipAddress;
+		try {
 		return await db().transaction(async (transaction) => {
 			// the same row lock as adding one participant: imports and additions take turns, codes stay consecutive
 			const locked = (await Study.findByPk(study.id, { transaction, lock: transaction.LOCK.UPDATE }))!;
@@ -310,25 +312,25 @@ export async function runImport(event: RequestEvent, rawId: string, form: FormDa
 				const chunk = check.rows.slice(at, at + IMPORT_CHUNK).map((row) => ({ row: row.row, input: row.input!, code: formatCode(prefix, n++) }));
 				codes.push(...chunk.map((c) => c.code));
 				const made = await Participant.bulkCreate(
-					chunk.map(({ input, code }) => ({ studyId: study.id, code, sex: input.sex, birthYear: input.birthYear, bodyMassKg: input.bodyMassKg, statureM: input.statureM, dominantSide: input.dominantSide, notes: input.notes })),
+					chunk.map(({ input, code }) => researchRowOf(study.id, code, input)),
 					{ transaction }
 				);
 				await ParticipantPersonal.bulkCreate(
-					chunk.map(({ input }, i) => ({ participantId: made[i].id, fullName: input.fullName, email: input.email, phone: input.phone })),
+					chunk.map(({ input }, i) => personalRowOf(made[i].id, input)),
 					{ transaction }
 				);
 				for (const [i, { row, input, code }] of chunk.entries()) {
 					await record(
 						{
 							action: 'participant.created',
-							actorUserId: actor.id,
-							actorLabel: actor.email,
+							actorUserId: a.id,
+							actorLabel: a.email,
 							studyId: study.id,
 							recordType: 'participant',
 							recordId: made[i].id,
 							ipAddress: ip,
 							// which personal fields were entered, never their values
-							details: { code, via: 'import', row, sha256, personalFields: (['fullName', 'email', 'phone'] as const).filter((k) => input[k] !== null) }
+							details: { code, via: 'import', row, sha256, personalFields: personalFieldsOf(input) }
 						},
 						transaction
 					);
@@ -338,8 +340,8 @@ export async function runImport(event: RequestEvent, rawId: string, form: FormDa
 			await record(
 				{
 					action: 'participants.imported',
-					actorUserId: actor.id,
-					actorLabel: actor.email,
+					actorUserId: a.id,
+					actorLabel: a.email,
 					studyId: study.id,
 					recordType: 'study',
 					recordId: study.id,
@@ -348,24 +350,24 @@ export async function runImport(event: RequestEvent, rawId: string, form: FormDa
 				},
 				transaction
 			);
-			return { status: 303 as const, count: codes.length, firstCode: codes[0], lastCode: codes.at(-1)! };
+			return { count: codes.length, firstCode: codes[0], lastCode: codes.at(-1)! };
 		});
 	} catch (err) {
 		if (err instanceof CodesMoved) {
 			const fresh = (await Study.findByPk(study.id))!;
 			const view = viewOf(check, meta, fresh);
 			view.notice = `Nothing was imported: participants were added since you checked the file, so the codes have moved on. The codes below are the ones the rows get now; import again if they are right.`;
-			return { status: 409, view };
+			throw new ImportRefused('conflict', view);
 		}
 		if (err instanceof UniqueConstraintError) {
 			const taken = err.errors.find((e) => e.path === 'code')?.value ?? err.errors[0]?.value;
 			const reason = `code ${taken ?? '(unknown)'} is already in use`;
-			await record({ action: 'participants.import.failed', actorUserId: actor.id, actorLabel: actor.email, outcome: 'failed', studyId: study.id, recordType: 'study', recordId: study.id, ipAddress: ip, details: { sha256, fileName, reason } });
+			await record({ action: 'participants.import.failed', actorUserId: a.id, actorLabel: a.email, outcome: 'failed', studyId: study.id, recordType: 'study', recordId: study.id, ipAddress: ip, details: { sha256, fileName, reason } });
 			const view = viewOf(check, meta, study);
 			view.notice = `Nothing was imported: the database refused the import because ${reason} (the study's code counter is behind the codes that exist). No participant, code or personal data was saved. Ask a lab administrator to check the study's code counter.`;
 			view.content = undefined;
 			view.ok = false;
-			return { status: 409, view };
+			throw new ImportRefused('conflict', view);
 		}
 		throw err;
 	}

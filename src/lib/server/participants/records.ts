@@ -1,49 +1,21 @@
 // Participants of a study: research data for the whole team, personal data (name, e-mail, phone) only for
 // roles allowed 'participant.personal.read'; codes are issued from the study's counter in one transaction.
-import { FormProblem } from '../errors';
-import { contextOf } from '../http/edge';
-import type { RequestEvent } from '@sveltejs/kit';
-import { error } from '@sveltejs/kit';
-import { Op, type WhereOptions } from 'sequelize';
+import { FormProblem, notFound } from '../errors';
+import { Op, type Transaction, type WhereOptions } from 'sequelize';
 import { z } from 'zod';
 import { db } from '../db/index';
-import { Participant, ParticipantLength, ParticipantPersonal, Study, type Sex } from '../db/models';
-import { may } from '../access/guard';
+import { Participant, ParticipantLength, ParticipantPersonal, Study } from '../db/models';
+import { may, studyFor, type Actor } from '../access/guard';
+import type { RequestContext } from '../access/context';
 import { record } from '../audit/record';
 import { isUuid } from '../studies/studies';
-import { fieldErrors, guardStudy } from '../studies/records';
+import { fieldErrors } from '../studies/records';
 import { consentStatesOf } from '../consent/check';
 import { LENGTH_KEYS, participantBodySchema } from '../../anthropometry/scale';
 
-export const PAGE_SIZE = 25;
-export const SORTS = ['code', 'created', 'mass', 'stature'] as const;
-export type Sort = (typeof SORTS)[number];
+import { PAGE_SIZE, SORTS, type LengthView, type ListQuery, type ParticipantRow, type Personal, type Sort } from '../../types/participants';
+export { PAGE_SIZE, SORTS, type Sort, type Personal, type ParticipantRow, type ListQuery, type LengthView };
 const SORT_COLUMNS: Record<Sort, string> = { code: 'code', created: 'createdAt', mass: 'bodyMassKg', stature: 'statureM' };
-
-export interface Personal {
-	fullName: string | null;
-	email: string | null;
-	phone: string | null;
-}
-
-export interface ParticipantRow {
-	id: string;
-	code: string;
-	sex: Sex;
-	birthYear: number | null;
-	bodyMassKg: number;
-	statureM: number;
-	createdOn: string;
-	/** Present only for roles that may read personal data. */
-	personal?: Personal;
-}
-
-export interface ListQuery {
-	q: string;
-	sort: Sort;
-	dir: 'asc' | 'desc';
-	page: number;
-}
 
 export function parseListQuery(url: URL): ListQuery {
 	const sort = (SORTS as readonly string[]).includes(url.searchParams.get('sort') ?? '') ? (url.searchParams.get('sort') as Sort) : 'code';
@@ -62,10 +34,9 @@ function rowOf(p: Participant, personal: ParticipantPersonal | null | undefined,
 }
 
 /** The study's participants, searched by code on the server, sorted and paged. */
-export async function listParticipants(event: RequestEvent, rawId: string) {
-	const { actor, study } = await guardStudy(event, 'study.read', rawId);
-	const query = parseListQuery(event.url);
-	const seesPersonal = may(actor, 'participant.personal.read', study.id);
+export async function listParticipants(actor: Actor | null, ctx: RequestContext, rawId: string, query: ListQuery) {
+	const { actor: a, study } = await studyFor(actor, ctx, 'study.read', rawId);
+	const seesPersonal = may(a, 'participant.personal.read', study.id);
 	const where: WhereOptions<Participant> = { studyId: study.id };
 	if (query.q) Object.assign(where, { code: { [Op.iLike]: `%${query.q.replace(/[\\%_]/g, (c) => '\\' + c)}%` } });
 	const { rows, count } = await Participant.findAndCountAll({
@@ -83,8 +54,8 @@ export async function listParticipants(event: RequestEvent, rawId: string) {
 		total: count,
 		pages: Math.max(1, Math.ceil(count / PAGE_SIZE)),
 		seesPersonal,
-		mayCreate: may(actor, 'participant.create', study.id),
-		mayImport: may(actor, 'participant.import', study.id),
+		mayCreate: may(a, 'participant.create', study.id),
+		mayImport: may(a, 'participant.import', study.id),
 		participants: rows.map((p) => ({ ...rowOf(p, byId.get(p.id), seesPersonal), consentState: consentStates.get(p.id) ?? ('not_invited' as const) }))
 	};
 }
@@ -128,91 +99,94 @@ export const participantSchema = z.object({
 export type ParticipantInput = z.infer<typeof participantSchema>;
 const FIELDS = Object.keys(participantSchema.shape) as (keyof typeof participantSchema.shape)[];
 
+export const PERSONAL_FIELDS = ['fullName', 'email', 'phone'] as const;
 const personalSchema = participantSchema.pick({ fullName: true, email: true, phone: true });
+/** Which personal fields were entered, never their values (for the audit log). */
+export const personalFieldsOf = (input: ParticipantInput) => PERSONAL_FIELDS.filter((k) => input[k] !== null);
 export const RESEARCH_FIELDS = ['sex', 'birthYear', 'bodyMassKg', 'statureM', 'dominantSide', 'notes'] as const;
 export type ResearchField = (typeof RESEARCH_FIELDS)[number];
 const researchSchema = participantSchema.pick({ sex: true, birthYear: true, bodyMassKg: true, statureM: true, dominantSide: true, notes: true });
+
+/** Form values: what a form posted, by field name. */
+export type FormFields = Record<string, string>;
+
+/** Checks form values against a schema; the problems come back one per field (a missing field counts as empty). */
+function parseWith<T extends z.ZodType>(schema: T, values: FormFields, keys: readonly string[]): z.infer<T> {
+	const r = schema.safeParse(Object.fromEntries(keys.map((k) => [k, values[k] ?? ''])));
+	if (!r.success) throw new FormProblem(fieldErrors(r.error.issues));
+	return r.data;
+}
+
+/** Writes one audit row about a participant (in the caller's transaction, when given). */
+function audit(actor: Actor, ctx: RequestContext, study: Study, p: Pick<Participant, 'id'>, action: string, details?: Record<string, unknown>, transaction?: Transaction) {
+	return record({ action, actorUserId: actor.id, actorLabel: actor.email, studyId: study.id, recordType: 'participant', recordId: p.id, ipAddress: ctx.ipAddress, details }, transaction);
+}
 
 /**
  * Corrects a participant's research fields. The audit row keeps before and after of each changed field, except
  * the notes, whose text stays out of the append-only log (a name typed there by mistake must be removable).
  */
-export async function updateResearchFields(event: RequestEvent, rawId: string, rawPid: string, form: FormData): Promise<{ changed: ResearchField[] }> {
-	const { actor, study } = await guardStudy(event, 'participant.edit', rawId);
+export async function updateResearchFields(actor: Actor | null, ctx: RequestContext, rawId: string, rawPid: string, values: FormFields): Promise<{ changed: ResearchField[] }> {
+	const { actor: a, study } = await studyFor(actor, ctx, 'participant.edit', rawId);
 	const p = await participantIn(study.id, rawPid);
-	const r = researchSchema.safeParse(Object.fromEntries(RESEARCH_FIELDS.map((k) => [k, String(form.get(k) ?? '')])));
-	if (!r.success) throw new FormProblem(fieldErrors(r.error.issues));
+	const data = parseWith(researchSchema, values, RESEARCH_FIELDS);
 	return db().transaction(async (transaction) => {
 		const row = (await Participant.findByPk(p.id, { transaction, lock: transaction.LOCK.UPDATE }))!;
-		const changed = RESEARCH_FIELDS.filter((k) => row[k] !== r.data[k]);
+		const changed = RESEARCH_FIELDS.filter((k) => row[k] !== data[k]);
 		if (changed.length === 0) return { changed };
 		const before: Record<string, unknown> = {};
 		const after: Record<string, unknown> = {};
 		for (const k of changed) {
 			if (k === 'notes') continue;
 			before[k] = row[k];
-			after[k] = r.data[k];
+			after[k] = data[k];
 		}
-		await row.update(r.data, { transaction });
-		await record(
-			{
-				action: 'participant.research.changed',
-				actorUserId: actor.id,
-				actorLabel: actor.email,
-				studyId: study.id,
-				recordType: 'participant',
-				recordId: p.id,
-				ipAddress: contextOf(event).ipAddress,
-				details: { code: p.code, changed, before, after }
-			},
-			transaction
-		);
+		await row.update(data, { transaction });
+		await audit(a, ctx, study, p, 'participant.research.changed', { code: p.code, changed, before, after }, transaction);
 		return { changed };
 	});
 }
 
 /** Corrects a participant's personal data; the audit row names the fields that changed, never their values. */
-export async function savePersonal(event: RequestEvent, rawId: string, rawPid: string, form: FormData): Promise<void> {
-	const { actor, study } = await guardStudy(event, 'participant.personal.edit', rawId);
+export async function savePersonal(actor: Actor | null, ctx: RequestContext, rawId: string, rawPid: string, values: FormFields): Promise<void> {
+	const { actor: a, study } = await studyFor(actor, ctx, 'participant.personal.edit', rawId);
 	const p = await participantIn(study.id, rawPid);
-	const r = personalSchema.safeParse({ fullName: String(form.get('fullName') ?? ''), email: String(form.get('email') ?? ''), phone: String(form.get('phone') ?? '') });
-	if (!r.success) throw new FormProblem(fieldErrors(r.error.issues));
+	const data = parseWith(personalSchema, values, PERSONAL_FIELDS);
 	await db().transaction(async (transaction) => {
 		const [row] = await ParticipantPersonal.findOrCreate({ where: { participantId: p.id }, defaults: { participantId: p.id, fullName: null, email: null, phone: null }, transaction });
-		const changed = (['fullName', 'email', 'phone'] as const).filter((k) => row[k] !== r.data[k]);
+		const changed = PERSONAL_FIELDS.filter((k) => row[k] !== data[k]);
 		if (changed.length === 0) return;
-		await row.update(r.data, { transaction });
-		await record(
-			{
-				action: 'participant.personal.changed',
-				actorUserId: actor.id,
-				actorLabel: actor.email,
-				studyId: study.id,
-				recordType: 'participant',
-				recordId: p.id,
-				ipAddress: contextOf(event).ipAddress,
-				details: { code: p.code, changed }
-			},
-			transaction
-		);
+		await row.update(data, { transaction });
+		await audit(a, ctx, study, p, 'participant.personal.changed', { code: p.code, changed }, transaction);
 	});
 }
 
-export function parseParticipant(form: FormData): ParticipantInput {
-	const raw = Object.fromEntries(FIELDS.map((k) => [k, String(form.get(k) ?? '')]));
-	const r = participantSchema.safeParse(raw);
-	if (!r.success) throw new FormProblem(fieldErrors(r.error.issues));
-	return r.data;
+export function parseParticipant(values: FormFields): ParticipantInput {
+	return parseWith(participantSchema, values, FIELDS);
 }
 
 export const formatCode = (prefix: string, n: number) => `${prefix}-${String(n).padStart(3, '0')}`;
 /** The study's code prefix: the one set for it, else the letters of its protocol code. */
 export const prefixOf = (s: Pick<Study, 'participantPrefix' | 'code'>) => s.participantPrefix ?? s.code.replace(/[^A-Z]/gi, '').slice(0, 3).toUpperCase();
 
+/** The participants row of a new participant (research fields only). */
+export const researchRowOf = (studyId: string, code: string, input: ParticipantInput) => ({
+	studyId,
+	code,
+	sex: input.sex,
+	birthYear: input.birthYear,
+	bodyMassKg: input.bodyMassKg,
+	statureM: input.statureM,
+	dominantSide: input.dominantSide,
+	notes: input.notes
+});
+/** The personal-data row of a new participant (its own table). */
+export const personalRowOf = (participantId: string, input: ParticipantInput) => ({ participantId, fullName: input.fullName, email: input.email, phone: input.phone });
+
 /** Adds a participant with the next code of the study; personal data goes to its own table. Audited. */
-export async function createParticipant(event: RequestEvent, rawId: string, form: FormData): Promise<{ id: string; code: string }> {
-	const { actor, study } = await guardStudy(event, 'participant.create', rawId);
-	const input = parseParticipant(form);
+export async function createParticipant(actor: Actor | null, ctx: RequestContext, rawId: string, values: FormFields): Promise<{ id: string; code: string }> {
+	const { actor: a, study } = await studyFor(actor, ctx, 'participant.create', rawId);
+	const input = parseParticipant(values);
 	return db().transaction(async (transaction) => {
 		// the row lock makes concurrent additions take turns, so codes stay sequential and unique
 		const locked = (await Study.findByPk(study.id, { transaction, lock: transaction.LOCK.UPDATE }))!;
@@ -220,44 +194,11 @@ export async function createParticipant(event: RequestEvent, rawId: string, form
 		const n = locked.nextParticipantNumber;
 		const code = formatCode(prefix, n);
 		await locked.update({ nextParticipantNumber: n + 1 }, { transaction });
-		const p = await Participant.create(
-			{
-				studyId: study.id,
-				code,
-				sex: input.sex,
-				birthYear: input.birthYear,
-				bodyMassKg: input.bodyMassKg,
-				statureM: input.statureM,
-				dominantSide: input.dominantSide,
-				notes: input.notes
-			},
-			{ transaction }
-		);
-		await ParticipantPersonal.create({ participantId: p.id, fullName: input.fullName, email: input.email, phone: input.phone }, { transaction });
-		await record(
-			{
-				action: 'participant.created',
-				actorUserId: actor.id,
-				actorLabel: actor.email,
-				studyId: study.id,
-				recordType: 'participant',
-				recordId: p.id,
-				ipAddress: contextOf(event).ipAddress,
-				// which personal fields were entered, never their values
-				details: { code, personalFields: (['fullName', 'email', 'phone'] as const).filter((k) => input[k] !== null) }
-			},
-			transaction
-		);
+		const p = await Participant.create(researchRowOf(study.id, code, input), { transaction });
+		await ParticipantPersonal.create(personalRowOf(p.id, input), { transaction });
+		await audit(a, ctx, study, p, 'participant.created', { code, personalFields: personalFieldsOf(input) }, transaction);
 		return { id: p.id, code };
 	});
-}
-
-export interface LengthView {
-	id: string;
-	segment: string;
-	lengthM: number;
-	measuredOn: string;
-	latest: boolean;
 }
 
 /** Every measured length, by segment, newest first; `latest` marks the one scaling uses. */
@@ -274,28 +215,21 @@ async function lengthHistory(participantId: string): Promise<LengthView[]> {
 /** One participant of the study in the URL (another study's participant answers 404). */
 async function participantIn(studyId: string, rawPid: string): Promise<Participant> {
 	const p = isUuid(rawPid) ? await Participant.findOne({ where: { id: rawPid.toLowerCase(), studyId } }) : null;
-	if (!p) error(404, 'Not found');
+	if (!p) throw notFound();
 	return p;
 }
 
-export async function readParticipant(event: RequestEvent, rawId: string, rawPid: string) {
-	const { actor, study } = await guardStudy(event, 'study.read', rawId);
+/** The participant's page: research fields, length history and, for roles allowed, personal data (reading it is audited). */
+export async function readParticipant(actor: Actor | null, ctx: RequestContext, rawId: string, rawPid: string) {
+	const { actor: a, study } = await studyFor(actor, ctx, 'study.read', rawId);
 	const p = await participantIn(study.id, rawPid);
-	const seesPersonal = may(actor, 'participant.personal.read', study.id);
+	const seesPersonal = may(a, 'participant.personal.read', study.id);
 	const history = await lengthHistory(p.id);
 	let personal: Personal | undefined;
 	if (seesPersonal) {
 		personal = personalOf(await ParticipantPersonal.findByPk(p.id));
 		// reading personal data is itself worth a trace
-		await record({
-			action: 'participant.personal.viewed',
-			actorUserId: actor.id,
-			actorLabel: actor.email,
-			studyId: study.id,
-			recordType: 'participant',
-			recordId: p.id,
-			ipAddress: contextOf(event).ipAddress
-		});
+		await audit(a, ctx, study, p, 'participant.personal.viewed');
 	}
 	return {
 		study: { id: study.id, code: study.code, title: study.title },
@@ -314,8 +248,8 @@ export async function readParticipant(event: RequestEvent, rawId: string, rawPid
 		segments: LENGTH_KEYS as readonly string[],
 		seesPersonal,
 		personal,
-		mayEdit: may(actor, 'participant.edit', study.id),
-		mayEditPersonal: may(actor, 'participant.personal.edit', study.id)
+		mayEdit: may(a, 'participant.edit', study.id),
+		mayEditPersonal: may(a, 'participant.personal.edit', study.id)
 	};
 }
 
@@ -335,36 +269,19 @@ const lengthSchema = z.object({
 });
 
 /** Adds one measurement to the history (earlier ones stay). */
-export async function addLength(event: RequestEvent, rawId: string, rawPid: string, form: FormData): Promise<void> {
-	const { actor, study } = await guardStudy(event, 'participant.edit', rawId);
+export async function addLength(actor: Actor | null, ctx: RequestContext, rawId: string, rawPid: string, values: FormFields): Promise<void> {
+	const { actor: a, study } = await studyFor(actor, ctx, 'participant.edit', rawId);
 	const p = await participantIn(study.id, rawPid);
-	const r = lengthSchema.safeParse({
-		segment: String(form.get('segment') ?? ''),
-		lengthM: String(form.get('lengthM') ?? ''),
-		measuredOn: String(form.get('measuredOn') ?? '')
-	});
-	if (!r.success) throw new FormProblem(fieldErrors(r.error.issues));
+	const data = parseWith(lengthSchema, values, ['segment', 'lengthM', 'measuredOn']);
 	await db().transaction(async (transaction) => {
-		const l = await ParticipantLength.create({ participantId: p.id, ...r.data }, { transaction });
-		await record(
-			{
-				action: 'participant.length.added',
-				actorUserId: actor.id,
-				actorLabel: actor.email,
-				studyId: study.id,
-				recordType: 'participant',
-				recordId: p.id,
-				ipAddress: contextOf(event).ipAddress,
-				details: { lengthId: l.id, segment: l.segment, lengthM: l.lengthM, measuredOn: l.measuredOn }
-			},
-			transaction
-		);
+		const l = await ParticipantLength.create({ participantId: p.id, ...data }, { transaction });
+		await audit(a, ctx, study, p, 'participant.length.added', { lengthId: l.id, segment: l.segment, lengthM: l.lengthM, measuredOn: l.measuredOn }, transaction);
 	});
 }
 
 /** What the segment-model page needs: the participant's research fields and latest measured lengths (no personal data). */
-export async function segmentModelInput(event: RequestEvent, rawId: string, rawPid: string) {
-	const { study } = await guardStudy(event, 'study.read', rawId);
+export async function segmentModelInput(actor: Actor | null, ctx: RequestContext, rawId: string, rawPid: string) {
+	const { study } = await studyFor(actor, ctx, 'study.read', rawId);
 	const p = await participantIn(study.id, rawPid);
 	const measured: Record<string, number> = {};
 	const measuredOn: Record<string, string> = {};

@@ -1,22 +1,30 @@
 // Import participants from a CSV file (PI, technician): "check" is a dry run with a preview; "import" writes all rows or none.
-import { fail, redirect } from '@sveltejs/kit';
-import { checkImportUpload, importPage, runImport } from '$lib/server/participants/import';
+import { redirect } from '@sveltejs/kit';
+import { callerOf, edge, formEdge } from '$lib/server/http/edge';
+import { checkImportUpload, importPage, ImportRefused, runImport } from '$lib/server/participants/import';
+import type { FormProblem } from '$lib/server/errors';
 import type { Actions, PageServerLoad } from './$types';
 
-export const load: PageServerLoad = async (event) => importPage(event, event.params.id);
+export const load: PageServerLoad = (event) => edge(event, () => importPage(...callerOf(event), event.params.id));
+
+/** A refusal shows the checked rows (when there are any) and the message about the file as a whole. */
+const refused = (p: FormProblem) => ({ view: p instanceof ImportRefused ? p.view : undefined, message: p.errors.form });
 
 export const actions: Actions = {
 	check: async (event) => {
-		const out = await checkImportUpload(event, event.params.id, await event.request.formData());
-		if (out.status === 200) return { view: out.view };
-		return fail(out.status, { view: out.view, message: out.message });
+		const file = (await event.request.formData()).get('file');
+		return formEdge(event, async () => ({ view: await checkImportUpload(...callerOf(event), event.params.id, file) }), { extra: refused });
 	},
 	import: async (event) => {
-		const out = await runImport(event, event.params.id, await event.request.formData());
-		if (out.status === 303) {
-			const q = new URLSearchParams({ imported: String(out.count), first: out.firstCode, last: out.lastCode });
-			redirect(303, `/studies/${event.params.id}/participants?${q}`);
-		}
-		return fail(out.status, { view: out.view, message: out.message });
+		const form = await event.request.formData();
+		const text = (k: string) => String(form.get(k) ?? '');
+		return formEdge(
+			event,
+			async () => {
+				const out = await runImport(...callerOf(event), event.params.id, { content: text('content'), sha256: text('sha256'), fileName: text('fileName'), firstNumber: Number(form.get('firstNumber')) });
+				redirect(303, `/studies/${event.params.id}/participants?${new URLSearchParams({ imported: String(out.count), first: out.firstCode, last: out.lastCode })}`);
+			},
+			{ extra: refused }
+		);
 	}
 };
