@@ -68,7 +68,6 @@ export const { handle: authHandle, signIn, signOut } = SvelteKitAuth(async (): P
 					await record({ action: 'auth.sign-in', actorLabel: email, outcome: 'denied', ipAddress: ip, details: { method: 'password', reason: 'rate limited' } });
 					throw new RateLimited();
 				}
-				db();
 				const user = await User.findOne({ where: { email } });
 				const ok = await verifyPassword(user?.passwordHash ?? null, password);
 				if (!user || !ok || user.deactivatedAt) {
@@ -90,7 +89,6 @@ export const { handle: authHandle, signIn, signOut } = SvelteKitAuth(async (): P
 	callbacks: {
 		async signIn({ user, email, account }) {
 			if (account?.provider !== 'nodemailer') return true;
-			db();
 			const existing = await User.findOne({ where: { email: normaliseEmail(user.email) } });
 			const usable = existing && !existing.deactivatedAt;
 			if (email?.verificationRequest) {
@@ -107,7 +105,6 @@ export const { handle: authHandle, signIn, signOut } = SvelteKitAuth(async (): P
 		},
 		async jwt({ token, user }) {
 			if (user?.id) {
-				db();
 				const u = await User.findByPk(user.id);
 				token.sub = user.id;
 				token.sv = u?.sessionVersion ?? 0;

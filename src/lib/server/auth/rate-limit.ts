@@ -1,6 +1,5 @@
 // Failed sign-in limits per account and per address, counted over a sliding window in PostgreSQL.
 import { Op } from 'sequelize';
-import { db } from '../db/index';
 import { SignInFailure } from '../db/models';
 
 export const LIMITS = { windowMinutes: 15, perAccount: 5, perAddress: 20 } as const;
@@ -12,7 +11,6 @@ export interface Throttle {
 }
 
 export async function checkThrottle(email: string, ip: string | null): Promise<Throttle> {
-	db();
 	const since = new Date(Date.now() - LIMITS.windowMinutes * 60_000);
 	const [byAccount, byAddress] = await Promise.all([
 		SignInFailure.findAll({ where: { email, occurredAt: { [Op.gt]: since } }, order: [['occurredAt', 'ASC']], attributes: ['occurredAt'] }),
@@ -26,6 +24,5 @@ export async function checkThrottle(email: string, ip: string | null): Promise<T
 }
 
 export async function recordFailure(email: string, ip: string | null): Promise<void> {
-	db();
 	await SignInFailure.create({ email, ipAddress: ip });
 }

@@ -32,7 +32,6 @@ export function hashToken(token: string): string {
  * Earlier unused tokens of the same purpose for the same person stop working: the newest e-mail is the one to use.
  */
 export async function issueToken(purpose: TokenPurpose, userId: string, transaction?: Transaction, now = new Date()): Promise<string> {
-	db();
 	const token = randomBytes(32).toString('base64url');
 	await OneTimeToken.update(
 		{ expiresAt: now },
@@ -47,7 +46,6 @@ export async function issueToken(purpose: TokenPurpose, userId: string, transact
 
 async function check(purpose: TokenPurpose, token: string, transaction: Transaction | undefined, lock: boolean): Promise<TokenCheck> {
 	if (!SHAPE.test(token)) return { ok: false, reason: 'unknown' };
-	db();
 	const row = await OneTimeToken.findOne({ where: { tokenHash: hashToken(token) }, transaction, lock: lock && transaction ? transaction.LOCK.UPDATE : undefined });
 	if (!row) return { ok: false, reason: 'unknown' };
 	if (row.purpose !== purpose) return { ok: false, reason: 'wrong-purpose' };

@@ -1,8 +1,9 @@
 // The signed-in person's own account: what the account page shows, and changing one's password (audited).
-import type { RequestEvent } from '@sveltejs/kit';
 import { db } from '../db/index';
 import { User } from '../db/models';
-import { requireActor } from '../http/edge';
+import { requireActor, type Actor } from '../access/guard';
+import type { RequestContext } from '../access/context';
+import { FormProblem } from '../errors';
 import { record } from '../audit/record';
 import { hashPassword, passwordProblem, verifyPassword } from '../auth/password';
 import { checkThrottle, recordFailure } from '../auth/rate-limit';
@@ -18,27 +19,29 @@ export interface AccountOverview {
 	roles: Awaited<ReturnType<typeof rolesOf>>;
 }
 
-export async function accountOverview(event: RequestEvent): Promise<AccountOverview> {
-	const actor = requireActor(event);
-	db();
+export async function accountOverview(who: Actor | null): Promise<AccountOverview> {
+	const actor = requireActor(who);
 	const user = await User.findByPk(actor.id, { attributes: ['id', 'passwordHash'] });
 	return { name: actor.name, email: actor.email, isAdmin: actor.isAdmin, hasPassword: Boolean(user?.passwordHash), roles: await rolesOf(actor) };
 }
 
 export type PasswordField = 'current' | 'next' | 'repeat';
 export type PasswordProblems = Partial<Record<PasswordField, string>>;
+export type PasswordChange = Record<PasswordField, string>;
 
 /**
  * Sets a new password. The current one is required when the account has one (wrong guesses count towards the
  * sign-in limits, since it is the same secret). On success every session of the account, this one included, stops
- * working: the person signs in again with the new password. Returns what was wrong, or null when it was changed.
+ * working: the person signs in again with the new password. Throws a FormProblem naming what was wrong.
  */
-export async function changePassword(event: RequestEvent, input: { current: string; next: string; repeat: string }): Promise<PasswordProblems | null> {
-	const actor = requireActor(event);
-	db();
+export async function changePassword(who: Actor | null, ctx: RequestContext, input: PasswordChange): Promise<void> {
+	const problems = await tryChangePassword(requireActor(who), ctx.ipAddress, input);
+	if (problems) throw new FormProblem(problems);
+}
+
+async function tryChangePassword(actor: Actor, ip: string | null, input: PasswordChange): Promise<PasswordProblems | null> {
 	const user = await User.findByPk(actor.id);
 	if (!user) return { current: 'Your account could not be found. Sign in again.' };
-	const ip = event.getClientAddress();
 
 	const problems: PasswordProblems = {};
 	const weak = passwordProblem(input.next);
@@ -83,4 +86,11 @@ export async function changePassword(event: RequestEvent, input: { current: stri
 		console.error('[account] could not queue the password-changed notice:', (err as Error).message);
 	}
 	return null;
+}
+
+/** Signing out is audited; "everywhere" also ends every other session of the account first. */
+export async function signOutRecorded(actor: Actor | null, ctx: RequestContext, everywhere: boolean): Promise<void> {
+	if (!actor) return;
+	if (everywhere) await signOutEverywhere(actor.id);
+	await record({ action: everywhere ? 'auth.sign-out-everywhere' : 'auth.sign-out', actorUserId: actor.id, actorLabel: actor.email, ipAddress: ctx.ipAddress });
 }

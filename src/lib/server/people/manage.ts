@@ -2,19 +2,18 @@
 import { Op, fn, col, type Transaction, type WhereOptions } from 'sequelize';
 import { db } from '../db/index';
 import { OneTimeToken, Study, StudyMember, User, type StudyRole } from '../db/models';
-import { may, type Actor } from '../access/guard';
+import { isUuid, may, type Actor } from '../access/guard';
 import { linkBase, type RequestContext } from '../access/context';
-import { FormProblem, type FieldErrors } from '../errors';
+import { FormProblem, notFound, type FieldErrors } from '../errors';
 import { record } from '../audit/record';
 import { config } from '../config';
 import { currentLab } from '../studies/lab';
 import { sendMail } from '../mail/index';
 import { hashPassword, passwordProblem } from '../auth/password';
-import { consume, inspectToken, issueToken, TOKEN_LIFETIME_MS, type TokenRefusal } from '../auth/tokens';
+import { consume, inspectToken, issueToken, LINK_REFUSED_MESSAGE, TOKEN_LIFETIME_MS, type TokenRefusal } from '../auth/tokens';
 
 /** Every session of the account stops working at its next request (they carry the old version number). */
 export async function signOutEverywhere(userId: string, transaction?: Transaction): Promise<void> {
-	db();
 	await User.increment('sessionVersion', { where: { id: userId }, transaction });
 }
 
@@ -28,8 +27,14 @@ export interface LinkRefused {
 }
 
 const EMAIL = /^[^\s@]+@[^\s@]+\.[^\s@]+$/;
-const UUID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
 export const NAME_MAX = 200;
+
+/** What a form posted, field by field (Object.fromEntries of its FormData); anything not text reads as empty. */
+export type FormInput = Record<string, unknown>;
+const text = (input: FormInput, field: string) => (typeof input[field] === 'string' ? (input[field] as string) : '');
+
+/** The answer for a person id that is malformed, unknown or gone. */
+export const NO_SUCH_PERSON = 'There is no such person in this lab. Find them in the people list.';
 
 /** What is wrong with an e-mail address typed into a form, or null. */
 export function emailProblem(email: string, whose = 'the person’s'): string | null {
@@ -105,7 +110,7 @@ async function rolesOf(userIds: string[], transaction?: Transaction): Promise<Ma
 	if (!userIds.length) return out;
 	const members = await StudyMember.findAll({ where: { userId: userIds }, include: [Study], transaction });
 	for (const m of members) {
-		const study = (m as unknown as { Study: Study }).Study;
+		const study = m.Study!;
 		out.get(m.userId)?.push({ studyId: m.studyId, code: study.code, title: study.title, role: m.role });
 	}
 	for (const list of out.values()) list.sort((a, b) => a.code.localeCompare(b.code));
@@ -128,7 +133,6 @@ function summary(u: User, roles: RoleHeld[]): PersonSummary {
 /** One page of people matching `q` (name or e-mail, any case), in the asked order. */
 export async function listPeople(actor: Actor, query: PeopleQuery): Promise<PeoplePage> {
 	assertManager(actor);
-	db();
 	const where: WhereOptions = query.q
 		? { [Op.or]: [{ name: { [Op.iLike]: `%${escapeLike(query.q)}%` } }, { email: { [Op.iLike]: `%${escapeLike(query.q)}%` } }] }
 		: {};
@@ -157,32 +161,29 @@ export interface StudyChoice {
 /** Every study, for the role pickers. */
 export async function listStudies(actor: Actor): Promise<StudyChoice[]> {
 	assertManager(actor);
-	db();
 	const studies = await Study.findAll({ order: [['code', 'ASC']] });
 	return studies.map((s) => ({ id: s.id, code: s.code, title: s.title }));
 }
 
-/** One person with their roles, or null when there is no such person. */
-export async function getPerson(actor: Actor, id: string): Promise<PersonSummary | null> {
+/** One person with their roles; not-found when there is no such person. */
+export async function getPerson(actor: Actor, id: string): Promise<PersonSummary> {
 	assertManager(actor);
-	if (!UUID.test(id)) return null;
-	db();
-	const u = await User.findByPk(id);
-	if (!u) return null;
+	const u = isUuid(id) ? await User.findByPk(id) : null;
+	if (!u) throw notFound(NO_SUCH_PERSON);
 	return summary(u, (await rolesOf([u.id])).get(u.id) ?? []);
 }
 
 // ---------------------------------------------------------------------------------------------- changes by an administrator
 
 async function lockedPerson(id: string, transaction: Transaction): Promise<User> {
-	const u = UUID.test(id) ? await User.findByPk(id, { transaction, lock: transaction.LOCK.UPDATE }) : null;
-	if (!u) throw new FormProblem({ form: 'There is no such person.' }, 'not-found');
+	const u = isUuid(id) ? await User.findByPk(id, { transaction, lock: transaction.LOCK.UPDATE }) : null;
+	if (!u) throw notFound(NO_SUCH_PERSON);
 	return u;
 }
 
 /** Reads a study role field: '' means "no role in this study". */
-export function parseRole(value: FormDataEntryValue | null, studyCode: string, field: string): StudyRole | null {
-	const v = String(value ?? '');
+export function parseRole(value: unknown, studyCode: string, field: string): StudyRole | null {
+	const v = typeof value === 'string' ? value : '';
 	if (v === '') return null;
 	if (!(STUDY_ROLES as readonly string[]).includes(v)) {
 		throw new FormProblem({ [field]: `Choose a role for ${studyCode} from the list (or “no role”).` });
@@ -205,7 +206,7 @@ export async function setStudyRole(actor: Actor, ctx: RequestContext, userId: st
 	assertManager(actor);
 	return db().transaction(async (transaction) => {
 		const person = await lockedPerson(userId, transaction);
-		const study = UUID.test(studyId) ? await Study.findByPk(studyId, { transaction }) : null;
+		const study = isUuid(studyId) ? await Study.findByPk(studyId, { transaction }) : null;
 		if (!study) throw new FormProblem({ studyId: 'That study does not exist (any more). Reload the page and choose again.' });
 		const { before, after } = await applyRole(person.id, study, role, transaction);
 		if (before === after) return false;
@@ -303,10 +304,10 @@ export interface InvitationInput {
 }
 
 /** Reads the invitation form (fields email, name, role-<studyId>); throws FormProblem naming each wrong field. */
-export function parseInvitation(form: FormData, studies: StudyChoice[]): InvitationInput {
+export function parseInvitation(input: FormInput, studies: StudyChoice[]): InvitationInput {
 	const errors: FieldErrors = {};
-	const email = String(form.get('email') ?? '').trim().toLowerCase();
-	const name = String(form.get('name') ?? '').trim();
+	const email = text(input, 'email').trim().toLowerCase();
+	const name = text(input, 'name').trim();
 	const ep = emailProblem(email);
 	if (ep) errors.email = ep;
 	if (name.length > NAME_MAX) errors.name = `Use at most ${NAME_MAX} characters for the name (this one has ${name.length}).`;
@@ -314,7 +315,7 @@ export function parseInvitation(form: FormData, studies: StudyChoice[]): Invitat
 	for (const s of studies) {
 		const field = `role-${s.id}`;
 		try {
-			const role = parseRole(form.get(field), s.code, field);
+			const role = parseRole(input[field], s.code, field);
 			if (role) roles.set(s.id, role);
 		} catch (err) {
 			Object.assign(errors, (err as FormProblem).errors);
@@ -387,16 +388,15 @@ export async function invitePerson(actor: Actor, ctx: RequestContext, input: Inv
 export async function invitationFor(token: string): Promise<{ email: string; name: string | null; hasPassword: boolean } | LinkRefused> {
 	const check = await inspectToken('invitation', token);
 	if (!check.ok) return { refused: check.reason };
-	db();
 	const u = await User.findByPk(check.userId);
 	if (!u || u.deactivatedAt) return { refused: 'account-deactivated' };
 	return { email: u.email, name: u.name, hasPassword: Boolean(u.passwordHash) };
 }
 
 /** Reads a new password and its repetition; an empty password is allowed only when `optional`. */
-function parseNewPassword(form: FormData, optional: boolean, errors: FieldErrors): string | null {
-	const password = String(form.get('password') ?? '');
-	const again = String(form.get('passwordAgain') ?? '');
+function parseNewPassword(input: FormInput, optional: boolean, errors: FieldErrors): string | null {
+	const password = text(input, 'password');
+	const again = text(input, 'passwordAgain');
 	if (!password && optional && !again) return null;
 	if (!password) {
 		errors.password = 'Enter a new password.';
@@ -408,25 +408,34 @@ function parseNewPassword(form: FormData, optional: boolean, errors: FieldErrors
 	return password;
 }
 
+/** A link that cannot be used, once its refusal is in the audit log: gone, with the one message people see. */
+const linkGone = () => new FormProblem({ form: LINK_REFUSED_MESSAGE }, 'gone');
+
 async function linkRefused(action: string, reason: LinkRefused['refused'], ctx: RequestContext, userId: string | null, transaction?: Transaction): Promise<LinkRefused> {
 	await record({ action, actorUserId: userId, actorLabel: 'e-mailed link', outcome: 'denied', recordType: 'user', recordId: userId, ipAddress: ctx.ipAddress, details: { reason } }, transaction);
 	return { refused: reason };
 }
 
-/** Accepts an invitation: saves the name, the password if one was chosen, and that the address is confirmed. */
-export async function acceptInvitation(ctx: RequestContext, token: string, form: FormData): Promise<{ email: string; passwordSet: boolean } | LinkRefused> {
+/**
+ * Accepts an invitation: saves the name, the password if one was chosen, and that the address is confirmed.
+ * A link that cannot be used is audited and answered as gone.
+ */
+export async function acceptInvitation(ctx: RequestContext, token: string, input: FormInput): Promise<{ email: string; passwordSet: boolean }> {
 	const errors: FieldErrors = {};
-	const name = String(form.get('name') ?? '').trim();
+	const name = text(input, 'name').trim();
 	if (!name) errors.name = 'Enter your name as your colleagues should see it.';
 	else if (name.length > NAME_MAX) errors.name = `Use at most ${NAME_MAX} characters for your name (this one has ${name.length}).`;
-	const password = parseNewPassword(form, true, errors);
+	const password = parseNewPassword(input, true, errors);
 	// a refused link matters more than a mistyped field: say that first
 	const peek = await inspectToken('invitation', token);
-	if (!peek.ok) return linkRefused('people.invitation-accepted', peek.reason, ctx, null);
+	if (!peek.ok) {
+		await linkRefused('people.invitation-accepted', peek.reason, ctx, null);
+		throw linkGone();
+	}
 	if (Object.keys(errors).length) throw new FormProblem(errors);
 	// argon2 is deliberately slow: hash before the transaction takes its locks
 	const passwordHash = password ? await hashPassword(password) : null;
-	return db().transaction(async (transaction) => {
+	const outcome = await db().transaction(async (transaction): Promise<{ email: string; passwordSet: boolean } | LinkRefused> => {
 		const used = await consume('invitation', token, transaction);
 		if (!used.ok) return linkRefused('people.invitation-accepted', used.reason, ctx, null, transaction);
 		const person = await User.findByPk(used.userId, { transaction, lock: transaction.LOCK.UPDATE });
@@ -449,6 +458,8 @@ export async function acceptInvitation(ctx: RequestContext, token: string, form:
 		);
 		return { email: person.email, passwordSet: Boolean(passwordHash) };
 	});
+	if ('refused' in outcome) throw linkGone();
+	return outcome;
 }
 
 // ---------------------------------------------------------------------------------------------- password reset
@@ -461,7 +472,6 @@ export const RESETS_PER_HOUR = 3;
  * callers answer the same page whatever happened, and may leave this running so timing tells nothing either.
  */
 export async function requestPasswordReset(ctx: RequestContext, email: string): Promise<void> {
-	db();
 	const address = email.trim().toLowerCase();
 	const person = await User.findOne({ where: { email: address } });
 	const refuse = (reason: string) =>
@@ -490,21 +500,23 @@ export async function requestPasswordReset(ctx: RequestContext, email: string): 
 export async function resetLinkFor(token: string): Promise<{ email: string } | LinkRefused> {
 	const check = await inspectToken('password-reset', token);
 	if (!check.ok) return { refused: check.reason };
-	db();
 	const u = await User.findByPk(check.userId);
 	if (!u || u.deactivatedAt) return { refused: 'account-deactivated' };
 	return { email: u.email };
 }
 
-/** Sets a new password from a reset link and ends every session of the account. */
-export async function resetPassword(ctx: RequestContext, token: string, form: FormData): Promise<{ email: string } | LinkRefused> {
+/** Sets a new password from a reset link and ends every session of the account (a refused link: gone, audited). */
+export async function resetPassword(ctx: RequestContext, token: string, input: FormInput): Promise<{ email: string }> {
 	const errors: FieldErrors = {};
-	const password = parseNewPassword(form, false, errors);
+	const password = parseNewPassword(input, false, errors);
 	const peek = await inspectToken('password-reset', token);
-	if (!peek.ok) return linkRefused('auth.password-reset', peek.reason, ctx, null);
+	if (!peek.ok) {
+		await linkRefused('auth.password-reset', peek.reason, ctx, null);
+		throw linkGone();
+	}
 	if (Object.keys(errors).length || !password) throw new FormProblem(errors);
 	const passwordHash = await hashPassword(password);
-	return db().transaction(async (transaction) => {
+	const outcome = await db().transaction(async (transaction): Promise<{ email: string } | LinkRefused> => {
 		const used = await consume('password-reset', token, transaction);
 		if (!used.ok) return linkRefused('auth.password-reset', used.reason, ctx, null, transaction);
 		const person = await User.findByPk(used.userId, { transaction, lock: transaction.LOCK.UPDATE });
@@ -516,4 +528,6 @@ export async function resetPassword(ctx: RequestContext, token: string, form: Fo
 		);
 		return { email: person.email };
 	});
+	if ('refused' in outcome) throw linkGone();
+	return outcome;
 }

@@ -1,7 +1,6 @@
 // Accepting an invitation (no sign-in needed: the single-use link is the proof): name and an optional password.
-import { FormProblem } from '$lib/server/errors';
-import { contextOf, statusOf } from '$lib/server/http/edge';
-import { fail, redirect } from '@sveltejs/kit';
+import { redirect } from '@sveltejs/kit';
+import { contextOf, formEdge } from '$lib/server/http/edge';
 import { acceptInvitation, invitationFor } from '$lib/server/people/manage';
 import { LINK_REFUSED_MESSAGE } from '$lib/server/auth/tokens';
 import type { Actions, PageServerLoad } from './$types';
@@ -16,16 +15,14 @@ export const load: PageServerLoad = async ({ params, setHeaders }) => {
 
 export const actions: Actions = {
 	default: async (event) => {
-		const form = await event.request.formData();
-		const values = { name: String(form.get('name') ?? '') };
-		let outcome: Awaited<ReturnType<typeof acceptInvitation>>;
-		try {
-			outcome = await acceptInvitation(contextOf(event), event.params.token, form);
-		} catch (err) {
-			if (err instanceof FormProblem) return fail(statusOf(err), { values, errors: err.errors });
-			throw err;
-		}
-		if ('refused' in outcome) return fail(410, { values, errors: { form: LINK_REFUSED_MESSAGE } as Record<string, string> });
-		redirect(303, `/signin?done=${outcome.passwordSet ? 'invitation-password' : 'invitation'}`);
+		const input = Object.fromEntries(await event.request.formData());
+		return formEdge(
+			event,
+			async () => {
+				const { passwordSet } = await acceptInvitation(contextOf(event), event.params.token, input);
+				redirect(303, `/signin?done=${passwordSet ? 'invitation-password' : 'invitation'}`);
+			},
+			{ values: { name: String(input.name ?? '') } }
+		);
 	}
 };

@@ -1,18 +1,15 @@
 // One person (lab administrators): study roles, the lab administrator flag, deactivation and reactivation.
+import { redirect, type RequestEvent } from '@sveltejs/kit';
 import { FormProblem } from '$lib/server/errors';
-import { contextOf, statusOf } from '$lib/server/http/edge';
-import { error, fail, redirect, type RequestEvent } from '@sveltejs/kit';
-import { type Actor } from '$lib/server/access/guard';
-import { requireLab } from '$lib/server/http/edge';
-import { deactivatePerson, getPerson, listStudies, parseRole, reactivatePerson, ROLE_LABELS, setLabAdmin, setStudyRole, STUDY_ROLES } from '$lib/server/people/manage';
+import type { Actor } from '$lib/server/access/guard';
+import type { RequestContext } from '$lib/server/access/context';
+import { contextOf, edge, formEdge, requireLab } from '$lib/server/http/edge';
+import { deactivatePerson, getPerson, listStudies, parseRole, reactivatePerson, ROLE_LABELS, setLabAdmin, setStudyRole, STUDY_ROLES, type FormInput } from '$lib/server/people/manage';
 import type { Actions, PageServerLoad } from './$types';
-
-const NO_SUCH_PERSON = 'There is no such person in this lab. Find them in the people list.';
 
 export const load: PageServerLoad = async (event) => {
 	const actor = await requireLab(event, 'people.manage');
-	const person = await getPerson(actor, event.params.id);
-	if (!person) error(404, NO_SUCH_PERSON);
+	const person = await edge(event, () => getPerson(actor, event.params.id));
 	const confirm = event.url.searchParams.get('confirm');
 	return {
 		person,
@@ -25,59 +22,40 @@ export const load: PageServerLoad = async (event) => {
 	};
 };
 
-/** Runs one change; a refused change comes back to the page with its message, an unknown person is a 404. */
-async function attempt<T>(event: RequestEvent, actor: Actor, change: (form: FormData) => Promise<T>) {
-	if (!(await getPerson(actor, event.params.id ?? ''))) error(404, NO_SUCH_PERSON);
-	const form = await event.request.formData();
-	try {
-		return await change(form);
-	} catch (err) {
-		if (!(err instanceof FormProblem)) throw err;
-		if (err.kind === 'not-found') error(404, NO_SUCH_PERSON);
-		return fail(statusOf(err), { errors: err.errors });
-	}
+/** Runs one change on the person in the URL: an unknown person is a 404, a refused change comes back to the page. */
+async function change<T>(event: RequestEvent<{ id: string }>, work: (actor: Actor, ctx: RequestContext, input: FormInput) => Promise<T>) {
+	const actor = await requireLab(event, 'people.manage');
+	await edge(event, () => getPerson(actor, event.params.id));
+	const input = Object.fromEntries(await event.request.formData());
+	return formEdge(event, () => work(actor, contextOf(event), input));
 }
 
+/** Deactivation and reactivation: confirmed on a panel, then the page again with a note of what was done. */
+const confirmed = (what: 'deactivate' | 'reactivate', service: typeof deactivatePerson) => (event: RequestEvent<{ id: string }>) =>
+	change(event, async (actor, ctx, input) => {
+		const word = what === 'deactivate' ? 'Deactivation' : 'Reactivation';
+		const button = what === 'deactivate' ? 'Deactivate' : 'Reactivate';
+		if (input.confirm !== 'yes') throw new FormProblem({ form: `${word} was not confirmed. Use “${button} account…” and confirm on the panel that opens.` });
+		await service(actor, ctx, event.params.id);
+		redirect(303, `/people/${event.params.id}?done=${what}d`);
+	});
+
 export const actions: Actions = {
-	role: async (event) => {
-		const actor = await requireLab(event, 'people.manage');
-		return attempt(event, actor, async (form) => {
-			const studyId = String(form.get('studyId') ?? '');
-			const study = (await listStudies(actor)).find((s) => s.id === studyId);
+	role: (event) =>
+		change(event, async (actor, ctx, input) => {
+			const study = (await listStudies(actor)).find((s) => s.id === input.studyId);
 			if (!study) throw new FormProblem({ studyId: 'Choose a study from the list: the one sent does not exist.' });
-			const role = parseRole(form.get('role'), study.code, 'role');
-			const changed = await setStudyRole(actor, contextOf(event), event.params.id, study.id, role);
+			const role = parseRole(input.role, study.code, 'role');
+			const changed = await setStudyRole(actor, ctx, event.params.id, study.id, role);
 			const what = role ? `now ${ROLE_LABELS[role]}` : 'no role any more';
 			return { studyId: study.id, done: changed ? `${study.code}: ${what}.` : `${study.code}: unchanged (${role ? ROLE_LABELS[role] : 'no role'}).` };
-		});
-	},
-	admin: async (event) => {
-		const actor = await requireLab(event, 'people.manage');
-		return attempt(event, actor, async (form) => {
-			const value = String(form.get('isAdmin') ?? '');
-			if (value !== 'yes' && value !== 'no') throw new FormProblem({ isAdmin: 'Say whether the person should be a lab administrator (yes or no).' });
-			const changed = await setLabAdmin(actor, contextOf(event), event.params.id, value === 'yes');
-			return { done: !changed ? 'Nothing to change.' : value === 'yes' ? 'Now a lab administrator.' : 'No longer a lab administrator.' };
-		});
-	},
-	deactivate: async (event) => {
-		const actor = await requireLab(event, 'people.manage');
-		const outcome = await attempt(event, actor, async (form) => {
-			if (form.get('confirm') !== 'yes') throw new FormProblem({ form: 'Deactivation was not confirmed. Use “Deactivate account…” and confirm on the panel that opens.' });
-			await deactivatePerson(actor, contextOf(event), event.params.id);
-			return null;
-		});
-		if (outcome) return outcome;
-		redirect(303, `/people/${event.params.id}?done=deactivated`);
-	},
-	reactivate: async (event) => {
-		const actor = await requireLab(event, 'people.manage');
-		const outcome = await attempt(event, actor, async (form) => {
-			if (form.get('confirm') !== 'yes') throw new FormProblem({ form: 'Reactivation was not confirmed. Use “Reactivate account…” and confirm on the panel that opens.' });
-			await reactivatePerson(actor, contextOf(event), event.params.id);
-			return null;
-		});
-		if (outcome) return outcome;
-		redirect(303, `/people/${event.params.id}?done=reactivated`);
-	}
+		}),
+	admin: (event) =>
+		change(event, async (actor, ctx, input) => {
+			if (input.isAdmin !== 'yes' && input.isAdmin !== 'no') throw new FormProblem({ isAdmin: 'Say whether the person should be a lab administrator (yes or no).' });
+			const changed = await setLabAdmin(actor, ctx, event.params.id, input.isAdmin === 'yes');
+			return { done: !changed ? 'Nothing to change.' : input.isAdmin === 'yes' ? 'Now a lab administrator.' : 'No longer a lab administrator.' };
+		}),
+	deactivate: confirmed('deactivate', deactivatePerson),
+	reactivate: confirmed('reactivate', reactivatePerson)
 };

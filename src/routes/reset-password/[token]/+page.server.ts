@@ -1,7 +1,6 @@
 // The page a password-reset link opens: a new password, after which every session of the account ends.
-import { FormProblem } from '$lib/server/errors';
-import { contextOf, statusOf } from '$lib/server/http/edge';
-import { fail, redirect } from '@sveltejs/kit';
+import { redirect } from '@sveltejs/kit';
+import { contextOf, formEdge } from '$lib/server/http/edge';
 import { resetLinkFor, resetPassword } from '$lib/server/people/manage';
 import { LINK_REFUSED_MESSAGE } from '$lib/server/auth/tokens';
 import type { Actions, PageServerLoad } from './$types';
@@ -16,15 +15,10 @@ export const load: PageServerLoad = async ({ params, setHeaders }) => {
 
 export const actions: Actions = {
 	default: async (event) => {
-		const form = await event.request.formData();
-		let outcome: Awaited<ReturnType<typeof resetPassword>>;
-		try {
-			outcome = await resetPassword(contextOf(event), event.params.token, form);
-		} catch (err) {
-			if (err instanceof FormProblem) return fail(statusOf(err), { errors: err.errors });
-			throw err;
-		}
-		if ('refused' in outcome) return fail(410, { errors: { form: LINK_REFUSED_MESSAGE } as Record<string, string> });
-		redirect(303, '/signin?done=password-reset');
+		const input = Object.fromEntries(await event.request.formData());
+		return formEdge(event, async () => {
+			await resetPassword(contextOf(event), event.params.token, input);
+			redirect(303, '/signin?done=password-reset');
+		});
 	}
 };
