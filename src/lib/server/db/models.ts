@@ -8,6 +8,8 @@ import {
 	type NonAttribute,
 	type Sequelize
 } from 'sequelize';
+import { sessionSetupSchema, type SessionSetup } from '../../processing/session-model';
+import { columnMappingSchema, type ColumnMapping } from '../../processing/recording';
 
 /** The laboratory that runs this installation (one row per lab). */
 export class Lab extends Model<InferAttributes<Lab>, InferCreationAttributes<Lab>> {
@@ -298,8 +300,8 @@ export class Session extends Model<InferAttributes<Session>, InferCreationAttrib
 	declare operator: string;
 	declare task: string;
 	declare conditions: string | null;
-	/** SessionSetup (src/lib/processing/session-model.ts), validated before it is stored. */
-	declare setup: Record<string, unknown>;
+	/** Validated before it is stored, and parsed with the same schema when it is read (session-model.ts). */
+	declare setup: SessionSetup;
 	declare state: CreationOptional<SessionState>;
 	declare createdBy: string | null;
 	declare createdAt: CreationOptional<Date>;
@@ -331,8 +333,8 @@ export class Trial extends Model<InferAttributes<Trial>, InferCreationAttributes
 	declare rawUploadId: string;
 	declare fileName: string;
 	declare sha256: string;
-	/** ColumnMapping (src/lib/processing/recording.ts) when the file needed one. */
-	declare mapping: Record<string, unknown> | null;
+	/** The column mapping when the file needed one; parsed with its schema when it is read (recording.ts). */
+	declare mapping: ColumnMapping | null;
 	declare sampleHz: number;
 	declare frameCount: number;
 	declare durationS: number;
@@ -347,7 +349,8 @@ export class MappingPreset extends Model<InferAttributes<MappingPreset>, InferCr
 	declare id: CreationOptional<string>;
 	declare studyId: string;
 	declare name: string;
-	declare mapping: Record<string, unknown>;
+	/** Parsed with the column mapping's schema when it is read (recording.ts). */
+	declare mapping: ColumnMapping;
 	declare createdBy: string | null;
 	declare createdAt: CreationOptional<Date>;
 }
@@ -402,7 +405,13 @@ export function initSessionModels(sequelize: Sequelize): void {
 			operator: { type: DataTypes.TEXT, allowNull: false },
 			task: { type: DataTypes.TEXT, allowNull: false },
 			conditions: { type: DataTypes.TEXT, allowNull: true },
-			setup: { type: DataTypes.JSONB, allowNull: false },
+			setup: {
+				type: DataTypes.JSONB,
+				allowNull: false,
+				get(this: Session): SessionSetup {
+					return sessionSetupSchema.parse(this.getDataValue('setup'));
+				}
+			},
 			state: { type: DataTypes.TEXT, allowNull: false, defaultValue: 'draft' },
 			createdBy: { type: DataTypes.UUID, allowNull: true },
 			createdAt,
@@ -437,7 +446,14 @@ export function initSessionModels(sequelize: Sequelize): void {
 			rawUploadId: { type: DataTypes.UUID, allowNull: false },
 			fileName: { type: DataTypes.TEXT, allowNull: false },
 			sha256: { type: DataTypes.TEXT, allowNull: false },
-			mapping: { type: DataTypes.JSONB, allowNull: true },
+			mapping: {
+				type: DataTypes.JSONB,
+				allowNull: true,
+				get(this: Trial): ColumnMapping | null {
+					const v: unknown = this.getDataValue('mapping');
+					return v == null ? null : columnMappingSchema.parse(v);
+				}
+			},
 			sampleHz: { type: DataTypes.DOUBLE, allowNull: false },
 			frameCount: { type: DataTypes.INTEGER, allowNull: false },
 			durationS: { type: DataTypes.DOUBLE, allowNull: false },
@@ -453,7 +469,13 @@ export function initSessionModels(sequelize: Sequelize): void {
 			id: uuidPk,
 			studyId: { type: DataTypes.UUID, allowNull: false },
 			name: { type: DataTypes.TEXT, allowNull: false },
-			mapping: { type: DataTypes.JSONB, allowNull: false },
+			mapping: {
+				type: DataTypes.JSONB,
+				allowNull: false,
+				get(this: MappingPreset): ColumnMapping {
+					return columnMappingSchema.parse(this.getDataValue('mapping'));
+				}
+			},
 			createdBy: { type: DataTypes.UUID, allowNull: true },
 			createdAt
 		},

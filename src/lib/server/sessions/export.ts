@@ -1,18 +1,15 @@
 // Export of an approved session as one ZIP streamed to the client: results.csv (long format, one row per value, each
 // marked in or out of its run's edge zone), provenance.json (with each run's edge zone and its peaks without the
 // edge zones), README.txt and the raw uploads byte for byte. Never any participant's personal data.
-import { contextOf } from '../http/edge';
-import type { RequestEvent } from '@sveltejs/kit';
-import { error } from '@sveltejs/kit';
 import { Readable } from 'node:stream';
 import { ZipArchive } from 'archiver';
-import { QueryTypes } from 'sequelize';
-import { db } from '../db/index';
-import { Participant, Run } from '../db/models';
-import { record } from '../audit/record';
+import { Participant, Run, RunSeries } from '../db/models';
+import { conflict } from '../errors';
+import type { Actor } from '../access/guard';
+import type { RequestContext } from '../access/context';
 import { readRaw } from '../trials/raw-store';
-import { guardStudy } from '../studies/records';
-import { sessionIn } from './sessions';
+import { recordSession, studySession, type SessionRef } from './sessions';
+import { exportTrialRows, type ExportTrialRow } from './queries';
 import { listRunsForSession, softwareVersion, summaryRows, type RunView } from '../runs/runs';
 import { component, decodeFloat64 } from '../runs/results-codec';
 import { SEGMENT_TABLES, type SegmentTableId } from '../../anthropometry/tables';
@@ -24,20 +21,8 @@ import { EDGE_ZONE_NOT_COMPUTED, edgeZoneView, inEdgeZone, reliableSpan, timeInE
 /** Column names of results.csv, in order (documented in README.txt and the project README). */
 export const RESULT_COLUMNS = ['participant', 'trial', 'run', 'dof', 'quantity', 'unit', 'axis', 'repetition', 'x', 'value', 'in_edge_zone'] as const;
 
-interface TrialRow {
-	id: string;
-	file_name: string;
-	sha256: string;
-	raw_upload_id: string;
-	byte_size: string | number;
-	sample_hz: number;
-	frame_count: number;
-	duration_s: number;
-	channels: string[];
-}
-
 export interface ExportTrial {
-	trial: TrialRow;
+	trial: ExportTrialRow;
 	archivePath: string;
 	/** The latest done run that is not excluded, or null. */
 	run: RunView | null;
@@ -52,11 +37,7 @@ export function exportedRunOf(runs: RunView[]): RunView | null {
 
 /** The session's trials (oldest first) with the run exported for each. */
 export async function exportTrials(sessionId: string): Promise<ExportTrial[]> {
-	const trials = await db().query<TrialRow>(
-		`SELECT t.id, t.file_name, t.sha256, t.raw_upload_id, u.byte_size, t.sample_hz, t.frame_count, t.duration_s, t.channels
-		 FROM trials t JOIN raw_uploads u ON u.id = t.raw_upload_id WHERE t.session_id = :sessionId ORDER BY t.created_at, t.id`,
-		{ replacements: { sessionId }, type: QueryTypes.SELECT }
-	);
+	const trials = await exportTrialRows(sessionId);
 	const runs = await listRunsForSession(sessionId);
 	const used = new Set<string>();
 	return trials.map((t) => {
@@ -78,25 +59,26 @@ const num = (v: number) => {
 	return String(v);
 };
 
+/** One stored series of a run, as numbers. */
+async function seriesValues(runId: string, name: string, quantity: RunSeries['quantity']): Promise<Float64Array | null> {
+	const row = await RunSeries.findOne({ where: { runId, name, quantity }, attributes: ['data'] });
+	return row ? decodeFloat64(row.data) : null;
+}
+
 /**
- * 409 before anything is streamed when an exported run is not done or any number it stored is not finite (runs
+ * Conflict before anything is streamed when an exported run is not done or any number it stored is not finite (runs
  * stored before the storage check may hold such values); the message names the run, its trial and the series.
  */
 export async function refuseNonFinite(trials: ExportTrial[]): Promise<void> {
 	for (const { trial, run } of trials) {
 		if (!run) continue;
-		if (run.state !== 'done') error(409, `Run ${run.number} of trial “${trial.file_name}” is ${run.state}, not done; it cannot be exported.`);
-		const meta = await db().query<{ name: string; quantity: string }>(`SELECT name, quantity FROM run_series WHERE run_id = :id ORDER BY name, quantity`, {
-			replacements: { id: run.id },
-			type: QueryTypes.SELECT
-		});
+		if (run.state !== 'done') throw conflict(`Run ${run.number} of trial “${trial.file_name}” is ${run.state}, not done; it cannot be exported.`);
+		const meta = await RunSeries.findAll({ where: { runId: run.id }, attributes: ['name', 'quantity'], order: [['name', 'ASC'], ['quantity', 'ASC']] });
 		for (const s of meta) {
-			const rows = await db().query<{ data: Buffer }>(`SELECT data FROM run_series WHERE run_id = $1 AND name = $2 AND quantity = $3`, { bind: [run.id, s.name, s.quantity], type: QueryTypes.SELECT });
-			const values = decodeFloat64(rows[0].data);
+			const values = (await seriesValues(run.id, s.name, s.quantity))!;
 			const k = values.findIndex((v) => !Number.isFinite(v));
 			if (k >= 0)
-				error(
-					409,
+				throw conflict(
 					`Run ${run.number} of trial “${trial.file_name}” holds a value that is not a finite number (${s.quantity.replace(/_/g, ' ')} of ${s.name}, value ${k + 1}), so the session cannot be exported. Run the trial again (new runs are checked before they are stored), then export.`
 				);
 		}
@@ -109,13 +91,10 @@ async function* resultsCsv(participantCode: string, trials: ExportTrial[]): Asyn
 	yield Buffer.from(RESULT_COLUMNS.join(',') + '\n');
 	for (const { trial, run } of trials) {
 		if (!run) continue;
-		const meta = await db().query<{ name: string; quantity: string; unit: string; components: number }>(
-			`SELECT name, quantity, unit, components FROM run_series WHERE run_id = :id AND quantity <> 'time'`,
-			{ replacements: { id: run.id }, type: QueryTypes.SELECT }
-		);
-		const timeRow = await db().query<{ data: Buffer }>(`SELECT data FROM run_series WHERE run_id = $1 AND quantity = 'time'`, { bind: [run.id], type: QueryTypes.SELECT });
-		if (!timeRow[0]) continue;
-		const time = decodeFloat64(timeRow[0].data);
+		const meta = (await RunSeries.findAll({ where: { runId: run.id }, attributes: ['name', 'quantity', 'unit', 'components'] })).filter((s) => s.quantity !== 'time');
+		const timeRow = await RunSeries.findOne({ where: { runId: run.id, quantity: 'time' }, attributes: ['data'] });
+		if (!timeRow) continue;
+		const time = decodeFloat64(timeRow.data);
 		const saved = await eventsOfRun(run.id);
 		// events outside this run's time span (never saved that way, but the run could be re-made) are left out
 		const events = saved && saved.length >= 2 && saved[0] >= time[0] && saved[saved.length - 1] <= time[time.length - 1] ? saved : null;
@@ -128,11 +107,7 @@ async function* resultsCsv(participantCode: string, trials: ExportTrial[]): Asyn
 		meta.sort((a, b) => (order.get(a.name) ?? 1e9) - (order.get(b.name) ?? 1e9) || a.name.localeCompare(b.name) || QUANTITY_ORDER.indexOf(a.quantity) - QUANTITY_ORDER.indexOf(b.quantity));
 		const head = `${csvText(participantCode)},${csvText(trial.file_name)},${run.number},`;
 		for (const s of meta) {
-			const rows = await db().query<{ data: Buffer }>(`SELECT data FROM run_series WHERE run_id = $1 AND name = $2 AND quantity = $3`, {
-				bind: [run.id, s.name, s.quantity],
-				type: QueryTypes.SELECT
-			});
-			const all = decodeFloat64(rows[0].data);
+			const all = (await seriesValues(run.id, s.name, s.quantity))!;
 			for (let c = 0; c < s.components; c++) {
 				const values = component(all, s.components, c);
 				const quantity = s.components === 3 ? `${s.quantity}_${'xyz'[c]}` : s.quantity;
@@ -221,11 +196,16 @@ function edgeZoneOf(run: RunView, stored: unknown) {
 	return { ...zone, endTreatment, ...(zone.computed ? {} : { note: EDGE_ZONE_NOT_COMPUTED }) };
 }
 
-/** GET …/sessions/[sid]/export: guard, approved sessions only, audited, then the ZIP as a web stream. */
-export async function exportSession(event: RequestEvent, rawId: string, rawSid: string): Promise<Response> {
-	const { actor, study } = await guardStudy(event, 'session.export', rawId);
-	const s = await sessionIn(study.id, rawSid);
-	if (s.state !== 'approved') error(409, `Only an approved session can be exported; this session is ${s.state.replace('_', ' ')}.`);
+/** The export of an approved session: its file name and the ZIP as a Node stream (the route sends it). */
+export interface SessionArchive {
+	fileName: string;
+	archive: Readable;
+}
+
+/** Guard, approved sessions only, audited, then the ZIP, produced as it is read. */
+export async function exportSession(actor: Actor | null, ctx: RequestContext, ref: SessionRef): Promise<SessionArchive> {
+	const { actor: a, study, session: s } = await studySession(actor, ctx, 'session.export', ref);
+	if (s.state !== 'approved') throw conflict(`Only an approved session can be exported; this session is ${s.state.replace('_', ' ')}.`);
 	const p = (await Participant.findByPk(s.participantId, { attributes: ['id', 'code'] }))!;
 	const trials = await exportTrials(s.id);
 	await refuseNonFinite(trials);
@@ -244,7 +224,7 @@ export async function exportSession(event: RequestEvent, rawId: string, rawSid: 
 		resultsColumns: RESULT_COLUMNS,
 		trials: trials.map((t, i) => {
 			const model = runs[i] as (Record<string, unknown> & { table?: string; gravity?: unknown }) | null;
-			const tableId = (model?.table ?? (s.setup as { table?: string }).table) as SegmentTableId;
+			const tableId = (model?.table ?? s.setup.table) as SegmentTableId;
 			return {
 				fileName: t.trial.file_name,
 				archivePath: t.archivePath,
@@ -278,16 +258,7 @@ export async function exportSession(event: RequestEvent, rawId: string, rawSid: 
 			};
 		})
 	};
-	await record({
-		action: 'session.exported',
-		actorUserId: actor.id,
-		actorLabel: actor.email,
-		studyId: study.id,
-		recordType: 'session',
-		recordId: s.id,
-		ipAddress: contextOf(event).ipAddress,
-		details: { runs: trials.filter((t) => t.run).map((t) => t.run!.id), trials: trials.length }
-	});
+	await recordSession(a, ctx, 'session.exported', { studyId: study.id, sessionId: s.id }, { runs: trials.filter((t) => t.run).map((t) => t.run!.id), trials: trials.length });
 
 	const archive = new ZipArchive({ zlib: { level: 6 } });
 	const date = exportedAt;
@@ -300,7 +271,5 @@ export async function exportSession(event: RequestEvent, rawId: string, rawSid: 
 	archive.finalize().catch((err: unknown) => console.error('session export failed:', err));
 	const safe = (x: string) => x.replace(/[^A-Za-z0-9._-]+/g, '_');
 	const fileName = `${safe(study.code)}-${safe(p.code)}-${safe(s.sessionOn)}-session.zip`;
-	return new Response(Readable.toWeb(archive) as unknown as ReadableStream, {
-		headers: { 'content-type': 'application/zip', 'content-disposition': `attachment; filename="${fileName}"`, 'cache-control': 'no-store' }
-	});
+	return { fileName, archive };
 }

@@ -1,19 +1,17 @@
 // Sessions of a participant (one visit): date, operator, task, conditions and the model set-up, created only
 // with valid consent; the set-up form is checked by the session model's own schema, field by field.
-import { FormProblem } from '../errors';
-import { contextOf } from '../http/edge';
+import { conflict, FormProblem, notFound } from '../errors';
 import { isLocked, refuseIfLocked } from './lock';
-import type { RequestEvent } from '@sveltejs/kit';
-import { error } from '@sveltejs/kit';
 import type { Transaction } from 'sequelize';
 import { z } from 'zod';
 import { db } from '../db/index';
-import { MappingPreset, Participant, ParticipantLength, Session, Trial, type SessionState } from '../db/models';
-import { may } from '../access/guard';
+import { MappingPreset, Participant, ParticipantLength, Session, Trial, type SessionState, type Study } from '../db/models';
+import { may, studyFor, type Actor } from '../access/guard';
+import type { RequestContext } from '../access/context';
 import { record } from '../audit/record';
 import { isUuid } from '../studies/studies';
-import { guardStudy } from '../studies/records';
 import { consentStateOf, requireValidConsent, CONSENT_STATE_LABEL } from '../consent/check';
+import type { PresetView, SessionFormChoices, SessionFormPage, SessionFormValues, SessionPageSession, SessionRow, TrialView } from '../../types/sessions';
 import { LIMBS, type ParticipantBody } from '../../anthropometry/scale';
 import { SEGMENT_TABLES, SEGMENT_TABLE_IDS, type SegmentTableId } from '../../anthropometry/tables';
 import { buildSessionModel, LOAD_SEGMENTS, sessionSetupSchema, type SessionSetup } from '../../processing/session-model';
@@ -135,8 +133,8 @@ export function parseSessionForm(form: FormData): { meta: SessionMeta; setup: Se
 }
 
 /** A session's set-up as the form shows it again (for editing, and after a refused post). */
-export function formValuesOf(meta: Partial<SessionMeta>, setup: SessionSetup | null): Record<string, string | string[]> {
-	const v: Record<string, string | string[]> = {
+export function formValuesOf(meta: Partial<SessionMeta>, setup: SessionSetup | null): SessionFormValues {
+	const v: SessionFormValues = {
 		sessionOn: meta.sessionOn ?? '',
 		operator: meta.operator ?? '',
 		task: meta.task ?? '',
@@ -162,8 +160,8 @@ export function formValuesOf(meta: Partial<SessionMeta>, setup: SessionSetup | n
 }
 
 /** The raw form as the page shows it again after a refused post. */
-export function formValuesFrom(form: FormData): Record<string, string | string[]> {
-	const v: Record<string, string | string[]> = {};
+export function formValuesFrom(form: FormData): SessionFormValues {
+	const v: SessionFormValues = {};
 	for (const [k, val] of form.entries()) {
 		if (k === 'limbs') v.limbs = [...((v.limbs as string[]) ?? []), String(val)];
 		else v[k] = String(val);
@@ -173,7 +171,7 @@ export function formValuesFrom(form: FormData): Record<string, string | string[]
 }
 
 /** What the form needs to offer its choices. */
-export function formChoices() {
+export function formChoices(): SessionFormChoices {
 	return {
 		limbs: LIMBS as readonly string[],
 		tables: SEGMENT_TABLE_IDS.map((id) => ({ id, title: SEGMENT_TABLES[id].title })),
@@ -183,19 +181,36 @@ export function formChoices() {
 	};
 }
 
+/** A participant of the study (another study's participant is not-found, as an unknown one). */
 async function participantIn(studyId: string, rawPid: string, transaction?: Transaction): Promise<Participant> {
-	db();
 	const p = isUuid(rawPid) ? await Participant.findOne({ where: { id: rawPid.toLowerCase(), studyId }, transaction }) : null;
-	if (!p) error(404, 'Not found');
+	if (!p) throw notFound();
 	return p;
 }
 
-/** A session of the study in the URL (another study's session answers 404, as an unknown one). */
+/** A session of the study in the URL (another study's session is not-found, as an unknown one). */
 export async function sessionIn(studyId: string, rawSid: string, transaction?: Transaction): Promise<Session> {
-	db();
 	const s = isUuid(rawSid) ? await Session.findOne({ where: { id: rawSid.toLowerCase(), studyId }, transaction }) : null;
-	if (!s) error(404, 'Not found');
+	if (!s) throw notFound();
 	return s;
+}
+
+/** The study (guarded for `action`) and one of its sessions: what most session services start with. */
+export async function studySession(actor: Actor | null, ctx: RequestContext, action: Parameters<typeof studyFor>[2], ref: SessionRef) {
+	const guarded = await studyFor(actor, ctx, action, ref.studyId);
+	return { ...guarded, session: await sessionIn(guarded.study.id, ref.sessionId) };
+}
+
+/** Which session: the study and session ids as they came in the URL. */
+export interface SessionRef {
+	studyId: string;
+	sessionId: string;
+}
+
+/** Which participant: the study and participant ids as they came in the URL. */
+export interface ParticipantRef {
+	studyId: string;
+	participantId: string;
 }
 
 /**
@@ -203,7 +218,6 @@ export async function sessionIn(studyId: string, rawSid: string, transaction?: T
  * whose sex is "not reported" is scaled with the mean of the female and male table values (a stated choice).
  */
 export async function participantBodyOf(participantId: string, transaction?: Transaction): Promise<ParticipantBody> {
-	db();
 	const p = await Participant.findByPk(participantId, { transaction });
 	if (!p) throw new Error(`participant ${participantId} does not exist`);
 	const lengths = await ParticipantLength.findAll({ where: { participantId }, order: [['measuredOn', 'DESC'], ['createdAt', 'DESC']], transaction });
@@ -229,147 +243,101 @@ function checkModel(body: ParticipantBody, setup: SessionSetup) {
 	}
 }
 
-/** What the new-session page needs: the participant, the study's default table, consent. */
-export async function newSessionForm(event: RequestEvent, rawId: string, rawPid: string) {
-	const { study } = await guardStudy(event, 'session.create', rawId);
-	const p = await participantIn(study.id, rawPid);
-	const consent = await consentStateOf(p.id);
-	return {
-		study: { id: study.id, code: study.code, title: study.title, defaultTable: study.defaultTable as SegmentTableId },
-		participant: { id: p.id, code: p.code },
-		consent: { state: consent.state, label: CONSENT_STATE_LABEL[consent.state] },
-		choices: formChoices()
-	};
+/** The part of the new-session and edit pages they share: whose session, and the form's choices. */
+const formPage = (study: Study, p: Participant): SessionFormPage => ({
+	study: { id: study.id, code: study.code, title: study.title, defaultTable: study.defaultTable as SegmentTableId },
+	participant: { id: p.id, code: p.code },
+	choices: formChoices()
+});
+
+/** An audit entry about a session (created, edited, each workflow step, signing codes). */
+export function recordSession(
+	actor: Actor,
+	ctx: RequestContext,
+	action: string,
+	ids: { studyId: string; sessionId: string },
+	details: Record<string, unknown>,
+	opts: { outcome?: 'failed'; transaction?: Transaction } = {}
+) {
+	const entry = { action, actorUserId: actor.id, actorLabel: actor.email, outcome: opts.outcome, studyId: ids.studyId, recordType: 'session', recordId: ids.sessionId, ipAddress: ctx.ipAddress, details };
+	return record(entry, opts.transaction);
 }
 
-/** Adds a session (state draft) for a consented participant. Audited. */
-export async function createSession(event: RequestEvent, rawId: string, rawPid: string, form: FormData): Promise<{ id: string }> {
-	const { actor, study } = await guardStudy(event, 'session.create', rawId);
-	const p = await participantIn(study.id, rawPid);
-	const { meta, setup } = parseSessionForm(form);
+/** What the new-session page needs: the participant, the study's default table, consent. */
+export async function newSessionForm(actor: Actor | null, ctx: RequestContext, ref: ParticipantRef) {
+	const { study } = await studyFor(actor, ctx, 'session.create', ref.studyId);
+	const p = await participantIn(study.id, ref.participantId);
+	const consent = await consentStateOf(p.id);
+	return { ...formPage(study, p), consent: { state: consent.state, label: CONSENT_STATE_LABEL[consent.state] } };
+}
+
+/** Adds a session (state draft) for a consented participant from the session form. Audited. */
+export async function createSession(actor: Actor | null, ctx: RequestContext, input: ParticipantRef & { form: FormData }): Promise<{ id: string }> {
+	const { actor: a, study } = await studyFor(actor, ctx, 'session.create', input.studyId);
+	const p = await participantIn(study.id, input.participantId);
+	const { meta, setup } = parseSessionForm(input.form);
 	checkModel(await participantBodyOf(p.id), setup);
 	return db().transaction(async (transaction) => {
 		await requireValidConsent(p.id, 'session', transaction);
-		const s = await Session.create({ studyId: study.id, participantId: p.id, ...meta, setup: setup as unknown as Record<string, unknown>, createdBy: actor.id }, { transaction });
-		await record(
-			{
-				action: 'session.created',
-				actorUserId: actor.id,
-				actorLabel: actor.email,
-				studyId: study.id,
-				recordType: 'session',
-				recordId: s.id,
-				ipAddress: contextOf(event).ipAddress,
-				details: { participant: p.code, sessionOn: meta.sessionOn, task: meta.task, limbs: setup.limbs, table: setup.table }
-			},
-			transaction
-		);
+		const s = await Session.create({ studyId: study.id, participantId: p.id, ...meta, setup, createdBy: a.id }, { transaction });
+		const details = { participant: p.code, sessionOn: meta.sessionOn, task: meta.task, limbs: setup.limbs, table: setup.table };
+		await recordSession(a, ctx, 'session.created', { studyId: study.id, sessionId: s.id }, details, { transaction });
 		return { id: s.id };
 	});
 }
 
 /** What the edit page needs. */
-export async function editSessionForm(event: RequestEvent, rawId: string, rawSid: string) {
-	const { study } = await guardStudy(event, 'session.edit', rawId);
-	const s = await sessionIn(study.id, rawSid);
-	const p = (await Participant.findByPk(s.participantId))!;
+export async function editSessionForm(actor: Actor | null, ctx: RequestContext, ref: SessionRef) {
+	const { study, session: s } = await studySession(actor, ctx, 'session.edit', ref);
+	const p = await participantIn(study.id, s.participantId);
 	return {
-		study: { id: study.id, code: study.code, title: study.title, defaultTable: study.defaultTable as SegmentTableId },
-		participant: { id: p.id, code: p.code },
+		...formPage(study, p),
 		session: { id: s.id, state: s.state, editable: EDITABLE_STATES.includes(s.state) },
-		initial: formValuesOf(s, s.setup as unknown as SessionSetup),
-		choices: formChoices()
+		initial: formValuesOf(s, s.setup)
 	};
 }
 
+/** The names of the channels a file must contain, in order, as one comparable string. */
+const channelKey = (model: ReturnType<typeof buildSessionModel>) => model.expected.map((c) => c.name).join('|');
+
 /**
- * Changes a session's record and set-up while it is a draft or returned. Once trials exist, a change that would
- * alter the channels a file must contain is refused: those trials were checked against the old ones.
+ * Changes a session's record and set-up from the session form while it is a draft or returned. Once trials exist,
+ * a change that would alter the channels a file must contain is refused: those trials were checked against the old ones.
  */
-export async function editSession(event: RequestEvent, rawId: string, rawSid: string, form: FormData): Promise<void> {
-	const { actor, study } = await guardStudy(event, 'session.edit', rawId);
-	const found = await sessionIn(study.id, rawSid);
+export async function editSession(actor: Actor | null, ctx: RequestContext, input: SessionRef & { form: FormData }): Promise<void> {
+	const { actor: a, study, session: found } = await studySession(actor, ctx, 'session.edit', input);
 	refuseIfLocked(found.state);
-	const { meta, setup } = parseSessionForm(form);
+	const { meta, setup } = parseSessionForm(input.form);
 	const body = await participantBodyOf(found.participantId);
 	const next = checkModel(body, setup);
 	await db().transaction(async (transaction) => {
 		const s = (await Session.findByPk(found.id, { transaction, lock: transaction.LOCK.UPDATE }))!;
 		refuseIfLocked(s.state);
-		if (!EDITABLE_STATES.includes(s.state)) error(409, `This session is ${s.state.replace('_', ' ')}; it can be changed only while it is a draft or returned.`);
+		if (!EDITABLE_STATES.includes(s.state)) throw conflict(`This session is ${s.state.replace('_', ' ')}; it can be changed only while it is a draft or returned.`);
 		const trials = await Trial.count({ where: { sessionId: s.id }, transaction });
-		if (trials > 0) {
-			const before = buildSessionModel(body, s.setup as unknown as SessionSetup).expected.map((c) => c.name).join('|');
-			if (before !== next.expected.map((c) => c.name).join('|'))
-				throw new FormProblem({
-					limbs: `This session already has ${trials} trial${trials === 1 ? '' : 's'} checked against its current limbs and bases; changing them would change the channels a file must contain. Start a new session instead.`
-				});
-		}
-		const changed = (['sessionOn', 'operator', 'task', 'conditions'] as const).filter((k) => s[k] !== meta[k]);
-		if (JSON.stringify(s.setup) !== JSON.stringify(setup)) changed.push('setup' as never);
+		if (trials > 0 && channelKey(buildSessionModel(body, s.setup)) !== channelKey(next))
+			throw new FormProblem({
+				limbs: `This session already has ${trials} trial${trials === 1 ? '' : 's'} checked against its current limbs and bases; changing them would change the channels a file must contain. Start a new session instead.`
+			});
+		const changed: string[] = (['sessionOn', 'operator', 'task', 'conditions'] as const).filter((k) => s[k] !== meta[k]);
+		if (JSON.stringify(s.setup) !== JSON.stringify(setup)) changed.push('setup');
 		if (changed.length === 0) return;
-		await s.update({ ...meta, setup: setup as unknown as Record<string, unknown>, updatedAt: new Date() }, { transaction });
-		await record(
-			{
-				action: 'session.edited',
-				actorUserId: actor.id,
-				actorLabel: actor.email,
-				studyId: study.id,
-				recordType: 'session',
-				recordId: s.id,
-				ipAddress: contextOf(event).ipAddress,
-				details: { changed }
-			},
-			transaction
-		);
+		await s.update({ ...meta, setup, updatedAt: new Date() }, { transaction });
+		await recordSession(a, ctx, 'session.edited', { studyId: study.id, sessionId: s.id }, { changed }, { transaction });
 	});
 }
 
-export interface SessionRow {
-	id: string;
-	sessionOn: string;
-	operator: string;
-	task: string;
-	state: SessionState;
-	limbs: string[];
-	trials: number;
-}
-
 /** The sessions of a participant, newest first, with their trial counts (for the participant page). */
-export async function listSessionsOfParticipant(event: RequestEvent, rawId: string, rawPid: string): Promise<{ sessions: SessionRow[]; mayCreate: boolean }> {
-	const { actor, study } = await guardStudy(event, 'study.read', rawId);
-	const p = await participantIn(study.id, rawPid);
+export async function listSessionsOfParticipant(actor: Actor | null, ctx: RequestContext, ref: ParticipantRef): Promise<{ sessions: SessionRow[]; mayCreate: boolean }> {
+	const { actor: a, study } = await studyFor(actor, ctx, 'study.read', ref.studyId);
+	const p = await participantIn(study.id, ref.participantId);
 	const rows = await Session.findAll({ where: { participantId: p.id, studyId: study.id }, order: [['sessionOn', 'DESC'], ['createdAt', 'DESC']] });
 	const counts = new Map<string, number>();
-	if (rows.length) {
-		const c = (await Trial.count({ where: { sessionId: rows.map((r) => r.id) }, group: ['sessionId'] })) as unknown as { sessionId: string; count: number }[];
-		for (const r of c) counts.set(r.sessionId, Number(r.count));
-	}
+	if (rows.length) for (const r of await Trial.count({ where: { sessionId: rows.map((r) => r.id) }, group: ['sessionId'] })) counts.set(String(r.sessionId), Number(r.count));
 	return {
-		sessions: rows.map((s) => ({
-			id: s.id,
-			sessionOn: s.sessionOn,
-			operator: s.operator,
-			task: s.task,
-			state: s.state,
-			limbs: ((s.setup as { limbs?: string[] }).limbs ?? []) as string[],
-			trials: counts.get(s.id) ?? 0
-		})),
-		mayCreate: may(actor, 'session.create', study.id)
+		sessions: rows.map((s) => ({ id: s.id, sessionOn: s.sessionOn, operator: s.operator, task: s.task, state: s.state, limbs: [...s.setup.limbs], trials: counts.get(s.id) ?? 0 })),
+		mayCreate: may(a, 'session.create', study.id)
 	};
-}
-
-export interface TrialView {
-	id: string;
-	fileName: string;
-	sha256: string;
-	frameCount: number;
-	sampleHz: number;
-	durationS: number;
-	channels: string[];
-	warnings: { code: string; message: string; row?: number; column?: string }[];
-	mapped: boolean;
-	createdAt: string;
 }
 
 export const trialView = (t: Trial): TrialView => ({
@@ -385,19 +353,13 @@ export const trialView = (t: Trial): TrialView => ({
 	createdAt: t.createdAt.toISOString()
 });
 
-export interface PresetView {
-	id: string;
-	name: string;
-	mapping: Record<string, unknown>;
-	createdAt: string;
-}
+export const presetView = (m: MappingPreset): PresetView => ({ id: m.id, name: m.name, mapping: m.mapping, createdAt: m.createdAt.toISOString() });
 
 /** Everything the session page shows: set-up, expected channels, trials, presets and what the person may do. */
-export async function readSession(event: RequestEvent, rawId: string, rawSid: string) {
-	const { actor, study } = await guardStudy(event, 'study.read', rawId);
-	const s = await sessionIn(study.id, rawSid);
-	const p = (await Participant.findByPk(s.participantId))!;
-	const setup = s.setup as unknown as SessionSetup;
+export async function readSession(actor: Actor | null, ctx: RequestContext, ref: SessionRef) {
+	const { actor: a, study, session: s } = await studySession(actor, ctx, 'study.read', ref);
+	const p = await participantIn(study.id, s.participantId);
+	const setup = s.setup;
 	let expected: { name: string; kind: 'angle' | 'position' }[] = [];
 	let modelProblem: string | null = null;
 	try {
@@ -409,31 +371,32 @@ export async function readSession(event: RequestEvent, rawId: string, rawSid: st
 	const presets = await MappingPreset.findAll({ where: { studyId: study.id }, order: [['name', 'ASC']] });
 	const consent = await consentStateOf(p.id);
 	const editable = EDITABLE_STATES.includes(s.state);
+	const session: SessionPageSession = {
+		id: s.id,
+		sessionOn: s.sessionOn,
+		operator: s.operator,
+		task: s.task,
+		conditions: s.conditions,
+		state: s.state,
+		setup,
+		tableTitle: SEGMENT_TABLES[setup.table as SegmentTableId]?.title ?? setup.table,
+		createdAt: s.createdAt.toISOString()
+	};
 	return {
 		study: { id: study.id, code: study.code, title: study.title },
 		participant: { id: p.id, code: p.code },
-		session: {
-			id: s.id,
-			sessionOn: s.sessionOn,
-			operator: s.operator,
-			task: s.task,
-			conditions: s.conditions,
-			state: s.state,
-			setup,
-			tableTitle: SEGMENT_TABLES[setup.table as SegmentTableId]?.title ?? setup.table,
-			createdAt: s.createdAt.toISOString()
-		},
+		session,
 		expected,
 		modelProblem,
 		trials: trials.map(trialView),
-		presets: presets.map((m): PresetView => ({ id: m.id, name: m.name, mapping: m.mapping, createdAt: m.createdAt.toISOString() })),
+		presets: presets.map(presetView),
 		consent: { state: consent.state, label: CONSENT_STATE_LABEL[consent.state], valid: consent.state === 'consented' },
 		may: {
-			upload: editable && may(actor, 'trial.upload', study.id),
-			savePreset: may(actor, 'mapping.preset', study.id),
-			edit: editable && may(actor, 'session.edit', study.id),
-			startRun: !isLocked(s.state) && may(actor, 'run.start', study.id),
-			export: s.state === 'approved' && may(actor, 'session.export', study.id)
+			upload: editable && may(a, 'trial.upload', study.id),
+			savePreset: may(a, 'mapping.preset', study.id),
+			edit: editable && may(a, 'session.edit', study.id),
+			startRun: !isLocked(s.state) && may(a, 'run.start', study.id),
+			export: s.state === 'approved' && may(a, 'session.export', study.id)
 		}
 	};
 }
