@@ -1,20 +1,9 @@
 // The outcome of a plain (no-JavaScript) upload form post, carried to the session page in a short-lived cookie.
-import type { UploadOutcome } from './uploads';
-import type { ColumnMapping } from '../../processing/recording';
+import type { FlashOutcome, UploadOutcome } from '../../types/sessions';
+
+export type { FlashOutcome } from '../../types/sessions';
 
 export const flashCookieName = 'momentry-upload';
-
-/** What the page shows of one file's outcome. */
-export interface FlashOutcome {
-	fileName: string;
-	status: number;
-	message: string;
-	problems: { code: string; message: string; row?: number; column?: string; severity: string }[];
-	moreProblems: number;
-	duplicateOf?: { trialId: string; fileName: string; uploadedAt: string };
-	needsMapping?: { headers: string[]; suggested?: ColumnMapping };
-	trialId?: string;
-}
 
 const MAX_COOKIE = 3600;
 

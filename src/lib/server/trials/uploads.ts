@@ -1,8 +1,5 @@
 // The streamed trial upload: multipart parsed by busboy straight from the request, each file hashed, stored in
 // 1 MiB chunks and parsed as it arrives, all in one transaction per file, so a rejected file leaves only an audit entry.
-import { contextOf } from '../http/edge';
-import type { RequestEvent } from '@sveltejs/kit';
-import { error, isHttpError } from '@sveltejs/kit';
 import busboy from 'busboy';
 import { createHash, randomUUID } from 'node:crypto';
 import { basename } from 'node:path';
@@ -10,34 +7,22 @@ import { Readable } from 'node:stream';
 import { UniqueConstraintError, type Transaction } from 'sequelize';
 import { db } from '../db/index';
 import { MappingPreset, Participant, RawUpload, Session, Trial } from '../db/models';
-import { may, type Actor } from '../access/guard';
+import { may, studyFor, type Actor } from '../access/guard';
+import type { RequestContext } from '../access/context';
 import { record } from '../audit/record';
 import { config } from '../config';
+import { conflict, DomainError, isDomainError } from '../errors';
 import { isUuid } from '../studies/studies';
-import { guardStudy } from '../studies/records';
 import { requireValidConsent } from '../consent/check';
-import { EDITABLE_STATES, participantBodyOf, sessionIn, trialView, type TrialView } from '../sessions/sessions';
+import { EDITABLE_STATES, participantBodyOf, sessionIn, trialView, type SessionRef } from '../sessions/sessions';
 import { RAW_CHUNK_BYTES, writeRawChunk } from './raw-store';
+import { recordPreset } from './mapping-presets';
 import { assertSessionUnlocked, refuseIfLocked } from '../sessions/lock';
-import { buildSessionModel, type SessionSetup } from '../../processing/session-model';
+import { buildSessionModel } from '../../processing/session-model';
 import { columnMappingSchema, parseRecording, type ColumnMapping, type ExpectedChannel, type Problem } from '../../processing/recording';
+import type { UploadOutcome } from '../../types/sessions';
 
-export type UploadStatus = 201 | 400 | 409 | 413 | 422;
-
-export interface UploadOutcome {
-	fileName: string;
-	status: UploadStatus;
-	/** One sentence for the person: what happened, what to do. */
-	message: string;
-	trial?: TrialView;
-	duplicateOf?: { trialId: string; fileName: string; uploadedAt: string };
-	problems?: Problem[];
-	needsMapping?: { headers: string[]; suggested: ColumnMapping };
-	/** Set when a mapping preset was saved with this file. */
-	presetSaved?: { id: string; name: string };
-	byteSize?: number;
-	sha256?: string;
-}
+export type { UploadOutcome, UploadStatus } from '../../types/sessions';
 
 /** Most files one request may carry; more are refused with a message. */
 export const MAX_FILES_PER_REQUEST = 20;
@@ -168,7 +153,7 @@ function chunker(file: Readable, write: (seq: number, bytes: Buffer) => Promise<
 }
 
 interface FileContext {
-	event: RequestEvent;
+	ctx: RequestContext;
 	actor: Actor;
 	studyId: string;
 	session: Session;
@@ -264,7 +249,7 @@ async function receiveFile(ctx: FileContext, file: Readable, info: busboy.FileIn
 					rawUploadId: uploadId,
 					fileName,
 					sha256,
-					mapping: (mapping ?? null) as Record<string, unknown> | null,
+					mapping: mapping ?? null,
 					sampleHz: rec.sampleHz,
 					frameCount: frames,
 					durationS: frames > 1 ? rec.time[frames - 1] - rec.time[0] : 0,
@@ -282,12 +267,9 @@ async function receiveFile(ctx: FileContext, file: Readable, info: busboy.FileIn
 				else if (await MappingPreset.findOne({ where: { studyId: ctx.studyId, name: presetName }, transaction: t }))
 					presetNote = ` The mapping was not saved as a preset: the study already has a preset named “${presetName}”.`;
 				else {
-					const p = await MappingPreset.create({ studyId: ctx.studyId, name: presetName, mapping: mapping as unknown as Record<string, unknown>, createdBy: ctx.actor.id }, { transaction: t });
+					const p = await MappingPreset.create({ studyId: ctx.studyId, name: presetName, mapping, createdBy: ctx.actor.id }, { transaction: t });
 					presetSaved = { id: p.id, name: p.name };
-					await record(
-						{ action: 'mapping_preset.created', actorUserId: ctx.actor.id, actorLabel: ctx.actor.email, studyId: ctx.studyId, recordType: 'mapping_preset', recordId: p.id, ipAddress: contextOf(ctx.event).ipAddress, details: { name: p.name } },
-						t
-					);
+					await recordPreset(ctx.actor, ctx.ctx, ctx.studyId, p, t);
 				}
 			}
 			await record(
@@ -298,7 +280,7 @@ async function receiveFile(ctx: FileContext, file: Readable, info: busboy.FileIn
 					studyId: ctx.studyId,
 					recordType: 'trial',
 					recordId: trial.id,
-					ipAddress: contextOf(ctx.event).ipAddress,
+					ipAddress: ctx.ctx.ipAddress,
 					details: { sessionId: ctx.session.id, participant: ctx.participantCode, fileName, byteSize, sha256, frames, sampleHz: rec.sampleHz, mapped: !!mapping, presetId: presetId ?? null, warnings: rec.warnings.length }
 				},
 				t
@@ -324,8 +306,8 @@ async function receiveFile(ctx: FileContext, file: Readable, info: busboy.FileIn
 		if (err instanceof UniqueConstraintError) {
 			// the same file arrived twice at once: the other request stored it
 			outcome = { fileName, status: 409, message: `${fileName} was uploaded to this session at the same moment by another request; it was not stored twice.` };
-		} else if (isHttpError(err) && err.status === 409) {
-			outcome = { fileName, status: 409, message: err.body.message };
+		} else if (conflictMessage(err) !== null) {
+			outcome = { fileName, status: 409, message: conflictMessage(err)! };
 		} else throw err;
 	}
 	if (outcome.status !== 201) {
@@ -338,7 +320,7 @@ async function receiveFile(ctx: FileContext, file: Readable, info: busboy.FileIn
 			studyId: ctx.studyId,
 			recordType: 'session',
 			recordId: ctx.session.id,
-			ipAddress: contextOf(ctx.event).ipAddress,
+			ipAddress: ctx.ctx.ipAddress,
 			details: {
 				participant: ctx.participantCode,
 				fileName,
@@ -353,28 +335,43 @@ async function receiveFile(ctx: FileContext, file: Readable, info: busboy.FileIn
 	return outcome;
 }
 
+/** The conflict (409) a check inside a file's transaction refused it with, or null for any other failure. */
+function conflictMessage(err: unknown): string | null {
+	if (isDomainError(err)) return err.kind === 'conflict' ? err.message : null;
+	// a check not yet moved to domain errors throws an HTTP error object: read it without importing SvelteKit
+	const http = err as { status?: unknown; body?: { message?: unknown } } | null;
+	return http?.status === 409 && typeof http.body?.message === 'string' ? http.body.message : null;
+}
+
+const invalid = (message: string) => new DomainError('invalid', message);
+
+/** The request of an upload: which session, and the multipart body as it streams in with its content type. */
+export interface UploadRequest extends SessionRef {
+	body: ReadableStream<Uint8Array> | null;
+	contentType: string;
+}
+
 /**
  * Handles POST …/sessions/[sid]/trials. Request-level refusals (access, unknown session, locked session, no
- * consent, not multipart, malformed multipart, no file) are thrown as HTTP errors; each file gets its own outcome.
+ * consent, not multipart, malformed multipart, no file) are thrown as domain errors; each file gets its own outcome.
  * Fields (`mapping`, `presetId`, `presetName`, `fillGaps`, or the mapping table's fields) must come before the files.
  */
-export async function receiveTrials(event: RequestEvent, rawId: string, rawSid: string): Promise<{ studyId: string; sessionId: string; outcomes: UploadOutcome[] }> {
-	const { actor, study } = await guardStudy(event, 'trial.upload', rawId);
-	const body = event.request.body;
+export async function receiveTrials(actor: Actor | null, reqCtx: RequestContext, input: UploadRequest): Promise<{ studyId: string; sessionId: string; outcomes: UploadOutcome[] }> {
+	const { body, contentType } = input;
+	const { actor: a, study } = await studyFor(actor, reqCtx, 'trial.upload', input.studyId);
 	try {
-		const session = await sessionIn(study.id, rawSid);
+		const session = await sessionIn(study.id, input.sessionId);
 		refuseIfLocked(session.state);
-		if (!EDITABLE_STATES.includes(session.state)) error(409, `This session is ${session.state.replace('_', ' ')}; trials can be added only while it is a draft or returned.`);
-		const contentType = event.request.headers.get('content-type') ?? '';
-		if (!/^multipart\/form-data\b/i.test(contentType)) error(415, 'Send the recording as multipart/form-data: a form with a file field named "file".');
+		if (!EDITABLE_STATES.includes(session.state)) throw conflict(`This session is ${session.state.replace('_', ' ')}; trials can be added only while it is a draft or returned.`);
+		if (!/^multipart\/form-data\b/i.test(contentType)) throw new DomainError('unsupported', 'Send the recording as multipart/form-data: a form with a file field named "file".');
 		await requireValidConsent(session.participantId, 'upload');
 		let expected: ExpectedChannel[];
 		try {
-			expected = buildSessionModel(await participantBodyOf(session.participantId), session.setup as unknown as SessionSetup).expected;
+			expected = buildSessionModel(await participantBodyOf(session.participantId), session.setup).expected;
 		} catch (err) {
-			error(409, `The session's model cannot be built, so files cannot be checked against it: ${(err as Error).message}`);
+			throw conflict(`The session's model cannot be built, so files cannot be checked against it: ${(err as Error).message}`);
 		}
-		if (!body) error(400, 'The upload was empty: choose at least one recording file.');
+		if (!body) throw invalid('The upload was empty: choose at least one recording file.');
 		const participantCode = (await Participant.findByPk(session.participantId))?.code ?? '';
 		const limit = config().UPLOAD_LIMIT_BYTES;
 		let bb: busboy.Busboy;
@@ -385,10 +382,10 @@ export async function receiveTrials(event: RequestEvent, rawId: string, rawSid: 
 				highWaterMark: 256 * 1024
 			});
 		} catch (err) {
-			error(400, `The upload is not a well-formed multipart form (${(err as Error).message}).`);
+			throw invalid(`The upload is not a well-formed multipart form (${(err as Error).message}).`);
 		}
 		const fields: Fields = new Map();
-		const ctx: FileContext = { event, actor, studyId: study.id, session, participantCode, expected, fields, limit };
+		const ctx: FileContext = { ctx: reqCtx, actor: a, studyId: study.id, session, participantCode, expected, fields, limit };
 		const outcomes: UploadOutcome[] = [];
 		let tooMany = false;
 		let chain: Promise<void> = Promise.resolve();
@@ -422,11 +419,11 @@ export async function receiveTrials(event: RequestEvent, rawId: string, rawSid: 
 			source.unpipe(bb);
 			source.resume();
 			await chain;
-			error(400, `The upload is not a well-formed multipart form (${(err as Error).message}); nothing more was read.${outcomes.length ? ` ${outcomes.length} file(s) before the fault were handled.` : ''}`);
+			throw invalid(`The upload is not a well-formed multipart form (${(err as Error).message}); nothing more was read.${outcomes.length ? ` ${outcomes.length} file(s) before the fault were handled.` : ''}`);
 		}
 		await chain;
 		if (chainError) throw chainError;
-		if (outcomes.length === 0) error(400, 'No file was sent: choose at least one recording file (form field "file").');
+		if (outcomes.length === 0) throw invalid('No file was sent: choose at least one recording file (form field "file").');
 		if (tooMany) outcomes.push({ fileName: '(further files)', status: 400, message: `Only ${MAX_FILES_PER_REQUEST} files can be sent at once; the rest were not read. Send them again.` });
 		return { studyId: study.id, sessionId: session.id, outcomes };
 	} catch (err) {

@@ -1,11 +1,12 @@
 // One trial: its runs, residual analysis on request, and the form action that starts a run (also used by the session page).
-import { FormProblem } from '$lib/server/errors';
-import { statusOf } from '$lib/server/http/edge';
-import { fail, redirect } from '@sveltejs/kit';
+import { callerOf, edge, formEdge, formValues } from '$lib/server/http/edge';
+import { redirect } from '@sveltejs/kit';
 import { loadTrialPage, sessionOfTrial, startRun } from '$lib/server/runs/runs';
 import type { Actions, PageServerLoad, RequestEvent } from './$types';
 
-export const load: PageServerLoad = async (event) => loadTrialPage(event, event.params.id, event.params.tid);
+const trialRef = (event: RequestEvent | Parameters<PageServerLoad>[0]) => ({ studyId: event.params.id, trialId: event.params.tid });
+
+export const load: PageServerLoad = (event) => edge(event, () => loadTrialPage(...callerOf(event), { ...trialRef(event), query: event.url.searchParams }));
 
 /** Back to the session page the trial belongs to, at the trial's runs (or to this page when asked). */
 async function back(event: RequestEvent, form: FormData): Promise<never> {
@@ -17,12 +18,13 @@ async function back(event: RequestEvent, form: FormData): Promise<never> {
 export const actions: Actions = {
 	start: async (event) => {
 		const form = await event.request.formData();
-		try {
-			await startRun(event, event.params.id, event.params.tid, form);
-		} catch (err) {
-			if (err instanceof FormProblem) return fail(statusOf(err), { trialId: event.params.tid, values: Object.fromEntries([...form.entries()].map(([k, v]) => [k, String(v)])), errors: err.errors });
-			throw err;
-		}
-		return back(event, form);
+		return formEdge(
+			event,
+			async () => {
+				await startRun(...callerOf(event), { ...trialRef(event), options: form });
+				return back(event, form);
+			},
+			{ values: formValues(form), extra: { trialId: event.params.tid } }
+		);
 	}
 };
