@@ -151,8 +151,8 @@ export class StudyMember extends Model<InferAttributes<StudyMember>, InferCreati
 	declare userId: string;
 	declare role: StudyRole;
 	declare createdAt: CreationOptional<Date>;
-	/** Present when a query includes User or Study. */
-	declare User?: NonAttribute<User>;
+	/** Present when a query includes User (its model name is Auth.js' 'user') or Study. */
+	declare user?: NonAttribute<User>;
 	declare Study?: NonAttribute<Study>;
 }
 

@@ -73,7 +73,7 @@ export async function readStudy(who: Actor | null, ctx: RequestContext, rawStudy
 	if (!study) throw notFound();
 	const members = study.StudyMembers ?? [];
 	const team = members
-		.map((m) => ({ name: m.User?.name ?? m.User?.email ?? 'Unknown person', role: m.role, roleLabel: ROLE_LABELS[m.role], isYou: m.userId === actor.id }))
+		.map((m) => ({ name: m.user?.name ?? m.user?.email ?? 'Unknown person', role: m.role, roleLabel: ROLE_LABELS[m.role], isYou: m.userId === actor.id }))
 		.sort((a, b) => ROLE_ORDER[a.role] - ROLE_ORDER[b.role] || a.name.localeCompare(b.name));
 	const role = actor.roles.get(study.id)!;
 	return {
