@@ -1,6 +1,6 @@
 // Forward kinematics: every body's orientation and joint point, centres of mass, and the whole tree's centre of mass.
 import type { Model, Vec3 } from './model';
-import { relativeTransforms, worldRotations } from './rnea';
+import { relativeTransforms, worldRotations } from './joints';
 import { createWorkspace, type Workspace } from './workspace';
 
 /** Fills ws.Rw (body → world rotations) and ws.pw (world joint points) for the q at offset `o`. */

@@ -1,7 +1,8 @@
 // Joint-space mass matrix by the composite-rigid-body algorithm (Walker & Orin 1982), and the bias c(q, q̇).
 import { PRISMATIC, STANDARD_GRAVITY, type Model } from './model';
 import { placeBodies } from './kinematics';
-import { rneaFrame, type DynamicsOptions } from './rnea';
+import type { DynamicsOptions } from './rnea';
+import { rneaFrameFast } from './rnea-fast';
 import { createWorkspace, type Workspace } from './workspace';
 
 /**
@@ -136,7 +137,7 @@ export function biasInto(
 	ws: Workspace = createWorkspace(m),
 	o = 0
 ): Float64Array {
-	rneaFrame(m, ws, q, qd, null, o, opts.gravity ?? STANDARD_GRAVITY, opts.loads ?? null, c, 0);
+	rneaFrameFast(m, ws, q, qd, null, o, opts.gravity ?? STANDARD_GRAVITY, opts.loads ?? null, c, 0);
 	return c;
 }
 

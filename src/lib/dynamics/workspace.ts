@@ -22,16 +22,21 @@ export interface Workspace {
 	readonly cs: Float64Array;
 	/** Each body's origin in its parent's frame. */
 	readonly rp: Float64Array;
-	/** Body-frame angular velocity, angular acceleration, origin acceleration (gravity included as −g). */
+	/**
+	 * Body-frame angular velocity, angular acceleration, origin acceleration (gravity included as −g), 3(n + 1)
+	 * long: slot n is the ground (at rest, accelerating at −g), the parent of every root.
+	 */
 	readonly w: Float64Array;
 	readonly al: Float64Array;
 	readonly acc: Float64Array;
-	/** Sums of the children's joint loads, in the parent's frame. */
+	/** Sums of the children's joint loads, in the parent's frame (rnea-fast.ts; zero between frames). */
 	readonly fa: Float64Array;
 	readonly na: Float64Array;
 	/** Joint reaction force and torque on each body at its joint point, body frame. */
 	readonly f: Float64Array;
 	readonly t: Float64Array;
+	/** A few 3-vectors of scratch for the Newton–Euler passes. */
+	readonly tmp: Float64Array;
 	/** World orientation of each body (row-major, body → world), filled when world outputs or loads need it. */
 	readonly Rw: Float64Array;
 	readonly Q: Float64Array;
@@ -60,13 +65,14 @@ export function createWorkspace(model: Model): Workspace {
 		E: new Float64Array(9 * n),
 		cs: new Float64Array(2 * n),
 		rp: v3(),
-		w: v3(),
-		al: v3(),
-		acc: v3(),
+		w: new Float64Array(3 * n + 3),
+		al: new Float64Array(3 * n + 3),
+		acc: new Float64Array(3 * n + 3),
 		fa: v3(),
 		na: v3(),
 		f: v3(),
 		t: v3(),
+		tmp: new Float64Array(12),
 		Rw: new Float64Array(9 * n),
 		Q: new Float64Array(n),
 		loadF: v3(),
