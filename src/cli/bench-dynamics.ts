@@ -1,5 +1,6 @@
-// `npm run bench:dynamics`: throughput of batch inverse dynamics and cost of M(q) + Cholesky on a 26-DOF tree.
-import { compileModel, createWorkspace, inverseDynamicsBatch, massMatrixInto, choleskyInPlace } from '../lib/dynamics/index';
+// `npm run bench:dynamics`: throughput of batch inverse dynamics (and of the reference passes) and cost of M(q) + Cholesky on a 26-DOF tree.
+import { compileModel, createWorkspace, inverseDynamicsBatch, massMatrixInto, choleskyInPlace, STANDARD_GRAVITY } from '../lib/dynamics/index';
+import { rneaFrame } from '../lib/dynamics/rnea';
 import { scaleLimbs } from '../lib/anthropometry/index';
 
 const frames = Number(process.env.BENCH_FRAMES ?? 100_000);
@@ -69,14 +70,18 @@ const t = timeInterleaved(
 				massMatrixInto(model, q, M, ws, k * n);
 				choleskyInPlace(M, n);
 			}
+		},
+		'reference Newton–Euler passes (rnea.ts), Q only': () => {
+			for (let k = 0; k < frames; k++) rneaFrame(model, ws, q, qd, qdd, k * n, STANDARD_GRAVITY, null, Q, k * n);
 		}
 	},
 	9
 );
-const [tQ, tR, tM] = Object.values(t);
+const [tQ, tR, tM, tRef] = Object.values(t);
 const rate = (n * frames) / tQ;
 console.log('');
 console.log(`inverse dynamics: ${(rate / 1e6).toFixed(2)} million DOF·frames/s (target ≥ 10), ${((tQ / frames) * 1e6).toFixed(2)} µs per frame`);
 console.log(`with reactions:   ${((n * frames) / tR / 1e6).toFixed(2)} million DOF·frames/s`);
 console.log(`M(q) + Cholesky:  ${((tM / mFrames) * 1e6).toFixed(2)} µs per frame`);
+console.log(`reference passes: ${((n * frames) / tRef / 1e6).toFixed(2)} million DOF·frames/s (rnea.ts, the readable form; the batch runs rnea-fast.ts)`);
 console.log(`peak memory:      ${(peakRss / 2 ** 20).toFixed(0)} MiB resident (input and output arrays ${(((q.length * 3 + Q.length + force.length * 2) * 8) / 2 ** 20).toFixed(0)} MiB)`);
