@@ -1,25 +1,14 @@
 // Change a session's record and set-up while it is a draft or returned.
-import { callerOf, edge, formEdge } from '$lib/server/http/edge';
-import { redirect } from '@sveltejs/kit';
-import { editSession, editSessionForm, formValuesFrom } from '$lib/server/sessions/sessions';
+import { editSession, editSessionForm } from '$lib/server/sessions/sessions';
+import { sessionFormAction, sessionFormLoad } from '../../../session-form.server';
 import type { Actions, PageServerLoad } from './$types';
 
-export const load: PageServerLoad = (event) =>
-	edge(event, async () => ({
-		...(await editSessionForm(...callerOf(event), { studyId: event.params.id, sessionId: event.params.sid })),
-		today: new Date().toISOString().slice(0, 10)
-	}));
+export const load: PageServerLoad = (event) => sessionFormLoad(event, (actor, ctx) => editSessionForm(actor, ctx, { studyId: event.params.id, sessionId: event.params.sid }));
 
 export const actions: Actions = {
-	default: async (event) => {
-		const form = await event.request.formData();
-		return formEdge(
-			event,
-			async () => {
-				await editSession(...callerOf(event), { studyId: event.params.id, sessionId: event.params.sid, form });
-				redirect(303, `/studies/${event.params.id}/sessions/${event.params.sid}?saved=1`);
-			},
-			{ extra: { values: formValuesFrom(form) } }
-		);
-	}
+	default: (event) =>
+		sessionFormAction(event, async (actor, ctx, form) => {
+			await editSession(actor, ctx, { studyId: event.params.id, sessionId: event.params.sid, form });
+			return `/studies/${event.params.id}/sessions/${event.params.sid}?saved=1`;
+		})
 };
