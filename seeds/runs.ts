@@ -8,7 +8,8 @@ import { QueryTypes, type Sequelize, type Transaction } from 'sequelize';
 import { RawUpload, Run, Session, Trial } from '../src/lib/server/db/models';
 import { RAW_CHUNK_BYTES, writeRawChunk } from '../src/lib/server/trials/raw-store';
 import { participantBodyOf } from '../src/lib/server/sessions/sessions';
-import { softwareVersion, writeResults } from '../src/lib/server/runs/runs';
+import { softwareVersion } from '../src/lib/server/runs/runs';
+import { writeResults } from '../src/lib/server/runs/process';
 import { computeRun } from '../src/lib/server/runs/compute';
 import { buildSessionModel, sessionSetupSchema } from '../src/lib/processing/session-model';
 import { parseRecording } from '../src/lib/processing/recording';
@@ -62,7 +63,7 @@ export async function seedSessionsAndRuns(sequelize: Sequelize, transaction: Tra
 		const built = buildSessionModel(body, setup);
 
 		const session = await Session.create(
-			{ studyId: p.study_id, participantId: p.id, sessionOn: demo.sessionOn, operator: demo.operator, task: demo.task, conditions: demo.conditions, setup: setup as unknown as Record<string, unknown>, createdBy: user?.id ?? null },
+			{ studyId: p.study_id, participantId: p.id, sessionOn: demo.sessionOn, operator: demo.operator, task: demo.task, conditions: demo.conditions, setup, createdBy: user?.id ?? null },
 			{ transaction }
 		);
 		const fileName = `${demo.recording}.csv`;
@@ -91,7 +92,7 @@ export async function seedSessionsAndRuns(sequelize: Sequelize, transaction: Tra
 		);
 		const options = runOptionsSchema.parse({});
 		const run = await Run.create(
-			{ trialId: trial.id, state: 'running', attempts: 1, options: options as unknown as Record<string, unknown>, rawSha256: sha256, softwareVersion: softwareVersion(), createdBy: user?.id ?? null, startedAt: new Date() },
+			{ trialId: trial.id, state: 'running', attempts: 1, options, rawSha256: sha256, softwareVersion: softwareVersion(), createdBy: user?.id ?? null, startedAt: new Date() },
 			{ transaction }
 		);
 		await writeResults(run.id, computeRun(body, setup, rec, options), transaction);

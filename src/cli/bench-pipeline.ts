@@ -8,7 +8,7 @@ import { parseRecording } from '../lib/processing/recording';
 import { buildSessionModel } from '../lib/processing/session-model';
 import { runOptionsSchema, runPipeline } from '../lib/processing/pipeline';
 import { modelRecord, seriesRows, type ComputedRun } from '../lib/server/runs/compute';
-import { writeResults } from '../lib/server/runs/runs';
+import { writeResults } from '../lib/server/runs/process';
 import { closeDb, db } from '../lib/server/db/index';
 import { startCluster } from './lib/postgres';
 import { freePort } from './lib/proc';

@@ -8,6 +8,7 @@ import {
 	type NonAttribute,
 	type Sequelize
 } from 'sequelize';
+import type { RunOptions, SummaryRow } from '../../processing/pipeline';
 import { sessionSetupSchema, type SessionSetup } from '../../processing/session-model';
 import { columnMappingSchema, type ColumnMapping } from '../../processing/recording';
 
@@ -364,7 +365,8 @@ export class Run extends Model<InferAttributes<Run>, InferCreationAttributes<Run
 	declare state: CreationOptional<RunState>;
 	declare progress: CreationOptional<number>;
 	declare stage: CreationOptional<string | null>;
-	declare options: CreationOptional<Record<string, unknown>>;
+	/** The run's options as validated when it was started (read back through storedRunOptions for processing). */
+	declare options: CreationOptional<RunOptions>;
 	declare model: CreationOptional<Record<string, unknown> | null>;
 	declare rawSha256: string;
 	declare softwareVersion: string;
@@ -374,13 +376,16 @@ export class Run extends Model<InferAttributes<Run>, InferCreationAttributes<Run
 	declare createdAt: CreationOptional<Date>;
 	declare startedAt: CreationOptional<Date | null>;
 	declare finishedAt: CreationOptional<Date | null>;
-	declare summary: CreationOptional<unknown | null>;
+	/** Peaks, range and mean per DOF (SummaryRow of the pipeline; read through summaryRows, which tolerates older shapes). */
+	declare summary: CreationOptional<SummaryRow[] | null>;
 	/** Where results are not reliable near the trial's ends (EdgeZone of the pipeline); null for runs made before edge zones. */
 	declare edgeZone: CreationOptional<Record<string, unknown> | null>;
 	declare flaggedReason: CreationOptional<string | null>;
 	declare flagDecision: CreationOptional<string | null>;
 	declare flagDecidedBy: CreationOptional<string | null>;
 	declare flagDecidedAt: CreationOptional<Date | null>;
+	/** The queue job processing the run now (null before job ids were kept: the first job's id is the run's id). */
+	declare jobId: CreationOptional<string | null>;
 }
 
 /** One result vector of a run (Float64 little-endian, `components` values per sample, interleaved). */
@@ -503,7 +508,8 @@ export function initSessionModels(sequelize: Sequelize): void {
 			flaggedReason: { type: DataTypes.TEXT, allowNull: true },
 			flagDecision: { type: DataTypes.TEXT, allowNull: true },
 			flagDecidedBy: { type: DataTypes.UUID, allowNull: true },
-			flagDecidedAt: { type: DataTypes.DATE, allowNull: true }
+			flagDecidedAt: { type: DataTypes.DATE, allowNull: true },
+			jobId: { type: DataTypes.UUID, allowNull: true }
 		},
 		{ sequelize, tableName: 'runs', modelName: 'Run' }
 	);

@@ -58,8 +58,11 @@ export async function enqueueMail(message: MailMessage, dedupeKey?: string): Pro
 	return (await queue()).send(QUEUES.mailSend, m, dedupeKey ? { id: jobIdFor(dedupeKey) } : {});
 }
 
+/** The id of a run's processing job: the run's id for its first, one derived from the key for a person's retry. */
+export const runJobId = (runId: string, jobKey?: string): string => (jobKey ? jobIdFor(jobKey) : runId);
+
 /**
- * Queues the processing of a run. `jobId` defaults to the run id, so a second insert for the same run is ignored
+ * Queues the processing of a run. The job id defaults to the run id, so a second insert for the same run is ignored
  * (returns null); a person's retry passes a fresh key. A job whose worker vanished (killed, machine lost) is
  * handed to another worker once it has been active RUN_EXPIRE_SECONDS, which must exceed the longest run.
  */
@@ -68,7 +71,7 @@ export async function enqueueRun(runId: string, jobKey?: string): Promise<string
 		QUEUES.runProcess,
 		{ runId },
 		{
-			id: jobKey ? jobIdFor(jobKey) : runId,
+			id: runJobId(runId, jobKey),
 			retryLimit: RUN_RETRY_LIMIT,
 			retryDelay: 2,
 			retryBackoff: true,
@@ -76,6 +79,12 @@ export async function enqueueRun(runId: string, jobKey?: string): Promise<string
 			deadLetter: QUEUES.runAbandoned
 		}
 	);
+}
+
+/** Whether the run-process job with this id is still waiting, waiting to be retried, or being worked on. */
+export async function pendingRunJob(jobId: string): Promise<boolean> {
+	const job = await (await queue()).getJobById(QUEUES.runProcess, jobId);
+	return job !== null && (job.state === 'created' || job.state === 'retry' || job.state === 'active');
 }
 
 export async function stopQueue(): Promise<void> {

@@ -2,7 +2,7 @@
 import type PgBoss from 'pg-boss';
 import { queue, QUEUES } from './queue';
 import { sendMail, mailMessage } from '../mail/index';
-import { abandonRun, processRun } from '../runs/runs';
+import { abandonRun, processRun } from '../runs/process';
 import { db } from '../db/index';
 
 const runJob = (data: unknown): string => {

@@ -131,7 +131,6 @@ export function assertStorable(computed: ComputedRun): void {
 		}
 	}
 	// (the edge zone is stored with the run; read loosely, so this check does not depend on its exact shape)
-	const zone = (computed as unknown as { edgeZone?: Record<string, unknown> }).edgeZone;
-	for (const [k, v] of Object.entries(zone ?? {}))
+	for (const [k, v] of Object.entries(computed.edgeZone ?? {}))
 		if (typeof v === 'number' && !Number.isFinite(v)) refuse(`the edge zone's ${k}`, v, { quantity: 'edge zone', dof: k, sample: -1, time: NaN });
 }

@@ -1,37 +1,43 @@
-// Processing runs of trials: starting one (guarded, consent-checked, queued), the worker's processing with progress
-// and all-or-nothing results, retries, and reading results for the API and the pages.
-import { FormProblem } from '../errors';
-import { contextOf } from '../http/edge';
-import type { RequestEvent } from '@sveltejs/kit';
-import { error, isHttpError } from '@sveltejs/kit';
+// Processing runs of trials as people see them: starting one (guarded, consent-checked, queued), retries, and
+// reading results for the API and the pages. The worker's side is in process.ts. Services take (actor, ctx, input)
+// and throw domain errors; no SvelteKit here.
 import { execFileSync } from 'node:child_process';
 import { randomUUID } from 'node:crypto';
 import fs from 'node:fs';
 import path from 'node:path';
-import { Worker } from 'node:worker_threads';
-import { QueryTypes, type Transaction } from 'sequelize';
+import { fn, type Transaction } from 'sequelize';
 import { z } from 'zod';
 import { db } from '../db/index';
-import { Run, RunSeries, type RunState, type SessionState } from '../db/models';
-import { participantBodyOf } from '../sessions/sessions';
+import { Run, RunSeries } from '../db/models';
+import { DomainError, FormProblem, conflict, notFound } from '../errors';
 import { record } from '../audit/record';
 import { requireValidConsent } from '../consent/check';
-import { enqueueRun } from '../jobs/queue';
-import { readRaw } from '../trials/raw-store';
+import { enqueueRun, runJobId } from '../jobs/queue';
 import { assertSessionUnlocked, refuseIfLocked } from '../sessions/lock';
-import { isUuid } from '../studies/studies';
-import { guardStudy } from '../studies/records';
-import { may } from '../access/guard';
+import { isUuid, may, studyFor, type Actor, type StudyAction } from '../access/guard';
+import type { RequestContext } from '../access/context';
 import { component, decodeFloat64 } from './results-codec';
+import { participantBody, readRecording } from './process';
+import { latestDoneRunPerTrial, runRowById, runRowsOfSession, sessionIdOfTrial, trialContextInStudy, trialContextOfRun, type RunRow, type TrialContext } from './queries';
 import { reduceForPlot } from '../../processing/reduce';
-import { assertStorable, computeRun, type ComputedRun, type SeriesRow } from './compute';
-import type { RunThreadInput, RunThreadMessage } from '../jobs/run-thread-types';
-import { buildSessionModel, sessionSetupSchema, type SessionSetup } from '../../processing/session-model';
-import { runOptionsSchema, storedRunOptions, type RunOptions, type SummaryRow, type SummaryStats } from '../../processing/pipeline';
+import { buildSessionModel, sessionSetupSchema } from '../../processing/session-model';
+import { runOptionsSchema, type RunOptions, type SummaryRow, type SummaryStats } from '../../processing/pipeline';
 import { edgeZoneView, type EdgeZoneView } from '../../processing/zone-exclusion';
-import { parseRecording, columnMappingSchema, type Recording, type Problem } from '../../processing/recording';
+import type { Recording } from '../../processing/recording';
 import { residualAnalysis } from '../../processing/signal';
-import type { ParticipantBody } from '../../anthropometry/scale';
+import {
+	SERIES_QUANTITIES,
+	type ChannelResidual,
+	type Curve,
+	type ResultQuantity,
+	type RunView,
+	type SeriesAnswer,
+	type SummaryAnswer,
+	type SummaryView,
+	type TrialResiduals
+} from '../../types/runs';
+
+export { SERIES_QUANTITIES, type ChannelResidual, type Curve, type ResultQuantity, type RunView, type SeriesAnswer, type SummaryView };
 
 // ---------------------------------------------------------------------------------------------- provenance
 
@@ -62,49 +68,6 @@ export function softwareVersion(): string {
 
 // ---------------------------------------------------------------------------------------------- views
 
-export interface RunView {
-	id: string;
-	trialId: string;
-	/** 1-based, in order of creation within the trial. */
-	number: number;
-	state: RunState;
-	progress: number;
-	stage: string | null;
-	options: RunOptions;
-	error: string | null;
-	attempts: number;
-	createdAt: string;
-	startedAt: string | null;
-	finishedAt: string | null;
-	rawSha256: string;
-	softwareVersion: string;
-	flaggedReason: string | null;
-	flagDecision: string | null;
-}
-
-interface RunRow {
-	id: string;
-	trial_id: string;
-	state: RunState;
-	progress: number;
-	stage: string | null;
-	options: RunOptions;
-	error: string | null;
-	attempts: number;
-	created_at: Date;
-	started_at: Date | null;
-	finished_at: Date | null;
-	raw_sha256: string;
-	software_version: string;
-	flagged_reason: string | null;
-	flag_decision: string | null;
-	number: string | number;
-}
-
-const RUN_COLUMNS = `r.id, r.trial_id, r.state, r.progress, r.stage, r.options, r.error, r.attempts, r.created_at, r.started_at, r.finished_at,
-	r.raw_sha256, r.software_version, r.flagged_reason, r.flag_decision,
-	(SELECT count(*) FROM runs o WHERE o.trial_id = r.trial_id AND (o.created_at, o.id) <= (r.created_at, r.id)) AS number`;
-
 const iso = (d: Date | null) => (d ? new Date(d).toISOString() : null);
 const viewOf = (r: RunRow): RunView => ({
 	id: r.id,
@@ -127,75 +90,41 @@ const viewOf = (r: RunRow): RunView => ({
 
 /** Every run of the session's trials, oldest first (the caller has checked access to the session). */
 export async function listRunsForSession(sessionId: string): Promise<RunView[]> {
-	const rows = await db().query<RunRow>(
-		`SELECT ${RUN_COLUMNS} FROM runs r JOIN trials t ON t.id = r.trial_id WHERE t.session_id = :sessionId ORDER BY r.created_at, r.id`,
-		{ replacements: { sessionId }, type: QueryTypes.SELECT }
-	);
-	return rows.map(viewOf);
+	return (await runRowsOfSession(sessionId)).map(viewOf);
 }
 
-async function runRow(runId: string, transaction?: Transaction): Promise<RunView | null> {
-	const rows = await db().query<RunRow>(`SELECT ${RUN_COLUMNS} FROM runs r WHERE r.id = :runId`, { replacements: { runId }, type: QueryTypes.SELECT, transaction });
-	return rows[0] ? viewOf(rows[0]) : null;
+async function runView(runId: string): Promise<RunView> {
+	const row = await runRowById(runId);
+	if (!row) throw notFound();
+	return viewOf(row);
 }
 
 // ---------------------------------------------------------------------------------------------- records in a study
 
-interface TrialContext {
-	trialId: string;
-	sessionId: string;
-	studyId: string;
-	participantId: string;
-	participantCode: string;
-	rawUploadId: string;
-	fileName: string;
-	sha256: string;
-	mapping: unknown;
-	setup: unknown;
-	sessionState: string;
-	sampleHz: number;
-	channels: string[];
-}
-
-const TRIAL_CONTEXT = `SELECT t.id AS "trialId", s.id AS "sessionId", s.study_id AS "studyId", s.participant_id AS "participantId", p.code AS "participantCode",
-	t.raw_upload_id AS "rawUploadId", t.file_name AS "fileName", t.sha256, t.mapping, s.setup, s.state AS "sessionState", t.sample_hz AS "sampleHz", t.channels
-	FROM trials t JOIN sessions s ON s.id = t.session_id JOIN participants p ON p.id = s.participant_id`;
-
-/** The trial of the study in the URL; another study's trial, or a malformed id, answers 404. */
+/** The trial of the study in the URL; another study's trial, or a malformed id, is not found. */
 async function trialIn(studyId: string, rawTrialId: string): Promise<TrialContext> {
-	if (!isUuid(rawTrialId)) error(404, 'Not found');
-	const rows = await db().query<TrialContext>(`${TRIAL_CONTEXT} WHERE t.id = :trialId AND s.study_id = :studyId`, {
-		replacements: { trialId: rawTrialId.toLowerCase(), studyId },
-		type: QueryTypes.SELECT
-	});
-	if (!rows[0]) error(404, 'Not found');
-	return rows[0];
+	const trial = isUuid(rawTrialId) ? await trialContextInStudy(rawTrialId.toLowerCase(), studyId) : null;
+	if (!trial) throw notFound();
+	return trial;
 }
 
-async function trialOfRun(runId: string): Promise<(TrialContext & { runId: string }) | null> {
-	const rows = await db().query<TrialContext & { runId: string }>(`${TRIAL_CONTEXT.replace('SELECT ', 'SELECT r.id AS "runId", ')} JOIN runs r ON r.trial_id = t.id WHERE r.id = :runId`, {
-		replacements: { runId },
-		type: QueryTypes.SELECT
-	});
-	return rows[0] ?? null;
-}
-
-/** The run of the study in the URL, with its trial; 404 otherwise. */
+/** The run of the study in the URL, with its trial; not found otherwise. */
 export async function runIn(studyId: string, rawRunId: string): Promise<{ run: RunView; trial: TrialContext }> {
-	if (!isUuid(rawRunId)) error(404, 'Not found');
-	const trial = await trialOfRun(rawRunId.toLowerCase());
-	if (!trial || trial.studyId !== studyId) error(404, 'Not found');
-	const run = (await runRow(trial.runId))!;
-	return { run, trial };
+	const trial = isUuid(rawRunId) ? await trialContextOfRun(rawRunId.toLowerCase()) : null;
+	if (!trial || trial.studyId !== studyId) throw notFound();
+	return { run: await runView(trial.runId), trial };
 }
 
-/** The participant's body for scaling (one rule with the session page: latest measured length per segment). */
-async function participantBody(participantId: string): Promise<ParticipantBody> {
-	try {
-		return await participantBodyOf(participantId);
-	} catch (err) {
-		throw new RunFailure((err as Error).message);
-	}
+/** Guards the action on the study and finds the run in it. */
+async function guardedRun(actor: Actor | null, ctx: RequestContext, action: StudyAction, input: { studyId: string; runId: string }) {
+	const { actor: a, study } = await studyFor(actor, ctx, action, input.studyId);
+	return { actor: a, study, ...(await runIn(study.id, input.runId)) };
+}
+
+/** Guards the action on the study and finds the trial in it. */
+async function guardedTrial(actor: Actor | null, ctx: RequestContext, action: StudyAction, input: { studyId: string; trialId: string }) {
+	const { actor: a, study } = await studyFor(actor, ctx, action, input.studyId);
+	return { actor: a, study, trial: await trialIn(study.id, input.trialId) };
 }
 
 // ---------------------------------------------------------------------------------------------- options from forms and JSON
@@ -250,66 +179,13 @@ export function runOptionsFromForm(form: FormData): RunOptions {
 	});
 }
 
-// ---------------------------------------------------------------------------------------------- starting and retrying
-
-/** Puts a queued run on the queue; when that fails the run is marked failed with the reason (never left queued). */
-async function queueOrFail(runId: string, jobKey?: string): Promise<void> {
-	try {
-		await enqueueRun(runId, jobKey);
-	} catch (err) {
-		await db().query(`UPDATE runs SET state = 'failed', error = :error, finished_at = now() WHERE id = :runId AND state = 'queued'`, {
-			replacements: { runId, error: `The run could not be queued for processing (${(err as Error).message}). Retry it once the job queue is back.` }
-		});
-	}
-}
-
-function refuseLockedSession(trial: TrialContext): void {
-	refuseIfLocked(trial.sessionState);
-}
-
-/**
- * Starts a run of the trial: checks access, the trial, the options (a form, or a function reading the JSON body,
- * called only after the access check), the session lock and consent; records the run, then queues it.
- */
-export async function startRun(event: RequestEvent, rawStudyId: string, rawTrialId: string, options: FormData | (() => Promise<unknown>) | Record<string, unknown>): Promise<RunView> {
-	const { actor, study } = await guardStudy(event, 'run.start', rawStudyId);
-	const trial = await trialIn(study.id, rawTrialId);
-	refuseLockedSession(trial);
-	const opts = options instanceof FormData ? runOptionsFromForm(options) : parseRunOptions(typeof options === 'function' ? await options() : options);
-	const runId = await db().transaction(async (transaction) => {
-		// again inside the transaction: an approval signed meanwhile wins
-		await assertSessionUnlocked(trial.sessionId, transaction);
-		await requireValidConsent(trial.participantId, 'run', transaction);
-		const run = await Run.create(
-			{ trialId: trial.trialId, state: 'queued', options: opts as unknown as Record<string, unknown>, rawSha256: trial.sha256, softwareVersion: softwareVersion(), createdBy: actor.id },
-			{ transaction }
-		);
-		await record(
-			{
-				action: 'run.started',
-				actorUserId: actor.id,
-				actorLabel: actor.email,
-				studyId: study.id,
-				recordType: 'run',
-				recordId: run.id,
-				ipAddress: contextOf(event).ipAddress,
-				details: { trialId: trial.trialId, sessionId: trial.sessionId, options: opts }
-			},
-			transaction
-		);
-		return run.id;
-	});
-	await queueOrFail(runId);
-	return (await runRow(runId))!;
-}
-
-/** Reads a JSON request body for startRun; anything else is refused with 400 (415 for another content type). */
-export function jsonBody(event: RequestEvent): () => Promise<unknown> {
+/** Reads a JSON request body (for startRun, after the access check); anything else is refused (415 for another content type). */
+export function jsonBody(request: Request): () => Promise<unknown> {
 	return async () => {
-		const type = event.request.headers.get('content-type') ?? '';
+		const type = request.headers.get('content-type') ?? '';
 		if (!type.includes('application/json')) throw new FormProblem({ form: 'Send the run options as JSON (content-type: application/json), e.g. {"cutoffHz": 6}.' }, 'unsupported');
 		try {
-			const text = await event.request.text();
+			const text = await request.text();
 			return text.trim() ? JSON.parse(text) : {};
 		} catch {
 			throw new FormProblem({ form: 'The request body is not valid JSON.' });
@@ -317,67 +193,92 @@ export function jsonBody(event: RequestEvent): () => Promise<unknown> {
 	};
 }
 
+// ---------------------------------------------------------------------------------------------- starting and retrying
+
+/** The audit event of a person's action on a run of the study (inside the change's transaction). */
+export function recordRunAction(
+	actor: Actor,
+	ctx: RequestContext,
+	e: { action: string; studyId: string; runId: string; details: Record<string, unknown> },
+	transaction: Transaction
+): Promise<unknown> {
+	return record(
+		{ action: e.action, actorUserId: actor.id, actorLabel: actor.email, studyId: e.studyId, recordType: 'run', recordId: e.runId, ipAddress: ctx.ipAddress, details: e.details },
+		transaction
+	);
+}
+
+/** Puts a queued run on the queue; when that fails the run is marked failed with the reason (never left queued). */
+async function queueOrFail(runId: string, jobKey?: string): Promise<void> {
+	try {
+		await Run.update({ jobId: runJobId(runId, jobKey) }, { where: { id: runId } });
+		await enqueueRun(runId, jobKey);
+	} catch (err) {
+		const error = `The run could not be queued for processing (${(err as Error).message}). Retry it once the job queue is back.`;
+		await Run.update({ state: 'failed', error, finishedAt: fn('now') }, { where: { id: runId, state: 'queued' } });
+	}
+}
+
+/** Re-checks, inside the change's transaction, what a start or a retry needs: an unlocked session (an approval signed meanwhile wins) and valid consent. */
+async function mayProcess(trial: TrialContext, transaction: Transaction): Promise<void> {
+	await assertSessionUnlocked(trial.sessionId, transaction);
+	await requireValidConsent(trial.participantId, 'run', transaction);
+}
+
+export interface StartRunInput {
+	studyId: string;
+	trialId: string;
+	/** The "New run" form, a function reading the JSON body (called only after the access check), or the options object. */
+	options: FormData | (() => Promise<unknown>) | Record<string, unknown>;
+}
+
+/** Starts a run of the trial: checks access, the trial, the options, the session lock and consent; records the run, then queues it. */
+export async function startRun(actor: Actor | null, ctx: RequestContext, input: StartRunInput): Promise<RunView> {
+	const { actor: a, study, trial } = await guardedTrial(actor, ctx, 'run.start', input);
+	refuseIfLocked(trial.sessionState);
+	const options = input.options;
+	const opts = options instanceof FormData ? runOptionsFromForm(options) : parseRunOptions(typeof options === 'function' ? await options() : options);
+	const runId = await db().transaction(async (transaction) => {
+		await mayProcess(trial, transaction);
+		const run = await Run.create({ trialId: trial.trialId, state: 'queued', options: opts, rawSha256: trial.sha256, softwareVersion: softwareVersion(), createdBy: a.id }, { transaction });
+		await recordRunAction(a, ctx, { action: 'run.started', studyId: study.id, runId: run.id, details: { trialId: trial.trialId, sessionId: trial.sessionId, options: opts } }, transaction);
+		return run.id;
+	});
+	await queueOrFail(runId);
+	return runView(runId);
+}
+
 /** A person's retry of a failed run: the same run row goes back to the queue (its earlier error is cleared). */
-export async function retryRun(event: RequestEvent, rawStudyId: string, rawRunId: string): Promise<RunView> {
-	const { actor, study } = await guardStudy(event, 'run.start', rawStudyId);
-	const { run, trial } = await runIn(study.id, rawRunId);
-	refuseLockedSession(trial);
-	if (run.state !== 'failed') error(409, `Only a failed run can be retried; run ${run.number} is ${run.state}.`);
+export async function retryRun(actor: Actor | null, ctx: RequestContext, input: { studyId: string; runId: string }): Promise<RunView> {
+	const { actor: a, study, run, trial } = await guardedRun(actor, ctx, 'run.start', input);
+	refuseIfLocked(trial.sessionState);
+	if (run.state !== 'failed') throw conflict(`Only a failed run can be retried; run ${run.number} is ${run.state}.`);
 	const ok = await db().transaction(async (transaction) => {
-		await assertSessionUnlocked(trial.sessionId, transaction);
-		await requireValidConsent(trial.participantId, 'run', transaction);
-		const [rows] = (await db().query(
-			`UPDATE runs SET state = 'queued', error = NULL, progress = 0, stage = NULL, started_at = NULL, finished_at = NULL WHERE id = :id AND state = 'failed' RETURNING id`,
-			{ replacements: { id: run.id }, transaction }
-		)) as [unknown[], unknown];
-		if (!rows.length) return false;
-		await record(
-			{ action: 'run.retried', actorUserId: actor.id, actorLabel: actor.email, studyId: study.id, recordType: 'run', recordId: run.id, ipAddress: contextOf(event).ipAddress, details: { previousError: run.error, attempts: run.attempts } },
-			transaction
+		await mayProcess(trial, transaction);
+		const [changed] = await Run.update(
+			{ state: 'queued', error: null, progress: 0, stage: null, startedAt: null, finishedAt: null },
+			{ where: { id: run.id, state: 'failed' }, transaction }
 		);
+		if (!changed) return false;
+		await recordRunAction(a, ctx, { action: 'run.retried', studyId: study.id, runId: run.id, details: { previousError: run.error, attempts: run.attempts } }, transaction);
 		return true;
 	});
 	// two people clicking at once: the second finds the run already queued again
-	if (!ok) error(409, `Only a failed run can be retried; run ${run.number} is already queued again.`);
+	if (!ok) throw conflict(`Only a failed run can be retried; run ${run.number} is already queued again.`);
 	await queueOrFail(run.id, `run ${run.id} retry ${randomUUID()}`);
-	return (await runRow(run.id))!;
+	return runView(run.id);
 }
 
 // ---------------------------------------------------------------------------------------------- reading results
 
-export async function readRun(event: RequestEvent, rawStudyId: string, rawRunId: string): Promise<RunView> {
-	const { study } = await guardStudy(event, 'study.read', rawStudyId);
-	return (await runIn(study.id, rawRunId)).run;
+type RunRef = { studyId: string; runId: string };
+
+/** GET …/runs/[rid]: one run's state and progress. */
+export async function readRun(actor: Actor | null, ctx: RequestContext, input: RunRef): Promise<RunView> {
+	return (await guardedRun(actor, ctx, 'study.read', input)).run;
 }
 
-export const SERIES_QUANTITIES = ['angle', 'velocity', 'acceleration', 'moment', 'moment_per_kg', 'power', 'reaction_force'] as const;
-export type ResultQuantity = (typeof SERIES_QUANTITIES)[number];
-
-export interface Curve {
-	name: string;
-	quantity: ResultQuantity;
-	unit: string;
-	/** x, y or z for reaction forces (ground axes), absent for one-component series. */
-	component?: 'x' | 'y' | 'z';
-	/** The sign rule of the DOF (what a positive value means), from the run's model record. */
-	positive: string | null;
-	/** Time (s) and value; null where the value is not a number (a gap). */
-	t: number[];
-	v: (number | null)[];
-}
-
-export interface SeriesAnswer {
-	runId: string;
-	quantity: ResultQuantity;
-	/** Samples per curve before reduction. */
-	samples: number;
-	/** Points asked for (null: every sample). */
-	points: number | null;
-	curves: Curve[];
-	bodyMassKg: number | null;
-	/** Where the run's results are not reliable near its ends (computed: false, all zero, for runs made before edge zones). */
-	edgeZone: EdgeZoneView;
-}
+const invalid = (issues: { message: string }[]) => new DomainError('invalid', issues.map((i) => i.message).join('; '));
 
 const seriesQuery = z.object({
 	quantity: z.enum(SERIES_QUANTITIES, { error: `quantity must be one of ${SERIES_QUANTITIES.join(', ')}` }).default('moment'),
@@ -386,12 +287,21 @@ const seriesQuery = z.object({
 });
 
 function requireDone(run: RunView): void {
-	if (run.state !== 'done') error(409, `Run ${run.number} has no results yet (state: ${run.state}).`);
+	if (run.state !== 'done') throw conflict(`Run ${run.number} has no results yet (state: ${run.state}).`);
 }
 
-interface StoredModel {
-	dofs?: { name: string; positive: string; base?: boolean }[];
-	bodyMassKg?: number;
+/** What the results read of a run's stored model record (the rest is shown as stored). */
+const storedModelSchema = z
+	.object({
+		dofs: z.array(z.looseObject({ name: z.string(), positive: z.string().nullish() })).optional().catch(undefined),
+		bodyMassKg: z.number().optional().catch(undefined)
+	})
+	.catch({});
+
+/** A done run's stored summary, model and edge zone, parsed once. */
+async function storedResultsOf(runId: string) {
+	const row = await Run.findByPk(runId, { attributes: ['summary', 'model', 'edgeZone'] });
+	return { summary: row?.summary, model: row?.model ?? null, parsedModel: storedModelSchema.parse(row?.model ?? {}), edgeZone: edgeZoneView(row?.edgeZone) };
 }
 
 export interface StoredCurve {
@@ -411,17 +321,15 @@ export async function storedSeries(
 	runId: string,
 	q: { quantity: ResultQuantity; dof?: string }
 ): Promise<{ time: Float64Array; curves: StoredCurve[]; bodyMassKg: number | null; edgeZone: EdgeZoneView }> {
-	db();
 	const rows = await RunSeries.findAll({
 		where: { runId, quantity: ['time', q.quantity], ...(q.dof ? { name: ['time', q.dof] } : {}) },
 		order: [['name', 'ASC']]
 	});
-	const run = await Run.findByPk(runId, { attributes: ['model', 'edgeZone'] });
-	const model = (run?.model ?? {}) as StoredModel;
+	const { parsedModel: model, edgeZone } = await storedResultsOf(runId);
 	const positive = new Map((model.dofs ?? []).map((d) => [d.name, d.positive]));
 	const order = new Map((model.dofs ?? []).map((d, i) => [d.name, i]));
 	const timeRow = rows.find((r) => r.quantity === 'time');
-	if (!timeRow) error(409, 'This run has no stored time vector.');
+	if (!timeRow) throw conflict('This run has no stored time vector.');
 	const curves: StoredCurve[] = [];
 	const data = rows.filter((r) => r.quantity !== 'time').sort((a, b) => (order.get(a.name) ?? 1e9) - (order.get(b.name) ?? 1e9) || a.name.localeCompare(b.name));
 	for (const r of data) {
@@ -436,12 +344,11 @@ export async function storedSeries(
 			});
 		}
 	}
-	return { time: decodeFloat64(timeRow.data), curves, bodyMassKg: model.bodyMassKg ?? null, edgeZone: edgeZoneView(run?.edgeZone) };
+	return { time: decodeFloat64(timeRow.data), curves, bodyMassKg: model.bodyMassKg ?? null, edgeZone };
 }
 
 /** The time axis of a run (s), or null when it has none. */
 export async function timeOfRun(runId: string): Promise<Float64Array | null> {
-	db();
 	const row = await RunSeries.findOne({ where: { runId, quantity: 'time' } });
 	return row ? decodeFloat64(row.data) : null;
 }
@@ -456,17 +363,16 @@ export async function seriesOfRun(runId: string, q: { quantity: ResultQuantity; 
 		const red = q.points ? reduceForPlot(time, values, q.points) : { t: Array.from(time), v: Array.from(values) };
 		return { ...c, quantity: q.quantity, t: red.t, v: red.v.map((x) => (Number.isFinite(x) ? x : null)) };
 	});
-	if (q.dof && !curves.length) error(404, `This run has no ${q.quantity} series named ${q.dof}.`);
+	if (q.dof && !curves.length) throw notFound(`This run has no ${q.quantity} series named ${q.dof}.`);
 	return { runId, quantity: q.quantity, samples: time.length, points: q.points ?? null, curves, bodyMassKg, edgeZone };
 }
 
-/** GET …/series: query parameters validated (400 naming the parameter), run in study, run done. */
-export async function loadSeries(event: RequestEvent, rawStudyId: string, rawRunId: string): Promise<SeriesAnswer> {
-	const { study } = await guardStudy(event, 'study.read', rawStudyId);
-	const { run } = await runIn(study.id, rawRunId);
-	const sp = event.url.searchParams;
+/** GET …/series: query parameters validated (invalid, naming the parameter), run in study, run done. */
+export async function loadSeries(actor: Actor | null, ctx: RequestContext, input: RunRef & { query: URLSearchParams }): Promise<SeriesAnswer> {
+	const { run } = await guardedRun(actor, ctx, 'study.read', input);
+	const sp = input.query;
 	const parsed = seriesQuery.safeParse({ quantity: sp.get('quantity') ?? undefined, dof: sp.get('dof') ?? undefined, points: sp.get('points') ?? undefined });
-	if (!parsed.success) error(400, parsed.error.issues.map((i) => i.message).join('; '));
+	if (!parsed.success) throw invalid(parsed.error.issues);
 	requireDone(run);
 	return seriesOfRun(run.id, parsed.data);
 }
@@ -482,27 +388,12 @@ export function includeEdgeZonesOf(sp: URLSearchParams): boolean {
 	return v === '1' || v === 'true';
 }
 
-/** The switch as the JSON API reads it: 1/true or 0/false (absent = 0); anything else is refused with 400. */
+/** The switch as the JSON API reads it: 1/true or 0/false (absent = 0); anything else is refused as invalid. */
 function includeEdgeZonesStrict(sp: URLSearchParams): boolean {
 	const v = sp.get(INCLUDE_EDGE_ZONES);
 	if (v === null || v === '0' || v === 'false') return false;
 	if (v === '1' || v === 'true') return true;
-	error(400, `${INCLUDE_EDGE_ZONES} must be 1 (include the edge zones) or 0 (leave them out, the default); got “${v.slice(0, 40)}”.`);
-}
-
-/** One row of a run's summary as pages and the API show it: the figures of the chosen scope (null: no samples). */
-export interface SummaryView {
-	dof: string;
-	quantity: string;
-	unit: string;
-	peakPositive: number | null;
-	peakPositiveTime: number | null;
-	peakNegative: number | null;
-	peakNegativeTime: number | null;
-	range: number | null;
-	mean: number | null;
-	/** Samples the figures are taken over (null for runs stored before this was recorded). */
-	samples: number | null;
+	throw new DomainError('invalid', `${INCLUDE_EDGE_ZONES} must be 1 (include the edge zones) or 0 (leave them out, the default); got “${v.slice(0, 40)}”.`);
 }
 
 type StoredSummaryRow = Partial<Record<keyof SummaryStats, number | null>> & Pick<SummaryRow, 'dof' | 'quantity' | 'unit'> & { wholeTrial?: Partial<Record<keyof SummaryStats, number | null>> };
@@ -538,98 +429,62 @@ export function summaryScope(edgeZone: EdgeZoneView, includeEdgeZones: boolean):
 }
 
 /** GET …/runs/[rid]/summary[?includeEdgeZones=1]: peaks, range and mean per DOF, without the edge zones unless asked. */
-export async function loadSummary(event: RequestEvent, rawStudyId: string, rawRunId: string) {
-	const { study } = await guardStudy(event, 'study.read', rawStudyId);
-	const { run } = await runIn(study.id, rawRunId);
-	const include = includeEdgeZonesStrict(event.url.searchParams);
+export async function loadSummary(actor: Actor | null, ctx: RequestContext, input: RunRef & { query: URLSearchParams }): Promise<SummaryAnswer> {
+	const { run } = await guardedRun(actor, ctx, 'study.read', input);
+	const include = includeEdgeZonesStrict(input.query);
 	requireDone(run);
-	const row = await Run.findByPk(run.id, { attributes: ['summary', 'model', 'edgeZone'] });
-	const model = (row?.model ?? {}) as StoredModel;
-	const edgeZone = edgeZoneView(row?.edgeZone);
+	const stored = await storedResultsOf(run.id);
 	return {
 		runId: run.id,
 		convention: 'Internal joint moments: the moment the proximal segment exerts on the distal one; positive in the DOF’s positive sense.',
-		bodyMassKg: model.bodyMassKg ?? null,
-		edgeZone,
+		bodyMassKg: stored.parsedModel.bodyMassKg ?? null,
+		edgeZone: stored.edgeZone,
 		edgeZonesIncluded: include,
-		scope: summaryScope(edgeZone, include),
-		summary: summaryRows(row?.summary, include)
+		scope: summaryScope(stored.edgeZone, include),
+		summary: summaryRows(stored.summary, include)
 	};
 }
 
 /** Everything the results page shows: the run, its trial, provenance, summary and the moment curves. */
-export async function loadRunPage(event: RequestEvent, rawStudyId: string, rawRunId: string) {
-	const { actor, study } = await guardStudy(event, 'study.read', rawStudyId);
-	const { run, trial } = await runIn(study.id, rawRunId);
-	const row = await Run.findByPk(run.id, { attributes: ['summary', 'model', 'edgeZone'] });
+export async function loadRunPage(actor: Actor | null, ctx: RequestContext, input: RunRef & { query: URLSearchParams }) {
+	const { actor: a, study, run, trial } = await guardedRun(actor, ctx, 'study.read', input);
+	const stored = await storedResultsOf(run.id);
 	const done = run.state === 'done';
-	const include = includeEdgeZonesOf(event.url.searchParams);
-	const edgeZone = edgeZoneView(row?.edgeZone);
+	const include = includeEdgeZonesOf(input.query);
 	return {
 		study: { id: study.id, code: study.code, title: study.title },
 		trial: { id: trial.trialId, fileName: trial.fileName, sessionId: trial.sessionId, participantCode: trial.participantCode, sampleHz: trial.sampleHz },
 		run,
-		canStart: may(actor, 'run.start', study.id),
-		summary: done ? summaryRows(row?.summary, include) : [],
+		canStart: may(a, 'run.start', study.id),
+		summary: done ? summaryRows(stored.summary, include) : [],
 		includeEdgeZones: include,
-		summaryScope: summaryScope(edgeZone, include),
-		edgeZone: done ? edgeZone : null,
-		model: done ? (row?.model ?? null) : null,
+		summaryScope: summaryScope(stored.edgeZone, include),
+		edgeZone: done ? stored.edgeZone : null,
+		model: done ? stored.model : null,
 		moments: done ? await seriesOfRun(run.id, { quantity: 'moment', points: 600 }) : null
 	};
 }
 
 /** The moment curves of the newest done run of each trial of a session (for the session page's first plot). */
 export async function latestMomentsBySession(sessionId: string, points = 400): Promise<Record<string, SeriesAnswer>> {
-	const rows = await db().query<{ trial_id: string; id: string }>(
-		`SELECT DISTINCT ON (r.trial_id) r.trial_id, r.id FROM runs r JOIN trials t ON t.id = r.trial_id
-		 WHERE t.session_id = :sessionId AND r.state = 'done' ORDER BY r.trial_id, r.created_at DESC, r.id DESC`,
-		{ replacements: { sessionId }, type: QueryTypes.SELECT }
-	);
 	const out: Record<string, SeriesAnswer> = {};
-	for (const r of rows) out[r.trial_id] = await seriesOfRun(r.id, { quantity: 'moment', points });
+	for (const r of await latestDoneRunPerTrial(sessionId)) out[r.trial_id] = await seriesOfRun(r.id, { quantity: 'moment', points });
 	return out;
 }
 
 // ---------------------------------------------------------------------------------------------- residual analysis
 
-export interface ChannelResidual {
-	channel: string;
-	cutoffs: number[];
-	residuals: number[];
-	suggestedHz: number | null;
-	noiseLine: { slope: number; intercept: number } | null;
-	/** Why no suggestion could be made for this channel. */
-	problem: string | null;
-}
-
-function problemText(p: Problem[]): string {
-	return p
-		.filter((x) => x.severity === 'error')
-		.slice(0, 5)
-		.map((x) => `${x.file}${x.row ? ` row ${x.row}` : ''}${x.column ? `, column “${x.column}”` : ''}: ${x.message}`)
-		.join(' ');
-}
-
-async function readRecording(trial: { rawUploadId: string; fileName: string; mapping: unknown; sha256: string }, built: ReturnType<typeof buildSessionModel>, fillGaps: boolean): Promise<Recording> {
-	const mapping = trial.mapping ? columnMappingSchema.parse(trial.mapping) : undefined;
-	const parsed = await parseRecording(readRaw(trial.rawUploadId, { expectSha256: trial.sha256 }), { fileName: trial.fileName, expected: built.expected, mapping, fillGaps });
-	if (!parsed.ok) throw new RunFailure(`The recording could not be read: ${problemText(parsed.problems)}`);
-	return parsed.recording;
-}
-
 /**
  * Residual analysis of every channel of a trial (computed on request from the raw bytes): the residual against
  * cutoff, the noise line and the suggested cutoff, so a person can choose the cutoff of a run.
  */
-export async function trialResiduals(trial: TrialContext, fillGaps: boolean): Promise<{ sampleHz: number; channels: ChannelResidual[] }> {
-	let built: ReturnType<typeof buildSessionModel>;
+export async function trialResiduals(trial: TrialContext, fillGaps: boolean): Promise<TrialResiduals> {
 	let rec: Recording;
 	try {
-		built = buildSessionModel(await participantBody(trial.participantId), sessionSetupSchema.parse(trial.setup));
+		const built = buildSessionModel(await participantBody(trial.participantId), sessionSetupSchema.parse(trial.setup));
 		rec = await readRecording(trial, built, fillGaps);
 	} catch (err) {
-		error(422, (err as Error).message);
+		throw new DomainError('unprocessable', (err as Error).message);
 	}
 	const channels = rec.channels.map((c): ChannelResidual => {
 		if (c.values.some((v) => Number.isNaN(v))) {
@@ -645,266 +500,32 @@ export async function trialResiduals(trial: TrialContext, fillGaps: boolean): Pr
 	return { sampleHz: rec.sampleHz, channels };
 }
 
+type TrialRef = { studyId: string; trialId: string };
+
 /** The trial page: trial, its runs, and (when asked) residual analysis per channel. */
-export async function loadTrialPage(event: RequestEvent, rawStudyId: string, rawTrialId: string) {
-	const { actor, study } = await guardStudy(event, 'study.read', rawStudyId);
-	const trial = await trialIn(study.id, rawTrialId);
+export async function loadTrialPage(actor: Actor | null, ctx: RequestContext, input: TrialRef & { query: URLSearchParams }) {
+	const { actor: a, study, trial } = await guardedTrial(actor, ctx, 'study.read', input);
 	const runs = (await listRunsForSession(trial.sessionId)).filter((r) => r.trialId === trial.trialId);
-	const wantResiduals = event.url.searchParams.get('residuals') === '1';
-	const fillGaps = event.url.searchParams.get('fillGaps') === 'on';
+	const wantResiduals = input.query.get('residuals') === '1';
+	const fillGaps = input.query.get('fillGaps') === 'on';
 	return {
 		study: { id: study.id, code: study.code, title: study.title },
 		trial: { id: trial.trialId, fileName: trial.fileName, sessionId: trial.sessionId, participantCode: trial.participantCode, sampleHz: trial.sampleHz, channels: trial.channels, sessionState: trial.sessionState },
 		runs,
-		canStart: may(actor, 'run.start', study.id),
+		canStart: may(a, 'run.start', study.id),
 		residuals: wantResiduals ? await trialResiduals(trial, fillGaps) : null,
 		fillGaps
 	};
 }
 
 /** GET /api/…/trials/[tid]/residuals */
-export async function loadResiduals(event: RequestEvent, rawStudyId: string, rawTrialId: string) {
-	const { study } = await guardStudy(event, 'study.read', rawStudyId);
-	const trial = await trialIn(study.id, rawTrialId);
-	return { trialId: trial.trialId, ...(await trialResiduals(trial, event.url.searchParams.get('fillGaps') === 'on')) };
+export async function loadResiduals(actor: Actor | null, ctx: RequestContext, input: TrialRef & { query: URLSearchParams }): Promise<TrialResiduals & { trialId: string }> {
+	const { trial } = await guardedTrial(actor, ctx, 'study.read', input);
+	return { trialId: trial.trialId, ...(await trialResiduals(trial, input.query.get('fillGaps') === 'on')) };
 }
 
 /** The session page a trial belongs to (where forms about its runs send people back to). */
 export async function sessionOfTrial(rawStudyId: string, rawTrialId: string): Promise<string | null> {
 	if (!isUuid(rawTrialId) || !isUuid(rawStudyId)) return null;
-	const rows = await db().query<{ id: string }>(`SELECT s.id FROM trials t JOIN sessions s ON s.id = t.session_id WHERE t.id = :t AND s.study_id = :s`, {
-		replacements: { t: rawTrialId.toLowerCase(), s: rawStudyId.toLowerCase() },
-		type: QueryTypes.SELECT
-	});
-	return rows[0]?.id ?? null;
+	return sessionIdOfTrial(rawTrialId.toLowerCase(), rawStudyId.toLowerCase());
 }
-
-// ---------------------------------------------------------------------------------------------- processing (worker side)
-
-/** A failure that another attempt would repeat (consent, an unreadable file, an impossible model): no retry. */
-export class RunFailure extends Error {
-	constructor(message: string) {
-		super(message);
-		this.name = 'RunFailure';
-	}
-}
-
-/** How the computation of a run is done: in a worker thread (the worker; keeps progress flowing) or inline (seed, tests). */
-export type ComputeMode = 'thread' | 'inline';
-
-function computeInThread(input: RunThreadInput, onProgress: (fraction: number, stage: string) => void): Promise<ComputedRun> {
-	// the thread loads TypeScript through tsx like the worker itself; the path is built at run time so the app's
-	// bundler does not try to bundle the thread (the app never processes runs)
-	// (Node 20 does not pass the parent's tsx loader on to threads: the plain .mjs entry registers it)
-	const file = ['run-thread-boot', 'mjs'].join('.');
-	const url = new URL(`../jobs/${file}`, import.meta.url);
-	return new Promise((resolve, reject) => {
-		const w = new Worker(url, { workerData: input });
-		let settled = false;
-		w.on('message', (m: RunThreadMessage) => {
-			if (m.type === 'progress') onProgress(m.fraction, m.stage);
-			else if (m.type === 'done') {
-				settled = true;
-				for (const s of m.computed.series) s.data = Buffer.from(s.data.buffer, s.data.byteOffset, s.data.byteLength);
-				resolve(m.computed);
-			} else {
-				settled = true;
-				const deterministic = ['SessionModelError', 'ScalingError', 'SignalError', 'PipelineError', 'ZodError'].includes(m.name);
-				reject(deterministic ? new RunFailure(m.message) : new Error(m.message));
-			}
-		});
-		w.on('error', (err) => {
-			if (!settled) reject(err);
-			settled = true;
-		});
-		w.on('exit', (code) => {
-			if (!settled) reject(new Error(`the computation stopped unexpectedly (exit code ${code})`));
-			settled = true;
-		});
-	});
-}
-
-function computeInline(input: RunThreadInput, onProgress: (fraction: number, stage: string) => void): ComputedRun {
-	try {
-		return computeRun(input.body, input.setup, input.recording, input.options, onProgress);
-	} catch (err) {
-		const name = (err as Error).name;
-		if (['SessionModelError', 'ScalingError', 'SignalError', 'PipelineError', 'ZodError'].includes(name)) throw new RunFailure((err as Error).message);
-		throw err;
-	}
-}
-
-/** Progress writes at most every 250 ms, one at a time, and only for the attempt that still owns the run. */
-function progressWriter(runId: string, attempt: number) {
-	let last = 0;
-	let pending: { fraction: number; stage: string } | null = null;
-	let writing: Promise<void> | null = null;
-	const flush = async () => {
-		while (pending) {
-			const p = pending;
-			pending = null;
-			await db().query(`UPDATE runs SET progress = :progress, stage = :stage WHERE id = :runId AND attempts = :attempt AND state = 'running'`, {
-				replacements: { runId, attempt, progress: Math.min(0.99, Math.max(0, p.fraction)), stage: p.stage.slice(0, 200) }
-			});
-		}
-		writing = null;
-	};
-	return {
-		update(fraction: number, stage: string) {
-			const now = Date.now();
-			pending = { fraction, stage };
-			if (now - last < 250 && fraction < 1) return;
-			last = now;
-			writing ??= flush().catch(() => {
-				writing = null;
-			});
-		},
-		async settle() {
-			await writing;
-		}
-	};
-}
-
-export interface ProcessOutcome {
-	state: 'done' | 'failed' | 'retrying' | 'skipped';
-	attempt: number;
-	error?: string;
-	timings?: Record<string, number>;
-}
-
-/**
- * Processes one run (the worker's job handler; the seed calls it inline). Safe to run twice and after a crash:
- * a done run is left alone; the results are written in one transaction that first deletes any earlier rows of
- * the run, and only by the attempt that still owns the run. `job` is pg-boss' retry count and limit: a transient
- * error before the last attempt leaves the run queued (and rethrows so pg-boss retries); otherwise it fails.
- */
-export async function processRun(
-	runId: string,
-	job: { retryCount: number; retryLimit: number } = { retryCount: 0, retryLimit: 0 },
-	opts: { mode?: ComputeMode } = {}
-): Promise<ProcessOutcome> {
-	const sequelize = db();
-	const trial = await trialOfRun(runId);
-	if (!trial) return { state: 'skipped', attempt: 0 };
-	const [claimed] = (await sequelize.query(
-		`UPDATE runs SET state = 'running', attempts = attempts + 1, started_at = now(), finished_at = NULL, progress = 0, stage = 'checking consent', error = NULL
-		 WHERE id = :runId AND state <> 'done' RETURNING attempts, options`,
-		{ replacements: { runId } }
-	)) as [{ attempts: number; options: unknown }[], unknown];
-	if (!claimed.length) return { state: 'skipped', attempt: 0 };
-	const attempt = claimed[0].attempts;
-	const progress = progressWriter(runId, attempt);
-	try {
-		try {
-			await requireValidConsent(trial.participantId, 'run');
-		} catch (err) {
-			if (isHttpError(err)) throw new RunFailure(err.body.message);
-			throw err;
-		}
-		const options = (() => {
-			const r = storedRunOptions(claimed[0].options);
-			if (!r.success) throw new RunFailure(`The run's options are not valid: ${r.error.issues.map((i) => `${i.path.join('.')}: ${i.message}`).join('; ')}`);
-			return r.data;
-		})();
-		const setupParsed = sessionSetupSchema.safeParse(trial.setup);
-		if (!setupParsed.success) throw new RunFailure(`The session's model set-up is not valid: ${setupParsed.error.issues.map((i) => `${i.path.join('.')}: ${i.message}`).join('; ')}`);
-		const setup: SessionSetup = setupParsed.data;
-		const body = await participantBody(trial.participantId);
-		let built: ReturnType<typeof buildSessionModel>;
-		try {
-			built = buildSessionModel(body, setup);
-		} catch (err) {
-			throw new RunFailure(`The model could not be built: ${(err as Error).message}`);
-		}
-		progress.update(0.01, 'reading the recording');
-		const recording = await readRecording(trial, built, options.fillGaps);
-		const input: RunThreadInput = { body, setup, recording, options };
-		const onProgress = (f: number, stage: string) => progress.update(0.02 + 0.93 * f, stage);
-		const computed = (opts.mode ?? 'thread') === 'thread' ? await computeInThread(input, onProgress) : computeInline(input, onProgress);
-		await progress.settle();
-		progress.update(0.96, 'storing results');
-		await progress.settle();
-		const stored = await storeResults(runId, attempt, trial.participantId, computed);
-		if (!stored.ok) return { state: 'skipped', attempt, error: stored.reason };
-		return { state: 'done', attempt, timings: computed.timings };
-	} catch (err) {
-		await progress.settle();
-		const msg = isHttpError(err) ? err.body.message : (err as Error).message || String(err);
-		const final = err instanceof RunFailure || job.retryCount >= job.retryLimit;
-		if (final) {
-			await sequelize.query(`UPDATE runs SET state = 'failed', error = :error, finished_at = now(), stage = NULL WHERE id = :runId AND attempts = :attempt AND state <> 'done'`, {
-				replacements: { runId, attempt, error: msg.slice(0, 4000) }
-			});
-			return { state: 'failed', attempt, error: msg };
-		}
-		await sequelize.query(`UPDATE runs SET state = 'queued', progress = 0, stage = NULL, error = :error WHERE id = :runId AND attempts = :attempt AND state <> 'done'`, {
-			replacements: { runId, attempt, error: `Attempt ${attempt} failed (${msg.slice(0, 2000)}); it will be tried again automatically.` }
-		});
-		throw err;
-	}
-}
-
-/**
- * Writes a run's results all or nothing: locks the run, checks consent again (a withdrawal during processing
- * wins), deletes any earlier rows of the run, inserts every series, and marks it done.
- */
-export async function storeResults(runId: string, attempt: number, participantId: string, computed: ComputedRun): Promise<{ ok: true } | { ok: false; reason: string }> {
-	const sequelize = db();
-	return sequelize.transaction(async (transaction) => {
-		const [rows] = (await sequelize.query(`SELECT state, attempts FROM runs WHERE id = :runId FOR UPDATE`, { replacements: { runId }, transaction })) as [
-			{ state: RunState; attempts: number }[],
-			unknown
-		];
-		const row = rows[0];
-		if (!row || row.state !== 'running' || row.attempts !== attempt) return { ok: false as const, reason: 'another attempt owns this run' };
-		try {
-			await requireValidConsent(participantId, 'run', transaction);
-		} catch (err) {
-			if (isHttpError(err)) throw new RunFailure(err.body.message);
-			throw err;
-		}
-		await writeResults(runId, computed, transaction);
-		await record({ action: 'run.finished', actorLabel: 'worker', recordType: 'run', recordId: runId, details: { attempt, series: computed.series.length, timings: computed.timings } }, transaction);
-		return { ok: true as const };
-	});
-}
-
-/** Inside the caller's transaction: replaces the run's series by these and marks it done with its summary and model. */
-export async function writeResults(runId: string, computed: ComputedRun, transaction: Transaction): Promise<void> {
-	// a done run holds finite numbers only: anything else fails the run (no retry would change it), nothing written
-	try {
-		assertStorable(computed);
-	} catch (err) {
-		throw new RunFailure((err as Error).message);
-	}
-	const sequelize = db();
-	await RunSeries.destroy({ where: { runId }, transaction });
-	// one insert per series with bind parameters, so pg sends the bytes as binary (not as hex text twice their size)
-	for (const s of computed.series as SeriesRow[]) {
-		await sequelize.query('INSERT INTO run_series (run_id, name, quantity, unit, components, data) VALUES ($1, $2, $3, $4, $5, $6)', {
-			bind: [runId, s.name, s.quantity, s.unit, s.components, s.data],
-			type: QueryTypes.INSERT,
-			transaction
-		});
-	}
-	await sequelize.query(
-		`UPDATE runs SET state = 'done', progress = 1, stage = NULL, error = NULL, finished_at = now(), summary = CAST(:summary AS jsonb), model = CAST(:model AS jsonb),
-		        edge_zone = CAST(:edgeZone AS jsonb) WHERE id = :runId`,
-		{ replacements: { runId, summary: JSON.stringify(computed.summary), model: JSON.stringify(computed.model), edgeZone: JSON.stringify(computed.edgeZone) }, transaction }
-	);
-}
-
-/**
- * A job that ran out of attempts without its handler finishing (the worker vanished on the last attempt):
- * the run is marked failed so that a person can retry it, unless a newer job for it is still pending.
- */
-export async function abandonRun(runId: string): Promise<void> {
-	await db().query(
-		`UPDATE runs SET state = 'failed', finished_at = now(), stage = NULL,
-		   error = 'Processing stopped before it finished (the worker was stopped or lost) on every attempt. Retry the run.'
-		 WHERE id = :runId AND state IN ('queued', 'running')
-		   AND NOT EXISTS (SELECT 1 FROM jobs.job j WHERE j.name = 'run-process' AND j.data->>'runId' = :runId AND j.state IN ('created', 'retry', 'active'))`,
-		{ replacements: { runId } }
-	);
-}
-

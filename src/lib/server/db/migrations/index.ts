@@ -8,6 +8,7 @@ import * as m0005 from './0005-sessions-trials-runs';
 import * as m0006 from './0006-session-review';
 import * as m0007 from './0007-cycle-events';
 import * as m0008 from './0008-run-edge-zones';
+import * as m0009 from './0009-run-job-id';
 
 export const migrations: { name: string; up: Migration; down: Migration }[] = [
 	{ name: '0001-lab-foundation', ...m0001 },
@@ -17,5 +18,6 @@ export const migrations: { name: string; up: Migration; down: Migration }[] = [
 	{ name: '0005-sessions-trials-runs', ...m0005 },
 	{ name: '0006-session-review', ...m0006 },
 	{ name: '0007-cycle-events', ...m0007 },
-	{ name: '0008-run-edge-zones', ...m0008 }
+	{ name: '0008-run-edge-zones', ...m0008 },
+	{ name: '0009-run-job-id', ...m0009 }
 ];
