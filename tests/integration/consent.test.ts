@@ -12,6 +12,7 @@ beforeAll(async () => {
 	studyA = app.ids.studyA;
 	// the enforcement functions are called in this process too, against the app's database
 	process.env.DATABASE_URL = app.url;
+	(await import('../../src/lib/server/db/index')).db(app.url);
 });
 afterAll(async () => {
 	const { closeDb } = await import('../../src/lib/server/db/index');
@@ -322,7 +323,7 @@ describe('withdrawal', () => {
 		const current = (await formVersionIds()).at(-1)!;
 		const { requireValidConsent } = await import('../../src/lib/server/consent/check');
 		// before consent: refused with a message naming the participant and the state
-		await expect(requireValidConsent(p.id, 'upload')).rejects.toMatchObject({ status: 409, body: { message: `${p.code} has not given consent (state: invited); uploads are refused until they consent.` } });
+		await expect(requireValidConsent(p.id, 'upload')).rejects.toMatchObject({ kind: 'conflict', message: `${p.code} has not given consent (state: invited); uploads are refused until they consent.` });
 		expect((await agree(token, p.id, current.id, current.version === 1 ? 3 : 2)).status).toBe(200);
 		await expect(requireValidConsent(p.id, 'run')).resolves.toBeUndefined();
 
@@ -351,7 +352,7 @@ describe('withdrawal', () => {
 		expect((await nthMail(address, 3)).text).toContain('withdraw your consent');
 
 		// new work is refused at once, with the reason
-		await expect(requireValidConsent(p.id, 'approval')).rejects.toMatchObject({ status: 409, body: { message: expect.stringContaining(`${p.code} has withdrawn consent (state: withdrawn); approvals are refused`) } });
+		await expect(requireValidConsent(p.id, 'approval')).rejects.toMatchObject({ kind: 'conflict', message: expect.stringContaining(`${p.code} has withdrawn consent (state: withdrawn); approvals are refused`) });
 		// the run is kept and flagged
 		const run = await one<{ flagged_reason: string; flag_decision: string | null }>(`SELECT flagged_reason, flag_decision FROM runs WHERE id = $1`, [runId]);
 		expect(run.flagged_reason).toMatch(/^Consent withdrawn on \d{4}-\d{2}-\d{2}$/);

@@ -1,23 +1,24 @@
 // The e-mailed consent workflow: invitations, resends and reminders by staff; consent, decline and withdrawal by
 // the participant through single-use links; each state change written with its history row and audit event.
-import { FormProblem } from '../errors';
-import { contextOf } from '../http/edge';
-import type { RequestEvent } from '@sveltejs/kit';
-import { error } from '@sveltejs/kit';
-import { QueryTypes, type Transaction } from 'sequelize';
+import { FormProblem, notFound } from '../errors';
+import type { Transaction } from 'sequelize';
 import { z } from 'zod';
 import { db } from '../db/index';
-import { config } from '../config';
+import { ConsentFormVersion, Participant, ParticipantPersonal } from '../db/models';
 import { record } from '../audit/record';
-import { may } from '../access/guard';
+import { may, studyFor, type Actor } from '../access/guard';
+import { linkBase, type RequestContext } from '../access/context';
 import { isUuid } from '../studies/studies';
 import { renderMarkdown } from './markdown';
 import { currentLab } from '../studies/lab';
 import { sendMail } from '../mail/index';
-import { guardStudy } from '../studies/records';
-import { CONSENT_STATE_LABEL, STATE_SQL, type ConsentState } from './check';
-import { checkLink, CONSENT_LINK_LIFETIME_DAYS, issueLink, markLinksMailed, markLinkUsed, revokeOpenConsentLinks, type LinkKind, type LinkRefusal } from './links';
+import { CONSENT_STATE_LABEL, type ConsentState } from './check';
+import { checkLink, CONSENT_LINK_LIFETIME_DAYS, issueLink, markLinksMailed, markLinkUsed, revokeOpenConsentLinks, type LinkRefusal } from './links';
+import * as q from './queries';
 import { flagRunsOfParticipant, listFlaggedRuns } from '../runs/flags';
+import type { ConsentEventView, ConsentPage, LinkView, RefusedLink, StudyContact, WithdrawPage } from '../../types/consent';
+
+export type { ConsentEventView, ConsentPage, LinkView, RefusedLink, StudyContact, WithdrawPage };
 
 export const PARTICIPANT_LABEL = 'participant (e-mailed link)';
 const SYSTEM_LABEL = 'system';
@@ -32,24 +33,12 @@ export const SEND_ALLOWED: Record<SendKind, readonly ConsentState[]> = {
 
 // ---------------------------------------------------------------- shared reads
 
-interface ParticipantRow {
-	id: string;
-	study_id: string;
-	code: string;
-	stored_state: ConsentState;
-	state: ConsentState;
-	consent_state_since: Date | null;
-	consent_form_version_id: string | null;
-}
+type ParticipantRow = q.LockedParticipant;
 
 async function lockParticipant(t: Transaction, participantId: string): Promise<ParticipantRow> {
-	const rows = await db().query<ParticipantRow>(
-		`SELECT p.id, p.study_id, p.code, p.consent_state AS stored_state, ${STATE_SQL} AS state, p.consent_state_since, p.consent_form_version_id
-		 FROM participants p WHERE p.id = :participantId FOR UPDATE OF p`,
-		{ replacements: { participantId }, type: QueryTypes.SELECT, transaction: t }
-	);
-	if (!rows[0]) error(404, 'Not found');
-	return rows[0];
+	const row = await q.lockParticipant(t, participantId);
+	if (!row) throw notFound();
+	return row;
 }
 
 interface FormVersionRow {
@@ -59,45 +48,20 @@ interface FormVersionRow {
 	confirmations: string[];
 }
 
-async function currentFormVersion(studyId: string, t?: Transaction): Promise<FormVersionRow | null> {
-	const rows = await db().query<FormVersionRow>(
-		`SELECT id, version, body_markdown, confirmations FROM consent_form_versions WHERE study_id = :studyId ORDER BY version DESC LIMIT 1`,
-		{ replacements: { studyId }, type: QueryTypes.SELECT, transaction: t }
-	);
-	return rows[0] ?? null;
-}
-
-export interface StudyContact {
-	studyId: string;
-	studyCode: string;
-	title: string;
-	ethicsReference: string | null;
-	labName: string | null;
-	/** The principal investigator: whom to contact with questions. */
-	contactName: string | null;
-	contactEmail: string | null;
+async function currentFormVersion(studyId: string, transaction?: Transaction): Promise<FormVersionRow | null> {
+	const v = await ConsentFormVersion.findOne({ where: { studyId }, order: [['version', 'DESC']], transaction });
+	return v && { id: v.id, version: v.version, body_markdown: v.bodyMarkdown, confirmations: v.confirmations };
 }
 
 async function studyContact(studyId: string, t?: Transaction): Promise<StudyContact> {
-	const rows = await db().query<{ id: string; code: string; title: string; ethics_reference: string | null; pi_name: string | null; pi_email: string | null }>(
-		`SELECT s.id, s.code, s.title, s.ethics_reference,
-		        (SELECT coalesce(u.name, u.email) FROM study_members m JOIN users u ON u.id = m.user_id WHERE m.study_id = s.id AND m.role = 'pi' AND u.deactivated_at IS NULL ORDER BY m.created_at LIMIT 1) AS pi_name,
-		        (SELECT u.email FROM study_members m JOIN users u ON u.id = m.user_id WHERE m.study_id = s.id AND m.role = 'pi' AND u.deactivated_at IS NULL ORDER BY m.created_at LIMIT 1) AS pi_email
-		 FROM studies s WHERE s.id = :studyId`,
-		{ replacements: { studyId }, type: QueryTypes.SELECT, transaction: t }
-	);
-	const s = rows[0];
+	const s = (await q.contactRowOf(studyId, t))!;
 	const lab = await currentLab();
 	return { studyId: s.id, studyCode: s.code, title: s.title, ethicsReference: s.ethics_reference, labName: lab?.name ?? null, contactName: s.pi_name, contactEmail: s.pi_email };
 }
 
-async function personalOf(participantId: string, t?: Transaction): Promise<{ fullName: string | null; email: string | null }> {
-	const rows = await db().query<{ full_name: string | null; email: string | null }>(`SELECT full_name, email FROM participant_personal WHERE participant_id = :participantId`, {
-		replacements: { participantId },
-		type: QueryTypes.SELECT,
-		transaction: t
-	});
-	return { fullName: rows[0]?.full_name ?? null, email: rows[0]?.email ?? null };
+async function personalOf(participantId: string, transaction?: Transaction): Promise<{ fullName: string | null; email: string | null }> {
+	const row = await ParticipantPersonal.findByPk(participantId, { transaction });
+	return { fullName: row?.fullName ?? null, email: row?.email ?? null };
 }
 
 // ---------------------------------------------------------------- the one way a state changes
@@ -115,19 +79,15 @@ interface Change {
 /** Writes the new state on the participant and appends the history row, in the caller's transaction. */
 async function changeState(t: Transaction, c: Change): Promise<void> {
 	const from = c.participant.stored_state === 'invited' && c.participant.state === 'expired' ? 'expired' : c.participant.stored_state;
-	await db().query(
-		`UPDATE participants SET consent_state = :to, consent_state_since = now(), consent_form_version_id = coalesce(:formVersionId, consent_form_version_id) WHERE id = :id`,
-		{ replacements: { to: c.to, formVersionId: c.formVersionId ?? null, id: c.participant.id }, transaction: t }
-	);
-	await db().query(
-		`INSERT INTO consent_events (participant_id, from_state, to_state, actor_user_id, actor_label, form_version, note)
-		 VALUES (:participantId, :from, :to, :actorUserId, :actorLabel,
-		         (SELECT version FROM consent_form_versions WHERE id = coalesce(:formVersionId, (SELECT consent_form_version_id FROM participants WHERE id = :participantId))), :note)`,
-		{
-			replacements: { participantId: c.participant.id, from, to: c.to, actorUserId: c.actorUserId, actorLabel: c.actorLabel, formVersionId: c.formVersionId ?? null, note: c.note ?? null },
-			transaction: t
-		}
-	);
+	await q.writeStateChange(t, {
+		participantId: c.participant.id,
+		from,
+		to: c.to,
+		actorUserId: c.actorUserId,
+		actorLabel: c.actorLabel,
+		formVersionId: c.formVersionId ?? null,
+		note: c.note ?? null
+	});
 }
 
 /** An invitation that lapsed without a decision is written to the history as "expired" (lazily, when next seen). */
@@ -139,10 +99,6 @@ async function settleExpiry(t: Transaction, p: ParticipantRow): Promise<Particip
 }
 
 // ---------------------------------------------------------------- e-mails
-
-function linkBase(event: RequestEvent): string {
-	return (config().ORIGIN ?? event.url.origin).replace(/\/+$/, '');
-}
 
 function contactLine(c: StudyContact): string {
 	return c.contactEmail ? `${c.contactName ?? c.contactEmail} (principal investigator), ${c.contactEmail}` : `the study team of ${c.labName ?? 'the laboratory'}`;
@@ -182,57 +138,26 @@ function invitationMail(kind: SendKind, c: StudyContact, name: string | null, co
 
 // ---------------------------------------------------------------- staff: the participant's consent page
 
-export interface ConsentEventView {
-	at: string;
-	from: ConsentState;
-	to: ConsentState;
-	actor: string;
-	formVersion: number | null;
-	note: string | null;
-}
-
-export interface LinkView {
-	kind: LinkKind;
-	purpose: 'consent' | 'withdraw';
-	createdAt: string;
-	sentAt: string | null;
-	expiresAt: string | null;
-	status: 'open' | 'used' | 'expired' | 'superseded';
-	mailError: string | null;
-}
-
+/** One participant of the study in the URL (another study's participant is not-found). */
 async function participantOfStudy(studyId: string, rawPid: string): Promise<{ id: string; code: string }> {
-	const rows = isUuid(rawPid)
-		? await db().query<{ id: string; code: string }>(`SELECT id, code FROM participants WHERE id = :id AND study_id = :studyId`, {
-				replacements: { id: rawPid.toLowerCase(), studyId },
-				type: QueryTypes.SELECT
-			})
-		: [];
-	if (!rows[0]) error(404, 'Not found');
-	return rows[0];
+	const p = isUuid(rawPid) ? await Participant.findOne({ where: { id: rawPid.toLowerCase(), studyId }, attributes: ['id', 'code'] }) : null;
+	if (!p) throw notFound();
+	return { id: p.id, code: p.code };
 }
 
 /** Everything the staff consent page shows: state, history, links sent; never a name, address or typed signature. */
-export async function consentOverview(event: RequestEvent, rawId: string, rawPid: string) {
-	const { actor, study } = await guardStudy(event, 'study.read', rawId);
+export async function consentOverview(actor: Actor | null, ctx: RequestContext, rawId: string, rawPid: string) {
+	const { actor: a, study } = await studyFor(actor, ctx, 'study.read', rawId);
 	const target = await participantOfStudy(study.id, rawPid);
 	const p = await db().transaction(async (t) => settleExpiry(t, await lockParticipant(t, target.id)));
 	const [events, links, form, version] = await Promise.all([
-		db().query<{ at: Date; from_state: ConsentState; to_state: ConsentState; actor_label: string; form_version: number | null; note: string | null }>(
-			`SELECT at, from_state, to_state, actor_label, form_version, note FROM consent_events WHERE participant_id = :id ORDER BY at DESC, id DESC`,
-			{ replacements: { id: p.id }, type: QueryTypes.SELECT }
-		),
-		db().query<{ kind: LinkKind; purpose: 'consent' | 'withdraw'; created_at: Date; sent_at: Date | null; expires_at: Date | null; used_at: Date | null; revoked_at: Date | null; mail_error: string | null }>(
-			`SELECT kind, purpose, created_at, sent_at, expires_at, used_at, revoked_at, mail_error FROM consent_invitations WHERE participant_id = :id AND kind <> 'seed' ORDER BY created_at DESC`,
-			{ replacements: { id: p.id }, type: QueryTypes.SELECT }
-		),
+		q.historyOf(p.id),
+		q.sentLinksOf(p.id),
 		currentFormVersion(study.id),
-		p.consent_form_version_id
-			? db().query<{ version: number }>(`SELECT version FROM consent_form_versions WHERE id = :id`, { replacements: { id: p.consent_form_version_id }, type: QueryTypes.SELECT })
-			: Promise.resolve([])
+		p.consent_form_version_id ? ConsentFormVersion.findByPk(p.consent_form_version_id, { attributes: ['version'] }) : Promise.resolve(null)
 	]);
-	const mayInvite = may(actor, 'consent.invite', study.id);
-	const mayDecide = may(actor, 'consent.decide', study.id);
+	const mayInvite = may(a, 'consent.invite', study.id);
+	const mayDecide = may(a, 'consent.decide', study.id);
 	// whether an address exists is all this page needs; the address itself stays on the participant page
 	const hasEmail = mayInvite ? Boolean((await personalOf(p.id)).email) : null;
 	const now = Date.now();
@@ -243,7 +168,7 @@ export async function consentOverview(event: RequestEvent, rawId: string, rawPid
 			state: p.state,
 			label: CONSENT_STATE_LABEL[p.state],
 			since: p.consent_state_since?.toISOString() ?? null,
-			formVersion: version[0]?.version ?? null
+			formVersion: version?.version ?? null
 		},
 		currentFormVersion: form?.version ?? null,
 		history: events.map<ConsentEventView>((e) => ({ at: e.at.toISOString(), from: e.from_state, to: e.to_state, actor: e.actor_label, formVersion: e.form_version, note: e.note })),
@@ -269,11 +194,15 @@ export async function consentOverview(event: RequestEvent, rawId: string, rawPid
 	};
 }
 
-export interface SendOutcome {
-	kind: SendKind;
-	mailed: boolean;
-	/** Set when the state change was kept but the e-mail could not be sent. */
-	mailProblem: string | null;
+/**
+ * The e-mail of a send could not go out; the state change and the links are kept (502: the mail server let us
+ * down). The page shows `mailProblem` and offers to send again.
+ */
+export class MailNotSent extends FormProblem {
+	constructor(readonly mailProblem: string) {
+		super({}, 'upstream');
+		this.name = 'MailNotSent';
+	}
 }
 
 const SEND_ACTION: Record<SendKind, string> = { invitation: 'consent.invited', resend: 'consent.resent', reminder: 'consent.reminded' };
@@ -282,12 +211,12 @@ const SEND_WORD: Record<SendKind, string> = { invitation: 'invitation', resend: 
 /**
  * Sends a consent invitation, a fresh link (resend) or a reminder. Every send issues a new consent link and a new
  * withdrawal link and makes earlier consent links stop working. The state change is committed before the e-mail
- * goes out, so a mail failure loses nothing: the page says so and offers to send again.
+ * goes out, so a mail failure loses nothing: MailNotSent says so and the page offers to send again.
  */
-export async function sendConsentLink(event: RequestEvent, rawId: string, rawPid: string, kind: SendKind): Promise<SendOutcome> {
-	const { actor, study } = await guardStudy(event, 'consent.invite', rawId);
+export async function sendConsentLink(actor: Actor | null, ctx: RequestContext, rawId: string, rawPid: string, kind: SendKind): Promise<void> {
+	const { actor: a, study } = await studyFor(actor, ctx, 'consent.invite', rawId);
 	const target = await participantOfStudy(study.id, rawPid);
-	const ip = contextOf(event).ipAddress;
+	const ip = ctx.ipAddress;
 	const prepared = await db().transaction(async (t) => {
 		const p = await settleExpiry(t, await lockParticipant(t, target.id));
 		const personal = await personalOf(p.id, t);
@@ -302,17 +231,17 @@ export async function sendConsentLink(event: RequestEvent, rawId: string, rawPid
 			throw new FormProblem({ form: `${p.code} is ${CONSENT_STATE_LABEL[p.state]}: a ${SEND_WORD[kind]} cannot be sent now. ${hint}` }, 'conflict');
 		}
 		const superseded = await revokeOpenConsentLinks(t, p.id);
-		const consentLink = await issueLink(t, { participantId: p.id, purpose: 'consent', kind, formVersionId: form.id, sentBy: actor.id });
-		const withdrawLink = await issueLink(t, { participantId: p.id, purpose: 'withdraw', kind, formVersionId: form.id, sentBy: actor.id });
+		const consentLink = await issueLink(t, { participantId: p.id, purpose: 'consent', kind, formVersionId: form.id, sentBy: a.id });
+		const withdrawLink = await issueLink(t, { participantId: p.id, purpose: 'withdraw', kind, formVersionId: form.id, sentBy: a.id });
 		if (p.stored_state !== 'invited' || p.state !== 'invited') {
-			await changeState(t, { participant: p, to: 'invited', actorUserId: actor.id, actorLabel: actor.email, formVersionId: form.id, note: `Invitation sent (form version ${form.version}).` });
+			await changeState(t, { participant: p, to: 'invited', actorUserId: a.id, actorLabel: a.email, formVersionId: form.id, note: `Invitation sent (form version ${form.version}).` });
 		} else {
 			// not a change of state, but part of the story the history tells
 			await changeState(t, {
 				participant: p,
 				to: 'invited',
-				actorUserId: actor.id,
-				actorLabel: actor.email,
+				actorUserId: a.id,
+				actorLabel: a.email,
 				formVersionId: form.id,
 				note: `${kind === 'reminder' ? 'Reminder' : 'New link'} sent (form version ${form.version}); earlier links no longer work.`
 			});
@@ -320,8 +249,8 @@ export async function sendConsentLink(event: RequestEvent, rawId: string, rawPid
 		await record(
 			{
 				action: SEND_ACTION[kind],
-				actorUserId: actor.id,
-				actorLabel: actor.email,
+				actorUserId: a.id,
+				actorLabel: a.email,
 				studyId: study.id,
 				recordType: 'participant',
 				recordId: p.id,
@@ -334,7 +263,7 @@ export async function sendConsentLink(event: RequestEvent, rawId: string, rawPid
 	});
 
 	const contact = await studyContact(study.id);
-	const base = linkBase(event);
+	const base = linkBase(ctx);
 	const mail = invitationMail(
 		kind,
 		contact,
@@ -347,42 +276,38 @@ export async function sendConsentLink(event: RequestEvent, rawId: string, rawPid
 	try {
 		await sendMail({ to: prepared.personal.email!, ...mail });
 		await markLinksMailed(ids, null);
-		return { kind, mailed: true, mailProblem: null };
 	} catch (err) {
 		const why = (err as Error).message;
 		await markLinksMailed(ids, why.slice(0, 500));
-		await record({ action: 'consent.mail.failed', actorUserId: actor.id, actorLabel: actor.email, outcome: 'failed', studyId: study.id, recordType: 'participant', recordId: prepared.p.id, ipAddress: ip, details: { kind, error: why } });
-		return {
-			kind,
-			mailed: false,
-			mailProblem: `The ${SEND_WORD[kind]} for ${prepared.p.code} is recorded, but the e-mail could not be sent (${why}). Check the mail server on the status page, then use “Send a new link”.`
-		};
+		await record({ action: 'consent.mail.failed', actorUserId: a.id, actorLabel: a.email, outcome: 'failed', studyId: study.id, recordType: 'participant', recordId: prepared.p.id, ipAddress: ip, details: { kind, error: why } });
+		throw new MailNotSent(
+			`The ${SEND_WORD[kind]} for ${prepared.p.code} is recorded, but the e-mail could not be sent (${why}). Check the mail server on the status page, then use “Send a new link”.`
+		);
 	}
 }
 
 // ---------------------------------------------------------------- participant: the consent page
 
-/** What the participant sees when a link cannot be used: why, in calm words, and whom to ask. */
-export interface RefusedLink {
-	refused: LinkRefusal | 'decided';
+/** Why a link was not used, for the refusal page: the reason, and the state when it was decided already. */
+interface Refusal {
+	reason: LinkRefusal | 'decided';
+	participantId: string | null;
 	state?: ConsentState;
-	contact: StudyContact | null;
 }
 
-export interface ConsentPage {
-	participantId: string;
-	contact: StudyContact;
-	form: { id: string; version: number; html: string; confirmations: string[] };
-	expiresAt: string;
-	today: string;
+/** A link that cannot be used (any more): the page says why in calm words and whom to ask (410). */
+export class LinkRefused extends FormProblem {
+	constructor(readonly refused: RefusedLink) {
+		super({}, 'gone');
+		this.name = 'LinkRefused';
+	}
 }
 
 async function refusal(reason: LinkRefusal | 'decided', participantId: string | null, ip: string | null, action: string | null, state?: ConsentState): Promise<RefusedLink> {
 	let contact: StudyContact | null = null;
 	let studyId: string | null = null;
 	if (participantId) {
-		const rows = await db().query<{ study_id: string }>(`SELECT study_id FROM participants WHERE id = :participantId`, { replacements: { participantId }, type: QueryTypes.SELECT });
-		studyId = rows[0]?.study_id ?? null;
+		studyId = (await Participant.findByPk(participantId, { attributes: ['studyId'] }))?.studyId ?? null;
 		if (studyId) contact = await studyContact(studyId);
 	}
 	if (action) await record({ action, actorLabel: PARTICIPANT_LABEL, outcome: 'denied', studyId, recordType: participantId ? 'participant' : null, recordId: participantId, ipAddress: ip, details: { reason, state } });
@@ -395,7 +320,8 @@ const todayIso = () => new Date().toISOString().slice(0, 10);
  * The page a consent link opens, or why it cannot be used. Looking does not use the link up. `audit` is false when
  * the page is rendered after its own form was sent (the action has already recorded what happened).
  */
-export async function consentPageFor(token: string, ip: string | null, audit = true): Promise<ConsentPage | RefusedLink> {
+export async function consentPageFor(ctx: RequestContext, token: string, audit = true): Promise<ConsentPage | RefusedLink> {
+	const ip = ctx.ipAddress;
 	const action = audit ? 'consent.link.refused' : null;
 	const check = await checkLink('consent', token);
 	if (!check.ok) {
@@ -404,39 +330,42 @@ export async function consentPageFor(token: string, ip: string | null, audit = t
 		}
 		return refusal(check.reason, check.link?.participant_id ?? null, ip, action);
 	}
-	const rows = await db().query<{ study_id: string; consent_state: ConsentState }>(`SELECT study_id, consent_state FROM participants WHERE id = :id`, {
-		replacements: { id: check.link.participant_id },
-		type: QueryTypes.SELECT
-	});
-	if (rows[0].consent_state !== 'invited') return refusal('decided', check.link.participant_id, ip, action, rows[0].consent_state);
-	const form = (await currentFormVersion(rows[0].study_id))!;
+	const p = (await q.studyAndStateOf(check.link.participant_id))!;
+	if (p.stored_state !== 'invited') return refusal('decided', check.link.participant_id, ip, action, p.stored_state);
+	const form = (await currentFormVersion(p.study_id))!;
 	return {
 		participantId: check.link.participant_id,
-		contact: await studyContact(rows[0].study_id),
+		contact: await studyContact(p.study_id),
 		form: { id: form.id, version: form.version, html: renderMarkdown(form.body_markdown), confirmations: form.confirmations },
 		expiresAt: check.link.expires_at!.toISOString(),
 		today: todayIso()
 	};
 }
 
-export type DecisionOutcome =
-	| { ok: true; decision: 'consented' | 'declined'; mailed: boolean; contact: StudyContact; formVersion: number }
-	| { ok: false; refused: RefusedLink };
+export interface DecisionOutcome {
+	decision: 'consented' | 'declined';
+	mailed: boolean;
+	contact: StudyContact;
+	formVersion: number;
+}
+
+/** What the consent form posted: the participant and form version it was shown for, ticks (`confirm-<i>`), name, date. */
+export type ConsentAnswers = Record<string, string>;
 
 /** The form's answers checked: every confirmation ticked, a name typed, and today's date (± 1 day for time zones). */
-export function parseConsentAnswers(form: FormData, confirmations: string[], today = todayIso()): { fullName: string; signedOn: string } {
+export function parseConsentAnswers(form: ConsentAnswers, confirmations: string[], today = todayIso()): { fullName: string; signedOn: string } {
 	const errors: Record<string, string> = {};
 	confirmations.forEach((_, i) => {
-		if (form.get(`confirm-${i}`) !== 'yes') errors[`confirm-${i}`] = 'Tick this statement to agree, or choose “I do not wish to take part” below.';
+		if (form[`confirm-${i}`] !== 'yes') errors[`confirm-${i}`] = 'Tick this statement to agree, or choose “I do not wish to take part” below.';
 	});
 	const name = z
 		.string()
 		.trim()
 		.min(2, 'Type your full name as your signature.')
 		.max(200, 'Keep your name under 200 characters.')
-		.safeParse(String(form.get('fullName') ?? ''));
+		.safeParse(form.fullName ?? '');
 	if (!name.success) errors.fullName = name.error.issues[0].message;
-	const signedOn = String(form.get('signedOn') ?? '').trim();
+	const signedOn = (form.signedOn ?? '').trim();
 	if (!/^\d{4}-\d{2}-\d{2}$/.test(signedOn) || Number.isNaN(Date.parse(signedOn))) errors.signedOn = 'Enter today’s date (YYYY-MM-DD).';
 	else if (Math.abs(Date.parse(signedOn) - Date.parse(today)) > 86_400_000) errors.signedOn = `Enter today’s date (${today}); a signature cannot be dated another day.`;
 	if (Object.keys(errors).length) throw new FormProblem(errors);
@@ -446,34 +375,60 @@ export function parseConsentAnswers(form: FormData, confirmations: string[], tod
 /** A refusal the page shows beside the form (the link stays usable). */
 export class ReReadProblem extends FormProblem {}
 
+/** What a link's transaction ends with: the work done, or a refusal (answered after it). */
+type LinkStep<T> = { done: T } | { refused: Refusal };
+
+/** Answers a refused link after its transaction (so the audit row is not rolled back with it). */
+async function refuseLink(r: Refusal, ip: string | null, action: string): Promise<never> {
+	throw new LinkRefused(await refusal(r.reason, r.participantId, ip, action, r.state));
+}
+
+/** A change the participant made through a link: the new state with its history row, and its audit event. */
+async function participantChanged(
+	t: Transaction,
+	p: ParticipantRow,
+	ip: string | null,
+	c: { to: ConsentState; formVersionId?: string; note: string; action: string; details: Record<string, unknown> }
+): Promise<void> {
+	await changeState(t, { participant: p, to: c.to, actorUserId: null, actorLabel: PARTICIPANT_LABEL, formVersionId: c.formVersionId, note: c.note });
+	await record({ action: c.action, actorLabel: PARTICIPANT_LABEL, studyId: p.study_id, recordType: 'participant', recordId: p.id, ipAddress: ip, details: { code: p.code, ...c.details } }, t);
+}
+
+/** Mails the participant; a failure is recorded (and written on the links mailed) but loses nothing already saved. */
+async function mailParticipant(
+	p: { id: string; study_id: string },
+	mail: { to: string; subject: string; text: string },
+	kind: 'confirmation' | 'withdrawal',
+	linkIds: string[] = []
+): Promise<boolean> {
+	try {
+		await sendMail(mail);
+		await markLinksMailed(linkIds, null);
+		return true;
+	} catch (err) {
+		await markLinksMailed(linkIds, (err as Error).message.slice(0, 500));
+		await record({ action: 'consent.mail.failed', actorLabel: SYSTEM_LABEL, outcome: 'failed', studyId: p.study_id, recordType: 'participant', recordId: p.id, details: { kind, error: (err as Error).message } });
+		return false;
+	}
+}
+
 /**
  * Records the participant's decision from a consent link. The form carries the participant and the form version it
  * was shown for: another participant is refused; a version published since is refused with a request to read again
  * (so the version recorded is always the one the person read). The link is used up in the decision's transaction.
  */
-export async function decide(event: RequestEvent, token: string, form: FormData, decision: 'consented' | 'declined'): Promise<DecisionOutcome> {
-	const ip = contextOf(event).ipAddress;
-	const postedParticipant = String(form.get('participantId') ?? '');
-	const postedVersion = String(form.get('formVersionId') ?? '');
-	// refused links are answered after the transaction, so their audit row is not rolled back with it
-	let refusedFor: { reason: LinkRefusal | 'decided'; participantId: string | null; state?: ConsentState } | null = null;
-	let wrongParticipant: string | null = null;
-	const done = await db().transaction(async (t) => {
+export async function decide(ctx: RequestContext, token: string, form: ConsentAnswers, decision: 'consented' | 'declined'): Promise<DecisionOutcome> {
+	const ip = ctx.ipAddress;
+	const postedParticipant = form.participantId ?? '';
+	const postedVersion = form.formVersionId ?? '';
+	type Done = { p: ParticipantRow; current: FormVersionRow; answers: { fullName: string; signedOn: string } | null; withdrawLink: { id: string; token: string } | null };
+	const step = await db().transaction(async (t): Promise<LinkStep<Done> | { wrongParticipant: string }> => {
 		const check = await checkLink('consent', token, t);
-		if (!check.ok) {
-			refusedFor = { reason: check.reason, participantId: check.link?.participant_id ?? null };
-			return null;
-		}
+		if (!check.ok) return { refused: { reason: check.reason, participantId: check.link?.participant_id ?? null } };
 		const link = check.link;
-		if (postedParticipant !== link.participant_id) {
-			wrongParticipant = link.participant_id;
-			return null;
-		}
+		if (postedParticipant !== link.participant_id) return { wrongParticipant: link.participant_id };
 		const p = await lockParticipant(t, link.participant_id);
-		if (p.stored_state !== 'invited') {
-			refusedFor = { reason: 'decided', participantId: p.id, state: p.stored_state };
-			return null;
-		}
+		if (p.stored_state !== 'invited') return { refused: { reason: 'decided', participantId: p.id, state: p.stored_state } };
 		const current = (await currentFormVersion(p.study_id, t))!;
 		if (postedVersion !== current.id) {
 			throw new ReReadProblem(
@@ -482,77 +437,56 @@ export async function decide(event: RequestEvent, token: string, form: FormData,
 			);
 		}
 		const answers = decision === 'consented' ? parseConsentAnswers(form, current.confirmations) : null;
-		const [rec] = await db().query<{ id: string }>(
-			`INSERT INTO consent_records (participant_id, decision, form_version_id, confirmations, signed_on, invitation_id, ip_address)
-			 VALUES (:participantId, :decision, :formVersionId, :confirmations::jsonb, :signedOn, :linkId, :ip) RETURNING id`,
-			{
-				replacements: {
-					participantId: p.id,
-					decision,
-					formVersionId: current.id,
-					confirmations: JSON.stringify(answers ? current.confirmations : []),
-					signedOn: answers?.signedOn ?? null,
-					linkId: link.id,
-					ip
-				},
-				type: QueryTypes.SELECT,
-				transaction: t
-			}
-		);
-		if (answers) await db().query(`INSERT INTO consent_signatures (record_id, typed_name) VALUES (:id, :name)`, { replacements: { id: rec.id, name: answers.fullName }, transaction: t });
-		await markLinkUsed(t, link.id);
-		await changeState(t, {
-			participant: p,
-			to: decision,
-			actorUserId: null,
-			actorLabel: PARTICIPANT_LABEL,
+		const recordId = await q.insertConsentRecord(t, {
+			participantId: p.id,
+			decision,
 			formVersionId: current.id,
-			note: decision === 'consented' ? `Consent given under form version ${current.version}, signed ${answers!.signedOn}.` : `Declined to take part (form version ${current.version} shown).`
+			confirmations: answers ? current.confirmations : [],
+			signedOn: answers?.signedOn ?? null,
+			linkId: link.id,
+			ip
 		});
-		await record(
-			{
-				action: decision === 'consented' ? 'consent.given' : 'consent.declined',
-				actorLabel: PARTICIPANT_LABEL,
-				studyId: p.study_id,
-				recordType: 'participant',
-				recordId: p.id,
-				ipAddress: ip,
-				details: { code: p.code, formVersion: current.version, recordId: rec.id }
-			},
-			t
-		);
+		if (answers) await q.insertSignature(t, recordId, answers.fullName);
+		await markLinkUsed(t, link.id);
+		await participantChanged(t, p, ip, {
+			to: decision,
+			formVersionId: current.id,
+			note: decision === 'consented' ? `Consent given under form version ${current.version}, signed ${answers!.signedOn}.` : `Declined to take part (form version ${current.version} shown).`,
+			action: decision === 'consented' ? 'consent.given' : 'consent.declined',
+			details: { formVersion: current.version, recordId }
+		});
 		const withdrawLink = decision === 'consented' ? await issueLink(t, { participantId: p.id, purpose: 'withdraw', kind: 'confirmation', formVersionId: current.id, sentBy: null }) : null;
-		return { p, current, answers, withdrawLink };
+		return { done: { p, current, answers, withdrawLink } };
 	});
-	if (wrongParticipant) {
-		await record({ action: 'consent.link.refused', actorLabel: PARTICIPANT_LABEL, outcome: 'denied', recordType: 'participant', recordId: wrongParticipant, ipAddress: ip, details: { reason: 'wrong-participant', posted: postedParticipant.slice(0, 64) } });
+	if ('wrongParticipant' in step) {
+		await record({
+			action: 'consent.link.refused',
+			actorLabel: PARTICIPANT_LABEL,
+			outcome: 'denied',
+			recordType: 'participant',
+			recordId: step.wrongParticipant,
+			ipAddress: ip,
+			details: { reason: 'wrong-participant', posted: postedParticipant.slice(0, 64) }
+		});
 		throw new FormProblem({ form: 'This form does not belong to the link it was sent with, so nothing was recorded. Open the link from your e-mail again.' }, 'forbidden');
 	}
-	if (!done) {
-		const r = refusedFor as unknown as { reason: LinkRefusal | 'decided'; participantId: string | null; state?: ConsentState };
-		return { ok: false, refused: await refusal(r.reason, r.participantId, ip, 'consent.link.refused', r.state) };
-	}
+	if ('refused' in step) return refuseLink(step.refused, ip, 'consent.link.refused');
+	const done = step.done;
 
 	const contact = await studyContact(done.p.study_id);
 	const personal = await personalOf(done.p.id);
 	let mailed = false;
 	if (personal.email) {
-		const base = linkBase(event);
+		const base = linkBase(ctx);
 		const text =
 			done.answers && done.withdrawLink
 				? consentCopy(contact, done.current, done.answers, `${base}/consent/withdraw/${done.withdrawLink.token}`)
 				: `${personal.fullName ? `Dear ${personal.fullName},` : 'Hello,'}\n\nWe have recorded that you do not wish to take part in the study ${studyLine(contact)}. ` +
 					`Thank you for letting us know; we will not contact you again about it.\n\nQuestions: ${contactLine(contact)}.`;
-		try {
-			await sendMail({ to: personal.email, subject: `${done.answers ? 'Your consent' : 'Your decision'}: study ${contact.studyCode}`.slice(0, 200), text });
-			if (done.withdrawLink) await markLinksMailed([done.withdrawLink.id], null);
-			mailed = true;
-		} catch (err) {
-			if (done.withdrawLink) await markLinksMailed([done.withdrawLink.id], (err as Error).message.slice(0, 500));
-			await record({ action: 'consent.mail.failed', actorLabel: SYSTEM_LABEL, outcome: 'failed', studyId: done.p.study_id, recordType: 'participant', recordId: done.p.id, details: { kind: 'confirmation', error: (err as Error).message } });
-		}
+		const subject = `${done.answers ? 'Your consent' : 'Your decision'}: study ${contact.studyCode}`.slice(0, 200);
+		mailed = await mailParticipant(done.p, { to: personal.email, subject, text }, 'confirmation', done.withdrawLink ? [done.withdrawLink.id] : []);
 	}
-	return { ok: true, decision, mailed, contact, formVersion: done.current.version };
+	return { decision, mailed, contact, formVersion: done.current.version };
 }
 
 /** The plain-text copy of what was agreed, for the participant's own records. */
@@ -569,79 +503,59 @@ export function consentCopy(c: StudyContact, form: { version: number; body_markd
 
 // ---------------------------------------------------------------- participant: withdrawal
 
-export interface WithdrawPage {
-	contact: StudyContact;
-	state: ConsentState;
-	/** What the button records: a withdrawal of given consent, or (before consenting) a decline. */
-	effect: 'withdraw' | 'decline' | 'nothing';
-}
-
 const WITHDRAW_EFFECT = (s: ConsentState): WithdrawPage['effect'] => (s === 'consented' ? 'withdraw' : s === 'invited' || s === 'expired' ? 'decline' : 'nothing');
 
-export async function withdrawPageFor(token: string, ip: string | null, audit = true): Promise<WithdrawPage | RefusedLink> {
+/** The page a withdrawal link opens, or why it cannot be used (looking does not use the link up). */
+export async function withdrawPageFor(ctx: RequestContext, token: string, audit = true): Promise<WithdrawPage | RefusedLink> {
 	const check = await checkLink('withdraw', token);
-	if (!check.ok) return refusal(check.reason, check.link?.participant_id ?? null, ip, audit ? 'consent.withdraw-link.refused' : null);
-	const rows = await db().query<{ study_id: string; state: ConsentState }>(`SELECT p.study_id, ${STATE_SQL} AS state FROM participants p WHERE p.id = :id`, {
-		replacements: { id: check.link.participant_id },
-		type: QueryTypes.SELECT
-	});
-	return { contact: await studyContact(rows[0].study_id), state: rows[0].state, effect: WITHDRAW_EFFECT(rows[0].state) };
+	if (!check.ok) return refusal(check.reason, check.link?.participant_id ?? null, ctx.ipAddress, audit ? 'consent.withdraw-link.refused' : null);
+	const p = (await q.studyAndStateOf(check.link.participant_id))!;
+	return { contact: await studyContact(p.study_id), state: p.state, effect: WITHDRAW_EFFECT(p.state) };
 }
 
-export type WithdrawOutcome = { ok: true; effect: 'withdraw' | 'decline'; mailed: boolean; contact: StudyContact; flaggedRuns: number } | { ok: false; refused: RefusedLink };
+export interface WithdrawOutcome {
+	effect: 'withdraw' | 'decline';
+	mailed: boolean;
+	contact: StudyContact;
+	flaggedRuns: number;
+}
 
 /**
  * Withdraws consent from a withdrawal link: new work stops at once (the state changes in this transaction, and
  * work takes a share lock on the participant row), existing runs are flagged for the PI's decision, never deleted.
  */
-export async function withdraw(event: RequestEvent, token: string): Promise<WithdrawOutcome> {
-	const ip = contextOf(event).ipAddress;
-	let refusedFor: { reason: LinkRefusal | 'decided'; participantId: string | null; state?: ConsentState } | null = null;
-	const done = await db().transaction(async (t) => {
+export async function withdraw(ctx: RequestContext, token: string): Promise<WithdrawOutcome> {
+	const ip = ctx.ipAddress;
+	type Done = { p: ParticipantRow; effect: 'withdraw' | 'decline'; flagged: string[] };
+	const step = await db().transaction(async (t): Promise<LinkStep<Done>> => {
 		const check = await checkLink('withdraw', token, t);
-		if (!check.ok) {
-			refusedFor = { reason: check.reason, participantId: check.link?.participant_id ?? null };
-			return null;
-		}
+		if (!check.ok) return { refused: { reason: check.reason, participantId: check.link?.participant_id ?? null } };
 		const p = await lockParticipant(t, check.link.participant_id);
 		const effect = WITHDRAW_EFFECT(p.state);
-		if (effect === 'nothing') {
-			refusedFor = { reason: 'decided', participantId: p.id, state: p.state };
-			return null;
-		}
+		if (effect === 'nothing') return { refused: { reason: 'decided', participantId: p.id, state: p.state } };
 		await markLinkUsed(t, check.link.id);
 		await revokeOpenConsentLinks(t, p.id);
 		const at = fmtDate(new Date());
 		const flagged = effect === 'withdraw' ? await flagRunsOfParticipant(p.id, `Consent withdrawn on ${at}`, t) : [];
-		await db().query(
-			`INSERT INTO consent_records (participant_id, decision, form_version_id, invitation_id, ip_address) VALUES (:id, :decision, :fv, :linkId, :ip)`,
-			{ replacements: { id: p.id, decision: effect === 'withdraw' ? 'withdrawn' : 'declined', fv: p.consent_form_version_id, linkId: check.link.id, ip }, transaction: t }
-		);
-		await changeState(t, {
-			participant: p,
-			to: effect === 'withdraw' ? 'withdrawn' : 'declined',
-			actorUserId: null,
-			actorLabel: PARTICIPANT_LABEL,
-			note: effect === 'withdraw' ? `Consent withdrawn; ${flagged.length} existing run(s) flagged for the PI's decision.` : 'Declined through the withdrawal link before consenting.'
+		await q.insertConsentRecord(t, {
+			participantId: p.id,
+			decision: effect === 'withdraw' ? 'withdrawn' : 'declined',
+			formVersionId: p.consent_form_version_id,
+			confirmations: [],
+			signedOn: null,
+			linkId: check.link.id,
+			ip
 		});
-		await record(
-			{
-				action: effect === 'withdraw' ? 'consent.withdrawn' : 'consent.declined',
-				actorLabel: PARTICIPANT_LABEL,
-				studyId: p.study_id,
-				recordType: 'participant',
-				recordId: p.id,
-				ipAddress: ip,
-				details: { code: p.code, flaggedRuns: flagged }
-			},
-			t
-		);
-		return { p, effect, flagged };
+		await participantChanged(t, p, ip, {
+			to: effect === 'withdraw' ? 'withdrawn' : 'declined',
+			note: effect === 'withdraw' ? `Consent withdrawn; ${flagged.length} existing run(s) flagged for the PI's decision.` : 'Declined through the withdrawal link before consenting.',
+			action: effect === 'withdraw' ? 'consent.withdrawn' : 'consent.declined',
+			details: { flaggedRuns: flagged }
+		});
+		return { done: { p, effect, flagged } };
 	});
-	if (!done) {
-		const r = refusedFor as unknown as { reason: LinkRefusal | 'decided'; participantId: string | null; state?: ConsentState };
-		return { ok: false, refused: await refusal(r.reason, r.participantId, ip, 'consent.withdraw-link.refused', r.state) };
-	}
+	if ('refused' in step) return refuseLink(step.refused, ip, 'consent.withdraw-link.refused');
+	const done = step.done;
 	const contact = await studyContact(done.p.study_id);
 	const personal = await personalOf(done.p.id);
 	let mailed = false;
@@ -654,12 +568,7 @@ export async function withdraw(event: RequestEvent, token: string): Promise<With
 					`under the rules the ethics board approved for this study, whether they are kept or excluded. Nothing is deleted without that decision.\n\n` +
 					`Questions, or if you wish your data to be erased: ${contactLine(contact)}.`
 				: `${hello}\n\nWe have recorded that you do not wish to take part in the study ${studyLine(contact)}. We will not contact you again about it.\n\nQuestions: ${contactLine(contact)}.`;
-		try {
-			await sendMail({ to: personal.email, subject: `${done.effect === 'withdraw' ? 'Your withdrawal' : 'Your decision'}: study ${contact.studyCode}`, text });
-			mailed = true;
-		} catch (err) {
-			await record({ action: 'consent.mail.failed', actorLabel: SYSTEM_LABEL, outcome: 'failed', studyId: done.p.study_id, recordType: 'participant', recordId: done.p.id, details: { kind: 'withdrawal', error: (err as Error).message } });
-		}
+		mailed = await mailParticipant(done.p, { to: personal.email, subject: `${done.effect === 'withdraw' ? 'Your withdrawal' : 'Your decision'}: study ${contact.studyCode}`, text }, 'withdrawal');
 	}
-	return { ok: true, effect: done.effect, mailed, contact, flaggedRuns: done.flagged.length };
+	return { effect: done.effect, mailed, contact, flaggedRuns: done.flagged.length };
 }
