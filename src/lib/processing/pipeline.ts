@@ -4,7 +4,7 @@ import { compileModel, createWorkspace, inverseDynamicsBatch, PRISMATIC, type Ve
 import type { Recording } from './recording';
 import type { SessionModel } from './session-model';
 import { DEFAULT_END_TREATMENT, END_TREATMENTS, END_TREATMENT_LABELS, EDGE_ZONE_FAMILY, differentiateWithEnds, edgeZoneSamples, smoothWithEnds, type EndTreatment, type SmoothedSignal } from './edges';
-import { fillGaps, MIN_SAMPLES_FOR_FILTER, SignalError } from './signal';
+import { DEFAULT_MAX_GAP_SAMPLES, fillGaps, MIN_SAMPLES_FOR_FILTER, SignalError } from './signal';
 import { reliableRange, type ZoneSamples } from './zone-exclusion';
 
 const finite = z.number({ error: 'must be a number' }).refine(Number.isFinite, 'must be a finite number');
@@ -175,11 +175,14 @@ export function runPipeline(
 		for (let k = 0; k < frames; k++) if (x[k] !== x[k]) missing++;
 		if (missing) {
 			if (!options.fillGaps) throw new PipelineError(`channel "${name}" has ${missing} missing samples; re-run with gap filling on, or fix the file`);
-			const r = fillGaps(x, 10);
-			if (r.tooLong.length) throw new PipelineError(`channel "${name}": a gap of ${r.tooLong[0].length} samples at sample ${r.tooLong[0].start + 1} is too long to fill`);
+			// the gap rule (gapBridgeable of signal.ts): a gap at the start or end, or a long one, stays missing
+			const r = fillGaps(x, DEFAULT_MAX_GAP_SAMPLES);
+			if (r.tooLong.length) {
+				const { start, length } = r.tooLong[0];
+				const where = start === 0 ? ' at the start (nothing to interpolate from)' : start + length === frames ? ' at the end (nothing to interpolate from)' : '';
+				throw new PipelineError(`channel "${name}": a gap of ${length} samples at sample ${start + 1}${where} is too long to fill`);
+			}
 			x = r.filled;
-			for (let k = 0; k < frames; k++)
-				if (x[k] !== x[k]) throw new PipelineError(`channel "${name}": sample ${k + 1} is still missing after gap filling (a gap at the start or end cannot be interpolated)`);
 			filledGaps[name] = missing;
 		}
 		const fc = options.perChannelCutoffHz?.[name] ?? options.cutoffHz;

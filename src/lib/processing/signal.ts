@@ -354,6 +354,19 @@ export function differentiate(
 	return { velocity: v, acceleration: acc };
 }
 
+/** Longest run of missing samples that gap filling bridges unless told otherwise (the parse's and the pipeline's default). */
+export const DEFAULT_MAX_GAP_SAMPLES = 10;
+
+/**
+ * The gap rule, the one place it is written: a run of missing samples at 0-based `start`, `length` samples long,
+ * in a signal of `n` samples, can be bridged when it touches neither end (there are valid samples to interpolate
+ * from on both sides) and is at most maxGapSamples long. fillGaps fills exactly these runs; the recording checks
+ * report the others.
+ */
+export function gapBridgeable(start: number, length: number, n: number, maxGapSamples: number): boolean {
+	return start > 0 && start + length < n && length <= maxGapSamples;
+}
+
 /**
  * Fills runs of missing samples (NaN) of at most maxGapSamples by a local cubic: the interpolating polynomial
  * through the two valid samples on each side of the run (indices s−2, s−1, e+1, e+2 for a run s..e), evaluated at
@@ -386,7 +399,7 @@ export function fillGaps(
 		while (i < n && Number.isNaN(x[i])) i++;
 		const e = i - 1;
 		const length = e - s + 1;
-		if (s === 0 || e === n - 1 || length > maxGapSamples) {
+		if (!gapBridgeable(s, length, n, maxGapSamples)) {
 			tooLong.push({ start: s, length });
 			continue;
 		}

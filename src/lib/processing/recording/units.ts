@@ -1,0 +1,78 @@
+// The unit rule of recording files: which unit spellings a column may carry (header suffix or mapping) for each
+// quantity, and how a value in one of them becomes SI, with the factors taken from mathjs's unit definitions.
+//
+// Only mathjs's unit factories are taken (`create` with `unitDependencies`, so a bundle keeps just those), the
+// instance is made on the first conversion, and units are looked up once per column, never per cell: a
+// conversion is two numbers, SI = value × mul / div.
+import { create, unitDependencies, type Unit } from 'mathjs';
+
+export type AngleUnit = 'deg' | 'rad';
+export type PositionUnit = 'm' | 'mm';
+export type TimeUnit = 's' | 'ms';
+export type ChannelUnit = AngleUnit | PositionUnit;
+export type Quantity = 'angle' | 'position' | 'time';
+
+/**
+ * The spellings accepted per quantity, as a header suffix ("right.knee.flexion (deg)") or in a mapping. Only
+ * these: mathjs knows many more (grad, min, cm, …), and a unit we do not list is refused (`unit-unsupported`).
+ */
+export const UNITS = { angle: ['deg', 'rad'], position: ['m', 'mm'], time: ['s', 'ms'] } as const satisfies Record<
+	Quantity,
+	readonly string[]
+>;
+/** The unit every channel is stored in. */
+export const SI_UNIT = { angle: 'rad', position: 'm', time: 's' } as const satisfies Record<Quantity, string>;
+/** The units a mapping may give a channel column (columnMappingSchema). */
+export const CHANNEL_UNITS = [...UNITS.angle, ...UNITS.position] as const;
+
+/** The accepted spelling `text` of a unit of `quantity`, or undefined when it is none of UNITS[quantity]. */
+export function unitOf<Q extends Quantity>(quantity: Q, text: string | undefined): (typeof UNITS)[Q][number] | undefined {
+	return (UNITS[quantity] as readonly string[]).includes(text as string) ? (text as (typeof UNITS)[Q][number]) : undefined;
+}
+
+/** Our spellings that mathjs writes differently: the degree sign, and the middle dot of a product (N·m → "N m"). */
+export function mathjsName(unit: string): string {
+	return unit.replace(/°/g, 'deg').replace(/·/g, ' ');
+}
+
+/** value in SI = value × mul / div (one of mul, div is 1). */
+export interface Conversion {
+	mul: number;
+	div: number;
+}
+export const toSI = (v: number, c: Conversion) => (v * c.mul) / c.div;
+export const fromSI = (x: number, c: Conversion) => (x * c.div) / c.mul;
+
+let mathUnit: ((value: number, name: string) => Unit) | null = null;
+const unitOfMathjs = (value: number, name: string): Unit =>
+	(mathUnit ??= create({ unitDependencies }).unit as (value: number, name: string) => Unit)(value, name);
+
+const conversions = new Map<string, Conversion>();
+
+/**
+ * How a value in `unit` becomes a value in `si` (both in our spelling, e.g. "deg" → "rad", "mm" → "m",
+ * "N·m" → "N m"), from mathjs: 1 deg = π/180 rad, 1 mm = 0.001 m. When the SI unit holds a whole number of
+ * `unit` (1 m = 1000 mm, 1 s = 1000 ms) the value is divided by that number, which gives the nearest double to
+ * the exact quotient (1400 mm → 1.4 m), where multiplying by the inexact 0.001 can miss it by one unit in the
+ * last place (1400 × 0.001 = 1.4000000000000001); otherwise it is multiplied by the factor. Throws when mathjs
+ * does not know a unit or the two measure different things.
+ */
+export function conversion(unit: string, si: string): Conversion {
+	const key = `${unit}\u0000${si}`;
+	let c = conversions.get(key);
+	if (c) return c;
+	const from = mathjsName(unit);
+	const to = mathjsName(si);
+	const per = unitOfMathjs(1, to).toNumber(from);
+	c = Number.isInteger(per) && per > 1 ? { mul: 1, div: per } : { mul: unitOfMathjs(1, from).toNumber(to), div: 1 };
+	conversions.set(key, c);
+	return c;
+}
+
+/** The conversion of a unit of `quantity` to that quantity's SI unit. */
+export const toSIOf = (quantity: Quantity, unit: string): Conversion => conversion(unit, SI_UNIT[quantity]);
+
+/** A value given in `from` expressed in `to` (same quantity); unchanged when the units are the same. */
+export function convert(v: number, from: string, to: string, quantity: Quantity): number {
+	return from === to ? v : fromSI(toSI(v, toSIOf(quantity, from)), toSIOf(quantity, to));
+}
