@@ -121,6 +121,3 @@ export const requireStudy = (event: RequestEvent, action: StudyAction, studyId: 
 /** A study action's guard for a route, with the study the URL names loaded (404 for a malformed or unknown id). */
 export const requireStudyRecord = (event: RequestEvent, action: StudyAction, rawStudyId: string | null | undefined) =>
 	edge(event, () => studyFor(actorOf(event), contextOf(event), action, rawStudyId));
-
-/** @deprecated transitional name of requireStudyRecord; services should call studyFor(actor, ctx, …) instead. */
-export const guardStudy = requireStudyRecord;

@@ -37,9 +37,6 @@ export function fieldErrors(issues: z.core.$ZodIssue[]): Record<string, string> 
 	return out;
 }
 
-/** @deprecated transitional: services call studyFor (access/guard.ts), routes requireStudyRecord (http/edge.ts). */
-export { guardStudy } from '../http/edge';
-
 const ISO_DATE = /^\d{4}-\d{2}-\d{2}$/;
 const settingsSchema = z.object({
 	ethicsReference: z.string().trim().max(200, 'Keep the ethics reference under 200 characters.').transform((v) => v || null),
