@@ -62,5 +62,14 @@ export interface CompareGroup {
 	leftOut: number;
 	/** Whole trials normalised without their edge zones (0 when edge zones are included). */
 	trimmed: number;
-	dofs: { name: string; unit: string; positive: string | null; mean: (number | null)[]; sd: (number | null)[]; n: number; peakMax: { mean: number | null; sd: number | null }; peakMin: { mean: number | null; sd: number | null } }[];
+	dofs: {
+		name: string;
+		unit: string;
+		positive: string | null;
+		mean: (number | null)[];
+		sd: (number | null)[];
+		n: number;
+		peakMax: { mean: number | null; sd: number | null };
+		peakMin: { mean: number | null; sd: number | null };
+	}[];
 }

@@ -1,25 +1,12 @@
 // Shapes of result curves as the API and the pages hand them to plots (no server imports).
 import type { EdgeZoneView } from '../../processing/zone-exclusion';
+import type { Curve, SeriesAnswer } from '../../types/runs';
 
-export interface PlotCurve {
-	name: string;
-	quantity: string;
-	unit: string;
-	component?: 'x' | 'y' | 'z';
-	/** What a positive value means for this DOF (its sign rule). */
-	positive: string | null;
-	t: number[];
-	v: (number | null)[];
-}
+/** A curve as plots draw it: a run's curve (SeriesAnswer) of any quantity. */
+export type PlotCurve = Omit<Curve, 'quantity'> & { quantity: string };
 
-export interface PlotSeries {
-	runId: string;
-	samples: number;
-	curves: PlotCurve[];
-	bodyMassKg: number | null;
-	/** Where the run's results are not reliable near its ends (absent or computed: false: not known). */
-	edgeZone?: EdgeZoneView;
-}
+/** The curves of one run as plots take them (a SeriesAnswer; the edge zone absent or computed: false when not known). */
+export type PlotSeries = Pick<SeriesAnswer, 'runId' | 'samples' | 'bodyMassKg'> & { curves: PlotCurve[]; edgeZone?: EdgeZoneView };
 
 /** "right.shoulder.internalRotation" → "right shoulder internal rotation". */
 export const dofWords = (name: string): string => name.replace(/[._]/g, ' ').replace(/([a-z])([A-Z])/g, (_, a: string, b: string) => `${a} ${b.toLowerCase()}`);

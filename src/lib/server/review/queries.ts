@@ -18,7 +18,10 @@ export interface DoneRunRow {
 }
 
 /** Done runs that may be reviewed or compared (never those excluded after a consent withdrawal), oldest first. */
-function doneRuns(where: 's.id = :sid' | 'p.id = :pid AND s.study_id = :studyId', replacements: Record<string, string>): Promise<DoneRunRow[]> {
+function doneRuns(
+	where: 's.id = :sid' | 'p.id = :pid AND s.study_id = :studyId',
+	replacements: Record<string, string>
+): Promise<DoneRunRow[]> {
 	return db().query<DoneRunRow>(
 		`SELECT r.id, r.trial_id, t.file_name, s.id AS session_id, s.session_on::text AS session_on, p.id AS participant_id, p.code AS participant_code, r.flag_decision,
 		        (SELECT count(*) FROM runs o WHERE o.trial_id = r.trial_id AND (o.created_at, o.id) <= (r.created_at, r.id)) AS number,
@@ -35,7 +38,8 @@ function doneRuns(where: 's.id = :sid' | 'p.id = :pid AND s.study_id = :studyId'
 export const doneRunsOfSession = (sessionId: string) => doneRuns('s.id = :sid', { sid: sessionId });
 
 /** The participant's done runs (not excluded) in the study, oldest first. */
-export const doneRunsOfParticipant = (participantId: string, studyId: string) => doneRuns('p.id = :pid AND s.study_id = :studyId', { pid: participantId, studyId });
+export const doneRunsOfParticipant = (participantId: string, studyId: string) =>
+	doneRuns('p.id = :pid AND s.study_id = :studyId', { pid: participantId, studyId });
 
 /** The run's cycle events, or null when none are set. */
 export async function eventSetOfRun(runId: string, transaction?: Transaction): Promise<EventSet | null> {
@@ -57,7 +61,13 @@ export async function upsertEvents(
 		 ON CONFLICT (run_id) DO UPDATE SET times = EXCLUDED.times, source = EXCLUDED.source, rule = EXCLUDED.rule, created_by = EXCLUDED.created_by, updated_at = now()
 		 RETURNING updated_at`,
 		{
-			replacements: { runId: e.runId, times: e.times, source: e.source, rule: e.rule === null ? null : JSON.stringify(e.rule), actor: e.actorId },
+			replacements: {
+				runId: e.runId,
+				times: e.times,
+				source: e.source,
+				rule: e.rule === null ? null : JSON.stringify(e.rule),
+				actor: e.actorId
+			},
 			type: QueryTypes.SELECT,
 			transaction
 		}

@@ -63,7 +63,12 @@ export async function readRecording(
 	fillGaps: boolean
 ): Promise<Recording> {
 	const mapping = trial.mapping ? columnMappingSchema.parse(trial.mapping) : undefined;
-	const parsed = await parseRecording(readRaw(trial.rawUploadId, { expectSha256: trial.sha256 }), { fileName: trial.fileName, expected: built.expected, mapping, fillGaps });
+	const parsed = await parseRecording(readRaw(trial.rawUploadId, { expectSha256: trial.sha256 }), {
+		fileName: trial.fileName,
+		expected: built.expected,
+		mapping,
+		fillGaps
+	});
 	if (!parsed.ok) throw new RunFailure(`The recording could not be read: ${problemText(parsed.problems)}`);
 	return parsed.recording;
 }
@@ -123,7 +128,10 @@ function progressWriter(runId: string, attempt: number) {
 		while (pending) {
 			const p = pending;
 			pending = null;
-			await Run.update({ progress: Math.min(0.99, Math.max(0, p.fraction)), stage: p.stage.slice(0, 200) }, { where: { id: runId, attempts: attempt, state: 'running' } });
+			await Run.update(
+				{ progress: Math.min(0.99, Math.max(0, p.fraction)), stage: p.stage.slice(0, 200) },
+				{ where: { id: runId, attempts: attempt, state: 'running' } }
+			);
 		}
 		writing = null;
 	};
@@ -143,7 +151,8 @@ function progressWriter(runId: string, attempt: number) {
 	};
 }
 
-const issuesText = (issues: { path: PropertyKey[]; message: string }[]) => issues.map((i) => `${i.path.join('.')}: ${i.message}`).join('; ');
+const issuesText = (issues: { path: PropertyKey[]; message: string }[]) =>
+	issues.map((i) => `${i.path.join('.')}: ${i.message}`).join('; ');
 
 export interface ProcessOutcome {
 	state: 'done' | 'failed' | 'retrying' | 'skipped';
@@ -200,11 +209,19 @@ export async function processRun(
 		const msg = (err as Error).message || String(err);
 		const final = err instanceof RunFailure || job.retryCount >= job.retryLimit;
 		if (final) {
-			await Run.update({ state: 'failed', error: msg.slice(0, 4000), finishedAt: fn('now'), stage: null }, { where: ownedBy(runId, attempt) });
+			await Run.update(
+				{ state: 'failed', error: msg.slice(0, 4000), finishedAt: fn('now'), stage: null },
+				{ where: ownedBy(runId, attempt) }
+			);
 			return { state: 'failed', attempt, error: msg };
 		}
 		await Run.update(
-			{ state: 'queued', progress: 0, stage: null, error: `Attempt ${attempt} failed (${msg.slice(0, 2000)}); it will be tried again automatically.` },
+			{
+				state: 'queued',
+				progress: 0,
+				stage: null,
+				error: `Attempt ${attempt} failed (${msg.slice(0, 2000)}); it will be tried again automatically.`
+			},
 			{ where: ownedBy(runId, attempt) }
 		);
 		throw err;
@@ -215,13 +232,27 @@ export async function processRun(
  * Writes a run's results all or nothing: locks the run, checks consent again (a withdrawal during processing
  * wins), deletes any earlier rows of the run, inserts every series, and marks it done.
  */
-export async function storeResults(runId: string, attempt: number, participantId: string, computed: ComputedRun): Promise<{ ok: true } | { ok: false; reason: string }> {
+export async function storeResults(
+	runId: string,
+	attempt: number,
+	participantId: string,
+	computed: ComputedRun
+): Promise<{ ok: true } | { ok: false; reason: string }> {
 	return db().transaction(async (transaction) => {
 		const row = await Run.findByPk(runId, { attributes: ['state', 'attempts'], lock: transaction.LOCK.UPDATE, transaction });
 		if (!row || row.state !== 'running' || row.attempts !== attempt) return { ok: false as const, reason: 'another attempt owns this run' };
 		await asRunFailure(() => requireValidConsent(participantId, 'run', transaction));
 		await writeResults(runId, computed, transaction);
-		await record({ action: 'run.finished', actorLabel: 'worker', recordType: 'run', recordId: runId, details: { attempt, series: computed.series.length, timings: computed.timings } }, transaction);
+		await record(
+			{
+				action: 'run.finished',
+				actorLabel: 'worker',
+				recordType: 'run',
+				recordId: runId,
+				details: { attempt, series: computed.series.length, timings: computed.timings }
+			},
+			transaction
+		);
 		return { ok: true as const };
 	});
 }
@@ -237,7 +268,16 @@ export async function writeResults(runId: string, computed: ComputedRun, transac
 	await RunSeries.destroy({ where: { runId }, transaction });
 	await insertSeries(runId, computed.series, transaction);
 	await Run.update(
-		{ state: 'done', progress: 1, stage: null, error: null, finishedAt: fn('now'), summary: computed.summary, model: computed.model, edgeZone: { ...computed.edgeZone } },
+		{
+			state: 'done',
+			progress: 1,
+			stage: null,
+			error: null,
+			finishedAt: fn('now'),
+			summary: computed.summary,
+			model: computed.model,
+			edgeZone: { ...computed.edgeZone }
+		},
 		{ where: { id: runId }, transaction }
 	);
 }
@@ -253,5 +293,8 @@ export async function abandonRun(runId: string): Promise<void> {
 	const run = await Run.findByPk(runId, { attributes: ['id', 'state', 'jobId'] });
 	if (!run || (run.state !== 'queued' && run.state !== 'running')) return;
 	if (await pendingRunJob(run.jobId ?? run.id)) return;
-	await Run.update({ state: 'failed', finishedAt: fn('now'), stage: null, error: ABANDONED }, { where: { id: runId, state: ['queued', 'running'] } });
+	await Run.update(
+		{ state: 'failed', finishedAt: fn('now'), stage: null, error: ABANDONED },
+		{ where: { id: runId, state: ['queued', 'running'] } }
+	);
 }

@@ -3,45 +3,38 @@
 // attempt, and flags set across a participant's trials. Typed results; every other access goes through the models.
 import { QueryTypes, type Transaction } from 'sequelize';
 import { db } from '../db/index';
-import type { RunState } from '../db/models';
-import type { RunOptions } from '../../processing/pipeline';
-import type { FlagDecision } from '../../types/runs';
+import type { FlagDecision, RunView } from '../../types/runs';
 import type { SeriesRow } from './compute';
 
-/** A run row as read with its number within the trial. */
-export interface RunRow {
-	id: string;
-	trial_id: string;
-	state: RunState;
-	progress: number;
-	stage: string | null;
-	options: RunOptions;
-	error: string | null;
-	attempts: number;
-	created_at: Date;
-	started_at: Date | null;
-	finished_at: Date | null;
-	raw_sha256: string;
-	software_version: string;
-	flagged_reason: string | null;
-	flag_decision: string | null;
+/** A run row as read, with its number within the trial (a count, as pg returns it) and its times as dates. */
+export type RunRow = Omit<RunView, 'number' | 'createdAt' | 'startedAt' | 'finishedAt'> & {
 	number: string | number;
-}
+	createdAt: Date;
+	startedAt: Date | null;
+	finishedAt: Date | null;
+};
 
-const RUN_COLUMNS = `r.id, r.trial_id, r.state, r.progress, r.stage, r.options, r.error, r.attempts, r.created_at, r.started_at, r.finished_at,
-	r.raw_sha256, r.software_version, r.flagged_reason, r.flag_decision,
+const RUN_COLUMNS = `r.id, r.trial_id AS "trialId", r.state, r.progress, r.stage, r.options, r.error, r.attempts, r.created_at AS "createdAt", r.started_at AS "startedAt",
+	r.finished_at AS "finishedAt", r.raw_sha256 AS "rawSha256", r.software_version AS "softwareVersion", r.flagged_reason AS "flaggedReason", r.flag_decision AS "flagDecision",
 	(SELECT count(*) FROM runs o WHERE o.trial_id = r.trial_id AND (o.created_at, o.id) <= (r.created_at, r.id)) AS number`;
 
 /** Every run of the session's trials, oldest first. */
 export function runRowsOfSession(sessionId: string): Promise<RunRow[]> {
-	return db().query<RunRow>(`SELECT ${RUN_COLUMNS} FROM runs r JOIN trials t ON t.id = r.trial_id WHERE t.session_id = :sessionId ORDER BY r.created_at, r.id`, {
-		replacements: { sessionId },
-		type: QueryTypes.SELECT
-	});
+	return db().query<RunRow>(
+		`SELECT ${RUN_COLUMNS} FROM runs r JOIN trials t ON t.id = r.trial_id WHERE t.session_id = :sessionId ORDER BY r.created_at, r.id`,
+		{
+			replacements: { sessionId },
+			type: QueryTypes.SELECT
+		}
+	);
 }
 
 export async function runRowById(runId: string, transaction?: Transaction): Promise<RunRow | null> {
-	const rows = await db().query<RunRow>(`SELECT ${RUN_COLUMNS} FROM runs r WHERE r.id = :runId`, { replacements: { runId }, type: QueryTypes.SELECT, transaction });
+	const rows = await db().query<RunRow>(`SELECT ${RUN_COLUMNS} FROM runs r WHERE r.id = :runId`, {
+		replacements: { runId },
+		type: QueryTypes.SELECT,
+		transaction
+	});
 	return rows[0] ?? null;
 }
 
@@ -68,7 +61,10 @@ const TRIAL_CONTEXT = `SELECT t.id AS "trialId", s.id AS "sessionId", s.study_id
 
 /** The trial's context when it belongs to the study, else null. */
 export async function trialContextInStudy(trialId: string, studyId: string): Promise<TrialContext | null> {
-	const rows = await db().query<TrialContext>(`${TRIAL_CONTEXT} WHERE t.id = :trialId AND s.study_id = :studyId`, { replacements: { trialId, studyId }, type: QueryTypes.SELECT });
+	const rows = await db().query<TrialContext>(`${TRIAL_CONTEXT} WHERE t.id = :trialId AND s.study_id = :studyId`, {
+		replacements: { trialId, studyId },
+		type: QueryTypes.SELECT
+	});
 	return rows[0] ?? null;
 }
 
@@ -83,10 +79,13 @@ export async function trialContextOfRun(runId: string): Promise<(TrialContext & 
 
 /** The session of a trial of the study, or null. */
 export async function sessionIdOfTrial(trialId: string, studyId: string): Promise<string | null> {
-	const rows = await db().query<{ id: string }>(`SELECT s.id FROM trials t JOIN sessions s ON s.id = t.session_id WHERE t.id = :t AND s.study_id = :s`, {
-		replacements: { t: trialId, s: studyId },
-		type: QueryTypes.SELECT
-	});
+	const rows = await db().query<{ id: string }>(
+		`SELECT s.id FROM trials t JOIN sessions s ON s.id = t.session_id WHERE t.id = :t AND s.study_id = :s`,
+		{
+			replacements: { t: trialId, s: studyId },
+			type: QueryTypes.SELECT
+		}
+	);
 	return rows[0]?.id ?? null;
 }
 

@@ -70,22 +70,12 @@ export function softwareVersion(): string {
 
 const iso = (d: Date | null) => (d ? new Date(d).toISOString() : null);
 const viewOf = (r: RunRow): RunView => ({
-	id: r.id,
-	trialId: r.trial_id,
+	...r,
 	number: Number(r.number),
-	state: r.state,
 	progress: Number(r.progress),
-	stage: r.stage,
-	options: r.options,
-	error: r.error,
-	attempts: r.attempts,
-	createdAt: iso(r.created_at)!,
-	startedAt: iso(r.started_at),
-	finishedAt: iso(r.finished_at),
-	rawSha256: r.raw_sha256,
-	softwareVersion: r.software_version,
-	flaggedReason: r.flagged_reason,
-	flagDecision: r.flag_decision
+	createdAt: iso(r.createdAt)!,
+	startedAt: iso(r.startedAt),
+	finishedAt: iso(r.finishedAt)
 });
 
 /** Every run of the session's trials, oldest first (the caller has checked access to the session). */
