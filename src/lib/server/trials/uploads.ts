@@ -153,7 +153,7 @@ function chunker(file: Readable, write: (seq: number, bytes: Buffer) => Promise<
 }
 
 interface FileContext {
-	ctx: RequestContext;
+	requestContext: RequestContext;
 	actor: Actor;
 	studyId: string;
 	session: Session;
@@ -269,7 +269,7 @@ async function receiveFile(ctx: FileContext, file: Readable, info: busboy.FileIn
 				else {
 					const p = await MappingPreset.create({ studyId: ctx.studyId, name: presetName, mapping, createdBy: ctx.actor.id }, { transaction: t });
 					presetSaved = { id: p.id, name: p.name };
-					await recordPreset(ctx.actor, ctx.ctx, ctx.studyId, p, t);
+					await recordPreset(ctx.actor, ctx.requestContext, ctx.studyId, p, t);
 				}
 			}
 			await record(
@@ -280,7 +280,7 @@ async function receiveFile(ctx: FileContext, file: Readable, info: busboy.FileIn
 					studyId: ctx.studyId,
 					recordType: 'trial',
 					recordId: trial.id,
-					ipAddress: ctx.ctx.ipAddress,
+					ipAddress: ctx.requestContext.ipAddress,
 					details: { sessionId: ctx.session.id, participant: ctx.participantCode, fileName, byteSize, sha256, frames, sampleHz: rec.sampleHz, mapped: !!mapping, presetId: presetId ?? null, warnings: rec.warnings.length }
 				},
 				t
@@ -306,8 +306,8 @@ async function receiveFile(ctx: FileContext, file: Readable, info: busboy.FileIn
 		if (err instanceof UniqueConstraintError) {
 			// the same file arrived twice at once: the other request stored it
 			outcome = { fileName, status: 409, message: `${fileName} was uploaded to this session at the same moment by another request; it was not stored twice.` };
-		} else if (conflictMessage(err) !== null) {
-			outcome = { fileName, status: 409, message: conflictMessage(err)! };
+		} else if (isDomainError(err) && err.kind === 'conflict') {
+			outcome = { fileName, status: 409, message: err.message };
 		} else throw err;
 	}
 	if (outcome.status !== 201) {
@@ -320,7 +320,7 @@ async function receiveFile(ctx: FileContext, file: Readable, info: busboy.FileIn
 			studyId: ctx.studyId,
 			recordType: 'session',
 			recordId: ctx.session.id,
-			ipAddress: ctx.ctx.ipAddress,
+			ipAddress: ctx.requestContext.ipAddress,
 			details: {
 				participant: ctx.participantCode,
 				fileName,
@@ -333,14 +333,6 @@ async function receiveFile(ctx: FileContext, file: Readable, info: busboy.FileIn
 		});
 	}
 	return outcome;
-}
-
-/** The conflict (409) a check inside a file's transaction refused it with, or null for any other failure. */
-function conflictMessage(err: unknown): string | null {
-	if (isDomainError(err)) return err.kind === 'conflict' ? err.message : null;
-	// a check not yet moved to domain errors throws an HTTP error object: read it without importing SvelteKit
-	const http = err as { status?: unknown; body?: { message?: unknown } } | null;
-	return http?.status === 409 && typeof http.body?.message === 'string' ? http.body.message : null;
 }
 
 const invalid = (message: string) => new DomainError('invalid', message);
@@ -385,7 +377,7 @@ export async function receiveTrials(actor: Actor | null, reqCtx: RequestContext,
 			throw invalid(`The upload is not a well-formed multipart form (${(err as Error).message}).`);
 		}
 		const fields: Fields = new Map();
-		const ctx: FileContext = { ctx: reqCtx, actor: a, studyId: study.id, session, participantCode, expected, fields, limit };
+		const ctx: FileContext = { requestContext: reqCtx, actor: a, studyId: study.id, session, participantCode, expected, fields, limit };
 		const outcomes: UploadOutcome[] = [];
 		let tooMany = false;
 		let chain: Promise<void> = Promise.resolve();
