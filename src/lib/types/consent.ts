@@ -73,3 +73,13 @@ export interface WithdrawPage {
 	/** What the button records: a withdrawal of given consent, or (before consenting) a decline. */
 	effect: 'withdraw' | 'decline' | 'nothing';
 }
+
+/** One published version of a study's consent form, as the consent-forms page lists it. */
+export interface ConsentVersionView {
+	id: string;
+	version: number;
+	bodyMarkdown: string;
+	bodyHtml: string;
+	confirmations: string[];
+	publishedAt: string;
+}

@@ -2,7 +2,7 @@
 import { redirect } from '@sveltejs/kit';
 import { may } from '$lib/server/access/guard';
 import { formEdge, callerOf, requireStudyRecord } from '$lib/server/http/edge';
-import { listConsentVersions, publishConsentVersion } from '$lib/server/studies/records';
+import { listConsentVersions, publishConsentVersion } from '$lib/server/consent/forms';
 import type { Actions, PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async (event) => {
