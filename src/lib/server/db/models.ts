@@ -8,6 +8,7 @@ import {
 	type NonAttribute,
 	type Sequelize
 } from 'sequelize';
+import type { StudyRole } from '../../types/studies';
 import type { RunOptions, SummaryRow } from '../../processing/pipeline';
 import { sessionSetupSchema, type SessionSetup } from '../../processing/session-model';
 import { columnMappingSchema, type ColumnMapping } from '../../processing/recording';
@@ -68,7 +69,7 @@ export function initModels(sequelize: Sequelize): void {
 	initSessionModels(sequelize);
 }
 
-export type StudyRole = 'pi' | 'researcher' | 'technician';
+export type { StudyRole };
 
 /** A person who signs in (never a participant). Columns beyond Auth.js' are ours. */
 export class User extends Model<InferAttributes<User>, InferCreationAttributes<User>> {

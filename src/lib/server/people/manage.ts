@@ -6,11 +6,11 @@ import { isUuid, may, type Actor } from '../access/guard';
 import { linkBase, type RequestContext } from '../access/context';
 import { FormProblem, notFound, type FieldErrors } from '../errors';
 import { record } from '../audit/record';
-import { config } from '../config';
 import { currentLab } from '../studies/lab';
 import { sendMail } from '../mail/index';
 import { hashPassword, passwordProblem } from '../auth/password';
 import { consume, inspectToken, issueToken, LINK_REFUSED_MESSAGE, TOKEN_LIFETIME_MS, type TokenRefusal } from '../auth/tokens';
+import { PEOPLE_PER_PAGE, PEOPLE_SORTS, type PeoplePage, type PeopleQuery, type PeopleSort, type PersonSummary, type RoleHeld, type StudyChoice } from '../../types/people';
 
 /** Every session of the account stops working at its next request (they carry the old version number). */
 export async function signOutEverywhere(userId: string, transaction?: Transaction): Promise<void> {
@@ -55,43 +55,7 @@ const minutes = (ms: number) => Math.round(ms / 60_000);
 
 // ---------------------------------------------------------------------------------------------- list and read
 
-export const PEOPLE_PER_PAGE = 25;
-export const PEOPLE_SORTS = ['name', 'email', 'created'] as const;
-export type PeopleSort = (typeof PEOPLE_SORTS)[number];
-
-export interface PeopleQuery {
-	q: string;
-	sort: PeopleSort;
-	dir: 'asc' | 'desc';
-	page: number;
-}
-
-export interface RoleHeld {
-	studyId: string;
-	code: string;
-	title: string;
-	role: StudyRole;
-}
-
-export interface PersonSummary {
-	id: string;
-	name: string | null;
-	email: string;
-	isAdmin: boolean;
-	deactivatedAt: Date | null;
-	/** Invited, but has neither accepted the invitation nor signed in with a password. */
-	invitationPending: boolean;
-	createdAt: Date;
-	roles: RoleHeld[];
-}
-
-export interface PeoplePage {
-	query: PeopleQuery;
-	people: PersonSummary[];
-	total: number;
-	pageCount: number;
-	perPage: number;
-}
+export { PEOPLE_PER_PAGE, PEOPLE_SORTS, type PeoplePage, type PeopleQuery, type PeopleSort, type PersonSummary, type RoleHeld, type StudyChoice } from '../../types/people';
 
 /** Reads ?q=&sort=&dir=&page= leniently: anything unknown falls back to the default. */
 export function parsePeopleQuery(params: URLSearchParams): PeopleQuery {
@@ -150,12 +114,6 @@ export async function listPeople(actor: Actor, query: PeopleQuery): Promise<Peop
 	const users = await User.findAll({ where, order: order as never, limit: PEOPLE_PER_PAGE, offset: (page - 1) * PEOPLE_PER_PAGE });
 	const roles = await rolesOf(users.map((u) => u.id));
 	return { query: { ...query, page }, people: users.map((u) => summary(u, roles.get(u.id) ?? [])), total, pageCount, perPage: PEOPLE_PER_PAGE };
-}
-
-export interface StudyChoice {
-	id: string;
-	code: string;
-	title: string;
 }
 
 /** Every study, for the role pickers. */

@@ -1,5 +1,6 @@
 // Studies as people see them: the list of one's studies and one study's team, each read behind the access check.
-import { Participant, Study, StudyMember, User, type StudyRole } from '../db/models';
+import { Participant, Study, StudyMember, User } from '../db/models';
+import type { StudyDetail, StudyRole, StudySummary } from '../../types/studies';
 import { may, requireActor, studyFor, type Actor } from '../access/guard';
 import type { RequestContext } from '../access/context';
 import { notFound } from '../errors';
@@ -14,29 +15,7 @@ const ROLE_ORDER: Record<StudyRole, number> = { pi: 0, researcher: 1, technician
 
 export { isUuid } from '../access/guard';
 
-export interface StudySummary {
-	id: string;
-	code: string;
-	title: string;
-	/** The signed-in person's role, or null (an administrator looking at a study they are not on). */
-	role: StudyRole | null;
-	roleLabel: string | null;
-	teamSize: number;
-}
-
-export interface StudyDetail {
-	id: string;
-	code: string;
-	title: string;
-	role: StudyRole;
-	roleLabel: string;
-	ethicsReference: string | null;
-	ethicsExpiresOn: string | null;
-	defaultTable: string;
-	participantCount: number;
-	mayEdit: boolean;
-	team: { name: string; role: StudyRole; roleLabel: string; isYou: boolean }[];
-}
+export type { StudySummary, StudyDetail } from '../../types/studies';
 
 /** The studies the person holds a role in, by code; administrators see every study (they manage the list). */
 export async function listStudies(who: Actor | null): Promise<{ studies: StudySummary[]; seesAll: boolean }> {
