@@ -1,19 +1,18 @@
 // The two joint kinds: each supplies its transform (rotation body → parent, origin in the parent) and how its rate moves the body.
 import { PRISMATIC, type Model } from './model';
-import { addCross3, addScaled3, axisRotation, copy3, matMul3, mul3, mulT3 } from './vec';
+import { addCross3, addScaled3, axisRotation, matMul3, mul3, mulT3 } from './vec';
 import type { Workspace } from './workspace';
 
 /**
- * Revolute joint: E = R0 · Rot(axis, q), right-handed; the origin stays at the anchor. Also keeps cos q and ±sin q
- * (ws.cs) for rnea-fast.ts, which turns a joint about a body axis with no fixed rotation (model.planar) by those
- * alone and asks for E there only when `full` is set.
+ * Revolute joint: E = R0 · Rot(axis, q), right-handed; the origin stays at the anchor (ws.rp as created). Also
+ * keeps cos q and ±sin q (ws.cs) for rnea-fast.ts, which turns a joint about a body axis with no fixed rotation
+ * (model.planar) by those alone and asks for E there only when `full` is set.
  */
 export function revoluteTransform(m: Model, ws: Workspace, i: number, q: number, full: boolean): void {
 	const c = Math.cos(q),
 		s = Math.sin(q);
 	ws.cs[2 * i] = c;
 	ws.cs[2 * i + 1] = m.axisSign[i] * s; // about −e, a turn by q is one by −q about e
-	copy3(m.anchor, 3 * i, ws.rp, 3 * i);
 	if (m.planar[i] !== 0 && !full) return;
 	axisRotation(m.axis, 3 * i, c, s, ws.E, 9 * i);
 	if (m.hasRot0[i]) matMul3(m.rot0, 9 * i, ws.E, 9 * i, ws.E, 9 * i);
@@ -44,11 +43,6 @@ export function worldRotations(m: Model, ws: Workspace): void {
 		if (p < 0) for (let k = 9 * i; k < 9 * i + 9; k++) ws.Rw[k] = ws.E[k];
 		else matMul3(ws.Rw, 9 * p, ws.E, 9 * i, ws.Rw, 9 * i);
 	}
-}
-
-/** True when body i's origin is its parent's (a revolute joint at the parent's origin, as in multi-DOF chains). */
-export function atParentOrigin(m: Model, i: number): boolean {
-	return m.anchorZero[i] === 1 && m.kind[i] !== PRISMATIC;
 }
 
 /** out = Eᵀ·v: parent axes → body i's axes. */

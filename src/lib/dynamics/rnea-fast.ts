@@ -1,7 +1,7 @@
 // The Newton–Euler passes of rnea.ts tuned for whole recordings: vectors in local variables, a joint about a body axis turned by
 // cos q and sin q alone, no lever arm for a joint at its parent's origin. Must agree with rnea.ts (tests/unit/dynamics/fast-path.test.ts).
 import { PRISMATIC, type Model, type Vec3 } from './model';
-import { atParentOrigin, relativeTransforms, worldRotations } from './joints';
+import { relativeTransforms, worldRotations } from './joints';
 import { reduceLoads } from './loads';
 import type { ExternalLoad, Workspace } from './workspace';
 
@@ -26,7 +26,7 @@ export function rneaFrameFast(
 	qo: number,
 	fullTransforms = false
 ): void {
-	const { n, parent, kind, axis, mass, com, inertia, planar, axisSign } = m;
+	const { n, parent, kind, axis, mass, com, inertia, planar, axisSign, anchorZero } = m;
 	const { E, rp, w, al, acc, f, t, fa, na, cs } = ws;
 	const hasLoads = loads !== null && loads.length > 0;
 	relativeTransforms(m, ws, q, o, hasLoads || fullTransforms);
@@ -53,8 +53,8 @@ export function rneaFrameFast(
 		let pa0 = acc[p3 + j0],
 			pa1 = acc[p3 + j1],
 			pa2 = acc[p3 + j2];
-		if (!atParentOrigin(m, i)) {
-			// the joint point r: a_p + ω̇_p × r + ω_p × (ω_p × r)
+		if (anchorZero[i] === 0 || kind[i] === PRISMATIC) {
+			// the joint point r, unless it is the parent's origin: a_p + ω̇_p × r + ω_p × (ω_p × r)
 			const r0 = rp[i3 + j0],
 				r1 = rp[i3 + j1],
 				r2 = rp[i3 + j2];
@@ -217,7 +217,7 @@ export function rneaFrameFast(
 			n1 = E[i9 + 3] * t0 + E[i9 + 4] * t1 + E[i9 + 5] * t2;
 			n2 = E[i9 + 6] * t0 + E[i9 + 7] * t1 + E[i9 + 8] * t2;
 		}
-		if (!atParentOrigin(m, i)) {
+		if (anchorZero[i] === 0 || kind[i] === PRISMATIC) {
 			const r0 = rp[i3 + j0],
 				r1 = rp[i3 + j1],
 				r2 = rp[i3 + j2];

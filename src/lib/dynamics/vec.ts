@@ -3,12 +3,6 @@
 
 type F = Float64Array;
 
-export function copy3(v: F, vo: number, out: F, oo: number): void {
-	out[oo] = v[vo];
-	out[oo + 1] = v[vo + 1];
-	out[oo + 2] = v[vo + 2];
-}
-
 /** out += s·v */
 export function addScaled3(s: number, v: F, vo: number, out: F, oo: number): void {
 	out[oo] += s * v[vo];

@@ -20,7 +20,7 @@ export interface Workspace {
 	readonly E: Float64Array;
 	/** cos q, sin q of each plane-rotation joint (model.planar), used instead of E on the fast path. */
 	readonly cs: Float64Array;
-	/** Each body's origin in its parent's frame. */
+	/** Each body's origin in its parent's frame: the anchor, which a prismatic joint moves each frame. */
 	readonly rp: Float64Array;
 	/**
 	 * Body-frame angular velocity, angular acceleration, origin acceleration (gravity included as −g), 3(n + 1)
@@ -64,7 +64,7 @@ export function createWorkspace(model: Model): Workspace {
 		model,
 		E: new Float64Array(9 * n),
 		cs: new Float64Array(2 * n),
-		rp: v3(),
+		rp: Float64Array.from(model.anchor),
 		w: new Float64Array(3 * n + 3),
 		al: new Float64Array(3 * n + 3),
 		acc: new Float64Array(3 * n + 3),
