@@ -157,24 +157,21 @@ export class ChannelChecks {
 	private excess = 0;
 	private readonly lo: number;
 	private readonly hi: number;
-	private readonly mul: number;
-	private readonly div: number;
-	constructor(
-		col: CheckedColumn,
-		conv: Conversion,
-		private readonly sign: 1 | -1
-	) {
+	/** sign × the conversion to SI; exact for the angle units that have a band (their div is 1). */
+	private readonly scale: number;
+	private readonly banded: boolean;
+	constructor(col: CheckedColumn, conv: Conversion, sign: 1 | -1) {
 		const band = rangeBand(col);
+		this.banded = band !== null;
 		this.lo = band ? band.lo : -Infinity;
 		this.hi = band ? band.hi : Infinity;
-		this.mul = conv.mul;
-		this.div = conv.div;
+		this.scale = (sign * conv.mul) / conv.div;
 	}
 	push(v: number): void {
 		const blank = v !== v;
 		this.gaps.step(this.n, blank);
-		if (!blank && v !== Infinity && v !== -Infinity) {
-			const x = this.sign * ((v * this.mul) / this.div);
+		if (this.banded && !blank && v !== Infinity) {
+			const x = v * this.scale;
 			const e = x < this.lo ? this.lo - x : x > this.hi ? x - this.hi : 0;
 			if (e > this.excess) {
 				this.excess = e;

@@ -70,10 +70,13 @@ function target(c: PlannedColumn, keepValues: boolean): Target {
 	};
 }
 
-/** One cell's number (NaN = a gap, REPORTED = a cell with its own problem) into the column's checks and storage. */
+/**
+ * One cell's number (NaN = a gap, REPORTED = a cell with its own problem): into the column's storage when values
+ * are kept (checked in one pass at the end, which is faster), otherwise straight into its checks.
+ */
 function push(tg: Target, v: number): void {
-	tg.checks.push(v);
 	if (tg.values) tg.values.push(v);
+	else tg.checks.push(v);
 }
 
 /** Parses a recording; streams through papaparse chunk by chunk and never needs the whole file as one string. */
@@ -302,12 +305,14 @@ export async function parseRecording(
 	const byName = new Map(pl.targets.map((tg) => [tg.channel.name, tg]));
 	for (const e of opts.expected) {
 		const tg = byName.get(e.name)!;
-		tg.checks.report(tg, t, lines, fill, maxGap, problems);
 		if (!tg.values) {
+			tg.checks.report(tg, t, lines, fill, maxGap, problems);
 			channels.push({ name: e.name, values: new Float64Array(0) });
 			continue;
 		}
 		let values = tg.values.take();
+		for (let i = 0; i < values.length; i++) tg.checks.push(values[i]);
+		tg.checks.report(tg, t, lines, fill, maxGap, problems);
 		// gaps are bridged in the column's own unit, then every sample is converted to SI and its sign applied
 		if (fill && tg.checks.gaps.count > 0) values = fillGaps(values, maxGap).filled;
 		const { mul, div } = tg.conv;
