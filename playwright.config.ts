@@ -35,6 +35,12 @@ export default defineConfig({
 		url: `http://127.0.0.1:${port}/api/health`,
 		reuseExistingServer: false,
 		timeout: 60_000,
-		env: { ...(process.env as Record<string, string>), HOST: '127.0.0.1', PORT: String(port), ORIGIN: `http://127.0.0.1:${port}`, BODY_SIZE_LIMIT: 'Infinity' }
+		env: {
+			...(process.env as Record<string, string>),
+			HOST: '127.0.0.1',
+			PORT: String(port),
+			ORIGIN: `http://127.0.0.1:${port}`,
+			BODY_SIZE_LIMIT: 'Infinity'
+		}
 	}
 });

@@ -4,7 +4,16 @@ import path from 'node:path';
 import { fileURLToPath } from 'node:url';
 import type { Sequelize } from 'sequelize';
 import { z } from 'zod';
-import { ConsentFormVersion, Lab, Participant, ParticipantLength, ParticipantPersonal, Study, StudyMember, User } from '../src/lib/server/db/models';
+import {
+	ConsentFormVersion,
+	Lab,
+	Participant,
+	ParticipantLength,
+	ParticipantPersonal,
+	Study,
+	StudyMember,
+	User
+} from '../src/lib/server/db/models';
 import { record } from '../src/lib/server/audit/record';
 import { hashPassword } from '../src/lib/server/auth/password';
 import { seedConsent } from './consent';
@@ -51,7 +60,14 @@ const participantsFile = z.object({
 				})
 			),
 			/** participant: 1-based position in the list above */
-			lengths: z.array(z.object({ participant: z.number().int().min(1), segment: z.string().min(1), lengthM: z.number().positive(), measuredOn: z.string() }))
+			lengths: z.array(
+				z.object({
+					participant: z.number().int().min(1),
+					segment: z.string().min(1),
+					lengthM: z.number().positive(),
+					measuredOn: z.string()
+				})
+			)
 		})
 	)
 });
@@ -101,7 +117,11 @@ export async function loadDemoSeed(sequelize: Sequelize): Promise<SeedReport> {
 			for (const [code, role] of Object.entries(p.roles)) {
 				const studyId = studyIds.get(code);
 				if (!studyId) throw new Error(`seeds/demo/people.json: ${p.email} has a role in unknown study ${code}`);
-				const [, m] = await StudyMember.findOrCreate({ where: { studyId, userId: user.id }, defaults: { studyId, userId: user.id, role }, transaction });
+				const [, m] = await StudyMember.findOrCreate({
+					where: { studyId, userId: user.id },
+					defaults: { studyId, userId: user.id, role },
+					transaction
+				});
 				if (m) created.push(`role ${code}:${role} for ${p.email}`);
 			}
 		}
@@ -112,14 +132,25 @@ export async function loadDemoSeed(sequelize: Sequelize): Promise<SeedReport> {
 			// fill only what is still empty: a lab's own settings are never overwritten
 			if (study.participantPrefix === null) {
 				await study.update(
-					{ participantPrefix: st.participantPrefix, ethicsReference: study.ethicsReference ?? st.ethicsReference, ethicsExpiresOn: study.ethicsExpiresOn ?? st.ethicsExpiresOn, defaultTable: st.defaultTable },
+					{
+						participantPrefix: st.participantPrefix,
+						ethicsReference: study.ethicsReference ?? st.ethicsReference,
+						ethicsExpiresOn: study.ethicsExpiresOn ?? st.ethicsExpiresOn,
+						defaultTable: st.defaultTable
+					},
 					{ transaction }
 				);
 				created.push(`settings of ${code}`);
 			}
 			const [, formMade] = await ConsentFormVersion.findOrCreate({
 				where: { studyId, version: 1 },
-				defaults: { studyId, version: 1, bodyMarkdown: st.consentForm.bodyMarkdown, confirmations: st.consentForm.confirmations, publishedBy: null },
+				defaults: {
+					studyId,
+					version: 1,
+					bodyMarkdown: st.consentForm.bodyMarkdown,
+					confirmations: st.consentForm.confirmations,
+					publishedBy: null
+				},
 				transaction
 			});
 			if (formMade) created.push(`consent form ${code} v1`);
@@ -129,7 +160,16 @@ export async function loadDemoSeed(sequelize: Sequelize): Promise<SeedReport> {
 				const pcode = `${st.participantPrefix}-${String(n).padStart(3, '0')}`;
 				const [row, made] = await Participant.findOrCreate({
 					where: { code: pcode },
-					defaults: { studyId, code: pcode, sex: p.sex, birthYear: p.birthYear, bodyMassKg: p.bodyMassKg, statureM: p.statureM, dominantSide: p.dominantSide, notes: null },
+					defaults: {
+						studyId,
+						code: pcode,
+						sex: p.sex,
+						birthYear: p.birthYear,
+						bodyMassKg: p.bodyMassKg,
+						statureM: p.statureM,
+						dominantSide: p.dominantSide,
+						notes: null
+					},
 					transaction
 				});
 				ids.push(row.id);

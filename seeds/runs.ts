@@ -56,18 +56,38 @@ export async function seedSessionsAndRuns(sequelize: Sequelize, transaction: Tra
 			{ code: demo.participant, study: demo.study }
 		);
 		if (!p) throw new Error(`demo session: no participant ${demo.participant} in ${demo.study}`);
-		if (await one(`SELECT 1 FROM trials t JOIN sessions s ON s.id = t.session_id WHERE s.participant_id = :pid AND t.sha256 = :sha256`, { pid: p.id, sha256 })) continue;
+		if (
+			await one(`SELECT 1 FROM trials t JOIN sessions s ON s.id = t.session_id WHERE s.participant_id = :pid AND t.sha256 = :sha256`, {
+				pid: p.id,
+				sha256
+			})
+		)
+			continue;
 		const user = await one<{ id: string }>(`SELECT id FROM users WHERE email = :email`, { email: demo.createdBy });
-		const setup = sessionSetupSchema.parse(JSON.parse(fs.readFileSync(path.join(here, 'recordings', `${demo.recording}.setup.json`), 'utf8')));
+		const setup = sessionSetupSchema.parse(
+			JSON.parse(fs.readFileSync(path.join(here, 'recordings', `${demo.recording}.setup.json`), 'utf8'))
+		);
 		const body = await participantBodyOf(p.id, transaction);
 		const built = buildSessionModel(body, setup);
 
 		const session = await Session.create(
-			{ studyId: p.study_id, participantId: p.id, sessionOn: demo.sessionOn, operator: demo.operator, task: demo.task, conditions: demo.conditions, setup, createdBy: user?.id ?? null },
+			{
+				studyId: p.study_id,
+				participantId: p.id,
+				sessionOn: demo.sessionOn,
+				operator: demo.operator,
+				task: demo.task,
+				conditions: demo.conditions,
+				setup,
+				createdBy: user?.id ?? null
+			},
 			{ transaction }
 		);
 		const fileName = `${demo.recording}.csv`;
-		const upload = await RawUpload.create({ sha256, byteSize: bytes.length, fileName, contentType: 'text/csv', uploadedBy: user?.id ?? null }, { transaction });
+		const upload = await RawUpload.create(
+			{ sha256, byteSize: bytes.length, fileName, contentType: 'text/csv', uploadedBy: user?.id ?? null },
+			{ transaction }
+		);
 		for (let seq = 0; seq * RAW_CHUNK_BYTES < bytes.length; seq++) {
 			await writeRawChunk(upload.id, seq, bytes.subarray(seq * RAW_CHUNK_BYTES, (seq + 1) * RAW_CHUNK_BYTES), transaction);
 		}
@@ -92,7 +112,16 @@ export async function seedSessionsAndRuns(sequelize: Sequelize, transaction: Tra
 		);
 		const options = runOptionsSchema.parse({});
 		const run = await Run.create(
-			{ trialId: trial.id, state: 'running', attempts: 1, options, rawSha256: sha256, softwareVersion: softwareVersion(), createdBy: user?.id ?? null, startedAt: new Date() },
+			{
+				trialId: trial.id,
+				state: 'running',
+				attempts: 1,
+				options,
+				rawSha256: sha256,
+				softwareVersion: softwareVersion(),
+				createdBy: user?.id ?? null,
+				startedAt: new Date()
+			},
 			{ transaction }
 		);
 		await writeResults(run.id, computeRun(body, setup, rec, options), transaction);

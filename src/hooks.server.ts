@@ -60,7 +60,8 @@ const headers: Handle = async ({ event, resolve }) => {
 export function gzipLargeJson(request: Request, response: Response, threshold = 32 * 1024): Response {
 	const type = response.headers.get('content-type') ?? '';
 	const length = Number(response.headers.get('content-length') ?? Infinity);
-	if (!response.body || !/^application\/json\b/.test(type) || response.headers.has('content-encoding') || length < threshold) return response;
+	if (!response.body || !/^application\/json\b/.test(type) || response.headers.has('content-encoding') || length < threshold)
+		return response;
 	if (!/\bgzip\b/.test(request.headers.get('accept-encoding') ?? '')) return response;
 	const headers = new Headers(response.headers);
 	headers.delete('content-length');

@@ -1,5 +1,12 @@
 // `npm run bench:dynamics`: throughput of batch inverse dynamics (and of the reference passes) and cost of M(q) + Cholesky on a 26-DOF tree.
-import { compileModel, createWorkspace, inverseDynamicsBatch, massMatrixInto, choleskyInPlace, STANDARD_GRAVITY } from '../lib/dynamics/index';
+import {
+	compileModel,
+	createWorkspace,
+	inverseDynamicsBatch,
+	massMatrixInto,
+	choleskyInPlace,
+	STANDARD_GRAVITY
+} from '../lib/dynamics/index';
 import { rneaFrame } from '../lib/dynamics/rnea';
 import { scaleLimbs } from '../lib/anthropometry/index';
 
@@ -53,7 +60,9 @@ function timeInterleaved(cases: Record<string, () => void>, reps: number): Recor
 	const out: Record<string, number> = {};
 	for (const [label, r] of Object.entries(runs)) {
 		out[label] = median(r);
-		console.log(`${label}: median ${(out[label] * 1000).toFixed(1)} ms of ${reps} runs (best ${(Math.min(...r) * 1000).toFixed(1)} ms, worst ${(Math.max(...r) * 1000).toFixed(1)} ms)`);
+		console.log(
+			`${label}: median ${(out[label] * 1000).toFixed(1)} ms of ${reps} runs (best ${(Math.min(...r) * 1000).toFixed(1)} ms, worst ${(Math.max(...r) * 1000).toFixed(1)} ms)`
+		);
 	}
 	return out;
 }
@@ -64,7 +73,8 @@ const M = new Float64Array(n * n);
 const t = timeInterleaved(
 	{
 		'batch inverse dynamics, Q only': () => inverseDynamicsBatch(model, frames, q, qd, qdd, { Q }, {}, ws),
-		'batch inverse dynamics, Q + reactions (body axes)': () => inverseDynamicsBatch(model, frames, q, qd, qdd, { Q, force, torque }, {}, ws),
+		'batch inverse dynamics, Q + reactions (body axes)': () =>
+			inverseDynamicsBatch(model, frames, q, qd, qdd, { Q, force, torque }, {}, ws),
 		[`M(q) + Cholesky, ${mFrames.toLocaleString('en')} frames`]: () => {
 			for (let k = 0; k < mFrames; k++) {
 				massMatrixInto(model, q, M, ws, k * n);
@@ -80,8 +90,14 @@ const t = timeInterleaved(
 const [tQ, tR, tM, tRef] = Object.values(t);
 const rate = (n * frames) / tQ;
 console.log('');
-console.log(`inverse dynamics: ${(rate / 1e6).toFixed(2)} million DOF·frames/s (target ≥ 10), ${((tQ / frames) * 1e6).toFixed(2)} µs per frame`);
+console.log(
+	`inverse dynamics: ${(rate / 1e6).toFixed(2)} million DOF·frames/s (target ≥ 10), ${((tQ / frames) * 1e6).toFixed(2)} µs per frame`
+);
 console.log(`with reactions:   ${((n * frames) / tR / 1e6).toFixed(2)} million DOF·frames/s`);
 console.log(`M(q) + Cholesky:  ${((tM / mFrames) * 1e6).toFixed(2)} µs per frame`);
-console.log(`reference passes: ${((n * frames) / tRef / 1e6).toFixed(2)} million DOF·frames/s (rnea.ts, the readable form; the batch runs rnea-fast.ts)`);
-console.log(`peak memory:      ${(peakRss / 2 ** 20).toFixed(0)} MiB resident (input and output arrays ${(((q.length * 3 + Q.length + force.length * 2) * 8) / 2 ** 20).toFixed(0)} MiB)`);
+console.log(
+	`reference passes: ${((n * frames) / tRef / 1e6).toFixed(2)} million DOF·frames/s (rnea.ts, the readable form; the batch runs rnea-fast.ts)`
+);
+console.log(
+	`peak memory:      ${(peakRss / 2 ** 20).toFixed(0)} MiB resident (input and output arrays ${(((q.length * 3 + Q.length + force.length * 2) * 8) / 2 ** 20).toFixed(0)} MiB)`
+);

@@ -19,7 +19,10 @@ function recordingOf(sim: SimulatedRecording): Recording {
 	return {
 		time: sim.time,
 		sampleHz: sim.spec.sampleHz,
-		channels: sim.built.expected.map((e, j) => ({ name: e.name, values: Float64Array.from({ length: sim.time.length }, (_, k) => sim.q[k * n + j]) })),
+		channels: sim.built.expected.map((e, j) => ({
+			name: e.name,
+			values: Float64Array.from({ length: sim.time.length }, (_, k) => sim.q[k * n + j])
+		})),
 		warnings: [],
 		header: ['time (s)', ...sim.built.expected.map((e) => e.name)],
 		delimiter: ','
@@ -30,11 +33,27 @@ const pct = (v: number, peak: number) => `${((100 * v) / peak).toFixed(2)} %`;
 const nm = (v: number) => `${v.toFixed(3)}`;
 
 console.log(`bench:edges — moment errors against the known torques of forward-simulated trials that move at both ends (4 s, 200 Hz)`);
-console.log(`middle = samples at least 0.5 s from both ends; noisy rows: Gaussian ${NOISE_DEG}° on every angle, mean over seeds ${SEEDS.join(', ')}`);
-console.log(`whole/middle and outside/middle: ratios of the largest errors; flank RMS/middle RMS: outside the zone but within 0.5 s of an end, pooled over the seeds`);
+console.log(
+	`middle = samples at least 0.5 s from both ends; noisy rows: Gaussian ${NOISE_DEG}° on every angle, mean over seeds ${SEEDS.join(', ')}`
+);
+console.log(
+	`whole/middle and outside/middle: ratios of the largest errors; flank RMS/middle RMS: outside the zone but within 0.5 s of an end, pooled over the seeds`
+);
 console.log(`default end treatment: ${DEFAULT_END_TREATMENT}; default cutoff: ${defaultCutoff} Hz\n`);
 
-const header = ['limb', 'cutoff', 'noise', 'treatment', 'middle max', 'whole max', 'whole/middle', 'outside zone max', 'outside/middle', 'flank/middle RMS', 'edge zone'];
+const header = [
+	'limb',
+	'cutoff',
+	'noise',
+	'treatment',
+	'middle max',
+	'whole max',
+	'whole/middle',
+	'outside zone max',
+	'outside/middle',
+	'flank/middle RMS',
+	'edge zone'
+];
 const rows: string[][] = [];
 for (const [limb, spec] of [
 	['leg', movingLegSpec(file)],

@@ -17,7 +17,10 @@ import { prepareDatabase } from './lib/prepare-db';
 const sampleHz = 200;
 const frames = Number(process.env.BENCH_FRAMES ?? 120_000);
 // Both arms and legs of an 80 kg, 1.80 m man scaled from de Leva (1996): 26 DOF, as bench:dynamics.
-const built = buildSessionModel({ sex: 'male', bodyMass: 80, stature: 1.8 }, { table: 'de-leva-1996', limbs: ['right.leg', 'left.leg', 'right.arm', 'left.arm'] });
+const built = buildSessionModel(
+	{ sex: 'male', bodyMass: 80, stature: 1.8 },
+	{ table: 'de-leva-1996', limbs: ['right.leg', 'left.leg', 'right.arm', 'left.arm'] }
+);
 const n = built.dofs.length;
 if (n !== 26) throw new Error(`benchmark tree has ${n} DOF, expected 26`);
 
@@ -52,10 +55,20 @@ async function writeRecording(path: string): Promise<void> {
  */
 async function openStore(dir: string) {
 	chmodSync(dir, 0o755); // the cluster runs as the postgres user when we are root
-	const cluster = await startCluster({ dataDir: join(dir, 'pg'), port: await freePort(), database: 'bench', ephemeral: true, quiet: true, log: () => {} });
+	const cluster = await startCluster({
+		dataDir: join(dir, 'pg'),
+		port: await freePort(),
+		database: 'bench',
+		ephemeral: true,
+		quiet: true,
+		log: () => {}
+	});
 	await prepareDatabase(cluster.url, { seed: true, log: () => {} });
 	const sequelize = db(cluster.url);
-	const [[trial]] = (await sequelize.query(`SELECT id, sha256 FROM trials ORDER BY created_at LIMIT 1`)) as [{ id: string; sha256: string }[], unknown];
+	const [[trial]] = (await sequelize.query(`SELECT id, sha256 FROM trials ORDER BY created_at LIMIT 1`)) as [
+		{ id: string; sha256: string }[],
+		unknown
+	];
 	const [[run]] = (await sequelize.query(
 		`INSERT INTO runs (trial_id, state, attempts, options, raw_sha256, software_version) VALUES (:trial, 'running', 1, '{}', :sha, 'bench') RETURNING id`,
 		{ replacements: { trial: trial.id, sha: trial.sha256 } }
@@ -77,10 +90,15 @@ async function main() {
 	const file = join(dir, 'bench-26dof-200hz.csv');
 	try {
 		// written by a child process, so that its memory does not count in this process's peak
-		const child = spawnSync(process.execPath, [...process.execArgv, fileURLToPath(import.meta.url), '--write', file], { stdio: 'inherit', env: process.env });
+		const child = spawnSync(process.execPath, [...process.execArgv, fileURLToPath(import.meta.url), '--write', file], {
+			stdio: 'inherit',
+			env: process.env
+		});
 		if (child.status !== 0) throw new Error(`writing the benchmark recording failed (exit ${child.status})`);
 		const size = statSync(file).size;
-		console.log(`recording: ${frames.toLocaleString('en')} frames × ${n} DOF at ${sampleHz} Hz (${(frames / sampleHz / 60).toFixed(1)} min), ${(size / 2 ** 20).toFixed(1)} MiB CSV; Node ${process.version}`);
+		console.log(
+			`recording: ${frames.toLocaleString('en')} frames × ${n} DOF at ${sampleHz} Hz (${(frames / sampleHz / 60).toFixed(1)} min), ${(size / 2 ** 20).toFixed(1)} MiB CSV; Node ${process.version}`
+		);
 		const rssBefore = process.resourceUsage().maxRSS;
 
 		// wall time, and this process's CPU time (user + system): on a shared machine the CPU time is the steadier figure
@@ -91,7 +109,10 @@ async function main() {
 		};
 		let t0 = performance.now(),
 			c0 = cpu();
-		const parsed = await parseRecording(createReadStream(file, { highWaterMark: 1 << 20 }), { fileName: 'bench-26dof-200hz.csv', expected: built.expected });
+		const parsed = await parseRecording(createReadStream(file, { highWaterMark: 1 << 20 }), {
+			fileName: 'bench-26dof-200hz.csv',
+			expected: built.expected
+		});
 		stages.push(['parse + validate', performance.now() - t0, cpu() - c0]);
 		const rssParsed = process.resourceUsage().maxRSS;
 		if (!parsed.ok) throw new Error(`the benchmark file did not parse: ${JSON.stringify(parsed.problems.slice(0, 3))}`);
@@ -104,7 +125,8 @@ async function main() {
 		const pipelineWall = performance.now() - t0,
 			pipelineCpu = cpu() - c0;
 		const rssPipeline = process.resourceUsage().maxRSS;
-		for (const s of ['filter', 'differentiate', 'dynamics', 'summary']) stages.push([s === 'dynamics' ? 'inverse dynamics' : s, r.timings[s], NaN]);
+		for (const s of ['filter', 'differentiate', 'dynamics', 'summary'])
+			stages.push([s === 'dynamics' ? 'inverse dynamics' : s, r.timings[s], NaN]);
 		stages.push(['(pipeline, all four stages)', pipelineWall, pipelineCpu]);
 
 		const store = await openStore(dir);
@@ -113,8 +135,18 @@ async function main() {
 			c0 = cpu();
 			const series = seriesRows(r, built);
 			const bytes = series.reduce((a, x) => a + x.data.byteLength, 0);
-			await store.store({ series, summary: r.summary, edgeZone: r.edgeZone, model: modelRecord(built, runOptionsSchema.parse({ cutoffHz: 6 })), timings: r.timings });
-			stages.push([`store in PostgreSQL (${series.length} series, ${(bytes / 2 ** 20).toFixed(0)} MiB)`, performance.now() - t0, cpu() - c0]);
+			await store.store({
+				series,
+				summary: r.summary,
+				edgeZone: r.edgeZone,
+				model: modelRecord(built, runOptionsSchema.parse({ cutoffHz: 6 })),
+				timings: r.timings
+			});
+			stages.push([
+				`store in PostgreSQL (${series.length} series, ${(bytes / 2 ** 20).toFixed(0)} MiB)`,
+				performance.now() - t0,
+				cpu() - c0
+			]);
 		} finally {
 			await store.close();
 		}
@@ -127,7 +159,9 @@ async function main() {
 		console.log(`${'total'.padEnd(34)} ${ms(total)} ${ms(totalCpu)}   (target < 5000 ms)`);
 		const peak = process.resourceUsage().maxRSS / 1024;
 		const mib = (kb: number) => `${(kb / 1024).toFixed(0)} MiB`;
-		console.log(`peak memory: ${peak.toFixed(0)} MiB resident (maxRSS; target < 400 MiB); peak so far before parsing ${mib(rssBefore)}, after parsing ${mib(rssParsed)}, after the pipeline ${mib(rssPipeline)}`);
+		console.log(
+			`peak memory: ${peak.toFixed(0)} MiB resident (maxRSS; target < 400 MiB); peak so far before parsing ${mib(rssBefore)}, after parsing ${mib(rssParsed)}, after the pipeline ${mib(rssPipeline)}`
+		);
 	} finally {
 		rmSync(dir, { recursive: true, force: true });
 	}

@@ -54,7 +54,9 @@ function recordingStream(channels: string[], bytes: number, header?: string): Re
 
 /** multipart/form-data around a streamed file, without holding the file. */
 function multipart(file: ReadableStream<Uint8Array>, name: string, boundary: string): ReadableStream<Uint8Array> {
-	const head = Buffer.from(`--${boundary}\r\nContent-Disposition: form-data; name="file"; filename="${name}"\r\nContent-Type: text/csv\r\n\r\n`);
+	const head = Buffer.from(
+		`--${boundary}\r\nContent-Disposition: form-data; name="file"; filename="${name}"\r\nContent-Type: text/csv\r\n\r\n`
+	);
 	const tail = Buffer.from(`\r\n--${boundary}--\r\n`);
 	const reader = file.getReader();
 	let phase = 0;
@@ -101,7 +103,14 @@ interface Measured {
 	message: string;
 }
 
-async function measure(app: Child, url: string, cookie: string, base: string, body: ReadableStream<Uint8Array>, boundary: string): Promise<Measured> {
+async function measure(
+	app: Child,
+	url: string,
+	cookie: string,
+	base: string,
+	body: ReadableStream<Uint8Array>,
+	boundary: string
+): Promise<Measured> {
 	global.gc?.();
 	await new Promise((r) => setTimeout(r, 1500));
 	const before = memoryOf(app.proc.pid!);
@@ -135,8 +144,19 @@ async function main(): Promise<number> {
 	let cluster: Cluster | null = null;
 	let app: Child | null = null;
 	try {
-		cluster = await startCluster({ dataDir: path.join(tmp, 'pg'), port: await freePort(), database: 'momentry_bench', ephemeral: true, quiet: true, log });
-		const env: NodeJS.ProcessEnv = { ...process.env, MOMENTRY_BUILD_DIR: path.join(runDir, 'build'), MOMENTRY_KIT_DIR: path.join(runDir, 'kit') };
+		cluster = await startCluster({
+			dataDir: path.join(tmp, 'pg'),
+			port: await freePort(),
+			database: 'momentry_bench',
+			ephemeral: true,
+			quiet: true,
+			log
+		});
+		const env: NodeJS.ProcessEnv = {
+			...process.env,
+			MOMENTRY_BUILD_DIR: path.join(runDir, 'build'),
+			MOMENTRY_KIT_DIR: path.join(runDir, 'kit')
+		};
 		log('building the app …');
 		const b = spawnSync(process.execPath, ['node_modules/vite/bin/vite.js', 'build', '--logLevel', 'error'], { env, stdio: 'inherit' });
 		if (b.status !== 0) throw new Error('the build failed');
@@ -145,17 +165,29 @@ async function main(): Promise<number> {
 		const base = `http://127.0.0.1:${port}`;
 		app = start('app', process.execPath, [path.join(runDir, 'build', 'index.js')], {
 			quiet: true,
-			env: { ...env, DATABASE_URL: cluster.url, HOST: '127.0.0.1', PORT: String(port), ORIGIN: base, BODY_SIZE_LIMIT: 'Infinity', AUTH_SECRET: randomBytes(32).toString('base64url'), SMTP_URL: 'smtp://127.0.0.1:9' }
+			env: {
+				...env,
+				DATABASE_URL: cluster.url,
+				HOST: '127.0.0.1',
+				PORT: String(port),
+				ORIGIN: base,
+				BODY_SIZE_LIMIT: 'Infinity',
+				AUTH_SECRET: randomBytes(32).toString('base64url'),
+				SMTP_URL: 'smtp://127.0.0.1:9'
+			}
 		});
 		await waitForPort(port, '127.0.0.1', 30_000, app);
 		const cookie = await signIn(base, 'technician@alder-creek.example', 'momentry-demo-2026');
 
 		const sql = new pg.Client({ connectionString: cluster.url });
 		await sql.connect();
-		const s = (await sql.query<{ id: string; study_id: string; limbs: string[] }>(
-			`SELECT s.id, s.study_id, s.setup->'limbs' AS limbs FROM sessions s JOIN participants p ON p.id = s.participant_id WHERE p.code = 'ALD-001' LIMIT 1`
-		)).rows[0];
-		const channels = (await sql.query<{ channels: string[] }>(`SELECT channels FROM trials t WHERE t.session_id = $1 LIMIT 1`, [s.id])).rows[0].channels;
+		const s = (
+			await sql.query<{ id: string; study_id: string; limbs: string[] }>(
+				`SELECT s.id, s.study_id, s.setup->'limbs' AS limbs FROM sessions s JOIN participants p ON p.id = s.participant_id WHERE p.code = 'ALD-001' LIMIT 1`
+			)
+		).rows[0];
+		const channels = (await sql.query<{ channels: string[] }>(`SELECT channels FROM trials t WHERE t.session_id = $1 LIMIT 1`, [s.id]))
+			.rows[0].channels;
 		await sql.end();
 		const url = `${base}/api/studies/${s.study_id}/sessions/${s.id}/trials`;
 		const boundary = `bench-${randomBytes(6).toString('hex')}`;
@@ -168,15 +200,24 @@ async function main(): Promise<number> {
 		const cases: [string, ReadableStream<Uint8Array>][] = [
 			[
 				`${MB(FILE_BYTES)} file in another layout (refused at the header: streaming, hashing, draining only)`,
-				multipart(recordingStream(channels, FILE_BYTES, ['frame', ...channels.map((_, i) => `col${i}`)].join(',')), 'bench-foreign.csv', boundary)
+				multipart(
+					recordingStream(channels, FILE_BYTES, ['frame', ...channels.map((_, i) => `col${i}`)].join(',')),
+					'bench-foreign.csv',
+					boundary
+				)
 			],
-			[`valid ${MB(FILE_BYTES)} recording (${channels.length} channels, stored)`, multipart(recordingStream(channels, FILE_BYTES), 'bench-valid.csv', boundary)]
+			[
+				`valid ${MB(FILE_BYTES)} recording (${channels.length} channels, stored)`,
+				multipart(recordingStream(channels, FILE_BYTES), 'bench-valid.csv', boundary)
+			]
 		];
 		for (const [label, body] of cases) {
 			const m = await measure(app, url, cookie, base, body, boundary);
 			log(`${label}`);
 			log(`  answer ${m.status} in ${m.seconds.toFixed(1)} s (${(FILE_BYTES / 1e6 / m.seconds).toFixed(1)} MB/s): ${m.message}`);
-			log(`  app RSS ${MB(m.baseline)} before, peak ${MB(m.peak)} during (increase ${MB(m.peak - m.baseline)}); VmHWM ${MB(m.hwmBefore)} → ${MB(m.hwmAfter)}`);
+			log(
+				`  app RSS ${MB(m.baseline)} before, peak ${MB(m.peak)} during (increase ${MB(m.peak - m.baseline)}); VmHWM ${MB(m.hwmBefore)} → ${MB(m.hwmAfter)}`
+			);
 		}
 		return 0;
 	} finally {

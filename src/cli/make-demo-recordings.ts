@@ -19,5 +19,7 @@ for (const spec of [shelfReachSpec(participants), kneeExtensionSpec(participants
 	writeFileSync(`${base}.setup.json`, JSON.stringify(sim.built.setup, null, '\t') + '\n');
 	// the participant's body as `npm run process -- --participant` reads it (the server takes it from the participant record)
 	writeFileSync(`${base}.participant.json`, JSON.stringify({ ...spec.body, table: sim.built.setup.table }, null, '\t') + '\n');
-	console.log(`${spec.name}: ${sim.time.length} frames at ${spec.sampleHz} Hz, ${sim.model.n} DOF, ${(performance.now() - t0).toFixed(0)} ms → ${base}.{csv,torques.csv,setup.json,participant.json}`);
+	console.log(
+		`${spec.name}: ${sim.time.length} frames at ${spec.sampleHz} Hz, ${sim.model.n} DOF, ${(performance.now() - t0).toFixed(0)} ms → ${base}.{csv,torques.csv,setup.json,participant.json}`
+	);
 }

@@ -7,7 +7,8 @@ import { parseRecording, detectDelimiter } from '../lib/processing/recording';
 import { buildSessionModel, sessionSetupProblems, SessionModelError, type SessionSetupInput } from '../lib/processing/session-model';
 import { PipelineError, runPipeline, type PipelineResult } from '../lib/processing/pipeline';
 
-const USAGE = 'usage: npm run process -- --participant p.json --angles trial.csv --out moments.csv [--setup setup.json] [--cutoff 6|none] [--angle-unit deg|rad]';
+const USAGE =
+	'usage: npm run process -- --participant p.json --angles trial.csv --out moments.csv [--setup setup.json] [--cutoff 6|none] [--angle-unit deg|rad]';
 
 const HELP = `${USAGE}
 
@@ -32,7 +33,8 @@ function args(argv: string[]): Record<string, string> {
 		const a = argv[i];
 		if (!a.startsWith('--')) throw new CliError(`unexpected argument "${a}"\n${USAGE}`);
 		const key = a.slice(2);
-		if (!['participant', 'angles', 'out', 'setup', 'cutoff', 'angle-unit'].includes(key)) throw new CliError(`unknown option --${key}\n${USAGE}`);
+		if (!['participant', 'angles', 'out', 'setup', 'cutoff', 'angle-unit'].includes(key))
+			throw new CliError(`unknown option --${key}\n${USAGE}`);
 		const v = argv[i + 1];
 		if (v === undefined || v.startsWith('--')) throw new CliError(`--${key} needs a value\n${USAGE}`);
 		out[key] = v;
@@ -64,14 +66,31 @@ function headerOf(path: string): string[] {
 	try {
 		const buf = Buffer.alloc(64 * 1024);
 		const n = readSync(fd, buf, 0, buf.length, 0);
-		const line = buf.subarray(0, n).toString('utf8').replace(/^\uFEFF/, '').split(/\r?\n/)[0];
-		return line.split(detectDelimiter(line)).map((h) => h.trim().replace(/^"|"$/g, '').replace(/\s*\([^()]*\)$/, ''));
+		const line = buf
+			.subarray(0, n)
+			.toString('utf8')
+			.replace(/^\uFEFF/, '')
+			.split(/\r?\n/)[0];
+		return line.split(detectDelimiter(line)).map((h) =>
+			h
+				.trim()
+				.replace(/^"|"$/g, '')
+				.replace(/\s*\([^()]*\)$/, '')
+		);
 	} finally {
 		closeSync(fd);
 	}
 }
 
-const LIMB_OF_JOINT: Record<string, 'arm' | 'leg'> = { hip: 'leg', knee: 'leg', ankle: 'leg', shoulder: 'arm', elbow: 'arm', forearm: 'arm', wrist: 'arm' };
+const LIMB_OF_JOINT: Record<string, 'arm' | 'leg'> = {
+	hip: 'leg',
+	knee: 'leg',
+	ankle: 'leg',
+	shoulder: 'arm',
+	elbow: 'arm',
+	forearm: 'arm',
+	wrist: 'arm'
+};
 
 /** Without --setup: the limbs whose columns the file has, bases fixed upright (or moving where base columns exist), no loads. */
 function setupFromHeader(path: string, table: SegmentTableId): SessionSetupInput {
@@ -79,12 +98,22 @@ function setupFromHeader(path: string, table: SegmentTableId): SessionSetupInput
 	const moving = new Set<Limb>();
 	for (const h of headerOf(path)) {
 		const parts = h.split('.');
-		if (parts.length === 4 && parts[2] === 'base' && LIMBS.includes(`${parts[0]}.${parts[1]}` as Limb)) moving.add(`${parts[0]}.${parts[1]}` as Limb);
-		else if (parts.length === 3 && LIMB_OF_JOINT[parts[1]] && (parts[0] === 'right' || parts[0] === 'left')) limbs.add(`${parts[0]}.${LIMB_OF_JOINT[parts[1]]}` as Limb);
+		if (parts.length === 4 && parts[2] === 'base' && LIMBS.includes(`${parts[0]}.${parts[1]}` as Limb))
+			moving.add(`${parts[0]}.${parts[1]}` as Limb);
+		else if (parts.length === 3 && LIMB_OF_JOINT[parts[1]] && (parts[0] === 'right' || parts[0] === 'left'))
+			limbs.add(`${parts[0]}.${LIMB_OF_JOINT[parts[1]]}` as Limb);
 	}
-	if (limbs.size === 0) throw new CliError(`${path}: no column in our scheme <side>.<joint>.<motion> (e.g. right.knee.flexion); give --setup with the limbs, or rename the columns`);
+	if (limbs.size === 0)
+		throw new CliError(
+			`${path}: no column in our scheme <side>.<joint>.<motion> (e.g. right.knee.flexion); give --setup with the limbs, or rename the columns`
+		);
 	const list = LIMBS.filter((l) => limbs.has(l));
-	return { table, limbs: list, bases: Object.fromEntries([...moving].filter((l) => limbs.has(l)).map((l) => [l, { kind: 'moving' as const }])), loads: [] };
+	return {
+		table,
+		limbs: list,
+		bases: Object.fromEntries([...moving].filter((l) => limbs.has(l)).map((l) => [l, { kind: 'moving' as const }])),
+		loads: []
+	};
 }
 
 const DEG = 180 / Math.PI;
@@ -148,7 +177,9 @@ async function main(): Promise<void> {
 		setup = s as SessionSetupInput;
 	} else {
 		setup = setupFromHeader(a.angles, (pTable as SegmentTableId | undefined) ?? 'de-leva-1996');
-		console.error(`no --setup: ${setup.limbs.join(', ')} from the file's columns, table ${setup.table}, bases ${Object.keys(setup.bases ?? {}).length ? 'moving where base columns exist, else ' : ''}fixed upright, no loads`);
+		console.error(
+			`no --setup: ${setup.limbs.join(', ')} from the file's columns, table ${setup.table}, bases ${Object.keys(setup.bases ?? {}).length ? 'moving where base columns exist, else ' : ''}fixed upright, no loads`
+		);
 	}
 	let cutoffHz: number | null = 6;
 	if (a.cutoff !== undefined) {
@@ -159,24 +190,37 @@ async function main(): Promise<void> {
 
 	const built = buildSessionModel(body, setup);
 	const defaultAngleUnit = a['angle-unit'] as 'deg' | 'rad' | undefined;
-	const parsed = await parseRecording(createReadStream(a.angles), { fileName: basename(a.angles), expected: built.expected, defaultAngleUnit });
+	const parsed = await parseRecording(createReadStream(a.angles), {
+		fileName: basename(a.angles),
+		expected: built.expected,
+		defaultAngleUnit
+	});
 	if (!parsed.ok) {
-		const lines = parsed.problems.map((p) => `${a.angles}${p.row ? `:${p.row}` : ''}${p.column ? ` [${p.column}]` : ''}: ${p.severity}: ${p.message} (${p.code})`);
+		const lines = parsed.problems.map(
+			(p) => `${a.angles}${p.row ? `:${p.row}` : ''}${p.column ? ` [${p.column}]` : ''}: ${p.severity}: ${p.message} (${p.code})`
+		);
 		if (parsed.problems.some((p) => p.code === 'unit-unknown' && /choose degrees or radians/.test(p.message)))
 			lines.push('on the command line, choose the unit of angle columns without a suffix with --angle-unit deg or --angle-unit rad');
-		if (parsed.needsMapping) lines.push(`the columns do not follow our scheme; map them in the app (or rename them to: ${built.expected.map((e) => e.name).join(', ')})`);
+		if (parsed.needsMapping)
+			lines.push(
+				`the columns do not follow our scheme; map them in the app (or rename them to: ${built.expected.map((e) => e.name).join(', ')})`
+			);
 		throw new CliError(lines.join('\n'));
 	}
-	for (const w of parsed.recording.warnings) console.error(`${a.angles}${w.row ? `:${w.row}` : ''}${w.column ? ` [${w.column}]` : ''}: warning: ${w.message}`);
+	for (const w of parsed.recording.warnings)
+		console.error(`${a.angles}${w.row ? `:${w.row}` : ''}${w.column ? ` [${w.column}]` : ''}: warning: ${w.message}`);
 	const r = runPipeline(built, parsed.recording, { cutoffHz }, undefined, { reuseInput: true });
 	await writeWide(a.out, r);
-	console.log(`${a.out}: ${r.time.length} samples at ${r.sampleHz} Hz, ${r.dofs.length} DOF (${cutoffHz === null ? 'unfiltered' : `low-pass ${cutoffHz} Hz`}); internal joint moments, proximal on distal, positive in each DOF's positive sense`);
+	console.log(
+		`${a.out}: ${r.time.length} samples at ${r.sampleHz} Hz, ${r.dofs.length} DOF (${cutoffHz === null ? 'unfiltered' : `low-pass ${cutoffHz} Hz`}); internal joint moments, proximal on distal, positive in each DOF's positive sense`
+	);
 	for (const s of r.summary.filter((x) => x.quantity === 'moment'))
 		console.log(`  ${s.dof.padEnd(34)} moment ${num(s.peakNegative).padStart(10)} … ${num(s.peakPositive).padStart(10)} ${s.unit}`);
 }
 
 main().catch((e) => {
-	if (e instanceof CliError || e instanceof ScalingError || e instanceof SessionModelError || e instanceof PipelineError) console.error(e.message);
+	if (e instanceof CliError || e instanceof ScalingError || e instanceof SessionModelError || e instanceof PipelineError)
+		console.error(e.message);
 	else console.error(e);
 	process.exit(1);
 });

@@ -72,7 +72,15 @@ async function main() {
 
 	const origin = process.env.ORIGIN ?? `http://127.0.0.1:${s.appPort}`;
 	// BODY_SIZE_LIMIT: the adapter's own cap (512 kB) would refuse recordings; the trial upload streams and enforces UPLOAD_LIMIT_BYTES per file
-	const env = { ...process.env, DATABASE_URL: databaseUrl, SMTP_URL: smtpUrl, ORIGIN: origin, MAIL_INBOX_URL: inbox, AUTH_SECRET: authSecret(), BODY_SIZE_LIMIT: process.env.BODY_SIZE_LIMIT ?? 'Infinity' };
+	const env = {
+		...process.env,
+		DATABASE_URL: databaseUrl,
+		SMTP_URL: smtpUrl,
+		ORIGIN: origin,
+		MAIL_INBOX_URL: inbox,
+		AUTH_SECRET: authSecret(),
+		BODY_SIZE_LIMIT: process.env.BODY_SIZE_LIMIT ?? 'Infinity'
+	};
 
 	if (!dev) {
 		log('building the app …');
@@ -85,7 +93,12 @@ async function main() {
 
 	children.push(start('worker', process.execPath, ['--import', 'tsx', 'src/cli/worker.ts'], { env }));
 	const app = dev
-		? start('app', process.execPath, ['node_modules/vite/bin/vite.js', 'dev', '--host', '127.0.0.1', '--port', String(s.appPort), '--strictPort'], { env })
+		? start(
+				'app',
+				process.execPath,
+				['node_modules/vite/bin/vite.js', 'dev', '--host', '127.0.0.1', '--port', String(s.appPort), '--strictPort'],
+				{ env }
+			)
 		: start('app', process.execPath, ['build/index.js'], { env: { ...env, HOST: '127.0.0.1', PORT: String(s.appPort) } });
 	children.push(app);
 	await waitForPort(s.appPort, '127.0.0.1', 60_000, app);

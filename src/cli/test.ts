@@ -60,7 +60,11 @@ function runStaticChecks(total: Counts): string[] {
 		const seconds = ((performance.now() - started) / 1000).toFixed(1);
 		if (ok) total.passed += 1;
 		else total.failed += 1;
-		lines.push(ok ? `${check.name}: passed (${seconds} s)` : `${check.name}: FAILED (${seconds} s), counted as one failure; see its output above, or run: ${check.fix}`);
+		lines.push(
+			ok
+				? `${check.name}: passed (${seconds} s)`
+				: `${check.name}: FAILED (${seconds} s), counted as one failure; see its output above, or run: ${check.fix}`
+		);
 	}
 	return lines;
 }
@@ -83,12 +87,19 @@ const REFERENCE_PACKAGES = ['python3-sympy', 'python3-scipy', 'python3-statsmode
  * Returns a problem to count as a failure, or null.
  */
 function ensureTestPackages(e2e: boolean): string | null {
-	const references = ['python3', '/usr/bin/python3'].some((py) => spawnSync(py, ['-c', 'import sympy, scipy, statsmodels'], { stdio: 'ignore' }).status === 0);
+	const references = ['python3', '/usr/bin/python3'].some(
+		(py) => spawnSync(py, ['-c', 'import sympy, scipy, statsmodels'], { stdio: 'ignore' }).status === 0
+	);
 	const need = [...(e2e && !fs.existsSync(CHROMIUM) ? ['chromium'] : []), ...(references ? [] : REFERENCE_PACKAGES)];
 	if (!need.length) return null;
 	if (aptInstall(need, log)) return null;
-	if (!references) log(`sympy/scipy/statsmodels not found: the committed reference fixtures are used (install them with: sudo sh -c '${aptCommand(REFERENCE_PACKAGES)}')`);
-	return e2e && !fs.existsSync(CHROMIUM) ? `Chromium is not at ${CHROMIUM}; install it with: sudo sh -c '${aptCommand(['chromium'])}'` : null;
+	if (!references)
+		log(
+			`sympy/scipy/statsmodels not found: the committed reference fixtures are used (install them with: sudo sh -c '${aptCommand(REFERENCE_PACKAGES)}')`
+		);
+	return e2e && !fs.existsSync(CHROMIUM)
+		? `Chromium is not at ${CHROMIUM}; install it with: sudo sh -c '${aptCommand(['chromium'])}'`
+		: null;
 }
 
 async function main(): Promise<number> {
@@ -104,7 +115,14 @@ async function main(): Promise<number> {
 	let staticResults: string[] = [];
 	try {
 		if (staticChecks) staticResults = runStaticChecks(total);
-		cluster = await startCluster({ dataDir: path.join(tmp, 'pg'), port: await freePort(), database: 'momentry_e2e', ephemeral: true, quiet: true, log });
+		cluster = await startCluster({
+			dataDir: path.join(tmp, 'pg'),
+			port: await freePort(),
+			database: 'momentry_e2e',
+			ephemeral: true,
+			quiet: true,
+			log
+		});
 		mail = await startMaildev({ smtpPort: await freePort(), webPort: await freePort(), quiet: true });
 		log(`PostgreSQL on port ${cluster.port}, maildev on ${mail.smtpUrl} / ${mail.webUrl}`);
 		const env: NodeJS.ProcessEnv = {
@@ -130,7 +148,18 @@ async function main(): Promise<number> {
 
 		if (only('vitest')) {
 			const out = path.join(tmp, 'vitest.json');
-			run([process.execPath, 'node_modules/vitest/vitest.mjs', 'run', '--reporter=default', '--reporter=json', `--outputFile.json=${out}`, ...vitestFiles], env);
+			run(
+				[
+					process.execPath,
+					'node_modules/vitest/vitest.mjs',
+					'run',
+					'--reporter=default',
+					'--reporter=json',
+					`--outputFile.json=${out}`,
+					...vitestFiles
+				],
+				env
+			);
 			const r = readJson(out);
 			if (r) {
 				total.passed += Number(r.numPassedTests ?? 0);
@@ -152,7 +181,10 @@ async function main(): Promise<number> {
 				...env,
 				PLAYWRIGHT_JSON_OUTPUT_NAME: out
 			});
-			const r = readJson(out) as { stats?: { expected?: number; unexpected?: number; flaky?: number; skipped?: number }; errors?: unknown[] } | null;
+			const r = readJson(out) as {
+				stats?: { expected?: number; unexpected?: number; flaky?: number; skipped?: number };
+				errors?: unknown[];
+			} | null;
 			if (r?.stats) {
 				total.passed += (r.stats.expected ?? 0) + (r.stats.flaky ?? 0);
 				total.failed += (r.stats.unexpected ?? 0) + (r.errors?.length ?? 0);

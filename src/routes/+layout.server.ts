@@ -5,7 +5,9 @@ import { workQueuesOf } from '$lib/server/sessions/workflow';
 import type { LayoutServerLoad } from './$types';
 
 export const load: LayoutServerLoad = async ({ locals }) => {
-	const person = locals.actor ? { name: locals.actor.name ?? locals.actor.email, email: locals.actor.email, isAdmin: locals.actor.isAdmin } : null;
+	const person = locals.actor
+		? { name: locals.actor.name ?? locals.actor.email, email: locals.actor.email, isAdmin: locals.actor.isAdmin }
+		: null;
 	try {
 		return { lab: await currentLab(), person, work: locals.actor ? await workQueuesOf(locals.actor) : null };
 	} catch {

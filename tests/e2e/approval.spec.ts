@@ -22,7 +22,10 @@ async function openKneeSession(page: Page): Promise<string> {
 	return new URL(page.url()).pathname;
 }
 
-test('researcher submits, the PI signs from the e-mailed link, the export holds the rows and hashes', async ({ page, browser }, testInfo) => {
+test('researcher submits, the PI signs from the e-mailed link, the export holds the rows and hashes', async ({
+	page,
+	browser
+}, testInfo) => {
 	test.setTimeout(120_000);
 	await passwordSignIn(page, RESEARCHER, PASSWORD);
 	await expect(page.getByTestId('signed-in-as')).toHaveText('Priya Castellano');
@@ -118,7 +121,10 @@ test('researcher submits, the PI signs from the e-mailed link, the export holds 
 	expect(createHash('sha256').update(seeded).digest('hex')).toBe(trial.rawSha256);
 	expect(trial.run.rawSha256).toBe(trial.rawSha256);
 
-	const csv = fs.readFileSync(path.join(dir, 'x', 'results.csv'), 'utf8').trimEnd().split('\n');
+	const csv = fs
+		.readFileSync(path.join(dir, 'x', 'results.csv'), 'utf8')
+		.trimEnd()
+		.split('\n');
 	expect(csv[0]).toBe('participant,trial,run,dof,quantity,unit,axis,repetition,x,value,in_edge_zone');
 	const moments = csv.filter((l) => /^KNE-001,[^,]+,1,right\.knee\.[^,]+,moment,N·m,time_s,,/.test(l));
 	expect(moments.length).toBe(trial.frames);

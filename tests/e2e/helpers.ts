@@ -5,14 +5,27 @@ export const PASSWORD = 'momentry-demo-2026';
 const inbox = () => process.env.MAILDEV_URL!;
 
 /** A message to `address` received after `since` (ms since epoch), whatever its subject; null if none arrives. */
-export const mailTo = (address: string, since: number, timeoutMs = 15_000): Promise<{ text: string } | null> => mailWith(address, /(?:)/, since, timeoutMs).catch(() => null);
+export const mailTo = (address: string, since: number, timeoutMs = 15_000): Promise<{ text: string } | null> =>
+	mailWith(address, /(?:)/, since, timeoutMs).catch(() => null);
 
 /** The newest message to `address` whose subject matches, received after `since` (ms since epoch); throws if none. */
-export async function mailWith(address: string, subject: RegExp, since: number, timeoutMs = 20_000): Promise<{ text: string; subject: string }> {
+export async function mailWith(
+	address: string,
+	subject: RegExp,
+	since: number,
+	timeoutMs = 20_000
+): Promise<{ text: string; subject: string }> {
 	const deadline = Date.now() + timeoutMs;
 	while (Date.now() < deadline) {
-		const all = (await (await fetch(`${inbox()}/api/email`)).json()) as { to: { address: string }[]; subject: string; text: string; time: string }[];
-		const hit = all.filter((m) => m.to.some((t) => t.address === address) && subject.test(m.subject) && new Date(m.time).getTime() >= since - 1000).at(-1);
+		const all = (await (await fetch(`${inbox()}/api/email`)).json()) as {
+			to: { address: string }[];
+			subject: string;
+			text: string;
+			time: string;
+		}[];
+		const hit = all
+			.filter((m) => m.to.some((t) => t.address === address) && subject.test(m.subject) && new Date(m.time).getTime() >= since - 1000)
+			.at(-1);
 		if (hit) return hit;
 		await new Promise((r) => setTimeout(r, 250));
 	}

@@ -16,12 +16,19 @@ test('check a file, see its problems or its preview, then import it', async ({ p
 	await checkButton.click();
 	await expect(page.getByTestId('import-message')).toContainText('huge.csv is 500 KB; the limit is 400 KB');
 
-	await file.setInputFiles({ name: 'bad.csv', mimeType: 'text/csv', buffer: Buffer.from('sex,body_mass_kg,stature_m\nfemale,61,1.65\nmale,7,1.8\n') });
+	await file.setInputFiles({
+		name: 'bad.csv',
+		mimeType: 'text/csv',
+		buffer: Buffer.from('sex,body_mass_kg,stature_m\nfemale,61,1.65\nmale,7,1.8\n')
+	});
 	await checkButton.click();
-	await expect(page.getByTestId('import-problems')).toContainText('row 3, column body_mass_kg: body mass must be between 20 and 300 kg (got 7 kg)');
+	await expect(page.getByTestId('import-problems')).toContainText(
+		'row 3, column body_mass_kg: body mass must be between 20 and 300 kg (got 7 kg)'
+	);
 	await expect(page.getByRole('button', { name: /^Import \d+ participant/ })).toHaveCount(0);
 
-	const good = 'sex,body_mass_kg,stature_m,notes,full_name\r\nfemale,61,1.65,"first line\r\nsecond line",Ottilie Brennagh\r\nmale,83.5,1.84,,Casimir Wendlebury\r\n';
+	const good =
+		'sex,body_mass_kg,stature_m,notes,full_name\r\nfemale,61,1.65,"first line\r\nsecond line",Ottilie Brennagh\r\nmale,83.5,1.84,,Casimir Wendlebury\r\n';
 	await file.setInputFiles({ name: 'good.csv', mimeType: 'text/csv', buffer: Buffer.from(good) });
 	await checkButton.click();
 	const rows = page.getByTestId('preview-row');

@@ -44,7 +44,10 @@ test('review a session: read-out, zoom, per kg, edge zones, events and repetitio
 	// keyboard zoom changes the x ticks; reset restores them
 	const ticks = async () => (await panels.first().locator('g').nth(0).locator('.tick text').allTextContents()).join(' ');
 	const before = await ticks();
-	await review.getByRole('group', { name: /Plot panels/ }).first().focus();
+	await review
+		.getByRole('group', { name: /Plot panels/ })
+		.first()
+		.focus();
 	await page.keyboard.press('+');
 	await page.keyboard.press('+');
 	await expect.poll(ticks).not.toBe(before);
@@ -76,7 +79,9 @@ test('review a session: read-out, zoom, per kg, edge zones, events and repetitio
 	await expect(review.getByTestId('event-list').locator('li')).toHaveCount(4);
 	await review.getByTestId('events-save').click();
 	await expect(review.getByText('✓ 4 events saved.')).toBeVisible();
-	await expect(review.getByTestId('repetitions-left-out')).toContainText('1 of 3 repetitions (number 1) overlaps the edge zone of this run');
+	await expect(review.getByTestId('repetitions-left-out')).toContainText(
+		'1 of 3 repetitions (number 1) overlaps the edge zone of this run'
+	);
 	await expect(review.getByTestId('peaks-table')).toContainText('left out: overlaps the edge zone');
 	await expect(review.getByTestId('peaks-table')).toContainText('mean ± SD (2 of 3)');
 	await review.getByTestId('include-edge-zones').check();
@@ -87,7 +92,10 @@ test('review a session: read-out, zoom, per kg, edge zones, events and repetitio
 	await expect(review.getByTestId('peaks-table')).toContainText('%');
 
 	// CSV of the plotted data with units in the header
-	const [download] = await Promise.all([page.waitForEvent('download'), review.getByRole('button', { name: '⇩ CSV (data)' }).first().click()]);
+	const [download] = await Promise.all([
+		page.waitForEvent('download'),
+		review.getByRole('button', { name: '⇩ CSV (data)' }).first().click()
+	]);
 	const text = await (await download.createReadStream()).toArray();
 	const csv = Buffer.concat(text as Buffer[]).toString('utf8');
 	expect(csv.split('\n')[0]).toMatch(/^time \(s\),.*\(N·m\)/);

@@ -23,7 +23,10 @@ test('home page renders with the product name and the bundled font, all from loo
 	expect(family.split(',')[0].replace(/["']/g, '').trim()).toBe('Source Sans 3');
 	const loaded = await page.evaluate(async () => {
 		await document.fonts.ready;
-		return document.fonts.check('16px "Source Sans 3"') && [...document.fonts].some((f) => f.family.replace(/"/g, '') === 'Source Sans 3' && f.status === 'loaded');
+		return (
+			document.fonts.check('16px "Source Sans 3"') &&
+			[...document.fonts].some((f) => f.family.replace(/"/g, '') === 'Source Sans 3' && f.status === 'loaded')
+		);
 	});
 	expect(loaded).toBe(true);
 	expect(fontFiles.length).toBeGreaterThan(0);

@@ -43,7 +43,10 @@ test('drop two files, watch each upload, see one stored and one rejected, then r
 	await expect(items).toHaveCount(2);
 	// each file has its own bar; at least one is seen between the start and the end
 	const partWay = await page.waitForFunction(
-		() => Array.from(document.querySelectorAll<HTMLProgressElement>('[data-testid=upload-item] progress')).some((p) => p.value > 0 && p.value < 100),
+		() =>
+			Array.from(document.querySelectorAll<HTMLProgressElement>('[data-testid=upload-item] progress')).some(
+				(p) => p.value > 0 && p.value < 100
+			),
 		undefined,
 		{ timeout: 15_000, polling: 20 }
 	);

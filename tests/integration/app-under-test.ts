@@ -39,7 +39,11 @@ export interface AppUnderTest {
 }
 
 /** Signs in with the password form; returns the session cookie header. */
-export async function signInAs(base: string, email: string, password = DEMO_PASSWORD): Promise<{ status: number; cookie: string; location: string | null }> {
+export async function signInAs(
+	base: string,
+	email: string,
+	password = DEMO_PASSWORD
+): Promise<{ status: number; cookie: string; location: string | null }> {
 	const body = new URLSearchParams({ providerId: 'password', email, password, redirectTo: '/' });
 	const res = await fetch(`${base}/signin?/password`, {
 		method: 'POST',
@@ -76,12 +80,16 @@ export async function startApp(label: string): Promise<AppUnderTest> {
 		studyA: studies.find((r) => r.code === 'SHELF-REACH')!.id,
 		studyB: studies.find((r) => r.code === 'KNEE-60')!.id,
 		participantA: (await sql.query<{ id: string }>(`SELECT id FROM participants WHERE code = 'ALD-001'`)).rows[0].id,
-		...(await sql.query<{ sessionA: string; trialA: string }>(
-			`SELECT s.id AS "sessionA", t.id AS "trialA" FROM sessions s JOIN participants p ON p.id = s.participant_id JOIN trials t ON t.session_id = s.id WHERE p.code = 'ALD-001' ORDER BY s.created_at, t.created_at LIMIT 1`
-		)).rows[0],
+		...(
+			await sql.query<{ sessionA: string; trialA: string }>(
+				`SELECT s.id AS "sessionA", t.id AS "trialA" FROM sessions s JOIN participants p ON p.id = s.participant_id JOIN trials t ON t.session_id = s.id WHERE p.code = 'ALD-001' ORDER BY s.created_at, t.created_at LIMIT 1`
+			)
+		).rows[0],
 		runA: ''
 	};
-	ids.runA = (await sql.query<{ id: string }>(`SELECT id FROM runs WHERE trial_id = $1 ORDER BY created_at LIMIT 1`, [ids.trialA])).rows[0]?.id ?? '';
+	ids.runA =
+		(await sql.query<{ id: string }>(`SELECT id FROM runs WHERE trial_id = $1 ORDER BY created_at LIMIT 1`, [ids.trialA])).rows[0]?.id ??
+		'';
 	const cookies = { anonymous: '' } as Record<Persona, string>;
 	for (const [persona, email] of Object.entries(PERSONAS)) {
 		if (!email) continue;

@@ -40,7 +40,9 @@ async function denials(email: string, path: string) {
 
 /** The audit rows on a page, read from the data attributes of the table rows. */
 function auditRows(html: string) {
-	return [...html.matchAll(/<tr[^>]*data-outcome="(\w+)" data-action="([^"]*)" data-actor="([^"]*)" data-study="([^"]*)" data-at="([^"]*)"/g)].map((m) => ({
+	return [
+		...html.matchAll(/<tr[^>]*data-outcome="(\w+)" data-action="([^"]*)" data-actor="([^"]*)" data-study="([^"]*)" data-at="([^"]*)"/g)
+	].map((m) => ({
 		outcome: m[1],
 		action: m[2],
 		actor: m[3],
@@ -193,7 +195,10 @@ describe('the audit log', () => {
 		for (let i = 0; i < 55; i++) await get('/audit', app.cookies.researcherA);
 		const q = `/audit?actor=${encodeURIComponent(PERSONAS.researcherA)}&action=access.denied`;
 		// "contains": knee.researcher@… matches too
-		const { rows } = await dbc.query<{ n: string }>(`SELECT count(*) AS n FROM audit_events WHERE position($1 in actor_label) > 0 AND action LIKE 'access.denied%'`, [PERSONAS.researcherA]);
+		const { rows } = await dbc.query<{ n: string }>(
+			`SELECT count(*) AS n FROM audit_events WHERE position($1 in actor_label) > 0 AND action LIKE 'access.denied%'`,
+			[PERSONAS.researcherA]
+		);
 		const total = Number(rows[0].n);
 		expect(total).toBeGreaterThan(55);
 		const one = auditRows(await (await get(q, app.cookies.admin)).text());
@@ -223,7 +228,9 @@ describe('the audit log', () => {
 		expect(details).toHaveProperty('path');
 
 		// the export itself is audited
-		const { rows: exported } = await dbc.query(`SELECT details FROM audit_events WHERE action = 'audit.exported' AND actor_label = $1`, [PERSONAS.admin]);
+		const { rows: exported } = await dbc.query(`SELECT details FROM audit_events WHERE action = 'audit.exported' AND actor_label = $1`, [
+			PERSONAS.admin
+		]);
 		expect(exported.length).toBeGreaterThan(0);
 		expect(exported.at(-1).details).toMatchObject({ filter: { outcome: 'denied' } });
 
@@ -260,7 +267,12 @@ describe('sessions of one account', () => {
 		expect(await differ.text()).toContain('The two new passwords differ');
 		expect((await get('/account', cookie)).status).toBe(200);
 
-		const ok = await post('/account?/password', cookie, { current: DEMO_PASSWORD, next, repeat: next, redirectTo: '/account/password-changed' });
+		const ok = await post('/account?/password', cookie, {
+			current: DEMO_PASSWORD,
+			next,
+			repeat: next,
+			redirectTo: '/account/password-changed'
+		});
 		expect([302, 303]).toContain(ok.status);
 		expect(ok.headers.get('location')).toMatch(/\/account\/password-changed$/);
 
@@ -295,7 +307,9 @@ describe('sessions of one account', () => {
 		expect(res.status).toBe(303);
 		expect(res.headers.get('location')).toMatch(/^\/signin\?next=%2Fstudies/);
 		expect((await get('/studies', newer)).status).toBe(303);
-		const { rows } = await dbc.query(`SELECT 1 FROM audit_events WHERE action = 'auth.sign-out-everywhere' AND actor_label = $1`, [PERSONAS.piA]);
+		const { rows } = await dbc.query(`SELECT 1 FROM audit_events WHERE action = 'auth.sign-out-everywhere' AND actor_label = $1`, [
+			PERSONAS.piA
+		]);
 		expect(rows).toHaveLength(1);
 	});
 });

@@ -33,7 +33,9 @@ const one = async <T = Record<string, unknown>>(sql: string, params: unknown[] =
 /** Every message to `address` in maildev, oldest first. */
 async function inbox(address: string): Promise<InboxMessage[]> {
 	const all = (await (await fetch(`${process.env.MAILDEV_URL}/api/email`)).json()) as (InboxMessage & { time: string })[];
-	return all.filter((m) => m.to?.some((t) => t.address.toLowerCase() === address.toLowerCase())).sort((a, b) => Date.parse(a.time) - Date.parse(b.time));
+	return all
+		.filter((m) => m.to?.some((t) => t.address.toLowerCase() === address.toLowerCase()))
+		.sort((a, b) => Date.parse(a.time) - Date.parse(b.time));
 }
 /** Waits for message number `n` (1-based) to `address`. */
 async function nthMail(address: string, n: number, timeoutMs = 15_000): Promise<InboxMessage> {
@@ -58,7 +60,17 @@ async function newParticipant(email: string | null): Promise<{ id: string; code:
 	counter += 1;
 	const res = await post(
 		`/studies/${studyA}/participants/new`,
-		{ sex: 'female', bodyMassKg: '60', statureM: '1.65', birthYear: '1990', dominantSide: 'right', notes: '', fullName: `Consent Tester ${counter}`, email: email ?? '', phone: '' },
+		{
+			sex: 'female',
+			bodyMassKg: '60',
+			statureM: '1.65',
+			birthYear: '1990',
+			dominantSide: 'right',
+			notes: '',
+			fullName: `Consent Tester ${counter}`,
+			email: email ?? '',
+			phone: ''
+		},
 		app.cookies.technicianA
 	);
 	expect(res.status).toBe(303);
@@ -78,18 +90,34 @@ async function stateOf(pid: string): Promise<string> {
 }
 const today = () => new Date().toISOString().slice(0, 10);
 async function agree(token: string, pid: string, formVersionId: string, confirmations: number, extra: Record<string, string> = {}) {
-	const form: Record<string, string> = { participantId: pid, formVersionId, fullName: 'Wilhelmina Consent-Giver', signedOn: today(), ...extra };
+	const form: Record<string, string> = {
+		participantId: pid,
+		formVersionId,
+		fullName: 'Wilhelmina Consent-Giver',
+		signedOn: today(),
+		...extra
+	};
 	for (let i = 0; i < confirmations; i++) form[`confirm-${i}`] = 'yes';
 	return post(`/consent/${token}?/consent`, form);
 }
 
 describe('the demo seed', () => {
 	it('has ALD-001..004 and KNE-001..002 consented under version 1, ALD-005 invited, KNE-003 withdrawn', async () => {
-		const rows = (await app.sql.query(`SELECT p.code, p.consent_state, v.version FROM participants p LEFT JOIN consent_form_versions v ON v.id = p.consent_form_version_id ORDER BY p.code`)).rows;
+		const rows = (
+			await app.sql.query(
+				`SELECT p.code, p.consent_state, v.version FROM participants p LEFT JOIN consent_form_versions v ON v.id = p.consent_form_version_id ORDER BY p.code`
+			)
+		).rows;
 		const by = Object.fromEntries(rows.map((r) => [r.code, `${r.consent_state}/${r.version}`]));
 		expect(by).toEqual({
-			'ALD-001': 'consented/1', 'ALD-002': 'consented/1', 'ALD-003': 'consented/1', 'ALD-004': 'consented/1', 'ALD-005': 'invited/1',
-			'KNE-001': 'consented/1', 'KNE-002': 'consented/1', 'KNE-003': 'withdrawn/1'
+			'ALD-001': 'consented/1',
+			'ALD-002': 'consented/1',
+			'ALD-003': 'consented/1',
+			'ALD-004': 'consented/1',
+			'ALD-005': 'invited/1',
+			'KNE-001': 'consented/1',
+			'KNE-002': 'consented/1',
+			'KNE-003': 'withdrawn/1'
 		});
 		const { consentStateOf } = await import('../../src/lib/server/consent/check');
 		expect((await consentStateOf(app.ids.participantA)).state).toBe('consented');
@@ -120,12 +148,17 @@ describe('invitations', () => {
 		linkIn(mail, 'withdraw');
 		expect(await stateOf(p.id)).toBe('invited');
 		// only the hash is stored
-		const stored = (await app.sql.query(`SELECT token_hash FROM consent_invitations WHERE participant_id = $1`, [p.id])).rows.map((r) => r.token_hash);
+		const stored = (await app.sql.query(`SELECT token_hash FROM consent_invitations WHERE participant_id = $1`, [p.id])).rows.map(
+			(r) => r.token_hash
+		);
 		expect(stored).toHaveLength(2);
 		expect(stored.join()).not.toContain(token);
 		const ev = (await app.sql.query(`SELECT from_state, to_state, actor_label FROM consent_events WHERE participant_id = $1`, [p.id])).rows;
 		expect(ev).toEqual([{ from_state: 'not_invited', to_state: 'invited', actor_label: 'technician@alder-creek.example' }]);
-		expect((await one<{ n: number }>(`SELECT count(*)::int AS n FROM audit_events WHERE action = 'consent.invited' AND record_id = $1`, [p.id])).n).toBe(1);
+		expect(
+			(await one<{ n: number }>(`SELECT count(*)::int AS n FROM audit_events WHERE action = 'consent.invited' AND record_id = $1`, [p.id]))
+				.n
+		).toBe(1);
 	});
 
 	it('refuses to invite a participant without an e-mail address, with a message saying what to do', async () => {
@@ -251,7 +284,10 @@ describe('the consent link', () => {
 		const token = linkIn(await nthMail(address, 1), 'consent');
 		const [v1] = await formVersionIds();
 		// 14 days pass
-		await app.sql.query(`UPDATE consent_invitations SET expires_at = now() - interval '1 minute' WHERE participant_id = $1 AND purpose = 'consent'`, [p.id]);
+		await app.sql.query(
+			`UPDATE consent_invitations SET expires_at = now() - interval '1 minute' WHERE participant_id = $1 AND purpose = 'consent'`,
+			[p.id]
+		);
 		const html = await (await get(`/consent/${token}`)).text();
 		expect(html).toContain('data-reason="expired"');
 		expect(html).toContain('pi@alder-creek.example');
@@ -279,7 +315,10 @@ describe('the consent link', () => {
 		// the PI publishes version 2 while the participant is reading version 1
 		const pub = await post(
 			`/studies/${studyA}/consent-forms?/publish`,
-			{ bodyMarkdown: '# Version two\n\nWe now also record a short video of your arm.', confirmations: 'I have read version two.\nI agree to the video.' },
+			{
+				bodyMarkdown: '# Version two\n\nWe now also record a short video of your arm.',
+				confirmations: 'I have read version two.\nI agree to the video.'
+			},
 			app.cookies.piA
 		);
 		expect(pub.status).toBe(303);
@@ -294,9 +333,19 @@ describe('the consent link', () => {
 		expect(v2.version).toBe(2);
 		const ok = await agree(token, p.id, v2.id, 2);
 		expect(ok.status).toBe(200);
-		const rec = await one<{ version: number }>(`SELECT v.version FROM consent_records r JOIN consent_form_versions v ON v.id = r.form_version_id WHERE r.participant_id = $1`, [p.id]);
+		const rec = await one<{ version: number }>(
+			`SELECT v.version FROM consent_records r JOIN consent_form_versions v ON v.id = r.form_version_id WHERE r.participant_id = $1`,
+			[p.id]
+		);
 		expect(rec.version).toBe(2);
-		expect((await one<{ form_version: number }>(`SELECT form_version FROM consent_events WHERE participant_id = $1 AND to_state = 'consented'`, [p.id])).form_version).toBe(2);
+		expect(
+			(
+				await one<{ form_version: number }>(
+					`SELECT form_version FROM consent_events WHERE participant_id = $1 AND to_state = 'consented'`,
+					[p.id]
+				)
+			).form_version
+		).toBe(2);
 	});
 
 	it('lets the participant decline from the same page; the decision is kept and confirmed by e-mail', async () => {
@@ -323,7 +372,10 @@ describe('withdrawal', () => {
 		const current = (await formVersionIds()).at(-1)!;
 		const { requireValidConsent } = await import('../../src/lib/server/consent/check');
 		// before consent: refused with a message naming the participant and the state
-		await expect(requireValidConsent(p.id, 'upload')).rejects.toMatchObject({ kind: 'conflict', message: `${p.code} has not given consent (state: invited); uploads are refused until they consent.` });
+		await expect(requireValidConsent(p.id, 'upload')).rejects.toMatchObject({
+			kind: 'conflict',
+			message: `${p.code} has not given consent (state: invited); uploads are refused until they consent.`
+		});
 		expect((await agree(token, p.id, current.id, current.version === 1 ? 3 : 2)).status).toBe(200);
 		await expect(requireValidConsent(p.id, 'run')).resolves.toBeUndefined();
 
@@ -333,12 +385,18 @@ describe('withdrawal', () => {
 			`INSERT INTO sessions (study_id, participant_id, session_on, operator, task, setup) VALUES ($1, $2, current_date, 'Jonah Abernethy', 'reach', '{}'::jsonb) RETURNING id`,
 			[studyA, p.id]
 		);
-		const { id: uploadId } = await one<{ id: string }>(`INSERT INTO raw_uploads (sha256, byte_size, file_name) VALUES ($1, 10, 'reach-01.csv') RETURNING id`, [sha]);
+		const { id: uploadId } = await one<{ id: string }>(
+			`INSERT INTO raw_uploads (sha256, byte_size, file_name) VALUES ($1, 10, 'reach-01.csv') RETURNING id`,
+			[sha]
+		);
 		const { id: trialId } = await one<{ id: string }>(
 			`INSERT INTO trials (session_id, raw_upload_id, file_name, sha256, sample_hz, frame_count, duration_s) VALUES ($1, $2, 'reach-01.csv', $3, 100, 300, 2.99) RETURNING id`,
 			[sessionId, uploadId, sha]
 		);
-		const { id: runId } = await one<{ id: string }>(`INSERT INTO runs (trial_id, state, raw_sha256, software_version) VALUES ($1, 'done', $2, 'test') RETURNING id`, [trialId, sha]);
+		const { id: runId } = await one<{ id: string }>(
+			`INSERT INTO runs (trial_id, state, raw_sha256, software_version) VALUES ($1, 'done', $2, 'test') RETURNING id`,
+			[trialId, sha]
+		);
 
 		// the withdraw link from the confirmation e-mail
 		const withdrawToken = linkIn(await nthMail(address, 2), 'withdraw');
@@ -352,9 +410,15 @@ describe('withdrawal', () => {
 		expect((await nthMail(address, 3)).text).toContain('withdraw your consent');
 
 		// new work is refused at once, with the reason
-		await expect(requireValidConsent(p.id, 'approval')).rejects.toMatchObject({ kind: 'conflict', message: expect.stringContaining(`${p.code} has withdrawn consent (state: withdrawn); approvals are refused`) });
+		await expect(requireValidConsent(p.id, 'approval')).rejects.toMatchObject({
+			kind: 'conflict',
+			message: expect.stringContaining(`${p.code} has withdrawn consent (state: withdrawn); approvals are refused`)
+		});
 		// the run is kept and flagged
-		const run = await one<{ flagged_reason: string; flag_decision: string | null }>(`SELECT flagged_reason, flag_decision FROM runs WHERE id = $1`, [runId]);
+		const run = await one<{ flagged_reason: string; flag_decision: string | null }>(
+			`SELECT flagged_reason, flag_decision FROM runs WHERE id = $1`,
+			[runId]
+		);
 		expect(run.flagged_reason).toMatch(/^Consent withdrawn on \d{4}-\d{2}-\d{2}$/);
 		expect(run.flag_decision).toBeNull();
 		// the withdraw link worked once
@@ -366,30 +430,46 @@ describe('withdrawal', () => {
 		expect(staff).toContain('reach-01.csv');
 		expect((await post(`${consentPath(p.id)}?/decide`, { runId, decision: 'keep' }, app.cookies.technicianA)).status).toBe(403);
 		expect((await post(`${consentPath(p.id)}?/decide`, { runId, decision: 'maybe' }, app.cookies.piA)).status).toBe(400);
-		const decided = await post(`${consentPath(p.id)}?/decide`, { runId, decision: 'exclude', note: 'Study rule 7.2: data of withdrawn participants are excluded.' }, app.cookies.piA);
+		const decided = await post(
+			`${consentPath(p.id)}?/decide`,
+			{ runId, decision: 'exclude', note: 'Study rule 7.2: data of withdrawn participants are excluded.' },
+			app.cookies.piA
+		);
 		expect(decided.status).toBe(303);
 		expect((await one<{ flag_decision: string }>(`SELECT flag_decision FROM runs WHERE id = $1`, [runId])).flag_decision).toBe('exclude');
 		expect((await post(`${consentPath(p.id)}?/decide`, { runId, decision: 'keep' }, app.cookies.piA)).status).toBe(409);
-		const audit = await one<{ details: { decision: string; note: string } }>(`SELECT details FROM audit_events WHERE action = 'run.flag.decided' AND record_id = $1`, [runId]);
+		const audit = await one<{ details: { decision: string; note: string } }>(
+			`SELECT details FROM audit_events WHERE action = 'run.flag.decided' AND record_id = $1`,
+			[runId]
+		);
 		expect(audit.details).toMatchObject({ decision: 'exclude', note: 'Study rule 7.2: data of withdrawn participants are excluded.' });
 
 		// the history keeps every change, and cannot be rewritten
 		const ev = (await app.sql.query(`SELECT from_state, to_state FROM consent_events WHERE participant_id = $1 ORDER BY id`, [p.id])).rows;
 		expect(ev.map((e) => `${e.from_state}>${e.to_state}`)).toEqual(['not_invited>invited', 'invited>consented', 'consented>withdrawn']);
-		await expect(app.sql.query(`UPDATE consent_events SET note = 'changed' WHERE participant_id = $1`, [p.id])).rejects.toThrow(/append-only/);
-		const actions = (await app.sql.query(`SELECT action FROM audit_events WHERE record_id = $1 AND action LIKE 'consent.%' ORDER BY id`, [p.id])).rows.map((r) => r.action);
+		await expect(app.sql.query(`UPDATE consent_events SET note = 'changed' WHERE participant_id = $1`, [p.id])).rejects.toThrow(
+			/append-only/
+		);
+		const actions = (
+			await app.sql.query(`SELECT action FROM audit_events WHERE record_id = $1 AND action LIKE 'consent.%' ORDER BY id`, [p.id])
+		).rows.map((r) => r.action);
 		// the second use of the withdraw link is the one refusal
 		expect(actions).toEqual(['consent.invited', 'consent.given', 'consent.withdrawn', 'consent.withdraw-link.refused']);
 	});
 
 	it('researchers see the state and history but no name, e-mail address or typed signature', async () => {
-		const withdrawn = (await app.sql.query(`SELECT p.id FROM participants p JOIN participant_personal pp ON pp.participant_id = p.id WHERE pp.email = 'withdrawer@example.org'`)).rows[0].id;
+		const withdrawn = (
+			await app.sql.query(
+				`SELECT p.id FROM participants p JOIN participant_personal pp ON pp.participant_id = p.id WHERE pp.email = 'withdrawer@example.org'`
+			)
+		).rows[0].id;
 		for (const path of [consentPath(withdrawn), `${consentPath(withdrawn)}/__data.json`]) {
 			const res = await fetch(app.base + path, { headers: { cookie: app.cookies.researcherA } });
 			expect(res.status).toBe(200);
 			const text = await res.text();
 			expect(text).toContain('withdrawn');
-			for (const secret of ['withdrawer@example.org', 'Wilhelmina', 'Consent Tester']) expect(text, `${path} leaks ${secret}`).not.toContain(secret);
+			for (const secret of ['withdrawer@example.org', 'Wilhelmina', 'Consent Tester'])
+				expect(text, `${path} leaks ${secret}`).not.toContain(secret);
 		}
 		// the decide buttons are the PI's
 		expect(await (await get(consentPath(withdrawn), app.cookies.researcherA)).text()).not.toContain('?/decide');

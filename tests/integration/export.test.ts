@@ -13,13 +13,18 @@ const seed = JSON.parse(fs.readFileSync('seeds/demo/participants.json', 'utf8'))
 	studies: Record<string, { participants: { fullName: string; email: string; phone: string | null }[] }>;
 };
 const secrets = [
-	...new Set(Object.values(seed.studies).flatMap((s) => s.participants.flatMap((p) => [p.fullName, p.email, ...(p.phone ? [p.phone, p.phone.replace(/\s+/g, '')] : [])])).map((x) => x.toLowerCase()))
+	...new Set(
+		Object.values(seed.studies)
+			.flatMap((s) => s.participants.flatMap((p) => [p.fullName, p.email, ...(p.phone ? [p.phone, p.phone.replace(/\s+/g, '')] : [])]))
+			.map((x) => x.toLowerCase())
+	)
 ];
 
 let app: AppUnderTest;
 let dir: string;
 const exportPath = () => `/api/studies/${app.ids.studyA}/sessions/${app.ids.sessionA}/export`;
-const get = (persona: Persona, p: string) => fetch(app.base + p, { headers: { cookie: app.cookies[persona], accept: 'text/html' }, redirect: 'manual' });
+const get = (persona: Persona, p: string) =>
+	fetch(app.base + p, { headers: { cookie: app.cookies[persona], accept: 'text/html' }, redirect: 'manual' });
 
 beforeAll(async () => {
 	app = await startApp('export');
@@ -42,7 +47,14 @@ async function download(persona: Persona): Promise<{ res: Response; out: string 
 	return { res, out };
 }
 const entries = (out: string) =>
-	execFileSync('/usr/bin/python3', ['-c', 'import sys,zipfile; print("\\n".join(zipfile.ZipFile(sys.argv[1]).namelist()))', path.join(out, 'x.zip')]).toString().trim().split('\n');
+	execFileSync('/usr/bin/python3', [
+		'-c',
+		'import sys,zipfile; print("\\n".join(zipfile.ZipFile(sys.argv[1]).namelist()))',
+		path.join(out, 'x.zip')
+	])
+		.toString()
+		.trim()
+		.split('\n');
 
 describe('session export', () => {
 	it('refuses a session that is not approved with 409, naming its state', async () => {
@@ -62,7 +74,12 @@ describe('session export', () => {
 			);
 		}
 
-		for (const [persona, status] of [['technicianA', 403], ['memberB', 404], ['admin', 404], ['anonymous', 401]] as const) {
+		for (const [persona, status] of [
+			['technicianA', 403],
+			['memberB', 404],
+			['admin', 404],
+			['anonymous', 401]
+		] as const) {
 			expect((await get(persona, exportPath())).status, persona).toBe(status);
 		}
 
@@ -71,7 +88,12 @@ describe('session export', () => {
 		expect(res.headers.get('content-type')).toBe('application/zip');
 		expect(res.headers.get('content-disposition')).toBe('attachment; filename="SHELF-REACH-ALD-001-2026-11-18-session.zip"');
 
-		const trial = (await app.sql.query(`SELECT t.file_name, t.sha256, t.frame_count, u.sha256 AS upload_sha FROM trials t JOIN raw_uploads u ON u.id = t.raw_upload_id WHERE t.id = $1`, [app.ids.trialA])).rows[0];
+		const trial = (
+			await app.sql.query(
+				`SELECT t.file_name, t.sha256, t.frame_count, u.sha256 AS upload_sha FROM trials t JOIN raw_uploads u ON u.id = t.raw_upload_id WHERE t.id = $1`,
+				[app.ids.trialA]
+			)
+		).rows[0];
 		expect(entries(out).sort()).toEqual(['README.txt', 'provenance.json', `raw/${trial.file_name}`, 'results.csv'].sort());
 
 		// the raw bytes as uploaded: hashed here, equal to the trial's and the upload's hash and to provenance.json's
@@ -90,7 +112,10 @@ describe('session export', () => {
 		if (tt.rowCount) expect(prov.approval).toMatchObject({ meaning: 'I approve these results as reviewed.' });
 
 		// results.csv: header, one row per frame and series component, values equal to the stored float64 series
-		const csv = fs.readFileSync(path.join(out, 'x', 'results.csv'), 'utf8').trimEnd().split('\n');
+		const csv = fs
+			.readFileSync(path.join(out, 'x', 'results.csv'), 'utf8')
+			.trimEnd()
+			.split('\n');
 		expect(csv[0]).toBe('participant,trial,run,dof,quantity,unit,axis,repetition,x,value,in_edge_zone');
 		const series = (await app.sql.query(`SELECT name, quantity, components, data FROM run_series WHERE run_id = $1`, [app.ids.runA])).rows;
 		const time = decodeFloat64(series.find((r) => r.quantity === 'time')!.data);
@@ -112,17 +137,25 @@ describe('session export', () => {
 		// the edge zone: provenance.json gives the run's stored zone; in_edge_zone is true on exactly its samples
 		const zone = (await app.sql.query(`SELECT edge_zone FROM runs WHERE id = $1`, [app.ids.runA])).rows[0].edge_zone;
 		expect(zone.startSamples + zone.endSamples).toBeGreaterThan(0);
-		expect(prov.trials[0].run.edgeZone).toMatchObject({ computed: true, ...zone, endTreatment: prov.trials[0].run.options.endTreatment ?? null });
+		expect(prov.trials[0].run.edgeZone).toMatchObject({
+			computed: true,
+			...zone,
+			endTreatment: prov.trials[0].run.options.endTreatment ?? null
+		});
 		const flags = rows.map((l) => l.split(',')[10]);
 		expect(new Set(flags)).toEqual(new Set(['true', 'false']));
 		flags.forEach((f, i) => expect(f, `sample ${i}`).toBe(String(i < zone.startSamples || i >= time.length - zone.endSamples)));
 		// peaks in provenance leave the zone out (as stated), the whole trial beside them: checked on the stored moment series
 		const kept = Array.from(stored).slice(zone.startSamples, time.length - zone.endSamples);
-		const peak = prov.trials[0].run.peaks.outsideEdgeZone.find((r: { dof: string; quantity: string }) => r.dof === moment.name && r.quantity === 'moment');
+		const peak = prov.trials[0].run.peaks.outsideEdgeZone.find(
+			(r: { dof: string; quantity: string }) => r.dof === moment.name && r.quantity === 'moment'
+		);
 		expect(peak.peakPositive).toBe(Math.max(...kept));
 		expect(peak.peakNegative).toBe(Math.min(...kept));
 		expect(peak.samples).toBe(kept.length);
-		const whole = prov.trials[0].run.peaks.wholeTrial.find((r: { dof: string; quantity: string }) => r.dof === moment.name && r.quantity === 'moment');
+		const whole = prov.trials[0].run.peaks.wholeTrial.find(
+			(r: { dof: string; quantity: string }) => r.dof === moment.name && r.quantity === 'moment'
+		);
 		expect(whole.peakPositive).toBe(Math.max(...stored));
 		expect(prov.trials[0].run.peaks.scope).toMatch(/outside the edge zone/);
 		const readme = fs.readFileSync(path.join(out, 'x', 'README.txt'), 'utf8');
@@ -134,14 +167,21 @@ describe('session export', () => {
 			const text = fs.readFileSync(path.join(out, 'x', name), 'utf8').toLowerCase();
 			for (const secret of secrets) expect(text.includes(secret), `${name} contains personal data`).toBe(false);
 		}
-		const audit = await app.sql.query(`SELECT 1 FROM audit_events WHERE action = 'session.exported' AND record_id = $1`, [app.ids.sessionA]);
+		const audit = await app.sql.query(`SELECT 1 FROM audit_events WHERE action = 'session.exported' AND record_id = $1`, [
+			app.ids.sessionA
+		]);
 		expect(audit.rowCount).toBe(1);
 	}, 60_000);
 
 	it('never exports an excluded run; a kept one is exported and noted', async () => {
 		await app.sql.query(`UPDATE runs SET flag_decision = 'exclude', flagged_reason = 'consent withdrawn' WHERE id = $1`, [app.ids.runA]);
 		let { out } = await download('piA');
-		expect(fs.readFileSync(path.join(out, 'x', 'results.csv'), 'utf8').trimEnd().split('\n')).toHaveLength(1);
+		expect(
+			fs
+				.readFileSync(path.join(out, 'x', 'results.csv'), 'utf8')
+				.trimEnd()
+				.split('\n')
+		).toHaveLength(1);
 		let prov = JSON.parse(fs.readFileSync(path.join(out, 'x', 'provenance.json'), 'utf8'));
 		expect(prov.trials[0].run).toBeNull();
 		expect(prov.trials[0].runsNotExported[0]).toMatchObject({ number: 1, flagDecision: 'exclude', reason: 'excluded' });
@@ -161,7 +201,10 @@ describe('session export', () => {
 		const events = [t0 + 10.5 * dt, t0 + 60 * dt, t0 + 110 * dt];
 		await app.sql.query(`INSERT INTO cycle_events (run_id, times, source) VALUES ($1, $2, 'manual')`, [app.ids.runA, events]);
 		const { out } = await download('piA');
-		const csv = fs.readFileSync(path.join(out, 'x', 'results.csv'), 'utf8').trimEnd().split('\n');
+		const csv = fs
+			.readFileSync(path.join(out, 'x', 'results.csv'), 'utf8')
+			.trimEnd()
+			.split('\n');
 		const cycleRows = csv.filter((l) => l.split(',')[6] === 'cycle_percent');
 		expect(cycleRows.length).toBe(2 * 101 * comps);
 		expect(csv.length - 1 - cycleRows.length).toBe(time.length * comps);
@@ -191,8 +234,22 @@ describe('session export', () => {
 		try {
 			const { out } = await download('piA');
 			const prov = JSON.parse(fs.readFileSync(path.join(out, 'x', 'provenance.json'), 'utf8'));
-			expect(prov.trials[0].run.edgeZone).toMatchObject({ computed: false, startSamples: 0, endSamples: 0, startSeconds: 0, endSeconds: 0, note: 'not computed (run before edge zones were introduced)' });
-			const flags = new Set(fs.readFileSync(path.join(out, 'x', 'results.csv'), 'utf8').trimEnd().split('\n').slice(1).map((l) => l.split(',')[10]));
+			expect(prov.trials[0].run.edgeZone).toMatchObject({
+				computed: false,
+				startSamples: 0,
+				endSamples: 0,
+				startSeconds: 0,
+				endSeconds: 0,
+				note: 'not computed (run before edge zones were introduced)'
+			});
+			const flags = new Set(
+				fs
+					.readFileSync(path.join(out, 'x', 'results.csv'), 'utf8')
+					.trimEnd()
+					.split('\n')
+					.slice(1)
+					.map((l) => l.split(',')[10])
+			);
 			expect(flags).toEqual(new Set(['false']));
 		} finally {
 			await app.sql.query(`UPDATE runs SET edge_zone = $2 WHERE id = $1`, [app.ids.runA, JSON.stringify(saved)]);
@@ -201,9 +258,16 @@ describe('session export', () => {
 
 	it('refuses (409, naming run, trial and series) a run holding a non-finite value, rather than exporting an empty cell', async () => {
 		// such a run can only come from before the storage check (writeResults refuses it now): made here by hand
-		const row = (await app.sql.query(`SELECT name, data FROM run_series WHERE run_id = $1 AND quantity = 'moment' ORDER BY name LIMIT 1`, [app.ids.runA])).rows[0];
+		const row = (
+			await app.sql.query(`SELECT name, data FROM run_series WHERE run_id = $1 AND quantity = 'moment' ORDER BY name LIMIT 1`, [
+				app.ids.runA
+			])
+		).rows[0];
 		// NaN as IEEE 754 float64, little-endian: 0x7FF8000000000000
-		await app.sql.query(`UPDATE run_series SET data = overlay(data placing '\\x000000000000f87f'::bytea from 17 for 8) WHERE run_id = $1 AND quantity = 'moment' AND name = $2`, [app.ids.runA, row.name]);
+		await app.sql.query(
+			`UPDATE run_series SET data = overlay(data placing '\\x000000000000f87f'::bytea from 17 for 8) WHERE run_id = $1 AND quantity = 'moment' AND name = $2`,
+			[app.ids.runA, row.name]
+		);
 		try {
 			const before = (await app.sql.query(`SELECT count(*) n FROM audit_events WHERE action = 'session.exported'`)).rows[0].n;
 			const res = await fetch(app.base + exportPath(), { headers: { cookie: app.cookies.piA, accept: 'application/json' } });
@@ -213,7 +277,11 @@ describe('session export', () => {
 			expect(message).toMatch(/Run 1 of trial “[^”]+” holds a value that is not a finite number/);
 			expect((await app.sql.query(`SELECT count(*) n FROM audit_events WHERE action = 'session.exported'`)).rows[0].n).toBe(before);
 		} finally {
-			await app.sql.query(`UPDATE run_series SET data = $3 WHERE run_id = $1 AND quantity = 'moment' AND name = $2`, [app.ids.runA, row.name, row.data]);
+			await app.sql.query(`UPDATE run_series SET data = $3 WHERE run_id = $1 AND quantity = 'moment' AND name = $2`, [
+				app.ids.runA,
+				row.name,
+				row.data
+			]);
 		}
 		expect((await get('piA', exportPath())).status).toBe(200);
 	}, 60_000);
@@ -228,8 +296,11 @@ describe('session export', () => {
 		expect(html).toContain('not a clinical diagnosis');
 		expect(html).toContain('data-testid="moment-plot"');
 		expect(html).not.toContain('DRAFT — not approved');
-		if ((await app.sql.query(`SELECT to_regclass('session_transitions')::text AS t`)).rows[0].t) expect(html).toContain('I approve these results as reviewed.');
-		const css = await Promise.all([...html.matchAll(/<link[^>]+href="([^"]+\.css)"/g)].map(async (m) => (await fetch(new URL(m[1], app.base + reportPath))).text()));
+		if ((await app.sql.query(`SELECT to_regclass('session_transitions')::text AS t`)).rows[0].t)
+			expect(html).toContain('I approve these results as reviewed.');
+		const css = await Promise.all(
+			[...html.matchAll(/<link[^>]+href="([^"]+\.css)"/g)].map(async (m) => (await fetch(new URL(m[1], app.base + reportPath))).text())
+		);
 		const styles = css.join('\n') + [...html.matchAll(/<style[^>]*>([\s\S]*?)<\/style>/g)].map((m) => m[1]).join('\n');
 		expect(styles).toMatch(/@media print/);
 		expect(styles).toMatch(/size:\s*A4/);

@@ -38,7 +38,10 @@ export interface InboxMessage {
  * Polls maildev's REST API until a message to `address` arrives. Test files run side by side and share one maildev
  * and the demo addresses, so pass `base` (the app's own URL, which its links carry) and, where useful, `subject`.
  */
-export async function waitForMail(address: string, opts: number | { timeoutMs?: number; subject?: RegExp; base?: string } = {}): Promise<InboxMessage> {
+export async function waitForMail(
+	address: string,
+	opts: number | { timeoutMs?: number; subject?: RegExp; base?: string } = {}
+): Promise<InboxMessage> {
 	const { timeoutMs = 20_000, subject, base: appBase } = typeof opts === 'number' ? { timeoutMs: opts } : opts;
 	const base = process.env.MAILDEV_URL;
 	if (!base) throw new Error('MAILDEV_URL is not set: run the integration tests through `npm test`');
@@ -47,10 +50,16 @@ export async function waitForMail(address: string, opts: number | { timeoutMs?: 
 		const res = await fetch(`${base}/api/email`);
 		const all = (await res.json()) as InboxMessage[];
 		const hit = all.find(
-			(m) => m.to?.some((t) => t.address.toLowerCase() === address.toLowerCase()) && (!subject || subject.test(m.subject)) && (!appBase || (m.text ?? '').includes(appBase))
+			(m) =>
+				m.to?.some((t) => t.address.toLowerCase() === address.toLowerCase()) &&
+				(!subject || subject.test(m.subject)) &&
+				(!appBase || (m.text ?? '').includes(appBase))
 		);
 		if (hit) return hit;
-		if (Date.now() > deadline) throw new Error(`no e-mail to ${address}${subject ? ` matching ${subject}` : ''}${appBase ? ` from ${appBase}` : ''} arrived within ${timeoutMs} ms`);
+		if (Date.now() > deadline)
+			throw new Error(
+				`no e-mail to ${address}${subject ? ` matching ${subject}` : ''}${appBase ? ` from ${appBase}` : ''} arrived within ${timeoutMs} ms`
+			);
 		await new Promise((r) => setTimeout(r, 200));
 	}
 }

@@ -10,7 +10,10 @@ import { lockedMessage } from '../../src/lib/server/sessions/lock';
 const key = (route: string, method: string, action?: string) => `${method} ${route}${action ? ` ?/${action}` : ''}`;
 
 describe('the lock matrix covers every mutating handler', () => {
-	const handlers = routeTree().flatMap((r) => [...r.actions.map((a) => key(r.route, 'POST', a)), ...r.methods.filter((m) => m !== 'GET').map((m) => key(r.route, m))]);
+	const handlers = routeTree().flatMap((r) => [
+		...r.actions.map((a) => key(r.route, 'POST', a)),
+		...r.methods.filter((m) => m !== 'GET').map((m) => key(r.route, m))
+	]);
 	const listed = new Set(LOCK_MATRIX.map((e) => key(e.route, e.method, e.action)));
 	for (const h of handlers) it(`${h} has an entry`, () => expect(listed.has(h)).toBe(true));
 	it('lists no handler that does not exist, and each entry either refuses or gives a reason', () => {
@@ -49,7 +52,11 @@ describe('an approved session refuses every change', () => {
 
 	for (const e of LOCK_MATRIX.filter((x) => x.refuses)) {
 		it(`${key(e.route, e.method, e.action)} is refused`, async () => {
-			const headers: Record<string, string> = { cookie: app.cookies[e.as ?? 'piA'], origin: app.base, accept: e.action ? 'text/html' : 'application/json' };
+			const headers: Record<string, string> = {
+				cookie: app.cookies[e.as ?? 'piA'],
+				origin: app.base,
+				accept: e.action ? 'text/html' : 'application/json'
+			};
 			let body: BodyInit | undefined;
 			const b = e.body;
 			if (b && 'upload' in b) {

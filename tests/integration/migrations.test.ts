@@ -40,9 +40,9 @@ describe('migrations', () => {
 		await sequelize.query(`INSERT INTO audit_events (actor_label, action) VALUES ('test', 'test.event')`);
 		await expect(sequelize.query(`UPDATE audit_events SET action = 'x'`)).rejects.toThrow(/append-only/);
 		await expect(sequelize.query(`DELETE FROM audit_events`)).rejects.toThrow(/append-only/);
-		await expect(
-			sequelize.query(`INSERT INTO audit_events (actor_label, action, outcome) VALUES ('t', 'a', 'maybe')`)
-		).rejects.toThrow(/outcome_check/);
+		await expect(sequelize.query(`INSERT INTO audit_events (actor_label, action, outcome) VALUES ('t', 'a', 'maybe')`)).rejects.toThrow(
+			/outcome_check/
+		);
 	});
 
 	it('go down to an empty schema', async () => {

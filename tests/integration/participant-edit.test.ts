@@ -8,7 +8,9 @@ import { startApp, type AppUnderTest } from './app-under-test';
 const seed = JSON.parse(fs.readFileSync('seeds/demo/participants.json', 'utf8')) as {
 	studies: Record<string, { participants: { fullName: string; email: string; phone: string | null }[] }>;
 };
-const personalStrings = Object.values(seed.studies).flatMap((s) => s.participants.flatMap((p) => [p.fullName, p.email, ...(p.phone ? [p.phone] : [])]));
+const personalStrings = Object.values(seed.studies).flatMap((s) =>
+	s.participants.flatMap((p) => [p.fullName, p.email, ...(p.phone ? [p.phone] : [])])
+);
 
 let app: AppUnderTest;
 let dbc: pg.Client;
@@ -30,14 +32,29 @@ const post = (cookie: string, form: Record<string, string>) =>
 		redirect: 'manual',
 		headers: { cookie, origin: app.base, accept: 'text/html', 'content-type': 'application/x-www-form-urlencoded' }
 	});
-const row = async () => (await dbc.query(`SELECT sex, birth_year, body_mass_kg, stature_m, dominant_side, notes FROM participants WHERE id = $1`, [app.ids.participantA])).rows[0];
-const audits = async () => (await dbc.query(`SELECT actor_label, details FROM audit_events WHERE action = 'participant.research.changed' AND record_id = $1 ORDER BY id`, [app.ids.participantA])).rows;
+const row = async () =>
+	(
+		await dbc.query(`SELECT sex, birth_year, body_mass_kg, stature_m, dominant_side, notes FROM participants WHERE id = $1`, [
+			app.ids.participantA
+		])
+	).rows[0];
+const audits = async () =>
+	(
+		await dbc.query(
+			`SELECT actor_label, details FROM audit_events WHERE action = 'participant.research.changed' AND record_id = $1 ORDER BY id`,
+			[app.ids.participantA]
+		)
+	).rows;
 // ALD-001 as seeded: female, 1988, 64.2 kg, 1.68 m, right
 const seeded = { sex: 'female', birthYear: '1988', bodyMassKg: '64.2', statureM: '1.68', dominantSide: 'right', notes: '' };
 
 describe('correcting research data', () => {
 	it('the participant page offers the form to PI and technicians only, filled with the current values', async () => {
-		for (const [persona, shown] of [['technicianA', true], ['piA', true], ['researcherA', false]] as const) {
+		for (const [persona, shown] of [
+			['technicianA', true],
+			['piA', true],
+			['researcherA', false]
+		] as const) {
 			const html = await (await fetch(app.base + path, { headers: { cookie: app.cookies[persona] } })).text();
 			expect(html.includes('action="?/research"'), persona).toBe(shown);
 			if (shown) expect(html).toMatch(/id="research-bodyMassKg" name="bodyMassKg"[^>]*value="64.2"/);
@@ -46,7 +63,14 @@ describe('correcting research data', () => {
 
 	it('answers bad values with a message at each field, keeps what was typed, and changes nothing', async () => {
 		const before = await row();
-		const res = await post(app.cookies.technicianA, { sex: 'unknown', birthYear: '88', bodyMassKg: '642', statureM: '168', dominantSide: 'both', notes: 'x'.repeat(2001) });
+		const res = await post(app.cookies.technicianA, {
+			sex: 'unknown',
+			birthYear: '88',
+			bodyMassKg: '642',
+			statureM: '168',
+			dominantSide: 'both',
+			notes: 'x'.repeat(2001)
+		});
 		expect(res.status).toBe(400);
 		const html = await res.text();
 		expect(html).toContain('Nothing was saved. Correct the fields marked below and save again.');
@@ -64,10 +88,23 @@ describe('correcting research data', () => {
 	});
 
 	it('saves the changed fields and audits before and after, the notes only as changed', async () => {
-		const res = await post(app.cookies.technicianA, { ...seeded, bodyMassKg: ' 65.0 ', dominantSide: 'left', birthYear: '', notes: 'prefers the left hand for the box' });
+		const res = await post(app.cookies.technicianA, {
+			...seeded,
+			bodyMassKg: ' 65.0 ',
+			dominantSide: 'left',
+			birthYear: '',
+			notes: 'prefers the left hand for the box'
+		});
 		expect(res.status).toBe(303);
 		expect(res.headers.get('location')).toBe(`${path}?saved=research`);
-		expect(await row()).toEqual({ sex: 'female', birth_year: null, body_mass_kg: 65, stature_m: 1.68, dominant_side: 'left', notes: 'prefers the left hand for the box' });
+		expect(await row()).toEqual({
+			sex: 'female',
+			birth_year: null,
+			body_mass_kg: 65,
+			stature_m: 1.68,
+			dominant_side: 'left',
+			notes: 'prefers the left hand for the box'
+		});
 		const a = await audits();
 		expect(a).toEqual([
 			{
@@ -89,7 +126,14 @@ describe('correcting research data', () => {
 
 	it('writes no audit row when nothing changed', async () => {
 		const n = (await audits()).length;
-		const res = await post(app.cookies.piA, { sex: 'female', birthYear: '', bodyMassKg: '65', statureM: '1.68', dominantSide: 'left', notes: 'prefers the left hand for the box' });
+		const res = await post(app.cookies.piA, {
+			sex: 'female',
+			birthYear: '',
+			bodyMassKg: '65',
+			statureM: '1.68',
+			dominantSide: 'left',
+			notes: 'prefers the left hand for the box'
+		});
 		expect(res.status).toBe(303);
 		expect((await audits()).length).toBe(n);
 	});
@@ -99,7 +143,11 @@ describe('correcting research data', () => {
 		expect((await post(app.cookies.researcherA, { ...seeded, bodyMassKg: '99' })).status).toBe(403);
 		expect((await post(app.cookies.memberB, { ...seeded, bodyMassKg: '99' })).status).toBe(404);
 		expect(await row()).toEqual(before);
-		const denied = (await dbc.query(`SELECT count(*)::int AS n FROM audit_events WHERE action = 'access.denied' AND details->>'attempted' = 'participant.edit'`)).rows[0].n;
+		const denied = (
+			await dbc.query(
+				`SELECT count(*)::int AS n FROM audit_events WHERE action = 'access.denied' AND details->>'attempted' = 'participant.edit'`
+			)
+		).rows[0].n;
 		expect(denied).toBeGreaterThanOrEqual(2);
 	});
 });

@@ -58,7 +58,8 @@ function decode(html: string): string {
 		.replace(/&amp;/g, '&');
 }
 
-const counter = async () => (await dbc.query(`SELECT next_participant_number AS n FROM studies WHERE id = $1`, [studyA])).rows[0].n as number;
+const counter = async () =>
+	(await dbc.query(`SELECT next_participant_number AS n FROM studies WHERE id = $1`, [studyA])).rows[0].n as number;
 const count = async () => (await dbc.query(`SELECT count(*)::int AS n FROM participants`)).rows[0].n as number;
 const code = (n: number) => `ALD-${String(n).padStart(3, '0')}`;
 
@@ -69,7 +70,9 @@ describe('importing a good file', () => {
 		const sample = fs.readFileSync(SAMPLE, 'utf8');
 		const checked = await check(sample, app.cookies.technicianA, 'import-sample.csv');
 		expect(checked.status).toBe(200);
-		const preview = [...checked.html.matchAll(/data-testid="preview-row" data-state="(\w+)">\s*<td[^>]*>(\d+)<\/td>\s*<td[^>]*>(ALD-\d+)<\/td>/g)].map((m) => [m[1], Number(m[2]), m[3]]);
+		const preview = [
+			...checked.html.matchAll(/data-testid="preview-row" data-state="(\w+)">\s*<td[^>]*>(\d+)<\/td>\s*<td[^>]*>(ALD-\d+)<\/td>/g)
+		].map((m) => [m[1], Number(m[2]), m[3]]);
 		// rows are numbered as in the file (header = row 1)
 		expect(preview).toEqual([2, 3, 4, 5, 6].map((row, i) => ['ok', row, code(first + i)]));
 		expect(checked.html).toContain('Import 5 participants');
@@ -88,14 +91,30 @@ describe('importing a good file', () => {
 			)
 		).rows;
 		expect(rows.map((r) => r.code)).toEqual([0, 1, 2, 3, 4].map((i) => code(first + i)));
-		expect(rows[0]).toEqual({ code: code(first), sex: 'female', birth_year: 1991, body_mass_kg: 63.4, stature_m: 1.67, dominant_side: 'right', notes: 'night shift; picks from top shelves', full_name: 'Halvard Tiensuu-Mbeki', email: 'halvard.tiensuu@example.org', phone: '+1 555 0211' });
+		expect(rows[0]).toEqual({
+			code: code(first),
+			sex: 'female',
+			birth_year: 1991,
+			body_mass_kg: 63.4,
+			stature_m: 1.67,
+			dominant_side: 'right',
+			notes: 'night shift; picks from top shelves',
+			full_name: 'Halvard Tiensuu-Mbeki',
+			email: 'halvard.tiensuu@example.org',
+			phone: '+1 555 0211'
+		});
 		// a quoted value with a comma, an empty birth year, a missing e-mail
 		expect(rows[2].notes).toBe('former forklift driver, back pain resolved');
 		expect(rows[4]).toMatchObject({ birth_year: null, dominant_side: 'right', phone: null });
 		expect(rows[3]).toMatchObject({ full_name: 'Philippa Nørgaard-Esteves', email: null, dominant_side: null });
 		expect(await counter()).toBe(first + 5);
 
-		const audit = (await dbc.query(`SELECT action, details FROM audit_events WHERE action IN ('participant.created', 'participants.imported') AND study_id = $1 ORDER BY id`, [studyA])).rows;
+		const audit = (
+			await dbc.query(
+				`SELECT action, details FROM audit_events WHERE action IN ('participant.created', 'participants.imported') AND study_id = $1 ORDER BY id`,
+				[studyA]
+			)
+		).rows;
 		const created = audit.filter((a) => a.action === 'participant.created' && a.details.via === 'import');
 		expect(created.map((a) => [a.details.code, a.details.row])).toEqual([2, 3, 4, 5, 6].map((row, i) => [code(first + i), row]));
 		expect(audit.filter((a) => a.action === 'participants.imported').map((a) => a.details)).toEqual([
@@ -115,9 +134,16 @@ describe('importing a good file', () => {
 		expect(checked.status).toBe(200);
 		expect(checked.html).toContain('semicolon-separated, 2 participant rows');
 		// the quoted value spans rows 2-3 and a blank line follows, so the next participant is on row 5
-		expect([...checked.html.matchAll(/data-testid="preview-row" data-state="ok">\s*<td[^>]*>(\d+)</g)].map((m) => Number(m[1]))).toEqual([2, 5]);
+		expect([...checked.html.matchAll(/data-testid="preview-row" data-state="ok">\s*<td[^>]*>(\d+)</g)].map((m) => Number(m[1]))).toEqual([
+			2, 5
+		]);
 		expect((await runImport(importForm(checked))).status).toBe(303);
-		const rows = (await dbc.query(`SELECT code, sex, body_mass_kg, notes FROM participants WHERE study_id = $1 AND code >= $2 ORDER BY code`, [studyA, code(first)])).rows;
+		const rows = (
+			await dbc.query(`SELECT code, sex, body_mass_kg, notes FROM participants WHERE study_id = $1 AND code >= $2 ORDER BY code`, [
+				studyA,
+				code(first)
+			])
+		).rows;
 		expect(rows).toEqual([
 			{ code: code(first), sex: 'male', body_mass_kg: 80.5, notes: 'two\nlines' },
 			{ code: code(first + 1), sex: 'female', body_mass_kg: 55, notes: null }
@@ -189,13 +215,43 @@ describe('files that cannot be checked row by row', () => {
 		['an empty file', '', 400, 'The file is empty. It needs a header row'],
 		['blank lines only', '\n \n', 400, 'The file is empty.'],
 		['a header only', 'sex,body_mass_kg,stature_m\n', 400, 'The file has a header row but no participant rows.'],
-		['an unknown column', 'sex,body_mass_kg,stature_m,shoe_size\nmale,70,1.7,44\n', 400, 'row 1, column shoe_size: “shoe_size” is not one of Momentry\'s columns. Use only sex, birth_year, body_mass_kg, stature_m, dominant_side, notes, full_name, email, phone.'],
-		['a duplicate column', 'sex,body_mass_kg,stature_m,Sex\nmale,70,1.7,male\n', 400, 'row 1, column Sex: columns 1 and 4 are both “sex”. Keep one of them.'],
+		[
+			'an unknown column',
+			'sex,body_mass_kg,stature_m,shoe_size\nmale,70,1.7,44\n',
+			400,
+			"row 1, column shoe_size: “shoe_size” is not one of Momentry's columns. Use only sex, birth_year, body_mass_kg, stature_m, dominant_side, notes, full_name, email, phone."
+		],
+		[
+			'a duplicate column',
+			'sex,body_mass_kg,stature_m,Sex\nmale,70,1.7,male\n',
+			400,
+			'row 1, column Sex: columns 1 and 4 are both “sex”. Keep one of them.'
+		],
 		['a column without a name', 'sex,,body_mass_kg,stature_m\nmale,x,70,1.7\n', 400, 'row 1: column 2 has no name.'],
-		['a missing required column', 'sex,body_mass_kg\nmale,70\n', 400, 'row 1: the header has no column stature_m, which is required (metres, 0.8–2.5, with a decimal point (1.68)).'],
-		['text that is not UTF-8', new Uint8Array([...Buffer.from('sex,body_mass_kg,stature_m,notes\nmale,70,1.7,'), 0xe9, 0x0a]), 400, 'list.csv is not UTF-8 text.'],
-		['too many rows', 'sex,body_mass_kg,stature_m\n' + 'male,70,1.7\n'.repeat(IMPORT_MAX_ROWS + 1), 400, 'The file has 2,001 participant rows; import at most 2,000 at a time.'],
-		['a file over the size limit', 'sex,body_mass_kg,stature_m,notes\n' + `male,70,1.7,${'x'.repeat(1000)}\n`.repeat(420), 413, 'KB; the limit is 400 KB (about 2,000 rows). Split the file']
+		[
+			'a missing required column',
+			'sex,body_mass_kg\nmale,70\n',
+			400,
+			'row 1: the header has no column stature_m, which is required (metres, 0.8–2.5, with a decimal point (1.68)).'
+		],
+		[
+			'text that is not UTF-8',
+			new Uint8Array([...Buffer.from('sex,body_mass_kg,stature_m,notes\nmale,70,1.7,'), 0xe9, 0x0a]),
+			400,
+			'list.csv is not UTF-8 text.'
+		],
+		[
+			'too many rows',
+			'sex,body_mass_kg,stature_m\n' + 'male,70,1.7\n'.repeat(IMPORT_MAX_ROWS + 1),
+			400,
+			'The file has 2,001 participant rows; import at most 2,000 at a time.'
+		],
+		[
+			'a file over the size limit',
+			'sex,body_mass_kg,stature_m,notes\n' + `male,70,1.7,${'x'.repeat(1000)}\n`.repeat(420),
+			413,
+			'KB; the limit is 400 KB (about 2,000 rows). Split the file'
+		]
 	];
 	for (const [what, content, status, message] of cases) {
 		it(`refuses ${what} with a precise message`, async () => {
@@ -209,7 +265,12 @@ describe('files that cannot be checked row by row', () => {
 	}
 
 	it('refuses a check without a file, and an import whose file changed after the check', async () => {
-		const none = await fetch(app.base + page() + '?/check', { method: 'POST', body: new FormData(), headers: headers(app.cookies.piA), redirect: 'manual' });
+		const none = await fetch(app.base + page() + '?/check', {
+			method: 'POST',
+			body: new FormData(),
+			headers: headers(app.cookies.piA),
+			redirect: 'manual'
+		});
 		expect(none.status).toBe(400);
 		expect(await none.text()).toContain('Choose a CSV file first.');
 		const checked = await check('sex,body_mass_kg,stature_m\nmale,70,1.7\n');
@@ -230,10 +291,20 @@ describe('all or nothing', () => {
 		// a participant of another study already holds the code row 122 would get: only the unique index sees it, after
 		// the first IMPORT_CHUNK rows have been written inside the transaction
 		const blocked = code(first + 120);
-		await dbc.query(`INSERT INTO participants (id, study_id, code, sex, body_mass_kg, stature_m) VALUES (gen_random_uuid(), $1, $2, 'male', 75, 1.75)`, [studyB, blocked]);
+		await dbc.query(
+			`INSERT INTO participants (id, study_id, code, sex, body_mass_kg, stature_m) VALUES (gen_random_uuid(), $1, $2, 'male', 75, 1.75)`,
+			[studyB, blocked]
+		);
 		const createdBefore = (await dbc.query(`SELECT count(*)::int AS n FROM audit_events WHERE action = 'participant.created'`)).rows[0].n;
-		const named = ['female,60,1.6,Wilhelmina Corse', 'male,70,1.7,Tobiah Quennell', 'male,80,1.8,Ansel Drummond', 'female,65,1.65,Marit Oyelaran'];
-		const file = 'sex,body_mass_kg,stature_m,full_name\n' + [...named, ...Array.from({ length: 146 }, (_, i) => `male,${60 + (i % 30)},1.7,`)].join('\n');
+		const named = [
+			'female,60,1.6,Wilhelmina Corse',
+			'male,70,1.7,Tobiah Quennell',
+			'male,80,1.8,Ansel Drummond',
+			'female,65,1.65,Marit Oyelaran'
+		];
+		const file =
+			'sex,body_mass_kg,stature_m,full_name\n' +
+			[...named, ...Array.from({ length: 146 }, (_, i) => `male,${60 + (i % 30)},1.7,`)].join('\n');
 		expect(IMPORT_CHUNK).toBeLessThan(120);
 		const checked = await check(file);
 		expect(checked.status).toBe(200);
@@ -244,8 +315,13 @@ describe('all or nothing', () => {
 		expect(await count()).toBe(before + 1);
 		const codes = Array.from({ length: 150 }, (_, i) => code(first + i)).filter((c) => c !== blocked);
 		expect((await dbc.query(`SELECT count(*)::int AS n FROM participants WHERE code = ANY($1)`, [codes])).rows[0].n).toBe(0);
-		expect((await dbc.query(`SELECT count(*)::int AS n FROM participant_personal WHERE full_name IN ('Wilhelmina Corse', 'Tobiah Quennell')`)).rows[0].n).toBe(0);
-		expect((await dbc.query(`SELECT count(*)::int AS n FROM audit_events WHERE action = 'participant.created'`)).rows[0].n).toBe(createdBefore);
+		expect(
+			(await dbc.query(`SELECT count(*)::int AS n FROM participant_personal WHERE full_name IN ('Wilhelmina Corse', 'Tobiah Quennell')`))
+				.rows[0].n
+		).toBe(0);
+		expect((await dbc.query(`SELECT count(*)::int AS n FROM audit_events WHERE action = 'participant.created'`)).rows[0].n).toBe(
+			createdBefore
+		);
 		expect(await counter()).toBe(first);
 		const failed = (await dbc.query(`SELECT outcome, details FROM audit_events WHERE action = 'participants.import.failed'`)).rows;
 		expect(failed).toEqual([{ outcome: 'failed', details: expect.objectContaining({ reason: `code ${blocked} is already in use` }) }]);
@@ -258,7 +334,17 @@ describe('all or nothing', () => {
 		const first = await counter();
 		const added = await fetch(`${app.base}/studies/${studyA}/participants/new`, {
 			method: 'POST',
-			body: new URLSearchParams({ sex: 'male', bodyMassKg: '72', statureM: '1.77', birthYear: '', dominantSide: '', notes: '', fullName: '', email: '', phone: '' }),
+			body: new URLSearchParams({
+				sex: 'male',
+				bodyMassKg: '72',
+				statureM: '1.77',
+				birthYear: '',
+				dominantSide: '',
+				notes: '',
+				fullName: '',
+				email: '',
+				phone: ''
+			}),
 			headers: { ...headers(app.cookies.piA), 'content-type': 'application/x-www-form-urlencoded' },
 			redirect: 'manual'
 		});
@@ -277,7 +363,11 @@ describe('all or nothing', () => {
 
 	it(`imports the largest allowed file (${IMPORT_MAX_ROWS} rows) in one transaction`, async () => {
 		const first = await counter();
-		const rows = Array.from({ length: IMPORT_MAX_ROWS }, (_, i) => `${i % 2 ? 'male' : 'female'},${1950 + (i % 50)},${(50 + (i % 40)).toFixed(1)},${(1.55 + (i % 40) / 100).toFixed(2)},right,batch ${i}`);
+		const rows = Array.from(
+			{ length: IMPORT_MAX_ROWS },
+			(_, i) =>
+				`${i % 2 ? 'male' : 'female'},${1950 + (i % 50)},${(50 + (i % 40)).toFixed(1)},${(1.55 + (i % 40) / 100).toFixed(2)},right,batch ${i}`
+		);
 		const checked = await check('sex,birth_year,body_mass_kg,stature_m,dominant_side,notes\n' + rows.join('\n') + '\n');
 		expect(checked.status).toBe(200);
 		const started = performance.now();
@@ -300,13 +390,19 @@ describe('who may import', () => {
 		expect((await runImport(importForm(checked), app.cookies.researcherA)).status).toBe(403);
 		expect((await check(fs.readFileSync(SAMPLE, 'utf8'), app.cookies.memberB)).status).toBe(404);
 		expect(await count()).toBe(before);
-		const denied = (await dbc.query(`SELECT details FROM audit_events WHERE action = 'access.denied' AND details->>'attempted' = 'participant.import'`)).rows;
+		const denied = (
+			await dbc.query(`SELECT details FROM audit_events WHERE action = 'access.denied' AND details->>'attempted' = 'participant.import'`)
+		).rows;
 		expect(denied.length).toBeGreaterThanOrEqual(3);
 	});
 
 	it('the participant list links to the import for PI and technicians only', async () => {
 		const link = `href="/studies/${studyA}/participants/import"`;
-		for (const [persona, shown] of [['piA', true], ['technicianA', true], ['researcherA', false]] as const) {
+		for (const [persona, shown] of [
+			['piA', true],
+			['technicianA', true],
+			['researcherA', false]
+		] as const) {
 			const html = await (await fetch(`${app.base}/studies/${studyA}/participants`, { headers: headers(app.cookies[persona]) })).text();
 			expect(html.includes(link), persona).toBe(shown);
 		}

@@ -9,7 +9,9 @@ const seed = JSON.parse(fs.readFileSync('seeds/demo/participants.json', 'utf8'))
 	studies: Record<string, { participants: { fullName: string; email: string; phone: string | null }[] }>;
 };
 const shelfPeople = seed.studies['SHELF-REACH'].participants;
-const personalStrings = Object.values(seed.studies).flatMap((s) => s.participants.flatMap((p) => [p.fullName, p.email, ...(p.phone ? [p.phone] : [])]));
+const personalStrings = Object.values(seed.studies).flatMap((s) =>
+	s.participants.flatMap((p) => [p.fullName, p.email, ...(p.phone ? [p.phone] : [])])
+);
 
 let app: AppUnderTest;
 let dbc: pg.Client;
@@ -27,7 +29,8 @@ afterAll(async () => {
 	await app?.close();
 });
 
-const get = (path: string, cookie: string, accept = 'text/html') => fetch(app.base + path, { headers: { cookie, accept }, redirect: 'manual' });
+const get = (path: string, cookie: string, accept = 'text/html') =>
+	fetch(app.base + path, { headers: { cookie, accept }, redirect: 'manual' });
 const post = (path: string, cookie: string, form: Record<string, string>) =>
 	fetch(app.base + path, {
 		method: 'POST',
@@ -69,7 +72,9 @@ describe('personal data by role', () => {
 	it('members of another study get 404 for the list and for a participant', async () => {
 		expect((await get(`/studies/${studyA}/participants`, app.cookies.memberB)).status).toBe(404);
 		expect((await get(`/studies/${studyA}/participants/${ald001}`, app.cookies.memberB)).status).toBe(404);
-		expect(await (await dataJson(`/studies/${studyA}/participants/${ald001}`, app.cookies.memberB)).text()).not.toContain(shelfPeople[0].fullName);
+		expect(await (await dataJson(`/studies/${studyA}/participants/${ald001}`, app.cookies.memberB)).text()).not.toContain(
+			shelfPeople[0].fullName
+		);
 		// a participant of study A under study B's URL does not exist there, even for the PI of both
 		expect((await get(`/studies/${studyB}/participants/${ald001}`, app.cookies.piA)).status).toBe(404);
 	});
@@ -92,7 +97,17 @@ describe('the participant list', () => {
 });
 
 describe('adding participants', () => {
-	const valid = { sex: 'female', bodyMassKg: '61.5', statureM: '1.66', birthYear: '1992', dominantSide: 'right', notes: '', fullName: 'Ysolde Brackenridge', email: 'ysolde.brackenridge@example.org', phone: '' };
+	const valid = {
+		sex: 'female',
+		bodyMassKg: '61.5',
+		statureM: '1.66',
+		birthYear: '1992',
+		dominantSide: 'right',
+		notes: '',
+		fullName: 'Ysolde Brackenridge',
+		email: 'ysolde.brackenridge@example.org',
+		phone: ''
+	};
 
 	it('issues sequential codes from the study prefix, and keeps personal data apart', async () => {
 		const made: string[] = [];
@@ -105,7 +120,12 @@ describe('adding participants', () => {
 		const { rows } = await dbc.query(
 			`SELECT p.code, p.body_mass_kg, pp.full_name, pp.email FROM participants p JOIN participant_personal pp ON pp.participant_id = p.id WHERE p.code = 'ALD-006'`
 		);
-		expect(rows[0]).toMatchObject({ code: 'ALD-006', body_mass_kg: 61.5, full_name: 'Ysolde Brackenridge', email: 'ysolde.brackenridge@example.org' });
+		expect(rows[0]).toMatchObject({
+			code: 'ALD-006',
+			body_mass_kg: 61.5,
+			full_name: 'Ysolde Brackenridge',
+			email: 'ysolde.brackenridge@example.org'
+		});
 		const audit = await dbc.query(`SELECT details FROM audit_events WHERE action = 'participant.created' ORDER BY id`);
 		expect(audit.rows.map((r) => r.details.code)).toEqual(['ALD-006', 'ALD-007']);
 		// the audit row names the personal fields entered, never their values
@@ -114,7 +134,13 @@ describe('adding participants', () => {
 
 	it('answers an invalid form with a message at each field and saves nothing', async () => {
 		const before = (await dbc.query(`SELECT count(*)::int AS n FROM participants`)).rows[0].n;
-		const res = await post(`/studies/${studyA}/participants/new`, app.cookies.technicianA, { ...valid, sex: 'unknown', bodyMassKg: '12', statureM: 'tall', email: 'not-an-address' });
+		const res = await post(`/studies/${studyA}/participants/new`, app.cookies.technicianA, {
+			...valid,
+			sex: 'unknown',
+			bodyMassKg: '12',
+			statureM: 'tall',
+			email: 'not-an-address'
+		});
 		expect(res.status).toBe(400);
 		const html = await res.text();
 		expect(html).toMatch(/data-testid="error-sex"[^>]*>sex must be/);
@@ -130,8 +156,12 @@ describe('adding participants', () => {
 
 	it('keeps the history of segment lengths; the latest is used', async () => {
 		const path = `/studies/${studyA}/participants/${ald001}?/length`;
-		expect((await post(path, app.cookies.technicianA, { segment: 'right.forearm', lengthM: '0.262', measuredOn: '2026-10-01' })).status).toBe(303);
-		expect((await post(path, app.cookies.technicianA, { segment: 'right.forearm', lengthM: '0.265', measuredOn: '2026-11-01' })).status).toBe(303);
+		expect(
+			(await post(path, app.cookies.technicianA, { segment: 'right.forearm', lengthM: '0.262', measuredOn: '2026-10-01' })).status
+		).toBe(303);
+		expect(
+			(await post(path, app.cookies.technicianA, { segment: 'right.forearm', lengthM: '0.265', measuredOn: '2026-11-01' })).status
+		).toBe(303);
 		const bad = await post(path, app.cookies.technicianA, { segment: 'right.forearm', lengthM: '26.5', measuredOn: '2026-11-01' });
 		expect(bad.status).toBe(400);
 		expect(await bad.text()).toContain('between 0.02 and 1.2 m');
@@ -148,7 +178,9 @@ describe('correcting personal data', () => {
 		expect(res.status).toBe(303);
 		const row = (await dbc.query(`SELECT full_name, email, phone FROM participant_personal WHERE participant_id = $1`, [ald001])).rows[0];
 		expect(row).toEqual({ full_name: shelfPeople[0].fullName, email: 'lena.v@example.org', phone: null });
-		const audit = (await dbc.query(`SELECT details FROM audit_events WHERE action = 'participant.personal.changed' AND record_id = $1`, [ald001])).rows;
+		const audit = (
+			await dbc.query(`SELECT details FROM audit_events WHERE action = 'participant.personal.changed' AND record_id = $1`, [ald001])
+		).rows;
 		expect(audit.map((a) => a.details.changed)).toEqual([['email', 'phone']]);
 		expect(JSON.stringify(audit)).not.toContain('lena.v@');
 		const bad = await post(path, app.cookies.piA, { fullName: '', email: 'nope', phone: '' });
@@ -194,7 +226,11 @@ describe('consent form versions', () => {
 describe('study settings', () => {
 	it('the PI changes ethics reference, expiry and default table; the change is audited and the banner follows', async () => {
 		const soon = new Date(Date.now() + 10 * 86_400_000).toISOString().slice(0, 10);
-		const res = await post(`/studies/${studyA}/settings`, app.cookies.piA, { ethicsReference: 'ACU-HREC-2026-041a', ethicsExpiresOn: soon, defaultTable: 'zatsiorsky-regression-2002' });
+		const res = await post(`/studies/${studyA}/settings`, app.cookies.piA, {
+			ethicsReference: 'ACU-HREC-2026-041a',
+			ethicsExpiresOn: soon,
+			defaultTable: 'zatsiorsky-regression-2002'
+		});
 		expect(res.status).toBe(303);
 		const html = await (await get(`/studies/${studyA}`, app.cookies.researcherA)).text();
 		expect(html).toContain('ACU-HREC-2026-041a');
@@ -204,12 +240,20 @@ describe('study settings', () => {
 		expect(audit.rows[0].details.before.ethicsReference).toBe('ACU-HREC-2026-041');
 
 		const past = new Date(Date.now() - 2 * 86_400_000).toISOString().slice(0, 10);
-		await post(`/studies/${studyA}/settings`, app.cookies.piA, { ethicsReference: 'ACU-HREC-2026-041a', ethicsExpiresOn: past, defaultTable: 'de-leva-1996' });
+		await post(`/studies/${studyA}/settings`, app.cookies.piA, {
+			ethicsReference: 'ACU-HREC-2026-041a',
+			ethicsExpiresOn: past,
+			defaultTable: 'de-leva-1996'
+		});
 		expect(await (await get(`/studies/${studyA}`, app.cookies.piA)).text()).toContain('Ethics approval expired');
 	});
 
 	it('answers invalid values with field messages', async () => {
-		const res = await post(`/studies/${studyA}/settings`, app.cookies.piA, { ethicsReference: 'x', ethicsExpiresOn: '31.12.2027', defaultTable: 'my-table' });
+		const res = await post(`/studies/${studyA}/settings`, app.cookies.piA, {
+			ethicsReference: 'x',
+			ethicsExpiresOn: '31.12.2027',
+			defaultTable: 'my-table'
+		});
 		expect(res.status).toBe(400);
 		const html = await res.text();
 		expect(html).toContain('Enter the expiry as a date (YYYY-MM-DD)');
@@ -219,7 +263,9 @@ describe('study settings', () => {
 
 describe('segment model page', () => {
 	it('scales the participant with the chosen table, uses measured lengths, and shows no personal data', async () => {
-		const res = await fetch(`${app.base}/studies/${studyA}/participants/${ald001}/model?table=dempster-winter-2009&limb=right.leg`, { headers: { cookie: app.cookies.researcherA } });
+		const res = await fetch(`${app.base}/studies/${studyA}/participants/${ald001}/model?table=dempster-winter-2009&limb=right.leg`, {
+			headers: { cookie: app.cookies.researcherA }
+		});
 		expect(res.status).toBe(200);
 		const html = await res.text();
 		expect(html).toContain('Dempster (1955), as tabulated by Winter (2009)');

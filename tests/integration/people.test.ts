@@ -12,7 +12,16 @@ import { AuditEvent, OneTimeToken, Study, StudyMember, User } from '../../src/li
 import { loadActor, type Actor } from '../../src/lib/server/access/guard';
 import { closeMail } from '../../src/lib/server/mail/index';
 import { consume, hashToken, inspectToken, issueToken } from '../../src/lib/server/auth/tokens';
-import { deactivatePerson, invitePerson, listPeople, parsePeopleQuery, reactivatePerson, requestPasswordReset, setLabAdmin, setStudyRole } from '../../src/lib/server/people/manage';
+import {
+	deactivatePerson,
+	invitePerson,
+	listPeople,
+	parsePeopleQuery,
+	reactivatePerson,
+	requestPasswordReset,
+	setLabAdmin,
+	setStudyRole
+} from '../../src/lib/server/people/manage';
 import { loadDemoSeed } from '../../seeds/index';
 import { freshDatabase } from './helpers';
 import { DEMO_PASSWORD, PERSONAS, signInAs, startApp, type AppUnderTest } from './app-under-test';
@@ -31,7 +40,9 @@ async function mailSince(address: string, since: number, subject: RegExp, timeou
 	const deadline = Date.now() + timeoutMs;
 	for (;;) {
 		const all = (await (await fetch(`${process.env.MAILDEV_URL}/api/email`)).json()) as Mail[];
-		const hit = all.find((m) => m.to.some((t) => t.address === address) && new Date(m.time).getTime() >= since - 1000 && subject.test(m.subject));
+		const hit = all.find(
+			(m) => m.to.some((t) => t.address === address) && new Date(m.time).getTime() >= since - 1000 && subject.test(m.subject)
+		);
 		if (hit) return hit;
 		if (Date.now() > deadline) return null;
 		await new Promise((r) => setTimeout(r, 200));
@@ -146,7 +157,12 @@ describe('direct calls on a fresh database', () => {
 			await User.bulkCreate(
 				Array.from({ length: 60 }, (_, i) => {
 					const n = String(i + 1).padStart(2, '0');
-					return { email: `listed-${String(60 - i).padStart(2, '0')}@list.example`, name: `Search Person ${n}`, emailVerified: null, createdAt: new Date(base + i * 60_000) };
+					return {
+						email: `listed-${String(60 - i).padStart(2, '0')}@list.example`,
+						name: `Search Person ${n}`,
+						emailVerified: null,
+						createdAt: new Date(base + i * 60_000)
+					};
 				})
 			);
 		});
@@ -159,7 +175,9 @@ describe('direct calls on a fresh database', () => {
 			expect(p1.people).toHaveLength(25);
 			expect(p1.people.map((p) => p.name)).toEqual(Array.from({ length: 25 }, (_, i) => `Search Person ${String(i + 1).padStart(2, '0')}`));
 			const p3 = await listPeople(admin, q('q=search person&page=3'));
-			expect(p3.people.map((p) => p.name)).toEqual(Array.from({ length: 10 }, (_, i) => `Search Person ${String(i + 51).padStart(2, '0')}`));
+			expect(p3.people.map((p) => p.name)).toEqual(
+				Array.from({ length: 10 }, (_, i) => `Search Person ${String(i + 51).padStart(2, '0')}`)
+			);
 			const byMail = await listPeople(admin, q('q=LIST.EXAMPLE'));
 			expect(byMail.total).toBe(60);
 			const one = await listPeople(admin, q('q=person 07'));
@@ -175,7 +193,11 @@ describe('direct calls on a fresh database', () => {
 			const nameDesc = await listPeople(admin, q('q=list.example&sort=name&dir=desc'));
 			expect(nameDesc.people[0].name).toBe('Search Person 60');
 			const email = await listPeople(admin, q('q=list.example&sort=email'));
-			expect(email.people.slice(0, 3).map((p) => p.email)).toEqual(['listed-01@list.example', 'listed-02@list.example', 'listed-03@list.example']);
+			expect(email.people.slice(0, 3).map((p) => p.email)).toEqual([
+				'listed-01@list.example',
+				'listed-02@list.example',
+				'listed-03@list.example'
+			]);
 			const emailDesc = await listPeople(admin, q('q=list.example&sort=email&dir=desc&page=3'));
 			expect(emailDesc.people.at(-1)?.email).toBe('listed-01@list.example');
 			const created = await listPeople(admin, q('q=list.example&sort=created&dir=desc'));
@@ -251,7 +273,9 @@ describe('direct calls on a fresh database', () => {
 
 		it('a refused change leaves no audit row behind', async () => {
 			const count = await AuditEvent.count();
-			await expect(setStudyRole(admin, ctx, '00000000-0000-4000-8000-000000000000', (await Study.findOne())!.id, 'pi')).rejects.toMatchObject({ kind: 'not-found' });
+			await expect(
+				setStudyRole(admin, ctx, '00000000-0000-4000-8000-000000000000', (await Study.findOne())!.id, 'pi')
+			).rejects.toMatchObject({ kind: 'not-found' });
 			expect(await AuditEvent.count()).toBe(count);
 		});
 
@@ -259,7 +283,11 @@ describe('direct calls on a fresh database', () => {
 			const study = (await Study.findOne({ where: { code: 'KNEE-60' } }))!;
 			const since = Date.now();
 			const first = await invitePerson(admin, ctx, { email: 'twice@people.example', name: 'Twice Invited', roles: new Map() });
-			const second = await invitePerson(admin, ctx, { email: 'twice@people.example', name: null, roles: new Map([[study.id, 'technician']]) });
+			const second = await invitePerson(admin, ctx, {
+				email: 'twice@people.example',
+				name: null,
+				roles: new Map([[study.id, 'technician']])
+			});
 			expect(first.created).toBe(true);
 			expect(second).toEqual({ userId: first.userId, created: false });
 			expect(await User.count({ where: { email: 'twice@people.example' } })).toBe(1);
@@ -321,7 +349,11 @@ describe('over HTTP against the built app', () => {
 	it('an invitation e-mail arrives; its link sets a password that then signs in, and works only once', async () => {
 		const email = `invitee-${randomBytes(3).toString('hex')}@people.example`;
 		const since = Date.now();
-		const invited = await post('/people/invite', { email: ` ${email.toUpperCase()} `, name: '', [`role-${studyA}`]: 'researcher' }, app.cookies.admin);
+		const invited = await post(
+			'/people/invite',
+			{ email: ` ${email.toUpperCase()} `, name: '', [`role-${studyA}`]: 'researcher' },
+			app.cookies.admin
+		);
 		expect(invited.status).toBe(303);
 		const id = await idOf(email);
 		expect(invited.headers.get('location')).toBe(`/people/${id}?done=invited`);
@@ -353,7 +385,13 @@ describe('over HTTP against the built app', () => {
 		expect(after.name).toBe('Ines Varga');
 		expect(after.password_hash).toMatch(/^\$argon2id\$/);
 		expect(after.email_verified).toBeInstanceOf(Date);
-		expect((await client.query(`SELECT count(*)::int AS n FROM audit_events WHERE action = 'people.invitation-accepted' AND record_id = $1`, [id])).rows[0].n).toBe(1);
+		expect(
+			(
+				await client.query(`SELECT count(*)::int AS n FROM audit_events WHERE action = 'people.invitation-accepted' AND record_id = $1`, [
+					id
+				])
+			).rows[0].n
+		).toBe(1);
 
 		const signedIn = await signInAs(app.base, email, 'lichen fjord amber');
 		expect(signedIn.cookie).not.toBe('');
@@ -397,7 +435,10 @@ describe('over HTTP against the built app', () => {
 		expect(fresh.cookie).not.toBe('');
 		expect(await signedInName(fresh.cookie)).toBe('Jonah Abernethy');
 		expect((await post(path, { password: 'yet another passphrase', passwordAgain: 'yet another passphrase' })).status).toBe(410);
-		const audit = await client.query(`SELECT count(*)::int AS n FROM audit_events WHERE action = 'auth.password-reset' AND outcome = 'ok' AND actor_user_id = $1`, [await idOf(email)]);
+		const audit = await client.query(
+			`SELECT count(*)::int AS n FROM audit_events WHERE action = 'auth.password-reset' AND outcome = 'ok' AND actor_user_id = $1`,
+			[await idOf(email)]
+		);
 		expect(audit.rows[0].n).toBe(1);
 		expect(await mailSince('stranger@people.example', since - 5000, /Reset/, 1000)).toBeNull();
 	});

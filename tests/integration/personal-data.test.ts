@@ -12,7 +12,11 @@ const seed = JSON.parse(fs.readFileSync('seeds/demo/participants.json', 'utf8'))
 const people = Object.values(seed.studies).flatMap((s) => s.participants);
 const names = people.map((p) => p.fullName);
 /** Every personal string, also a phone number written without spaces (as in a tel: link). */
-const secrets = [...new Set(people.flatMap((p) => [p.fullName, p.email, ...(p.phone ? [p.phone, p.phone.replace(/\s+/g, '')] : [])]).map((s) => s.toLowerCase()))];
+const secrets = [
+	...new Set(
+		people.flatMap((p) => [p.fullName, p.email, ...(p.phone ? [p.phone, p.phone.replace(/\s+/g, '')] : [])]).map((s) => s.toLowerCase())
+	)
+];
 
 let app: AppUnderTest;
 const refs = new Map<ParamRef, string>();
@@ -52,7 +56,11 @@ async function bodyText(res: Response): Promise<string> {
 async function bodiesOf(e: MatrixEntry, persona: Persona): Promise<{ what: string; text: string }[]> {
 	const path = pathOf(e);
 	const cookie = app.cookies[persona];
-	const res = await fetch(app.base + path, { headers: { cookie, accept: 'text/html' }, redirect: 'manual', signal: AbortSignal.timeout(30_000) });
+	const res = await fetch(app.base + path, {
+		headers: { cookie, accept: 'text/html' },
+		redirect: 'manual',
+		signal: AbortSignal.timeout(30_000)
+	});
 	expect(res.status, `GET ${path} as ${persona}`).toBe(200);
 	const out = [{ what: `GET ${path}`, text: await bodyText(res) }];
 	if ((res.headers.get('content-type') ?? '').startsWith('text/html')) {
@@ -69,7 +77,9 @@ const researcherRoutes = MATRIX.filter((e) => e.method === 'GET' && e.expect.res
 describe('a researcher sees no personal data anywhere', () => {
 	it('sweeps a fair share of the app', () => {
 		// the participant list and one participant at least, so that a broken filter cannot make the sweep empty
-		expect(researcherRoutes.map((e) => e.route)).toEqual(expect.arrayContaining(['/studies/[id]/participants', '/studies/[id]/participants/[pid]']));
+		expect(researcherRoutes.map((e) => e.route)).toEqual(
+			expect.arrayContaining(['/studies/[id]/participants', '/studies/[id]/participants/[pid]'])
+		);
 	});
 	for (const e of researcherRoutes) {
 		it(label(e), async () => {

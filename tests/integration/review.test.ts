@@ -11,7 +11,9 @@ beforeAll(async () => {
 });
 afterAll(async () => app?.close());
 
-const seed = JSON.parse(fs.readFileSync('seeds/demo/participants.json', 'utf8')) as { studies: Record<string, { participants: { fullName: string; email: string }[] }> };
+const seed = JSON.parse(fs.readFileSync('seeds/demo/participants.json', 'utf8')) as {
+	studies: Record<string, { participants: { fullName: string; email: string }[] }>;
+};
 const secrets = Object.values(seed.studies).flatMap((s) => s.participants.flatMap((p) => [p.fullName, p.email]));
 
 async function get(persona: Persona, path: string, accept = 'application/json') {
@@ -66,14 +68,20 @@ describe('session review data', () => {
 	});
 
 	it('gzips the large answer for a client that accepts it, and only then', async () => {
-		const ask = (encoding: string) => fetch(app.base + reviewPath(), { headers: { cookie: app.cookies.researcherA, accept: 'application/json', 'accept-encoding': encoding } });
+		const ask = (encoding: string) =>
+			fetch(app.base + reviewPath(), {
+				headers: { cookie: app.cookies.researcherA, accept: 'application/json', 'accept-encoding': encoding }
+			});
 		const zipped = await ask('gzip, deflate');
 		expect(zipped.headers.get('content-encoding')).toBe('gzip');
 		expect(zipped.headers.get('vary')).toMatch(/accept-encoding/i);
 		const plain = await ask('identity');
 		expect(plain.headers.get('content-encoding')).toBeNull();
 		// fetch undoes the gzip: the same answer either way
-		const [a, b] = [(await zipped.json()) as { runs: { runId: string; t: number[] }[] }, (await plain.json()) as { runs: { runId: string; t: number[] }[] }];
+		const [a, b] = [
+			(await zipped.json()) as { runs: { runId: string; t: number[] }[] },
+			(await plain.json()) as { runs: { runId: string; t: number[] }[] }
+		];
 		expect(a.runs.map((r) => [r.runId, r.t.length])).toEqual(b.runs.map((r) => [r.runId, r.t.length]));
 	});
 
@@ -112,13 +120,21 @@ describe('cycle events', () => {
 		const back = await get('researcherA', `/api/studies/${app.ids.studyA}/runs/${app.ids.runA}/events`);
 		expect(back.json.events.times).toEqual(times);
 		expect(back.json.events.source).toBe('manual');
-		const replaced = await postEvents('technicianA', { times: [first + 0.25, first + 0.75], source: 'threshold', rule: { dof: 'right.elbow.flexion', threshold: 30, direction: 'rising' } });
+		const replaced = await postEvents('technicianA', {
+			times: [first + 0.25, first + 0.75],
+			source: 'threshold',
+			rule: { dof: 'right.elbow.flexion', threshold: 30, direction: 'rising' }
+		});
 		expect(replaced.status).toBe(200);
 		const rows = (await app.sql.query(`SELECT times, source, rule FROM cycle_events WHERE run_id = $1`, [app.ids.runA])).rows;
 		expect(rows.length).toBe(1);
 		expect(rows[0].times.map(Number)).toEqual([first + 0.25, first + 0.75]);
 		expect(rows[0].source).toBe('threshold');
-		const audit = (await app.sql.query(`SELECT details FROM audit_events WHERE action = 'run.events.save' AND record_id = $1 ORDER BY occurred_at`, [app.ids.runA])).rows;
+		const audit = (
+			await app.sql.query(`SELECT details FROM audit_events WHERE action = 'run.events.save' AND record_id = $1 ORDER BY occurred_at`, [
+				app.ids.runA
+			])
+		).rows;
 		expect(audit.length).toBe(2);
 		expect(audit[1].details.previous).toEqual(times);
 	});
@@ -175,7 +191,11 @@ describe('compare page', () => {
 	const comparePath = (q: string) => `/studies/${app.ids.studyA}/compare?${q}`;
 
 	it('overlays sessions of a participant by code, from the marked repetitions', async () => {
-		const r = await get('researcherA', comparePath(`mode=sessions&participant=${app.ids.participantA}&session=${app.ids.sessionA}&quantity=moment`), 'text/html');
+		const r = await get(
+			'researcherA',
+			comparePath(`mode=sessions&participant=${app.ids.participantA}&session=${app.ids.sessionA}&quantity=moment`),
+			'text/html'
+		);
 		expect(r.status).toBe(200);
 		expect(r.text).toContain('ALD-001');
 		expect(r.text).toContain('time-normalised repetitions between marked events (2 repetitions from 1 run)');

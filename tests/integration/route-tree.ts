@@ -19,7 +19,13 @@ export function routeTree(root = 'src/routes'): RouteFile[] {
 				walk(full);
 				continue;
 			}
-			const route = '/' + path.relative(root, dir).split(path.sep).filter((s) => s && !/^\(.*\)$/.test(s)).join('/');
+			const route =
+				'/' +
+				path
+					.relative(root, dir)
+					.split(path.sep)
+					.filter((s) => s && !/^\(.*\)$/.test(s))
+					.join('/');
 			const r = out.get(route) ?? { route, page: false, actions: [], methods: [] };
 			const src = fs.readFileSync(full, 'utf8');
 			if (e.name === '+page.svelte') r.page = true;

@@ -19,7 +19,10 @@ let worker: Child | null = null;
 const QUEUE_ENV = { RUN_EXPIRE_SECONDS: '20', QUEUE_MAINTENANCE_SECONDS: '1' };
 
 function startWorker(): Child {
-	return start('worker', process.execPath, ['--import', 'tsx', 'src/cli/worker.ts'], { quiet: true, env: { ...process.env, ...QUEUE_ENV, DATABASE_URL: app.url } });
+	return start('worker', process.execPath, ['--import', 'tsx', 'src/cli/worker.ts'], {
+		quiet: true,
+		env: { ...process.env, ...QUEUE_ENV, DATABASE_URL: app.url }
+	});
 }
 async function workerReady(w: Child): Promise<void> {
 	const deadline = Date.now() + 30_000;
@@ -33,7 +36,12 @@ async function workerReady(w: Child): Promise<void> {
 async function api(persona: Persona, method: string, path: string, body?: unknown) {
 	const headers: Record<string, string> = { cookie: app.cookies[persona], origin: app.base, accept: 'application/json' };
 	if (body !== undefined) headers['content-type'] = 'application/json';
-	const res = await fetch(app.base + path, { method, headers, body: body === undefined ? undefined : JSON.stringify(body), redirect: 'manual' });
+	const res = await fetch(app.base + path, {
+		method,
+		headers,
+		body: body === undefined ? undefined : JSON.stringify(body),
+		redirect: 'manual'
+	});
 	const text = await res.text();
 	let json: any = null;
 	try {
@@ -93,7 +101,13 @@ async function upload(sessionId: string, fileName: string, bytes: Uint8Array): P
 	return json.trial!.id;
 }
 
-async function waitForRun(studyId: string, runId: string, until: (run: any) => boolean, timeoutMs = 60_000, persona: Persona = 'researcherA') {
+async function waitForRun(
+	studyId: string,
+	runId: string,
+	until: (run: any) => boolean,
+	timeoutMs = 60_000,
+	persona: Persona = 'researcherA'
+) {
 	const deadline = Date.now() + timeoutMs;
 	for (;;) {
 		const r = await api(persona, 'GET', `/api/studies/${studyId}/runs/${runId}`);
@@ -120,21 +134,30 @@ function knownTorques(): { time: number[]; byDof: Map<string, number[]> } {
 
 /** A session + trial of another participant, inserted directly: the state a trial is in when consent lapses after upload. */
 async function trialOf(participantCode: string): Promise<{ studyId: string; trialId: string }> {
-	const { rows } = await app.sql.query<{ study_id: string; id: string }>(`SELECT study_id, id FROM participants WHERE code = $1`, [participantCode]);
+	const { rows } = await app.sql.query<{ study_id: string; id: string }>(`SELECT study_id, id FROM participants WHERE code = $1`, [
+		participantCode
+	]);
 	const p = rows[0];
 	const src = (
-		await app.sql.query<{ setup: unknown; raw_upload_id: string; sha256: string; sample_hz: number; frame_count: number; duration_s: number; channels: string[] }>(
+		await app.sql.query<{
+			setup: unknown;
+			raw_upload_id: string;
+			sha256: string;
+			sample_hz: number;
+			frame_count: number;
+			duration_s: number;
+			channels: string[];
+		}>(
 			`SELECT s.setup, t.raw_upload_id, t.sha256, t.sample_hz, t.frame_count, t.duration_s, t.channels FROM trials t JOIN sessions s ON s.id = t.session_id
 			 JOIN participants q ON q.id = s.participant_id WHERE q.study_id = $1 ORDER BY t.created_at LIMIT 1`,
 			[p.study_id]
 		)
 	).rows[0];
 	const sid = (
-		await app.sql.query<{ id: string }>(`INSERT INTO sessions (study_id, participant_id, session_on, operator, task, setup) VALUES ($1, $2, '2026-11-01', 'Test', 'Test task', $3) RETURNING id`, [
-			p.study_id,
-			p.id,
-			JSON.stringify(src.setup)
-		])
+		await app.sql.query<{ id: string }>(
+			`INSERT INTO sessions (study_id, participant_id, session_on, operator, task, setup) VALUES ($1, $2, '2026-11-01', 'Test', 'Test task', $3) RETURNING id`,
+			[p.study_id, p.id, JSON.stringify(src.setup)]
+		)
 	).rows[0].id;
 	const tid = (
 		await app.sql.query<{ id: string }>(
@@ -145,7 +168,8 @@ async function trialOf(participantCode: string): Promise<{ studyId: string; tria
 	return { studyId: p.study_id, trialId: tid };
 }
 
-const seriesCount = async (runId: string) => Number((await app.sql.query<{ n: string }>(`SELECT count(*) AS n FROM run_series WHERE run_id = $1`, [runId])).rows[0].n);
+const seriesCount = async (runId: string) =>
+	Number((await app.sql.query<{ n: string }>(`SELECT count(*) AS n FROM run_series WHERE run_id = $1`, [runId])).rows[0].n);
 
 beforeAll(async () => {
 	Object.assign(process.env, QUEUE_ENV);
@@ -224,7 +248,10 @@ describe('a run through the HTTP API', () => {
 	});
 
 	it('records the options, the scaled model and the raw file hash with the run', async () => {
-		const { rows } = await app.sql.query(`SELECT r.options, r.model, r.raw_sha256, t.sha256 FROM runs r JOIN trials t ON t.id = r.trial_id WHERE r.id = $1`, [runId]);
+		const { rows } = await app.sql.query(
+			`SELECT r.options, r.model, r.raw_sha256, t.sha256 FROM runs r JOIN trials t ON t.id = r.trial_id WHERE r.id = $1`,
+			[runId]
+		);
 		// as sent, with the schema's defaults for what was not (gap filling off, the default end treatment)
 		expect(rows[0].options).toEqual(runOptionsSchema.parse({ cutoffHz: null }));
 		expect(rows[0].raw_sha256).toBe(rows[0].sha256);
@@ -241,7 +268,8 @@ describe('a run through the HTTP API', () => {
 		const frames = knownTorques().time.length;
 		const dofs = knownTorques().byDof.size;
 		expect(rows.filter((r) => r.quantity === 'time')).toHaveLength(1);
-		for (const q of ['angle', 'velocity', 'acceleration', 'moment', 'moment_per_kg', 'power']) expect(rows.filter((r) => r.quantity === q)).toHaveLength(dofs);
+		for (const q of ['angle', 'velocity', 'acceleration', 'moment', 'moment_per_kg', 'power'])
+			expect(rows.filter((r) => r.quantity === q)).toHaveLength(dofs);
 		const reactions = rows.filter((r) => r.quantity === 'reaction_force');
 		expect(reactions.length).toBeGreaterThan(0);
 		for (const r of rows) expect(Number(r.bytes)).toBe(frames * 8 * r.components);
@@ -249,8 +277,16 @@ describe('a run through the HTTP API', () => {
 	});
 
 	it('reduces a series for plotting and keeps every extreme (min/max per bucket)', async () => {
-		const full = await api('researcherA', 'GET', `/api/studies/${app.ids.studyA}/runs/${runId}/series?quantity=moment&dof=right.shoulder.flexion`);
-		const reduced = await api('researcherA', 'GET', `/api/studies/${app.ids.studyA}/runs/${runId}/series?quantity=moment&dof=right.shoulder.flexion&points=50`);
+		const full = await api(
+			'researcherA',
+			'GET',
+			`/api/studies/${app.ids.studyA}/runs/${runId}/series?quantity=moment&dof=right.shoulder.flexion`
+		);
+		const reduced = await api(
+			'researcherA',
+			'GET',
+			`/api/studies/${app.ids.studyA}/runs/${runId}/series?quantity=moment&dof=right.shoulder.flexion&points=50`
+		);
 		expect(reduced.status).toBe(200);
 		const f = full.json.curves[0].v as number[];
 		const r = reduced.json.curves[0].v as number[];
@@ -274,13 +310,24 @@ describe('a run through the HTTP API', () => {
 		expect(z.startSeconds).toBeCloseTo(z.startSamples / rows[0].sample_hz, 9);
 		expect(z.endSeconds).toBeCloseTo(z.endSamples / rows[0].sample_hz, 9);
 		expect(typeof z.basis).toBe('string');
-		const s = await api('researcherA', 'GET', `/api/studies/${app.ids.studyA}/runs/${runId}/series?quantity=moment&dof=right.elbow.flexion`);
+		const s = await api(
+			'researcherA',
+			'GET',
+			`/api/studies/${app.ids.studyA}/runs/${runId}/series?quantity=moment&dof=right.elbow.flexion`
+		);
 		expect(s.json.edgeZone).toEqual({ computed: true, ...z });
 		// a run made before edge zones (NULL) answers "not computed", all zero
 		await app.sql.query(`UPDATE runs SET edge_zone = NULL WHERE id = $1`, [runId]);
 		try {
 			const old = await api('researcherA', 'GET', `/api/studies/${app.ids.studyA}/runs/${runId}/summary`);
-			expect(old.json.edgeZone).toEqual({ computed: false, startSeconds: 0, endSeconds: 0, startSamples: 0, endSamples: 0, basis: 'not computed (run before edge zones were introduced)' });
+			expect(old.json.edgeZone).toEqual({
+				computed: false,
+				startSeconds: 0,
+				endSeconds: 0,
+				startSamples: 0,
+				endSamples: 0,
+				basis: 'not computed (run before edge zones were introduced)'
+			});
 			expect(old.json.scope).toMatch(/before edge zones were introduced/);
 		} finally {
 			await app.sql.query(`UPDATE runs SET edge_zone = $2 WHERE id = $1`, [runId, JSON.stringify(z)]);
@@ -304,7 +351,10 @@ describe('a run through the HTTP API', () => {
 				const n = all.length;
 				const from = zone.startSamples;
 				const to = n - zone.endSamples; // exclusive
-				for (const [answer, lo, hi] of [[outside, from, to], [whole, 0, n]] as const) {
+				for (const [answer, lo, hi] of [
+					[outside, from, to],
+					[whole, 0, n]
+				] as const) {
 					const row = (answer.json.summary as any[]).find((x) => x.dof === c.name && x.quantity === quantity);
 					expect(row, `${quantity} ${c.name}`).toBeTruthy();
 					const v = all.slice(lo, hi);
@@ -329,7 +379,9 @@ describe('a run through the HTTP API', () => {
 		// the seeded run (low-pass filtered, so its edge zone is not empty)
 		const seeded = (await app.sql.query(`SELECT edge_zone FROM runs WHERE id = $1`, [app.ids.runA])).rows[0].edge_zone;
 		expect(seeded.startSamples + seeded.endSamples).toBeGreaterThan(0);
-		const page = await fetch(`${app.base}/studies/${app.ids.studyA}/runs/${app.ids.runA}`, { headers: { cookie: app.cookies.researcherA, accept: 'text/html' } });
+		const page = await fetch(`${app.base}/studies/${app.ids.studyA}/runs/${app.ids.runA}`, {
+			headers: { cookie: app.cookies.researcherA, accept: 'text/html' }
+		});
 		const html = await page.text();
 		expect(page.status).toBe(200);
 		expect(html).toContain('data-testid="edge-zone-band"');
@@ -337,17 +389,28 @@ describe('a run through the HTTP API', () => {
 		expect(html).toContain('Recording extra frames before and after the movement of interest is common practice');
 		expect(html).toMatch(/Peaks, range and mean over the samples outside the edge zones/);
 		expect(html).toMatch(/name="includeEdgeZones" value="1"(?![^>]*checked)/);
-		const on = await (await fetch(`${app.base}/studies/${app.ids.studyA}/runs/${app.ids.runA}?includeEdgeZones=1`, { headers: { cookie: app.cookies.researcherA, accept: 'text/html' } })).text();
+		const on = await (
+			await fetch(`${app.base}/studies/${app.ids.studyA}/runs/${app.ids.runA}?includeEdgeZones=1`, {
+				headers: { cookie: app.cookies.researcherA, accept: 'text/html' }
+			})
+		).text();
 		expect(on).toMatch(/Peaks, range and mean over every sample, edge zones included/);
 	});
 
 	it('adds a second run when run again with other options; the first stays as it was', async () => {
-		const before = await api('researcherA', 'GET', `/api/studies/${app.ids.studyA}/runs/${runId}/series?quantity=moment&dof=right.elbow.flexion`);
+		const before = await api(
+			'researcherA',
+			'GET',
+			`/api/studies/${app.ids.studyA}/runs/${runId}/series?quantity=moment&dof=right.elbow.flexion`
+		);
 		// the form action, as a browser without JavaScript sends it
 		const r = await formPost('researcherA', `/studies/${app.ids.studyA}/trials/${trialId}?/start`, { filter: 'lowpass', cutoffHz: '4' });
 		expect(r.status).toBe(303);
 		expect(r.location).toContain(`/sessions/${sessionId}`);
-		const { rows } = await app.sql.query<{ id: string; options: any }>(`SELECT id, options FROM runs WHERE trial_id = $1 ORDER BY created_at`, [trialId]);
+		const { rows } = await app.sql.query<{ id: string; options: any }>(
+			`SELECT id, options FROM runs WHERE trial_id = $1 ORDER BY created_at`,
+			[trialId]
+		);
 		expect(rows).toHaveLength(2);
 		expect(rows[1].options.cutoffHz).toBe(4);
 		const second = await waitForRun(app.ids.studyA, rows[1].id, (x) => x.state === 'done' || x.state === 'failed');
@@ -355,9 +418,17 @@ describe('a run through the HTTP API', () => {
 		expect(second.number).toBe(2);
 		const first = await api('researcherA', 'GET', `/api/studies/${app.ids.studyA}/runs/${runId}`);
 		expect(first.json.run.state).toBe('done');
-		const after = await api('researcherA', 'GET', `/api/studies/${app.ids.studyA}/runs/${runId}/series?quantity=moment&dof=right.elbow.flexion`);
+		const after = await api(
+			'researcherA',
+			'GET',
+			`/api/studies/${app.ids.studyA}/runs/${runId}/series?quantity=moment&dof=right.elbow.flexion`
+		);
 		expect(after.json.curves[0].v).toEqual(before.json.curves[0].v);
-		const other = await api('researcherA', 'GET', `/api/studies/${app.ids.studyA}/runs/${rows[1].id}/series?quantity=moment&dof=right.elbow.flexion`);
+		const other = await api(
+			'researcherA',
+			'GET',
+			`/api/studies/${app.ids.studyA}/runs/${rows[1].id}/series?quantity=moment&dof=right.elbow.flexion`
+		);
 		expect(other.json.curves[0].v).not.toEqual(before.json.curves[0].v);
 	});
 
@@ -375,11 +446,16 @@ describe('a run through the HTTP API', () => {
 
 	it('fails a run whose results are not finite numbers, with the reason naming quantity, DOF and time, storing nothing', async () => {
 		// gravity of 1e308 m/s² passes the options' finite check, but every moment overflows (IEEE 754 doubles end near 1.8e308)
-		const started = await api('researcherA', 'POST', `/api/studies/${app.ids.studyA}/trials/${trialId}/runs`, { cutoffHz: 6, gravity: [0, -1e308, 0] });
+		const started = await api('researcherA', 'POST', `/api/studies/${app.ids.studyA}/trials/${trialId}/runs`, {
+			cutoffHz: 6,
+			gravity: [0, -1e308, 0]
+		});
 		expect(started.status, JSON.stringify(started.json)).toBe(201);
 		const run = await waitForRun(app.ids.studyA, started.json.run.id, (r) => r.state === 'done' || r.state === 'failed');
 		expect(run.state).toBe('failed');
-		expect(run.error).toMatch(/^The results are not finite numbers: the moment of DOF right\.shoulder\.flexion is (-?Infinity|NaN) at 0 s \(sample 1\)/);
+		expect(run.error).toMatch(
+			/^The results are not finite numbers: the moment of DOF right\.shoulder\.flexion is (-?Infinity|NaN) at 0 s \(sample 1\)/
+		);
 		expect(run.error).toMatch(/stores nothing/);
 		// a deterministic failure: not tried again
 		expect(run.attempts).toBe(1);
@@ -459,9 +535,14 @@ describe('a worker killed in the middle of a run', () => {
 		const dofs = knownTorques().byDof.size;
 		expect(series.every((s) => Number(s.n) === 1)).toBe(true);
 		expect(series.filter((s) => s.quantity !== 'reaction_force' && s.quantity !== 'time')).toHaveLength(6 * dofs);
-		const jobs = await app.sql.query<{ state: string; retry_count: number }>(`SELECT state, retry_count FROM jobs.job WHERE name = 'run-process' AND data->>'runId' = $1`, [runId]);
+		const jobs = await app.sql.query<{ state: string; retry_count: number }>(
+			`SELECT state, retry_count FROM jobs.job WHERE name = 'run-process' AND data->>'runId' = $1`,
+			[runId]
+		);
 		expect(jobs.rows).toEqual([{ state: 'completed', retry_count: 1 }]);
-		const finished = await app.sql.query(`SELECT count(*) AS n FROM audit_events WHERE action = 'run.finished' AND record_id = $1`, [runId]);
+		const finished = await app.sql.query(`SELECT count(*) AS n FROM audit_events WHERE action = 'run.finished' AND record_id = $1`, [
+			runId
+		]);
 		expect(Number(finished.rows[0].n)).toBe(1);
 	}, 240_000);
 });

@@ -3,7 +3,17 @@ import { afterAll, beforeAll, expect, it } from 'vitest';
 import type { Sequelize } from 'sequelize';
 import { db, closeDb } from '../../src/lib/server/db/index';
 import { migrateUp } from '../../src/lib/server/db/migrate';
-import { Lab, AuditEvent, User, Study, StudyMember, Participant, ParticipantPersonal, ParticipantLength, ConsentFormVersion } from '../../src/lib/server/db/models';
+import {
+	Lab,
+	AuditEvent,
+	User,
+	Study,
+	StudyMember,
+	Participant,
+	ParticipantPersonal,
+	ParticipantLength,
+	ConsentFormVersion
+} from '../../src/lib/server/db/models';
 import { databaseIsEmpty, loadDemoSeed } from '../../seeds/index';
 import { freshDatabase } from './helpers';
 

@@ -44,14 +44,19 @@ describe('password sign-in', () => {
 		expect(blocked.location).toContain('code=rate_limited');
 		const page = await (await fetch(`${app.base}${blocked.location}`)).text();
 		expect(page).toContain(`Too many failed sign-ins. Wait ${LIMITS.windowMinutes} minutes`);
-		const { rows } = await sql.query(`SELECT outcome, details FROM audit_events WHERE actor_label = $1 AND action = 'auth.sign-in' ORDER BY id`, [email]);
+		const { rows } = await sql.query(
+			`SELECT outcome, details FROM audit_events WHERE actor_label = $1 AND action = 'auth.sign-in' ORDER BY id`,
+			[email]
+		);
 		expect(rows.filter((r) => r.outcome === 'failed')).toHaveLength(LIMITS.perAccount);
 		expect(rows.at(-1)).toMatchObject({ outcome: 'denied', details: { reason: 'rate limited' } });
 	});
 
 	it('records successful sign-ins with the client address', async () => {
 		await signInAs(app.base, 'admin@alder-creek.example');
-		const { rows } = await sql.query(`SELECT ip_address, details FROM audit_events WHERE action = 'auth.sign-in' AND outcome = 'ok' AND actor_label = 'admin@alder-creek.example' ORDER BY id DESC LIMIT 1`);
+		const { rows } = await sql.query(
+			`SELECT ip_address, details FROM audit_events WHERE action = 'auth.sign-in' AND outcome = 'ok' AND actor_label = 'admin@alder-creek.example' ORDER BY id DESC LIMIT 1`
+		);
 		expect(rows[0]).toMatchObject({ ip_address: '127.0.0.1', details: { method: 'password' } });
 	});
 
@@ -82,7 +87,11 @@ describe('e-mailed sign-in links', () => {
 		const link = mail.text!.match(/https?:\/\/\S+/)![0];
 		const first = await fetch(link, { redirect: 'manual' });
 		expect(first.status).toBe(302);
-		const cookie = first.headers.getSetCookie().map((c) => c.split(';')[0]).filter((c) => c.includes('session-token')).join('; ');
+		const cookie = first.headers
+			.getSetCookie()
+			.map((c) => c.split(';')[0])
+			.filter((c) => c.includes('session-token'))
+			.join('; ');
 		expect(await signedInName(cookie)).toBe('Tomasz Okafor');
 		const again = await fetch(link, { redirect: 'manual' });
 		expect(again.headers.get('location')).toContain('error=Verification');
@@ -92,7 +101,9 @@ describe('e-mailed sign-in links', () => {
 		await askLink('knee.researcher@alder-creek.example');
 		const mail = await waitForMail('knee.researcher@alder-creek.example', { base: app.base });
 		const link = mail.text!.match(/https?:\/\/\S+/)![0];
-		await sql.query(`UPDATE verification_tokens SET expires = now() - interval '1 minute' WHERE identifier = 'knee.researcher@alder-creek.example'`);
+		await sql.query(
+			`UPDATE verification_tokens SET expires = now() - interval '1 minute' WHERE identifier = 'knee.researcher@alder-creek.example'`
+		);
 		const res = await fetch(link, { redirect: 'manual' });
 		expect(res.headers.get('location')).toContain('error=Verification');
 		expect(res.headers.getSetCookie().some((c) => c.includes('session-token=') && !c.includes('session-token=;'))).toBe(false);
@@ -103,9 +114,13 @@ describe('e-mailed sign-in links', () => {
 		const unknown = await askLink('stranger@alder-creek.example');
 		expect(unknown.status).toBe(known.status);
 		expect(unknown.headers.get('location')).toBe(known.headers.get('location'));
-		const { rows } = await sql.query(`SELECT count(*)::int AS n FROM verification_tokens WHERE identifier = 'stranger@alder-creek.example'`);
+		const { rows } = await sql.query(
+			`SELECT count(*)::int AS n FROM verification_tokens WHERE identifier = 'stranger@alder-creek.example'`
+		);
 		expect(rows[0].n).toBe(0);
-		const audit = await sql.query(`SELECT outcome FROM audit_events WHERE action = 'auth.sign-in-link' AND actor_label = 'stranger@alder-creek.example'`);
+		const audit = await sql.query(
+			`SELECT outcome FROM audit_events WHERE action = 'auth.sign-in-link' AND actor_label = 'stranger@alder-creek.example'`
+		);
 		expect(audit.rows).toEqual([{ outcome: 'denied' }]);
 	});
 });
@@ -113,7 +128,9 @@ describe('e-mailed sign-in links', () => {
 // Last in this file: it blocks every password sign-in from 127.0.0.1 for this app instance.
 describe('per-address limit', () => {
 	it('blocks an address that failed for many different accounts', async () => {
-		const { rows } = await sql.query(`SELECT count(*)::int AS n FROM sign_in_failures WHERE ip_address = '127.0.0.1' AND occurred_at > now() - interval '15 minutes'`);
+		const { rows } = await sql.query(
+			`SELECT count(*)::int AS n FROM sign_in_failures WHERE ip_address = '127.0.0.1' AND occurred_at > now() - interval '15 minutes'`
+		);
 		for (let k = rows[0].n; k < LIMITS.perAddress; k++) {
 			const r = await signInAs(app.base, `guess${k}@alder-creek.example`, 'wrong password');
 			expect(r.location).toContain('code=credentials');

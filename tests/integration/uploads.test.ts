@@ -7,12 +7,30 @@ import { startApp, type AppUnderTest } from './app-under-test';
 import { detectDelimiter } from '../../src/lib/processing/recording';
 
 const MALFORMED = 'tests/fixtures/recordings/malformed/';
-const corpus = JSON.parse(fs.readFileSync(MALFORMED + 'index.json', 'utf8')) as Record<string, { code: string; expected: string[]; options?: { fillGaps?: boolean } }>;
+const corpus = JSON.parse(fs.readFileSync(MALFORMED + 'index.json', 'utf8')) as Record<
+	string,
+	{ code: string; expected: string[]; options?: { fillGaps?: boolean } }
+>;
 /** A real right-leg recording with all six channels (simulated demo trial). */
 const KNEE_FILE = 'seeds/recordings/kne-001-seated-knee-extension.csv';
 const SHELF_FILE = 'seeds/recordings/ald-001-shelf-reach.csv';
-const LEG = ['right.hip.flexion', 'right.hip.adduction', 'right.hip.internalRotation', 'right.knee.flexion', 'right.ankle.dorsiflexion', 'right.ankle.inversion'];
-const LEG_MOVING = ['right.leg.base.px', 'right.leg.base.py', 'right.leg.base.pz', 'right.leg.base.rx', 'right.leg.base.ry', 'right.leg.base.rz', ...LEG];
+const LEG = [
+	'right.hip.flexion',
+	'right.hip.adduction',
+	'right.hip.internalRotation',
+	'right.knee.flexion',
+	'right.ankle.dorsiflexion',
+	'right.ankle.inversion'
+];
+const LEG_MOVING = [
+	'right.leg.base.px',
+	'right.leg.base.py',
+	'right.leg.base.pz',
+	'right.leg.base.rx',
+	'right.leg.base.ry',
+	'right.leg.base.rz',
+	...LEG
+];
 
 let app: AppUnderTest;
 let studyA: string;
@@ -25,10 +43,27 @@ const sha = (b: Uint8Array) => createHash('sha256').update(b).digest('hex');
 
 /** A form post as a browser sends it without JavaScript. */
 const formPost = (path: string, cookie: string, form: URLSearchParams) =>
-	fetch(app.base + path, { method: 'POST', body: form, redirect: 'manual', headers: { cookie, origin: app.base, accept: 'text/html', 'content-type': 'application/x-www-form-urlencoded' } });
+	fetch(app.base + path, {
+		method: 'POST',
+		body: form,
+		redirect: 'manual',
+		headers: { cookie, origin: app.base, accept: 'text/html', 'content-type': 'application/x-www-form-urlencoded' }
+	});
 
-async function createSession(participantId: string, cookie: string, extra: Record<string, string> = {}, limbs = ['right.leg']): Promise<Response> {
-	const form = new URLSearchParams({ sessionOn: '2026-11-02', operator: 'T. Okafor', task: 'Seated knee extension', conditions: '', table: 'de-leva-1996', ...extra });
+async function createSession(
+	participantId: string,
+	cookie: string,
+	extra: Record<string, string> = {},
+	limbs = ['right.leg']
+): Promise<Response> {
+	const form = new URLSearchParams({
+		sessionOn: '2026-11-02',
+		operator: 'T. Okafor',
+		task: 'Seated knee extension',
+		conditions: '',
+		table: 'de-leva-1996',
+		...extra
+	});
 	for (const l of limbs) form.append('limbs', l);
 	return formPost(`/studies/${studyA}/participants/${participantId}/sessions/new`, cookie, form);
 }
@@ -39,7 +74,12 @@ interface Sent {
 	bytes: Uint8Array;
 }
 /** POSTs files (after the fields) as multipart/form-data. */
-async function upload(sid: string, files: Sent[], fields: Record<string, string> = {}, opts: { cookie?: string; accept?: string; study?: string } = {}) {
+async function upload(
+	sid: string,
+	files: Sent[],
+	fields: Record<string, string> = {},
+	opts: { cookie?: string; accept?: string; study?: string } = {}
+) {
 	const fd = new FormData();
 	for (const [k, v] of Object.entries(fields)) fd.append(k, v);
 	for (const f of files) fd.append('file', new Blob([f.bytes as Uint8Array<ArrayBuffer>], { type: 'text/csv' }), f.name);
@@ -103,7 +143,17 @@ function legCsv(rows: number, phase = 0, header = ['time (s)', ...LEG.map((c) =>
 	for (let k = 0; k < rows; k++) {
 		const t = k / 1000;
 		const a = Math.sin(2 * Math.PI * 0.5 * t + phase);
-		lines.push([t.toFixed(3), (20 + 10 * a).toFixed(6), (2 * a).toFixed(6), (1 * a).toFixed(6), (45 + 30 * a).toFixed(6), (5 * a).toFixed(6), (1 * a).toFixed(6)].join(','));
+		lines.push(
+			[
+				t.toFixed(3),
+				(20 + 10 * a).toFixed(6),
+				(2 * a).toFixed(6),
+				(1 * a).toFixed(6),
+				(45 + 30 * a).toFixed(6),
+				(5 * a).toFixed(6),
+				(1 * a).toFixed(6)
+			].join(',')
+		);
 	}
 	return Buffer.from(lines.join('\n') + '\n');
 }
@@ -137,8 +187,15 @@ describe('sessions', () => {
 		const sid = sessionIdOf(res);
 		const row = (await app.sql.query(`SELECT state, setup, operator FROM sessions WHERE id = $1`, [sid])).rows[0];
 		expect(row.state).toBe('draft');
-		expect(row.setup).toMatchObject({ table: 'de-leva-1996', limbs: ['right.leg'], bases: { 'right.leg': { kind: 'fixed', orientation: 'thigh-on-seat' } }, loads: [{ limb: 'right.leg', segment: 'shank', massKg: 1.5, pointM: [0, -0.35, 0], label: 'ankle weight' }] });
-		const page = await (await fetch(`${app.base}/studies/${studyA}/participants/${ald001}`, { headers: { cookie: app.cookies.researcherA } })).text();
+		expect(row.setup).toMatchObject({
+			table: 'de-leva-1996',
+			limbs: ['right.leg'],
+			bases: { 'right.leg': { kind: 'fixed', orientation: 'thigh-on-seat' } },
+			loads: [{ limb: 'right.leg', segment: 'shank', massKg: 1.5, pointM: [0, -0.35, 0], label: 'ankle weight' }]
+		});
+		const page = await (
+			await fetch(`${app.base}/studies/${studyA}/participants/${ald001}`, { headers: { cookie: app.cookies.researcherA } })
+		).text();
 		expect(page).toContain(`/studies/${studyA}/sessions/${sid}`);
 		const audit = await app.sql.query(`SELECT 1 FROM audit_events WHERE action = 'session.created' AND record_id = $1`, [sid]);
 		expect(audit.rowCount).toBe(1);
@@ -151,7 +208,12 @@ describe('sessions', () => {
 		const seatedArm = await createSession(ald001, app.cookies.technicianA, { 'base.right.arm': 'thigh-on-seat' }, ['right.arm']);
 		expect(seatedArm.status).toBe(400);
 		expect(await seatedArm.text()).toContain('applies to a leg');
-		const wrongSegment = await createSession(ald001, app.cookies.technicianA, { 'load.0.limb': 'right.leg', 'load.0.segment': 'hand', 'load.0.massKg': '2', 'load.0.point': '0,0,0' });
+		const wrongSegment = await createSession(ald001, app.cookies.technicianA, {
+			'load.0.limb': 'right.leg',
+			'load.0.segment': 'hand',
+			'load.0.massKg': '2',
+			'load.0.point': '0,0,0'
+		});
 		expect(wrongSegment.status).toBe(400);
 		expect(await wrongSegment.text()).toContain('right.leg has no hand');
 	});
@@ -170,12 +232,19 @@ describe('sessions', () => {
 		expect(R[0][1]).toBeCloseTo(-0.5 / norm, 12);
 		expect(R[2][2]).toBeCloseTo(1, 12);
 		let off = 0;
-		for (let r = 0; r < 3; r++) for (let c = 0; c < 3; c++) off += (R[0][r] * R[0][c] + R[1][r] * R[1][c] + R[2][r] * R[2][c] - (r === c ? 1 : 0)) ** 2;
+		for (let r = 0; r < 3; r++)
+			for (let c = 0; c < 3; c++) off += (R[0][r] * R[0][c] + R[1][r] * R[1][c] + R[2][r] * R[2][c] - (r === c ? 1 : 0)) ** 2;
 		expect(Math.sqrt(off)).toBeLessThan(1e-12);
-		const wrong = await createSession(ald001, app.cookies.technicianA, { 'base.right.leg': 'custom', 'cardan.right.leg': '0.867025, -0.5, 0; 0.5, 0.866025, 0; 0, 0, 1' });
+		const wrong = await createSession(ald001, app.cookies.technicianA, {
+			'base.right.leg': 'custom',
+			'cardan.right.leg': '0.867025, -0.5, 0; 0.5, 0.866025, 0; 0, 0, 1'
+		});
 		expect(wrong.status).toBe(400);
 		expect(await wrong.text()).toMatch(/is 0\.00\d+, more than the tolerance 1\.00e-5/);
-		const mirror = await createSession(ald001, app.cookies.technicianA, { 'base.right.leg': 'custom', 'cardan.right.leg': '0.866025, -0.5, 0; 0.5, 0.866025, 0; 0, 0, -1' });
+		const mirror = await createSession(ald001, app.cookies.technicianA, {
+			'base.right.leg': 'custom',
+			'cardan.right.leg': '0.866025, -0.5, 0; 0.5, 0.866025, 0; 0, 0, -1'
+		});
 		expect(mirror.status).toBe(400);
 		expect(await mirror.text()).toMatch(/determinant is -1, negative: an improper rotation/);
 	});
@@ -188,7 +257,9 @@ describe('sessions', () => {
 	});
 
 	it('show the set-up and the channels a file must contain on the session page', async () => {
-		const html = await (await fetch(`${app.base}/studies/${studyA}/sessions/${movingSession}`, { headers: { cookie: app.cookies.researcherA } })).text();
+		const html = await (
+			await fetch(`${app.base}/studies/${studyA}/sessions/${movingSession}`, { headers: { cookie: app.cookies.researcherA } })
+		).text();
 		expect(html).toContain('moving (from the file’s base columns)');
 		for (const c of LEG_MOVING) expect(html).toContain(c);
 	});
@@ -203,7 +274,11 @@ describe('the malformed corpus', () => {
 		for (const [name, spec] of files) {
 			const moving = spec.expected.some((c) => c.includes('.base.'));
 			const bytes = widen(fs.readFileSync(MALFORMED + name), spec.expected, moving ? LEG_MOVING : LEG);
-			const { status, body } = await uploadJson(moving ? movingSession : legSession, [{ name, bytes }], spec.options?.fillGaps ? { fillGaps: 'on' } : {});
+			const { status, body } = await uploadJson(
+				moving ? movingSession : legSession,
+				[{ name, bytes }],
+				spec.options?.fillGaps ? { fillGaps: 'on' } : {}
+			);
 			expect(status, `${name}: ${JSON.stringify(body).slice(0, 300)}`).toBeGreaterThanOrEqual(400);
 			expect(status, name).toBeLessThan(500);
 			expect(body.message, name).toMatch(new RegExp(name.replace(/\./g, '\\.')));
@@ -220,11 +295,21 @@ describe('the malformed corpus', () => {
 	}, 120_000);
 
 	it('names the row and column of a defect inside the data (truncated last line, non-numeric cell)', async () => {
-		const t = await uploadJson(legSession, [{ name: 'truncated-last-line.csv', bytes: widen(fs.readFileSync(MALFORMED + 'truncated-last-line.csv'), corpus['truncated-last-line.csv'].expected, LEG) }]);
+		const t = await uploadJson(legSession, [
+			{
+				name: 'truncated-last-line.csv',
+				bytes: widen(fs.readFileSync(MALFORMED + 'truncated-last-line.csv'), corpus['truncated-last-line.csv'].expected, LEG)
+			}
+		]);
 		expect(t.status).toBe(422);
 		const p = t.body.problems.find((x: { code: string }) => x.code === 'truncated-last-line');
 		expect(p.row).toBeGreaterThan(1);
-		const n = await uploadJson(legSession, [{ name: 'non-numeric-cell.csv', bytes: widen(fs.readFileSync(MALFORMED + 'non-numeric-cell.csv'), corpus['non-numeric-cell.csv'].expected, LEG) }]);
+		const n = await uploadJson(legSession, [
+			{
+				name: 'non-numeric-cell.csv',
+				bytes: widen(fs.readFileSync(MALFORMED + 'non-numeric-cell.csv'), corpus['non-numeric-cell.csv'].expected, LEG)
+			}
+		]);
 		const q = n.body.problems.find((x: { code: string }) => x.code === 'non-numeric');
 		expect(q.row).toBeGreaterThan(1);
 		expect(q.column).toBeTruthy();
@@ -244,7 +329,13 @@ describe('the malformed corpus', () => {
 			expect(status, JSON.stringify(body).slice(0, 300)).toBe(422);
 			expect(body.message).toContain('spiked.csv');
 			expect(body.problems).toHaveLength(1);
-			expect(body.problems[0]).toMatchObject({ file: 'spiked.csv', row: 26, column: 'right.knee.flexion (deg)', code: 'impossible-value', severity: 'error' });
+			expect(body.problems[0]).toMatchObject({
+				file: 'spiked.csv',
+				row: 26,
+				column: 'right.knee.flexion (deg)',
+				code: 'impossible-value',
+				severity: 'error'
+			});
 			expect(body.problems[0].message).toContain(`Line 26, column 5 ("right.knee.flexion (deg)"): "${cell}"`);
 			expect(body.problems[0].message).toMatch(text);
 		}
@@ -254,9 +345,16 @@ describe('the malformed corpus', () => {
 	it('keeps the file name, size, hash and problem codes of a rejected file in the audit log', async () => {
 		const bytes = fs.readFileSync(MALFORMED + 'binary-garbage.csv');
 		await uploadJson(legSession, [{ name: 'binary-garbage.csv', bytes }]);
-		const row = (await app.sql.query(`SELECT details, outcome FROM audit_events WHERE action = 'trial.rejected' ORDER BY id DESC LIMIT 1`)).rows[0];
+		const row = (await app.sql.query(`SELECT details, outcome FROM audit_events WHERE action = 'trial.rejected' ORDER BY id DESC LIMIT 1`))
+			.rows[0];
 		expect(row.outcome).toBe('failed');
-		expect(row.details).toMatchObject({ fileName: 'binary-garbage.csv', byteSize: bytes.length, sha256: sha(bytes), problems: ['not-text'], status: 422 });
+		expect(row.details).toMatchObject({
+			fileName: 'binary-garbage.csv',
+			byteSize: bytes.length,
+			sha256: sha(bytes),
+			problems: ['not-text'],
+			status: 422
+		});
 	});
 });
 
@@ -274,10 +372,18 @@ describe('bad input never answers 5xx', () => {
 		expect(noFile.body.message).toMatch(/No file was sent/);
 		const headers = { cookie: app.cookies.technicianA, origin: app.base, accept: 'application/json' };
 		const url = `${app.base}/api/studies/${studyA}/sessions/${legSession}/trials`;
-		const broken = await fetch(url, { method: 'POST', headers: { ...headers, 'content-type': 'multipart/form-data; boundary=XYZ' }, body: '--XYZ\r\nContent-Disposition: form-data; name="file"; filename="a.csv"\r\n\r\ntime,a\n0,1\n' });
+		const broken = await fetch(url, {
+			method: 'POST',
+			headers: { ...headers, 'content-type': 'multipart/form-data; boundary=XYZ' },
+			body: '--XYZ\r\nContent-Disposition: form-data; name="file"; filename="a.csv"\r\n\r\ntime,a\n0,1\n'
+		});
 		expect(broken.status).toBe(400);
 		expect((await broken.json()).message).toMatch(/multipart/);
-		const noBoundary = await fetch(url, { method: 'POST', headers: { ...headers, 'content-type': 'multipart/form-data' }, body: 'whatever' });
+		const noBoundary = await fetch(url, {
+			method: 'POST',
+			headers: { ...headers, 'content-type': 'multipart/form-data' },
+			body: 'whatever'
+		});
 		expect(noBoundary.status).toBe(400);
 		const notMultipart = await fetch(url, { method: 'POST', headers: { ...headers, 'content-type': 'text/csv' }, body: 'time,a\n0,1\n' });
 		expect(notMultipart.status).toBe(415);
@@ -288,7 +394,9 @@ describe('bad input never answers 5xx', () => {
 		const before = await counts();
 		const limit = 104_857_600;
 		const boundary = 'momentry-test-boundary';
-		const head = Buffer.from(`--${boundary}\r\nContent-Disposition: form-data; name="file"; filename="huge.csv"\r\nContent-Type: text/csv\r\n\r\n`);
+		const head = Buffer.from(
+			`--${boundary}\r\nContent-Disposition: form-data; name="file"; filename="huge.csv"\r\nContent-Type: text/csv\r\n\r\n`
+		);
 		const tail = Buffer.from(`\r\n--${boundary}--\r\n`);
 		const line = Buffer.from('0.000,1.0\n');
 		const block = Buffer.alloc(1024 * 1024);
@@ -319,7 +427,12 @@ describe('bad input never answers 5xx', () => {
 			method: 'POST',
 			body,
 			duplex: 'half',
-			headers: { cookie: app.cookies.technicianA, origin: app.base, accept: 'application/json', 'content-type': `multipart/form-data; boundary=${boundary}` }
+			headers: {
+				cookie: app.cookies.technicianA,
+				origin: app.base,
+				accept: 'application/json',
+				'content-type': `multipart/form-data; boundary=${boundary}`
+			}
 		} as RequestInit);
 		expect(res.status).toBe(413);
 		const j = await res.json();
@@ -337,10 +450,17 @@ describe('a good file', () => {
 		trialId = body.trial.id;
 		expect(body.trial).toMatchObject({ fileName: 'knee.csv', sha256: sha(bytes), channels: LEG });
 		expect(body.trial.sampleHz).toBeCloseTo(200, 6);
-		const row = (await app.sql.query(`SELECT t.raw_upload_id, u.sha256, u.byte_size FROM trials t JOIN raw_uploads u ON u.id = t.raw_upload_id WHERE t.id = $1`, [trialId])).rows[0];
+		const row = (
+			await app.sql.query(
+				`SELECT t.raw_upload_id, u.sha256, u.byte_size FROM trials t JOIN raw_uploads u ON u.id = t.raw_upload_id WHERE t.id = $1`,
+				[trialId]
+			)
+		).rows[0];
 		expect(row.sha256).toBe(sha(bytes));
 		expect(Number(row.byte_size)).toBe(bytes.length);
-		const chunks = (await app.sql.query(`SELECT bytes FROM raw_upload_chunks WHERE upload_id = $1 ORDER BY seq`, [row.raw_upload_id])).rows.map((r) => r.bytes as Buffer);
+		const chunks = (
+			await app.sql.query(`SELECT bytes FROM raw_upload_chunks WHERE upload_id = $1 ORDER BY seq`, [row.raw_upload_id])
+		).rows.map((r) => r.bytes as Buffer);
 		const back = Buffer.concat(chunks);
 		expect(back.equals(bytes)).toBe(true);
 		expect(sha(back)).toBe(sha(bytes));
@@ -352,7 +472,9 @@ describe('a good file', () => {
 		const { status, body } = await uploadJson(legSession, [{ name: 'long.csv', bytes }]);
 		expect(status, JSON.stringify(body).slice(0, 400)).toBe(201);
 		const up = (await app.sql.query(`SELECT raw_upload_id FROM trials WHERE id = $1`, [body.trial.id])).rows[0].raw_upload_id;
-		const rows = (await app.sql.query(`SELECT seq, octet_length(bytes) n, bytes FROM raw_upload_chunks WHERE upload_id = $1 ORDER BY seq`, [up])).rows;
+		const rows = (
+			await app.sql.query(`SELECT seq, octet_length(bytes) n, bytes FROM raw_upload_chunks WHERE upload_id = $1 ORDER BY seq`, [up])
+		).rows;
 		expect(rows.length).toBe(Math.ceil(bytes.length / 1048576));
 		expect(rows.slice(0, -1).every((r) => Number(r.n) === 1048576)).toBe(true);
 		expect(Buffer.concat(rows.map((r) => r.bytes)).equals(bytes)).toBe(true);
@@ -389,12 +511,22 @@ describe('a good file', () => {
 	});
 
 	it('without JavaScript: the form post comes back to the session page with the outcome', async () => {
-		const res = await upload(legSession, [{ name: 'plain-form.csv', bytes: legCsv(300, 0.3) }], {}, { accept: 'text/html,application/xhtml+xml' });
+		const res = await upload(
+			legSession,
+			[{ name: 'plain-form.csv', bytes: legCsv(300, 0.3) }],
+			{},
+			{ accept: 'text/html,application/xhtml+xml' }
+		);
 		expect(res.status).toBe(303);
 		expect(res.headers.get('location')).toBe(`/studies/${studyA}/sessions/${legSession}`);
-		const flash = res.headers.getSetCookie().map((c) => c.split(';')[0]).find((c) => c.startsWith('momentry-upload='));
+		const flash = res.headers
+			.getSetCookie()
+			.map((c) => c.split(';')[0])
+			.find((c) => c.startsWith('momentry-upload='));
 		expect(flash).toBeTruthy();
-		const page = await (await fetch(`${app.base}/studies/${studyA}/sessions/${legSession}`, { headers: { cookie: `${app.cookies.technicianA}; ${flash}` } })).text();
+		const page = await (
+			await fetch(`${app.base}/studies/${studyA}/sessions/${legSession}`, { headers: { cookie: `${app.cookies.technicianA}; ${flash}` } })
+		).text();
 		expect(page).toContain('plain-form.csv stored as a trial');
 	});
 });
@@ -404,7 +536,17 @@ describe('column mapping', () => {
 		const lines = ['Zeit_ms;HipFlex;HipAdd;HipRot;KneeFlex;AnkleDF;AnkleInv'];
 		for (let k = 0; k < 200; k++) {
 			const a = Math.sin(k / 30);
-			lines.push([String(k * 5), (20 + 10 * a).toFixed(4), (2 * a).toFixed(4), a.toFixed(4), (-(45 + 30 * a)).toFixed(4), (5 * a).toFixed(4), a.toFixed(4)].join(';'));
+			lines.push(
+				[
+					String(k * 5),
+					(20 + 10 * a).toFixed(4),
+					(2 * a).toFixed(4),
+					a.toFixed(4),
+					(-(45 + 30 * a)).toFixed(4),
+					(5 * a).toFixed(4),
+					a.toFixed(4)
+				].join(';')
+			);
 		}
 		return Buffer.from(lines.join('\n') + '\n');
 	};
@@ -448,7 +590,9 @@ describe('column mapping', () => {
 			body: JSON.stringify({ name: 'Lab B export', mapping })
 		});
 		expect(again.status).toBe(409);
-		const list = await (await fetch(`${app.base}/api/studies/${studyA}/mapping-presets`, { headers: { cookie: app.cookies.researcherA } })).json();
+		const list = await (
+			await fetch(`${app.base}/api/studies/${studyA}/mapping-presets`, { headers: { cookie: app.cookies.researcherA } })
+		).json();
 		expect(list.presets.map((p: { name: string }) => p.name)).toContain('Lab B export');
 
 		const withPreset = await uploadJson(legSession, [{ name: 'other-system.csv', bytes }], { presetId: preset.id });
@@ -474,7 +618,12 @@ describe('column mapping', () => {
 	});
 
 	it('a preset of another study is not found', async () => {
-		const otherStudyPreset = (await app.sql.query(`INSERT INTO mapping_presets (study_id, name, mapping) VALUES ($1, 'theirs', $2) RETURNING id`, [studyB, JSON.stringify(mapping)])).rows[0].id;
+		const otherStudyPreset = (
+			await app.sql.query(`INSERT INTO mapping_presets (study_id, name, mapping) VALUES ($1, 'theirs', $2) RETURNING id`, [
+				studyB,
+				JSON.stringify(mapping)
+			])
+		).rows[0].id;
 		const r = await uploadJson(legSession, [{ name: 'x.csv', bytes: legCsv(100, 0.9) }], { presetId: otherStudyPreset });
 		expect(r.status).toBe(422);
 		expect(r.body.problems[0].code).toBe('preset-unknown');
@@ -486,7 +635,10 @@ describe('consent', () => {
 	async function sessionFor(code: string): Promise<{ sid: string; study: string }> {
 		const p = (await app.sql.query(`SELECT id, study_id FROM participants WHERE code = $1`, [code])).rows[0];
 		const setup = { table: 'de-leva-1996', limbs: ['right.leg'], bases: {}, loads: [], gravity: [0, -9.81, 0] };
-		const s = await app.sql.query(`INSERT INTO sessions (study_id, participant_id, session_on, operator, task, setup) VALUES ($1, $2, '2026-11-01', 'T. Okafor', 'test', $3) RETURNING id`, [p.study_id, p.id, JSON.stringify(setup)]);
+		const s = await app.sql.query(
+			`INSERT INTO sessions (study_id, participant_id, session_on, operator, task, setup) VALUES ($1, $2, '2026-11-01', 'T. Okafor', 'test', $3) RETURNING id`,
+			[p.study_id, p.id, JSON.stringify(setup)]
+		);
 		return { sid: s.rows[0].id, study: p.study_id };
 	}
 
@@ -500,7 +652,12 @@ describe('consent', () => {
 			const api = await uploadJson(sid, [{ name: 'k.csv', bytes: fs.readFileSync(KNEE_FILE) }], {}, { cookie: app.cookies.piA, study });
 			expect(api.status).toBe(409);
 			expect(api.body.message).toContain(reason);
-			const form = await upload(sid, [{ name: 'k.csv', bytes: fs.readFileSync(KNEE_FILE) }], {}, { cookie: app.cookies.piA, study, accept: 'text/html' });
+			const form = await upload(
+				sid,
+				[{ name: 'k.csv', bytes: fs.readFileSync(KNEE_FILE) }],
+				{},
+				{ cookie: app.cookies.piA, study, accept: 'text/html' }
+			);
 			expect(form.status).toBe(409);
 			expect((await form.text()).replace(/&#39;|&apos;/g, "'")).toContain(reason);
 			expect(await counts()).toEqual(before);

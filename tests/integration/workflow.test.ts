@@ -22,13 +22,23 @@ async function post(persona: Persona, step: Step, fields: Record<string, string>
 	return { status: res.status, location: res.headers.get('location'), text: await res.text() };
 }
 
-const state = async (sid = app.ids.sessionA) => (await app.sql.query<{ state: string }>(`SELECT state FROM sessions WHERE id = $1`, [sid])).rows[0].state;
+const state = async (sid = app.ids.sessionA) =>
+	(await app.sql.query<{ state: string }>(`SELECT state FROM sessions WHERE id = $1`, [sid])).rows[0].state;
 const transitions = async (sid = app.ids.sessionA) =>
-	(await app.sql.query(`SELECT from_state, to_state, note, signature_meaning, signature_method, actor_label FROM session_transitions WHERE session_id = $1 ORDER BY at, id`, [sid])).rows;
+	(
+		await app.sql.query(
+			`SELECT from_state, to_state, note, signature_meaning, signature_method, actor_label FROM session_transitions WHERE session_id = $1 ORDER BY at, id`,
+			[sid]
+		)
+	).rows;
 
 /** How the history names a person: their name, else their e-mail. */
 const labelOf = async (p: 'piA' | 'researcherA') =>
-	(await app.sql.query<{ label: string }>(`SELECT coalesce(nullif(trim(name), ''), email) AS label FROM users WHERE email = $1`, [PERSONAS[p]])).rows[0].label;
+	(
+		await app.sql.query<{ label: string }>(`SELECT coalesce(nullif(trim(name), ''), email) AS label FROM users WHERE email = $1`, [
+			PERSONAS[p]
+		])
+	).rows[0].label;
 
 const seen = new Set<string>();
 /** The next message to `address` not read before whose subject matches, from maildev's inbox. */
@@ -37,7 +47,13 @@ async function nextMail(address: string, subject: RegExp, timeoutMs = 20_000): P
 	for (;;) {
 		const all = (await (await fetch(`${process.env.MAILDEV_URL}/api/email`)).json()) as InboxMessage[];
 		// other test files share maildev and the demo addresses: only this app's messages (their links carry its URL)
-		const hit = all.find((m) => !seen.has(m.id) && subject.test(m.subject) && m.to?.some((t) => t.address.toLowerCase() === address) && (m.text ?? '').includes(app.base));
+		const hit = all.find(
+			(m) =>
+				!seen.has(m.id) &&
+				subject.test(m.subject) &&
+				m.to?.some((t) => t.address.toLowerCase() === address) &&
+				(m.text ?? '').includes(app.base)
+		);
 		if (hit) {
 			seen.add(hit.id);
 			return hit;
@@ -56,7 +72,10 @@ const SIGN = { meaning: 'approved for analysis', password: DEMO_PASSWORD };
 let worker: Child | null = null;
 beforeAll(async () => {
 	app = await startApp('workflow');
-	worker = start('worker', process.execPath, ['--import', 'tsx', 'src/cli/worker.ts'], { quiet: true, env: { ...process.env, DATABASE_URL: app.url } });
+	worker = start('worker', process.execPath, ['--import', 'tsx', 'src/cli/worker.ts'], {
+		quiet: true,
+		env: { ...process.env, DATABASE_URL: app.url }
+	});
 	const deadline = Date.now() + 30_000;
 	while (!worker.tail.some((l) => l.includes('worker listening'))) {
 		if (worker.proc.exitCode !== null || Date.now() > deadline) throw new Error(`worker not ready: ${worker.tail.join('\n')}`);
@@ -86,7 +105,8 @@ describe('the review workflow', () => {
 		for (const step of ['approve', 'return', 'reopen', 'code'] as const) await refusedForAll(step, WHO[step], FIELDS[step]);
 		const refusedDraft = await post('piA', 'approve', SIGN);
 		expect(refusedDraft.text).toContain('This session is draft');
-		for (const p of ['technicianA', 'memberB', 'anonymous'] as Persona[]) expect((await post(p, 'submit', NOTE)).status).toBe(p === 'technicianA' ? 403 : p === 'memberB' ? 404 : 303);
+		for (const p of ['technicianA', 'memberB', 'anonymous'] as Persona[])
+			expect((await post(p, 'submit', NOTE)).status).toBe(p === 'technicianA' ? 403 : p === 'memberB' ? 404 : 303);
 		// the summary is required (1–2000 characters once trimmed)
 		expect((await post('researcherA', 'submit', { note: '   ', confirm: 'yes' })).status).toBe(400);
 		expect((await post('researcherA', 'submit', { note: 'x'.repeat(2001), confirm: 'yes' })).status).toBe(400);
@@ -109,11 +129,19 @@ describe('the review workflow', () => {
 		const r = await post('researcherA', 'submit', NOTE);
 		expect(r.status, r.text.slice(0, 300)).toBe(303);
 		expect(await state()).toBe('in_review');
-		expect((await transitions()).at(-1)).toMatchObject({ from_state: 'draft', to_state: 'in_review', note: NOTE.note, signature_meaning: null, actor_label: await labelOf('researcherA') });
+		expect((await transitions()).at(-1)).toMatchObject({
+			from_state: 'draft',
+			to_state: 'in_review',
+			note: NOTE.note,
+			signature_meaning: null,
+			actor_label: await labelOf('researcherA')
+		});
 		const mail = await nextMail(PERSONAS.piA, /For your approval/);
 		expect(mail.text).toContain(`${app.base}${pagePath()}`);
 		expect(mail.text).toContain('ALD-001');
-		const audit = await app.sql.query(`SELECT details FROM audit_events WHERE action = 'session.submitted' AND record_id = $1`, [app.ids.sessionA]);
+		const audit = await app.sql.query(`SELECT details FROM audit_events WHERE action = 'session.submitted' AND record_id = $1`, [
+			app.ids.sessionA
+		]);
 		expect(audit.rows).toHaveLength(1);
 	});
 
@@ -153,7 +181,10 @@ describe('the review workflow', () => {
 		expect(wrong.text).toContain('That is not your password');
 		expect(await state()).toBe('in_review');
 		expect(await transitions()).toHaveLength(before);
-		const failed = await app.sql.query(`SELECT outcome, details FROM audit_events WHERE action = 'session.signature-failed' AND record_id = $1`, [app.ids.sessionA]);
+		const failed = await app.sql.query(
+			`SELECT outcome, details FROM audit_events WHERE action = 'session.signature-failed' AND record_id = $1`,
+			[app.ids.sessionA]
+		);
 		expect(failed.rows).toHaveLength(1);
 		expect(failed.rows[0]).toMatchObject({ outcome: 'failed', details: { method: 'password' } });
 		// the meaning must be ticked
@@ -163,7 +194,13 @@ describe('the review workflow', () => {
 		const ok = await post('piA', 'approve', SIGN);
 		expect(ok.status, ok.text.slice(0, 300)).toBe(303);
 		expect(await state()).toBe('approved');
-		expect((await transitions()).at(-1)).toMatchObject({ from_state: 'in_review', to_state: 'approved', signature_meaning: 'approved for analysis', signature_method: 'password', actor_label: await labelOf('piA') });
+		expect((await transitions()).at(-1)).toMatchObject({
+			from_state: 'in_review',
+			to_state: 'approved',
+			signature_meaning: 'approved for analysis',
+			signature_method: 'password',
+			actor_label: await labelOf('piA')
+		});
 		const mail = await nextMail(PERSONAS.researcherA, /^Approved/);
 		expect(mail.text).toContain('approved for analysis');
 		expect(mail.text).toContain(`${app.base}${pagePath()}`);
@@ -191,7 +228,8 @@ describe('the review workflow', () => {
 describe('signing with an e-mailed code (an account without a password)', () => {
 	let savedHash: string;
 	beforeAll(async () => {
-		savedHash = (await app.sql.query<{ password_hash: string }>(`SELECT password_hash FROM users WHERE email = $1`, [PERSONAS.piA])).rows[0].password_hash;
+		savedHash = (await app.sql.query<{ password_hash: string }>(`SELECT password_hash FROM users WHERE email = $1`, [PERSONAS.piA])).rows[0]
+			.password_hash;
 		await app.sql.query(`UPDATE users SET password_hash = NULL WHERE email = $1`, [PERSONAS.piA]);
 		if ((await state()) !== 'in_review') expect((await post('researcherA', 'submit', NOTE)).status).toBe(303);
 	});
@@ -214,12 +252,19 @@ describe('signing with an e-mailed code (an account without a password)', () => 
 		const wrong = await post('piA', 'approve', { meaning: SIGN.meaning, code: wrongCode });
 		expect(wrong.status).toBe(400);
 		expect(await state()).toBe('in_review');
-		expect((await app.sql.query(`SELECT 1 FROM audit_events WHERE action = 'session.signature-failed' AND details->>'method' = 'email_code'`)).rows.length).toBe(1);
+		expect(
+			(await app.sql.query(`SELECT 1 FROM audit_events WHERE action = 'session.signature-failed' AND details->>'method' = 'email_code'`))
+				.rows.length
+		).toBe(1);
 
 		const ok = await post('piA', 'approve', { meaning: SIGN.meaning, code });
 		expect(ok.status, ok.text.slice(0, 300)).toBe(303);
 		expect(await state()).toBe('approved');
-		expect((await transitions()).at(-1)).toMatchObject({ to_state: 'approved', signature_method: 'email_code', signature_meaning: 'approved for analysis' });
+		expect((await transitions()).at(-1)).toMatchObject({
+			to_state: 'approved',
+			signature_method: 'email_code',
+			signature_meaning: 'approved for analysis'
+		});
 
 		// the used code does not sign the next approval
 		expect((await post('piA', 'reopen', REASON)).status).toBe(303);
@@ -233,7 +278,9 @@ describe('signing with an e-mailed code (an account without a password)', () => 
 	it('an expired code is refused', async () => {
 		expect((await post('piA', 'code')).status).toBe(200);
 		const code = codeFrom(await nextMail(PERSONAS.piA, /Your code to sign/));
-		await app.sql.query(`UPDATE signature_codes SET expires_at = now() - interval '1 minute' WHERE session_id = $1 AND used_at IS NULL`, [app.ids.sessionA]);
+		await app.sql.query(`UPDATE signature_codes SET expires_at = now() - interval '1 minute' WHERE session_id = $1 AND used_at IS NULL`, [
+			app.ids.sessionA
+		]);
 		const r = await post('piA', 'approve', { meaning: SIGN.meaning, code });
 		expect(r.status).toBe(400);
 		expect(r.text).toContain('used or has expired');

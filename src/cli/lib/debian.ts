@@ -16,7 +16,10 @@ export function aptInstall(packages: string[], log: (m: string) => void): boolea
 	if (!isRoot()) return false;
 	log(`installing Debian's ${packages.join(', ')} (${aptCommand(packages)}) …`);
 	const env = { ...process.env, DEBIAN_FRONTEND: 'noninteractive' };
-	for (const args of [['update', '-qq'], ['install', '-y', '-qq', '--no-install-recommends', ...packages]]) {
+	for (const args of [
+		['update', '-qq'],
+		['install', '-y', '-qq', '--no-install-recommends', ...packages]
+	]) {
 		const r = spawnSync('apt-get', args, { stdio: 'inherit', env });
 		if (r.status !== 0) throw new Error(`\`apt-get ${args.join(' ')}\` failed (exit ${r.status}); run \`${aptCommand(packages)}\` by hand`);
 	}

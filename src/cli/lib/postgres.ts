@@ -143,8 +143,10 @@ export async function startCluster(opts: ClusterOptions): Promise<Cluster> {
 		const args = [
 			...user.prefix,
 			path.join(bin, 'initdb'),
-			'-D', dataDir,
-			'-U', DB_USER,
+			'-D',
+			dataDir,
+			'-U',
+			DB_USER,
 			`--pwfile=${tmpPw}`,
 			'--auth-host=scram-sha-256',
 			'--auth-local=scram-sha-256',
@@ -158,7 +160,8 @@ export async function startCluster(opts: ClusterOptions): Promise<Cluster> {
 			throw new Error(`initdb failed (exit ${r.status}):\n${r.stdout}\n${r.stderr}`);
 		}
 	}
-	if (!fs.existsSync(pwFile)) throw new Error(`the cluster in ${dataDir} has no password file ${pwFile}; remove the folder to start afresh`);
+	if (!fs.existsSync(pwFile))
+		throw new Error(`the cluster in ${dataDir} has no password file ${pwFile}; remove the folder to start afresh`);
 	const password = fs.readFileSync(pwFile, 'utf8').trim();
 
 	const runningOn = runningClusterPort(dataDir);
@@ -167,11 +170,16 @@ export async function startCluster(opts: ClusterOptions): Promise<Cluster> {
 	}
 
 	const settings = [
-		'-D', dataDir,
-		'-p', String(opts.port),
-		'-c', 'listen_addresses=127.0.0.1',
-		'-c', 'unix_socket_directories=',
-		'-c', 'max_connections=60',
+		'-D',
+		dataDir,
+		'-p',
+		String(opts.port),
+		'-c',
+		'listen_addresses=127.0.0.1',
+		'-c',
+		'unix_socket_directories=',
+		'-c',
+		'max_connections=60',
 		...(opts.ephemeral ? ['-c', 'fsync=off', '-c', 'synchronous_commit=off', '-c', 'full_page_writes=off'] : [])
 	];
 	const cmd = [...user.prefix, path.join(bin, 'postgres'), ...settings];

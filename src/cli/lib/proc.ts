@@ -11,12 +11,7 @@ export interface Child {
 }
 
 /** Spawns a long-running child in its own process group, prefixing each output line with its name. */
-export function start(
-	name: string,
-	cmd: string,
-	args: string[],
-	opts: SpawnOptions & { quiet?: boolean } = {}
-): Child {
+export function start(name: string, cmd: string, args: string[], opts: SpawnOptions & { quiet?: boolean } = {}): Child {
 	const proc = spawn(cmd, args, { stdio: ['ignore', 'pipe', 'pipe'], detached: true, ...opts });
 	const prefix = `[${name}] `;
 	const tail: string[] = [];

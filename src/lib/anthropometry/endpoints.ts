@@ -19,7 +19,7 @@ export const LANDMARKS = {
 	'femoral condyles': 'the condyles of the femur at the knee',
 	'lateral malleolus': 'lateral bony projection of the malleolus (fibula)',
 	'medial malleolus': 'medial bony projection of the malleolus (tibia)',
-	'heel': 'most posterior point of the heel (pternion)',
+	heel: 'most posterior point of the heel (pternion)',
 	'head of metatarsal II': 'head of the second metatarsal, at the ball of the foot',
 	'tip of the longest toe': 'tip of the longest toe (acropodion)'
 } as const;

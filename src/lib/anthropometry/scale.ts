@@ -1,7 +1,16 @@
 // Builds a participant's arm and leg segment trees for the engine from a chosen published table.
 import { z } from 'zod';
 import type { BodyInput, Mat3, ModelInput, Vec3 } from '../dynamics/model';
-import { tables, modelEndpointsOf, SEGMENT_TABLES, SEGMENT_TABLE_IDS, type SegmentName, type SegmentTableId, type SexParams, type TableSex } from './tables';
+import {
+	tables,
+	modelEndpointsOf,
+	SEGMENT_TABLES,
+	SEGMENT_TABLE_IDS,
+	type SegmentName,
+	type SegmentTableId,
+	type SexParams,
+	type TableSex
+} from './tables';
 
 export const SIDES = ['right', 'left'] as const;
 export type Side = (typeof SIDES)[number];
@@ -13,7 +22,9 @@ export type Limb = (typeof LIMBS)[number];
  * refuses rows measured between other endpoints unless the table file states why they may stand for these.
  */
 const LIMB_SEGMENTS: Record<'arm' | 'leg', SegmentName[]> = { arm: ['upperarm', 'forearm', 'hand'], leg: ['thigh', 'shank', 'foot'] };
-export const LENGTH_KEYS = SIDES.flatMap((s) => (['upperarm', 'forearm', 'hand', 'thigh', 'shank', 'foot'] as const).map((g) => `${s}.${g}` as const));
+export const LENGTH_KEYS = SIDES.flatMap((s) =>
+	(['upperarm', 'forearm', 'hand', 'thigh', 'shank', 'foot'] as const).map((g) => `${s}.${g}` as const)
+);
 export type LengthKey = (typeof LENGTH_KEYS)[number];
 
 /**
@@ -31,7 +42,9 @@ export const participantBodySchema = z.object({
 		.number({ error: 'stature must be a number (m)' })
 		.refine(Number.isFinite, 'stature must be a finite number (m)')
 		.refine((v) => v >= 0.8 && v <= 2.5, { error: (i) => `stature must be between 0.8 and 2.5 m (got ${i.input} m)` }),
-	measuredLengths: z.partialRecord(z.enum(LENGTH_KEYS, { error: 'unknown segment: use <side>.<segment>, e.g. right.thigh' }), z.number()).optional(),
+	measuredLengths: z
+		.partialRecord(z.enum(LENGTH_KEYS, { error: 'unknown segment: use <side>.<segment>, e.g. right.thigh' }), z.number())
+		.optional(),
 	notReportedAs: z.enum(['female', 'male', 'mean']).optional()
 });
 export type ParticipantBody = z.infer<typeof participantBodySchema>;
@@ -96,7 +109,12 @@ export interface ScaledModel {
 /** Momentry's plausibility rule for measured lengths: within 50–160 % of the stature-proportion estimate. */
 export const PLAUSIBLE_LENGTH = { min: 0.5, max: 1.6 } as const;
 
-type SexChoice = { params: (segment: SegmentName) => SexParams; value: ScaledModel['sexUsed']['value']; reason: string; tableSex: TableSex | 'mean' | 'any' };
+type SexChoice = {
+	params: (segment: SegmentName) => SexParams;
+	value: ScaledModel['sexUsed']['value'];
+	reason: string;
+	tableSex: TableSex | 'mean' | 'any';
+};
 
 function mean(a: SexParams, b: SexParams): SexParams {
 	const avg = (x: { value: number; source: string }, y: { value: number; source: string }) => ({
@@ -123,7 +141,9 @@ function chooseSex(p: ParticipantBody, tableId: SegmentTableId): SexChoice {
 	const t = tables.deLeva;
 	if (tableId === 'zatsiorsky-regression-2002') {
 		if (p.sex === 'female') {
-			throw new ScalingError(['the Zatsiorsky regression equations were fitted on men only; choose de Leva (1996), which has female parameters']);
+			throw new ScalingError([
+				'the Zatsiorsky regression equations were fitted on men only; choose de Leva (1996), which has female parameters'
+			]);
 		}
 		const sex = tables.zatsiorsky.geometry.sex;
 		const reason = p.sex === 'male' ? 'participant reported male' : 'sex not reported; the regression equations exist for men only';
@@ -140,7 +160,12 @@ function chooseSex(p: ParticipantBody, tableId: SegmentTableId): SexChoice {
 		]);
 	}
 	if (rule === 'mean') {
-		return { params: (s) => mean(t.segments[s].female!, t.segments[s].male!), value: 'mean', reason: 'sex not reported; the mean of the female and male parameters, as chosen', tableSex: 'mean' };
+		return {
+			params: (s) => mean(t.segments[s].female!, t.segments[s].male!),
+			value: 'mean',
+			reason: 'sex not reported; the mean of the female and male parameters, as chosen',
+			tableSex: 'mean'
+		};
 	}
 	return { params: (s) => t.segments[s][rule]!, value: rule, reason: `sex not reported; ${rule} parameters, as chosen`, tableSex: rule };
 }
@@ -169,7 +194,12 @@ function segmentMass(segment: SegmentName, p: ParticipantBody, tableId: SegmentT
 	if (tableId === 'zatsiorsky-regression-2002') {
 		const r = tables.zatsiorsky.segments[segment];
 		const value = r.b0.value + r.b1.value * p.bodyMass + r.b2.value * (p.stature * 100);
-		return { value, unit: 'kg', kind: 'estimated', source: `${r.b0.value} + ${r.b1.value} × ${p.bodyMass} kg + ${r.b2.value} × ${p.stature * 100} cm; ${tables.zatsiorsky.citation.split('.')[0]}` };
+		return {
+			value,
+			unit: 'kg',
+			kind: 'estimated',
+			source: `${r.b0.value} + ${r.b1.value} × ${p.bodyMass} kg + ${r.b2.value} × ${p.stature * 100} cm; ${tables.zatsiorsky.citation.split('.')[0]}`
+		};
 	}
 	const f = params.massFraction;
 	return { value: f.value * p.bodyMass, unit: 'kg', kind: 'estimated', source: `${f.value} × body mass; ${f.source}` };
@@ -180,7 +210,8 @@ export function participantProblems(input: unknown): string[] {
 	const r = participantBodySchema.safeParse(input);
 	if (!r.success) {
 		return r.error.issues.map((i) => {
-			if (i.code === 'unrecognized_keys') return `unknown segment ${i.keys.map((k) => `"${k}"`).join(', ')}: use <side>.<segment>, e.g. right.thigh`;
+			if (i.code === 'unrecognized_keys')
+				return `unknown segment ${i.keys.map((k) => `"${k}"`).join(', ')}: use <side>.<segment>, e.g. right.thigh`;
 			return i.path[0] === 'measuredLengths' ? `measured length ${i.path.slice(1).join('.')}: ${i.message}` : i.message;
 		});
 	}
@@ -272,7 +303,12 @@ export function scaleLimbs(input: ParticipantBody, tableId: SegmentTableId, limb
 			...(def.takenAs ? { takenAs: { ...modelEndpointsOf(def), note: def.takenAs.note } } : {}),
 			length,
 			mass,
-			comDistance: { value: params.comFraction.value * L, unit: 'm', kind: 'estimated', source: `${params.comFraction.value} × length; ${params.comFraction.source}` },
+			comDistance: {
+				value: params.comFraction.value * L,
+				unit: 'm',
+				kind: 'estimated',
+				source: `${params.comFraction.value} × length; ${params.comFraction.source}`
+			},
 			inertia: { flexion: moment(g.flexion), abduction: moment(g.abduction), longitudinal: moment(g.longitudinal) }
 		};
 		segments.push(seg);
@@ -309,7 +345,15 @@ export function scaleLimbs(input: ParticipantBody, tableId: SegmentTableId, limb
 						[0, 0, I.flexion.value]
 					];
 		const d = s.comDistance.value;
-		return { name, parent, joint: { type: 'revolute', axis }, anchor, mass: s.mass.value, com: along === 'down' ? [0, -d, 0] : [d, 0, 0], inertia };
+		return {
+			name,
+			parent,
+			joint: { type: 'revolute', axis },
+			anchor,
+			mass: s.mass.value,
+			com: along === 'down' ? [0, -d, 0] : [d, 0, 0],
+			inertia
+		};
 	};
 
 	for (const limb of limbs) {
@@ -318,33 +362,83 @@ export function scaleLimbs(input: ParticipantBody, tableId: SegmentTableId, limb
 		// Axes whose positive rotation is the same anatomical motion on both sides are mirrored for the left.
 		const mirror = (v: Vec3) => (side === 'right' ? v : neg(v));
 		const [s1, s2, s3] = LIMB_SEGMENTS[kind].map((g) => segmentFor(side, g));
-		const dof = (joint: DofInfo['joint'], motion: string, positive: string): DofInfo => ({ name: `${side}.${joint}.${motion}`, side, joint, motion, unit: 'rad', positive });
+		const dof = (joint: DofInfo['joint'], motion: string, positive: string): DofInfo => ({
+			name: `${side}.${joint}.${motion}`,
+			side,
+			joint,
+			motion,
+			unit: 'rad',
+			positive
+		});
 		if (kind === 'leg') {
 			const root: Vec3 = [0, dr.hipHeight.fraction.value * H, (lateral * dr.hipWidth.fraction.value * H) / 2];
-			const h1 = add(link(`${side}.hip.flexion`, -1, Z, root), dof('hip', 'flexion', 'flexion: thigh forward, about the pelvis’ medio-lateral axis'));
-			const h2 = add(link(`${side}.hip.adduction`, h1, mirror(X), [0, 0, 0]), dof('hip', 'adduction', 'adduction: thigh toward the midline, about the floating antero-posterior axis'));
-			const thigh = add(massive(`${side}.thigh`, h2, mirror(Y), [0, 0, 0], s1, 'down'), dof('hip', 'internalRotation', 'internal rotation: front of the thigh turns toward the midline, about its long axis'));
-			const shank = add(massive(`${side}.shank`, thigh, neg(Z), [0, -s1.length.value, 0], s2, 'down'), dof('knee', 'flexion', 'flexion: shank backward, about the thigh’s medio-lateral axis'));
-			const a1 = add(link(`${side}.ankle.dorsiflexion`, shank, Z, [0, -s2.length.value, 0]), dof('ankle', 'dorsiflexion', 'dorsiflexion: toes up, about the shank’s medio-lateral axis'));
-			add(massive(`${side}.foot`, a1, mirror(X), [0, 0, 0], s3, 'forward'), dof('ankle', 'inversion', 'inversion: sole turns toward the midline, about the foot’s long axis'));
+			const h1 = add(
+				link(`${side}.hip.flexion`, -1, Z, root),
+				dof('hip', 'flexion', 'flexion: thigh forward, about the pelvis’ medio-lateral axis')
+			);
+			const h2 = add(
+				link(`${side}.hip.adduction`, h1, mirror(X), [0, 0, 0]),
+				dof('hip', 'adduction', 'adduction: thigh toward the midline, about the floating antero-posterior axis')
+			);
+			const thigh = add(
+				massive(`${side}.thigh`, h2, mirror(Y), [0, 0, 0], s1, 'down'),
+				dof('hip', 'internalRotation', 'internal rotation: front of the thigh turns toward the midline, about its long axis')
+			);
+			const shank = add(
+				massive(`${side}.shank`, thigh, neg(Z), [0, -s1.length.value, 0], s2, 'down'),
+				dof('knee', 'flexion', 'flexion: shank backward, about the thigh’s medio-lateral axis')
+			);
+			const a1 = add(
+				link(`${side}.ankle.dorsiflexion`, shank, Z, [0, -s2.length.value, 0]),
+				dof('ankle', 'dorsiflexion', 'dorsiflexion: toes up, about the shank’s medio-lateral axis')
+			);
+			add(
+				massive(`${side}.foot`, a1, mirror(X), [0, 0, 0], s3, 'forward'),
+				dof('ankle', 'inversion', 'inversion: sole turns toward the midline, about the foot’s long axis')
+			);
 		} else {
 			const root: Vec3 = [0, dr.shoulderHeight.fraction.value * H, (lateral * dr.shoulderWidth.fraction.value * H) / 2];
-			const sh1 = add(link(`${side}.shoulder.flexion`, -1, Z, root), dof('shoulder', 'flexion', 'flexion: arm forward, about the thorax’s medio-lateral axis'));
-			const sh2 = add(link(`${side}.shoulder.abduction`, sh1, mirror(neg(X)), [0, 0, 0]), dof('shoulder', 'abduction', 'abduction: arm away from the midline, about the floating antero-posterior axis'));
-			const upper = add(massive(`${side}.upperarm`, sh2, mirror(Y), [0, 0, 0], s1, 'down'), dof('shoulder', 'internalRotation', 'internal rotation: front of the arm turns toward the midline, about its long axis'));
-			const e1 = add(link(`${side}.elbow.flexion`, upper, Z, [0, -s1.length.value, 0]), dof('elbow', 'flexion', 'flexion: forearm forward and up, about the upper arm’s medio-lateral axis'));
-			const fore = add(massive(`${side}.forearm`, e1, mirror(Y), [0, 0, 0], s2, 'down'), dof('forearm', 'pronation', 'pronation: palm turns from front to back, about the forearm’s long axis'));
-			const w1 = add(link(`${side}.wrist.flexion`, fore, Z, [0, -s2.length.value, 0]), dof('wrist', 'flexion', 'flexion: palm toward the front of the forearm, about the medio-lateral axis'));
-			add(massive(`${side}.hand`, w1, mirror(X), [0, 0, 0], s3, 'down'), dof('wrist', 'ulnarDeviation', 'ulnar deviation: hand toward the little-finger side, about the antero-posterior axis'));
+			const sh1 = add(
+				link(`${side}.shoulder.flexion`, -1, Z, root),
+				dof('shoulder', 'flexion', 'flexion: arm forward, about the thorax’s medio-lateral axis')
+			);
+			const sh2 = add(
+				link(`${side}.shoulder.abduction`, sh1, mirror(neg(X)), [0, 0, 0]),
+				dof('shoulder', 'abduction', 'abduction: arm away from the midline, about the floating antero-posterior axis')
+			);
+			const upper = add(
+				massive(`${side}.upperarm`, sh2, mirror(Y), [0, 0, 0], s1, 'down'),
+				dof('shoulder', 'internalRotation', 'internal rotation: front of the arm turns toward the midline, about its long axis')
+			);
+			const e1 = add(
+				link(`${side}.elbow.flexion`, upper, Z, [0, -s1.length.value, 0]),
+				dof('elbow', 'flexion', 'flexion: forearm forward and up, about the upper arm’s medio-lateral axis')
+			);
+			const fore = add(
+				massive(`${side}.forearm`, e1, mirror(Y), [0, 0, 0], s2, 'down'),
+				dof('forearm', 'pronation', 'pronation: palm turns from front to back, about the forearm’s long axis')
+			);
+			const w1 = add(
+				link(`${side}.wrist.flexion`, fore, Z, [0, -s2.length.value, 0]),
+				dof('wrist', 'flexion', 'flexion: palm toward the front of the forearm, about the medio-lateral axis')
+			);
+			add(
+				massive(`${side}.hand`, w1, mirror(X), [0, 0, 0], s3, 'down'),
+				dof('wrist', 'ulnarDeviation', 'ulnar deviation: hand toward the little-finger side, about the antero-posterior axis')
+			);
 		}
 	}
 	if (tableId === 'dempster-winter-2009') {
-		notes.push('Winter (2009) Table 4.1 gives one radius of gyration per segment; Momentry uses it for both transverse axes and takes the longitudinal radius from de Leva (1996) male values, as the table file records.');
+		notes.push(
+			'Winter (2009) Table 4.1 gives one radius of gyration per segment; Momentry uses it for both transverse axes and takes the longitudinal radius from de Leva (1996) male values, as the table file records.'
+		);
 	}
 	if (limbs.some((l) => l.endsWith('leg'))) {
 		notes.push('Foot: its long axis is taken horizontal and anterior through the ankle joint centre (Momentry’s simplification).');
 	}
-	notes.push('Shoulder angles use the Cardan sequence flexion, abduction, internal rotation (as the hip), not ISB’s Euler sequence for the humerus, which is singular with the arm at the side.');
+	notes.push(
+		'Shoulder angles use the Cardan sequence flexion, abduction, internal rotation (as the hip), not ISB’s Euler sequence for the humerus, which is singular with the arm at the side.'
+	);
 	const t = SEGMENT_TABLES[tableId];
 	return {
 		table: { id: tableId, title: t.title, citation: t.citation },
@@ -362,7 +456,11 @@ export function scaleLimbs(input: ParticipantBody, tableId: SegmentTableId, limb
 export interface ComparisonRow {
 	key: LengthKey;
 	/** One entry per table; `null` with a reason where the table cannot serve this participant. */
-	byTable: Record<SegmentTableId, { length: number; mass: number; comDistance: number; inertiaFlexion: number; inertiaAbduction: number; inertiaLongitudinal: number } | { unavailable: string }>;
+	byTable: Record<
+		SegmentTableId,
+		| { length: number; mass: number; comDistance: number; inertiaFlexion: number; inertiaAbduction: number; inertiaLongitudinal: number }
+		| { unavailable: string }
+	>;
 	/** Largest minus smallest over the tables that apply, as a fraction of their mean (how much the choice matters). */
 	spread: { mass: number; comDistance: number; inertiaFlexion: number };
 }
@@ -403,6 +501,10 @@ export function compareTables(p: ParticipantBody, limbs: readonly Limb[]): Compa
 			vals.inertiaFlexion.push(row.inertiaFlexion);
 		}
 		const spread = (a: number[]) => (a.length < 2 ? 0 : (Math.max(...a) - Math.min(...a)) / (a.reduce((x, y) => x + y, 0) / a.length));
-		return { key: seg.key, byTable, spread: { mass: spread(vals.mass), comDistance: spread(vals.comDistance), inertiaFlexion: spread(vals.inertiaFlexion) } };
+		return {
+			key: seg.key,
+			byTable,
+			spread: { mass: spread(vals.mass), comDistance: spread(vals.comDistance), inertiaFlexion: spread(vals.inertiaFlexion) }
+		};
 	});
 }

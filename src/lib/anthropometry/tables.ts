@@ -24,7 +24,9 @@ const sexParams = z.object({
 
 const citation = z.string().min(20, 'needs the full citation');
 
-const landmark = z.enum(LANDMARK_NAMES, { error: (i) => `unknown landmark ${JSON.stringify(i.input)}: name one of those listed in src/lib/anthropometry/endpoints.ts` });
+const landmark = z.enum(LANDMARK_NAMES, {
+	error: (i) => `unknown landmark ${JSON.stringify(i.input)}: name one of those listed in src/lib/anthropometry/endpoints.ts`
+});
 /** A row applied between other endpoints than its own: which model endpoints it stands for, and why. */
 const takenAs = z
 	.object({
@@ -73,7 +75,14 @@ export const statureTableSchema = z.object({
 	/** Segment lengths (keyed by segment, with endpoints) and other body dimensions (keyed by name). */
 	lengths: z.record(
 		z.string(),
-		z.object({ fraction: sourced(fraction), between: z.string().min(1), proximal: landmark.optional(), distal: landmark.optional(), takenAs: takenAs.optional(), note: z.string().min(20).optional() })
+		z.object({
+			fraction: sourced(fraction),
+			between: z.string().min(1),
+			proximal: landmark.optional(),
+			distal: landmark.optional(),
+			takenAs: takenAs.optional(),
+			note: z.string().min(20).optional()
+		})
 	)
 });
 
@@ -122,12 +131,16 @@ export function checkComplete(file: string, t: FractionsTable): FractionsTable {
 	for (const seg of SEGMENTS) {
 		const s = t.segments[seg];
 		if (!s) throw new Error(`anthropometry/${file}: segments.${seg}: missing`);
-		const rows: [string, FractionsRow][] = [[`segments.${seg}`, s], ...(s.otherRows ?? []).map((r, i): [string, FractionsRow] => [`segments.${seg}.otherRows.${i}`, r])];
+		const rows: [string, FractionsRow][] = [
+			[`segments.${seg}`, s],
+			...(s.otherRows ?? []).map((r, i): [string, FractionsRow] => [`segments.${seg}.otherRows.${i}`, r])
+		];
 		for (const [path, row] of rows) {
 			for (const sex of t.sexes) if (!row[sex]) throw new Error(`anthropometry/${file}: ${path}.${sex}: missing`);
 			if (t.lengths.from === 'own') {
 				for (const sex of t.sexes) {
-					if (!row[sex]?.meanLength) throw new Error(`anthropometry/${file}: ${path}.${sex}.meanLength: needed when lengths come from the table itself`);
+					if (!row[sex]?.meanLength)
+						throw new Error(`anthropometry/${file}: ${path}.${sex}.meanLength: needed when lengths come from the table itself`);
 					if (!t.lengths.referenceStature?.[sex]) throw new Error(`anthropometry/${file}: lengths.referenceStature.${sex}: missing`);
 				}
 			}
@@ -156,11 +169,19 @@ function describe(row: EndpointRow): string {
  * The endpoints the model needs for one segment of a table. Hand and foot end where their length ends: for a
  * table with its own mean lengths that is the row's own distal endpoint; otherwise the stature-proportion row's.
  */
-function needed(seg: SegmentName, lengthRow: EndpointRow | null, lengthPath: string): { proximal: Landmark; distal: Landmark | null; why: string } {
+function needed(
+	seg: SegmentName,
+	lengthRow: EndpointRow | null,
+	lengthPath: string
+): { proximal: Landmark; distal: Landmark | null; why: string } {
 	const m = MODEL_ENDPOINTS[seg];
 	if (m.distal !== LENGTH_END) return { proximal: m.proximal, distal: m.distal, why: '' };
 	if (!lengthRow) return { proximal: m.proximal, distal: null, why: '' };
-	return { proximal: m.proximal, distal: modelEndpointsOf(lengthRow).distal, why: ` (its ${seg} ends where the length it is scaled by ends, ${lengthPath})` };
+	return {
+		proximal: m.proximal,
+		distal: modelEndpointsOf(lengthRow).distal,
+		why: ` (its ${seg} ends where the length it is scaled by ends, ${lengthPath})`
+	};
 }
 function mismatch(row: EndpointRow, need: { proximal: Landmark; distal: Landmark | null }): boolean {
 	const got = modelEndpointsOf(row);
@@ -189,7 +210,9 @@ export function checkFractionsEndpoints(file: string, t: FractionsTable, stature
 		if (row.takenAs) {
 			const i = (row.otherRows ?? []).findIndex((r) => !r.takenAs && !mismatch(r, need));
 			if (i >= 0) {
-				throw new Error(`${where}: segments.${seg}: the row ${describe(row)} stands in for the model’s endpoints, but otherRows.${i} (${arrow(row.otherRows![i])}) has them: use that row`);
+				throw new Error(
+					`${where}: segments.${seg}: the row ${describe(row)} stands in for the model’s endpoints, but otherRows.${i} (${arrow(row.otherRows![i])}) has them: use that row`
+				);
 			}
 		}
 	}
@@ -214,29 +237,43 @@ export function checkStatureEndpoints(file: string, t: StatureTable): StatureTab
 }
 
 /** Refuses a mass regression whose rows are not for the same segments (endpoints) as the geometry rows they are combined with. */
-export function checkRegressionEndpoints(file: string, r: RegressionTable, geometry: { file: string; table: FractionsTable }): RegressionTable {
+export function checkRegressionEndpoints(
+	file: string,
+	r: RegressionTable,
+	geometry: { file: string; table: FractionsTable }
+): RegressionTable {
 	const where = `anthropometry/${file} (table ${r.id})`;
 	if (r.geometry.from !== geometry.table.id) throw new Error(`${where}: geometry.from: "${r.geometry.from}" is not ${geometry.table.id}`);
 	for (const seg of SEGMENTS) {
 		const a = r.segments[seg],
 			b = geometry.table.segments[seg];
 		if (a.proximal !== b.proximal || a.distal !== b.distal) {
-			throw new Error(`${where}: segments.${seg}: endpoints ${arrow(a)} do not match those of the geometry row it is combined with, anthropometry/${geometry.file} segments.${seg} (${arrow(b)})`);
+			throw new Error(
+				`${where}: segments.${seg}: endpoints ${arrow(a)} do not match those of the geometry row it is combined with, anthropometry/${geometry.file} segments.${seg} (${arrow(b)})`
+			);
 		}
 	}
 	return r;
 }
 
-const drillisTable = checkStatureEndpoints('drillis-contini-winter-2009.json', parseTable('drillis-contini-winter-2009.json', statureTableSchema, drillis));
+const drillisTable = checkStatureEndpoints(
+	'drillis-contini-winter-2009.json',
+	parseTable('drillis-contini-winter-2009.json', statureTableSchema, drillis)
+);
 const stature = { file: 'drillis-contini-winter-2009.json', table: drillisTable };
-const fractions = (file: string, data: unknown) => checkFractionsEndpoints(file, checkComplete(file, parseTable(file, fractionsTableSchema, data)), stature);
+const fractions = (file: string, data: unknown) =>
+	checkFractionsEndpoints(file, checkComplete(file, parseTable(file, fractionsTableSchema, data)), stature);
 const deLevaTable = fractions('de-leva-1996.json', deLeva);
 
 /** The validated tables; loading this module refuses any table whose endpoints do not match the model's. */
 export const tables = {
 	dempster: fractions('dempster-winter-2009.json', dempster),
 	deLeva: deLevaTable,
-	zatsiorsky: checkRegressionEndpoints('zatsiorsky-regression-2002.json', parseTable('zatsiorsky-regression-2002.json', regressionTableSchema, zatsiorsky), { file: 'de-leva-1996.json', table: deLevaTable }),
+	zatsiorsky: checkRegressionEndpoints(
+		'zatsiorsky-regression-2002.json',
+		parseTable('zatsiorsky-regression-2002.json', regressionTableSchema, zatsiorsky),
+		{ file: 'de-leva-1996.json', table: deLevaTable }
+	),
 	drillis: drillisTable
 };
 

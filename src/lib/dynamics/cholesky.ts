@@ -1,7 +1,10 @@
 // Cholesky factorisation M = L Lᵀ of a symmetric positive-definite matrix, in place, and the matching solve.
 
 export class NotPositiveDefiniteError extends Error {
-	constructor(public readonly row: number, public readonly pivot: number) {
+	constructor(
+		public readonly row: number,
+		public readonly pivot: number
+	) {
 		super(`mass matrix is not positive definite (pivot ${row} is ${pivot.toPrecision(3)}): check masses and joint axes`);
 		this.name = 'NotPositiveDefiniteError';
 	}

@@ -88,7 +88,15 @@ export function simulate(m: Model, opts: SimulationOptions): Simulation {
 
 type Rhs = (t: number, y: Float64Array, dy: Float64Array) => void;
 
-function rk4(f: Rhs, y: Float64Array, times: Float64Array, hMax: number, record: (k: number) => void, stats: Simulation['stats'], N: number) {
+function rk4(
+	f: Rhs,
+	y: Float64Array,
+	times: Float64Array,
+	hMax: number,
+	record: (k: number) => void,
+	stats: Simulation['stats'],
+	N: number
+) {
 	if (!(hMax > 0)) throw new RangeError('step must be positive');
 	const k1 = new Float64Array(N),
 		k2 = new Float64Array(N),
@@ -218,7 +226,8 @@ function dopri5(
 		} else {
 			stats.rejected++;
 			h = Number.isFinite(err) ? hStep * Math.max(0.2, 0.9 * err ** -0.2) : hStep * 0.2;
-			if (h < 1e-14 * Math.max(1, Math.abs(t))) throw new Error(`RK45 step size underflow at t = ${t} s: the motion is too stiff or diverges`);
+			if (h < 1e-14 * Math.max(1, Math.abs(t)))
+				throw new Error(`RK45 step size underflow at t = ${t} s: the motion is too stiff or diverges`);
 		}
 	}
 }

@@ -76,8 +76,7 @@ export function massMatrixInto(m: Model, q: ArrayLike<number>, M: Float64Array, 
 			const ca = a === 0 ? cx : a === 1 ? cy : cz;
 			for (let b = 0; b < 3; b++) {
 				const cb = b === 0 ? cx : b === 1 ? cy : cz;
-				cI[i9 + 3 * a + b] =
-					t0 * Rw[i9 + 3 * b] + t1 * Rw[i9 + 3 * b + 1] + t2 * Rw[i9 + 3 * b + 2] + mi * ((a === b ? c2 : 0) - ca * cb);
+				cI[i9 + 3 * a + b] = t0 * Rw[i9 + 3 * b] + t1 * Rw[i9 + 3 * b + 1] + t2 * Rw[i9 + 3 * b + 2] + mi * ((a === b ? c2 : 0) - ca * cb);
 			}
 		}
 	}

@@ -237,7 +237,14 @@ export function compileModel(input: unknown): Model {
 			}
 		out.mass[i] = b.mass;
 		const [x, y, z] = [0, 1, 2].map((k) => out.axis[3 * i + k]);
-		out.axisCode[i] = y === 0 && z === 0 && Math.abs(x) === 1 ? 1 : x === 0 && z === 0 && Math.abs(y) === 1 ? 2 : x === 0 && y === 0 && Math.abs(z) === 1 ? 3 : 0;
+		out.axisCode[i] =
+			y === 0 && z === 0 && Math.abs(x) === 1
+				? 1
+				: x === 0 && z === 0 && Math.abs(y) === 1
+					? 2
+					: x === 0 && y === 0 && Math.abs(z) === 1
+						? 3
+						: 0;
 		out.axisSign[i] = out.axisCode[i] ? x + y + z : 1;
 		out.anchorZero[i] = b.anchor.every((v) => v === 0) ? 1 : 0;
 		out.planar[i] = out.kind[i] === REVOLUTE && !out.hasRot0[i] ? out.axisCode[i] : 0;

@@ -22,7 +22,11 @@ export function orthonormalityError(R: Mat3): number {
 }
 
 export function det3(R: Mat3): number {
-	return R[0][0] * (R[1][1] * R[2][2] - R[1][2] * R[2][1]) - R[0][1] * (R[1][0] * R[2][2] - R[1][2] * R[2][0]) + R[0][2] * (R[1][0] * R[2][1] - R[1][1] * R[2][0]);
+	return (
+		R[0][0] * (R[1][1] * R[2][2] - R[1][2] * R[2][1]) -
+		R[0][1] * (R[1][0] * R[2][2] - R[1][2] * R[2][0]) +
+		R[0][2] * (R[1][0] * R[2][1] - R[1][1] * R[2][0])
+	);
 }
 
 /** X^{-T} = cof(X) / det(X), the cofactor matrix over the determinant (Cramer's rule). */
@@ -64,9 +68,11 @@ export function nearestRotation(M: Mat3): Mat3 {
 	return X;
 }
 
-export type RotationCheck = { ok: true; rotation: Mat3; error: number; corrected: boolean } | { ok: false; error: number; det: number; message: string };
+export type RotationCheck =
+	{ ok: true; rotation: Mat3; error: number; corrected: boolean } | { ok: false; error: number; det: number; message: string };
 
-const show = (x: number) => (x === 0 ? '0' : Math.abs(x) >= 1e-3 && Math.abs(x) < 1e4 ? String(Number(x.toPrecision(3))) : x.toExponential(2));
+const show = (x: number) =>
+	x === 0 ? '0' : Math.abs(x) >= 1e-3 && Math.abs(x) < 1e4 ? String(Number(x.toPrecision(3))) : x.toExponential(2);
 
 /**
  * Accepts a typed rotation matrix within `tolerance` of orthonormal with a positive determinant, replaced by the

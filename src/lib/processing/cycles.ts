@@ -58,14 +58,20 @@ export function nearestIndex(time: ArrayLike<number>, t: number): number {
 
 function checkSeries(time: ArrayLike<number>, values: ArrayLike<number>): void {
 	if (time.length !== values.length) throw new RangeError(`time has ${time.length} samples but values has ${values.length}.`);
-	for (let i = 1; i < time.length; i++) if (!(time[i] > time[i - 1])) throw new RangeError(`time must be strictly increasing (time[${i}] ≤ time[${i - 1}]).`);
+	for (let i = 1; i < time.length; i++)
+		if (!(time[i] > time[i - 1])) throw new RangeError(`time must be strictly increasing (time[${i}] ≤ time[${i - 1}]).`);
 }
 
 /**
  * Time-normalises the repetitions between consecutive events onto 0..100 % in `points` steps (see the top of the
  * file). Events must be strictly increasing and lie within the recording.
  */
-export function normaliseCycles(time: Float64Array, values: Float64Array, events: number[], points = 101): { percent: number[]; cycles: number[][] } {
+export function normaliseCycles(
+	time: Float64Array,
+	values: Float64Array,
+	events: number[],
+	points = 101
+): { percent: number[]; cycles: number[][] } {
 	checkSeries(time, values);
 	if (!Number.isInteger(points) || points < 2) throw new RangeError(`points must be a whole number of at least 2 (got ${points}).`);
 	if (time.length < 2) throw new RangeError('A recording needs at least two samples to be cut into cycles.');
@@ -73,7 +79,8 @@ export function normaliseCycles(time: Float64Array, values: Float64Array, events
 	const last = time[time.length - 1];
 	for (let k = 0; k < events.length; k++) {
 		const e = events[k];
-		if (!Number.isFinite(e) || e < first || e > last) throw new CycleError(`Event ${k + 1} (${e} s) lies outside the recording (${first} s to ${last} s).`);
+		if (!Number.isFinite(e) || e < first || e > last)
+			throw new CycleError(`Event ${k + 1} (${e} s) lies outside the recording (${first} s to ${last} s).`);
 		if (k > 0 && !(e > events[k - 1])) throw new CycleError(`Events must be strictly increasing (event ${k + 1} is not after event ${k}).`);
 	}
 	const percent = Array.from({ length: points }, (_, j) => (100 * j) / (points - 1));
@@ -133,7 +140,11 @@ export interface Peak {
  * scipy.signal.find_peaks / peak_prominences (tests/unit/processing/peaks-scipy.test.ts); with both rules given,
  * prominence is applied first here (find_peaks applies distance first), so a small ripple never hides a real peak.
  */
-export function detectPeaks(values: ArrayLike<number>, time: ArrayLike<number>, opts: { minProminence?: number; minDistanceS?: number } = {}): Peak[] {
+export function detectPeaks(
+	values: ArrayLike<number>,
+	time: ArrayLike<number>,
+	opts: { minProminence?: number; minDistanceS?: number } = {}
+): Peak[] {
 	checkSeries(time, values);
 	const n = values.length;
 	const found: Peak[] = [];
@@ -172,7 +183,12 @@ export type CrossingDirection = 'rising' | 'falling' | 'both';
  * Times (s) at which the signal crosses `threshold` in the given direction, by linear interpolation between the two
  * samples on either side. A rising crossing goes from below the threshold to at or above it; falling the reverse.
  */
-export function detectCrossings(values: ArrayLike<number>, time: ArrayLike<number>, threshold: number, direction: CrossingDirection): number[] {
+export function detectCrossings(
+	values: ArrayLike<number>,
+	time: ArrayLike<number>,
+	threshold: number,
+	direction: CrossingDirection
+): number[] {
 	checkSeries(time, values);
 	const out: number[] = [];
 	for (let i = 1; i < values.length; i++) {
@@ -226,7 +242,8 @@ export function eventProblems(times: number[], first: number, last: number): str
 	for (let k = 0; k < times.length; k++) {
 		if (!Number.isFinite(times[k])) return `Event ${k + 1} is not a number of seconds.`;
 		if (times[k] < first || times[k] > last) return `Event ${k + 1} (${times[k]} s) lies outside the recording (${first} s to ${last} s).`;
-		if (k > 0 && !(times[k] > times[k - 1])) return `Event times must be strictly increasing: event ${k + 1} (${times[k]} s) is not after event ${k} (${times[k - 1]} s).`;
+		if (k > 0 && !(times[k] > times[k - 1]))
+			return `Event times must be strictly increasing: event ${k + 1} (${times[k]} s) is not after event ${k} (${times[k - 1]} s).`;
 	}
 	return null;
 }

@@ -49,7 +49,15 @@ export function shelfReachSpec(file: DemoParticipantsFile): RecordingSpec {
 		table,
 		limbs,
 		bases: { 'right.arm': { kind: 'fixed' as const, orientation: 'upright' as const } },
-		loads: [{ limb: 'right.arm' as const, segment: 'hand' as const, massKg: 2, pointM: hand.com.map((v) => Number(v.toFixed(4))) as [number, number, number], label: 'box' }],
+		loads: [
+			{
+				limb: 'right.arm' as const,
+				segment: 'hand' as const,
+				massKg: 2,
+				pointM: hand.com.map((v) => Number(v.toFixed(4))) as [number, number, number],
+				label: 'box'
+			}
+		],
 		gravity: [0, -9.81, 0] as [number, number, number]
 	};
 	return {
@@ -81,7 +89,15 @@ export function kneeExtensionSpec(file: DemoParticipantsFile): RecordingSpec {
 		table,
 		limbs,
 		bases: { 'right.leg': { kind: 'fixed' as const, orientation: 'thigh-on-seat' as const } },
-		loads: [{ limb: 'right.leg' as const, segment: 'shank' as const, massKg: 1.5, pointM: [0, -Number((shankLength - 0.05).toFixed(4)), 0] as [number, number, number], label: 'ankle weight' }],
+		loads: [
+			{
+				limb: 'right.leg' as const,
+				segment: 'shank' as const,
+				massKg: 1.5,
+				pointM: [0, -Number((shankLength - 0.05).toFixed(4)), 0] as [number, number, number],
+				label: 'ankle weight'
+			}
+		],
 		gravity: [0, -9.81, 0] as [number, number, number]
 	};
 	return {

@@ -37,12 +37,69 @@ export function movingLegSpec(file: DemoParticipantsFile, duration = 4): Recordi
 		sampleHz: 200,
 		duration,
 		targets: {
-			'right.hip.flexion': movement([[-0.9, -5], [0.9, 45], [2.6, 0], [4.6, 40]], 101, 4, duration),
-			'right.hip.adduction': movement([[-0.8, 0], [1.5, 6], [4.8, -3]], 102, 2, duration),
-			'right.hip.internalRotation': movement([[-0.3, 5], [2.0, -5], [4.4, 6]], 103, 3, duration),
-			'right.knee.flexion': movement([[-0.7, 70], [1.0, 10], [2.7, 65], [4.5, 20]], 104, 5, duration),
-			'right.ankle.dorsiflexion': movement([[-0.6, -10], [1.2, 10], [3.0, -15], [4.9, 5]], 105, 3, duration),
-			'right.ankle.inversion': movement([[-0.7, 2], [1.8, 8], [4.3, -2]], 106, 2, duration)
+			'right.hip.flexion': movement(
+				[
+					[-0.9, -5],
+					[0.9, 45],
+					[2.6, 0],
+					[4.6, 40]
+				],
+				101,
+				4,
+				duration
+			),
+			'right.hip.adduction': movement(
+				[
+					[-0.8, 0],
+					[1.5, 6],
+					[4.8, -3]
+				],
+				102,
+				2,
+				duration
+			),
+			'right.hip.internalRotation': movement(
+				[
+					[-0.3, 5],
+					[2.0, -5],
+					[4.4, 6]
+				],
+				103,
+				3,
+				duration
+			),
+			'right.knee.flexion': movement(
+				[
+					[-0.7, 70],
+					[1.0, 10],
+					[2.7, 65],
+					[4.5, 20]
+				],
+				104,
+				5,
+				duration
+			),
+			'right.ankle.dorsiflexion': movement(
+				[
+					[-0.6, -10],
+					[1.2, 10],
+					[3.0, -15],
+					[4.9, 5]
+				],
+				105,
+				3,
+				duration
+			),
+			'right.ankle.inversion': movement(
+				[
+					[-0.7, 2],
+					[1.8, 8],
+					[4.3, -2]
+				],
+				106,
+				2,
+				duration
+			)
 		}
 	};
 }
@@ -67,13 +124,79 @@ export function movingArmSpec(file: DemoParticipantsFile, duration = 4): Recordi
 		sampleHz: 200,
 		duration,
 		targets: {
-			'right.shoulder.flexion': movement([[-0.8, 30], [1.0, 110], [2.7, 40], [4.6, 100]], 107, 5, duration),
-			'right.shoulder.abduction': movement([[-0.6, 10], [1.6, 25], [4.7, 8]], 108, 3, duration),
-			'right.shoulder.internalRotation': movement([[-0.4, 10], [1.8, -5], [4.5, 10]], 109, 4, duration),
-			'right.elbow.flexion': movement([[-0.6, 80], [1.1, 20], [2.9, 90], [4.5, 40]], 110, 5, duration),
-			'right.forearm.pronation': movement([[-0.5, 70], [2.0, 85], [4.6, 65]], 111, 4, duration),
-			'right.wrist.flexion': movement([[-0.6, 0], [1.5, -20], [3.3, 10], [4.8, -5]], 112, 3, duration),
-			'right.wrist.ulnarDeviation': movement([[-0.2, 2], [2.0, 10], [4.3, 0]], 113, 2, duration)
+			'right.shoulder.flexion': movement(
+				[
+					[-0.8, 30],
+					[1.0, 110],
+					[2.7, 40],
+					[4.6, 100]
+				],
+				107,
+				5,
+				duration
+			),
+			'right.shoulder.abduction': movement(
+				[
+					[-0.6, 10],
+					[1.6, 25],
+					[4.7, 8]
+				],
+				108,
+				3,
+				duration
+			),
+			'right.shoulder.internalRotation': movement(
+				[
+					[-0.4, 10],
+					[1.8, -5],
+					[4.5, 10]
+				],
+				109,
+				4,
+				duration
+			),
+			'right.elbow.flexion': movement(
+				[
+					[-0.6, 80],
+					[1.1, 20],
+					[2.9, 90],
+					[4.5, 40]
+				],
+				110,
+				5,
+				duration
+			),
+			'right.forearm.pronation': movement(
+				[
+					[-0.5, 70],
+					[2.0, 85],
+					[4.6, 65]
+				],
+				111,
+				4,
+				duration
+			),
+			'right.wrist.flexion': movement(
+				[
+					[-0.6, 0],
+					[1.5, -20],
+					[3.3, 10],
+					[4.8, -5]
+				],
+				112,
+				3,
+				duration
+			),
+			'right.wrist.ulnarDeviation': movement(
+				[
+					[-0.2, 2],
+					[2.0, 10],
+					[4.3, 0]
+				],
+				113,
+				2,
+				duration
+			)
 		}
 	};
 }

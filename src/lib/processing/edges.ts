@@ -85,7 +85,10 @@ export function predictionModel(n: number, sampleHz: number): { window: number; 
 export function burgCoefficients(x: Float64Array, order: number): Float64Array {
 	const n = x.length;
 	if (!Number.isInteger(order) || order < 1 || order >= n) {
-		throw new SignalError('invalid-argument', `A prediction model of order ${order} needs a whole order from 1 to ${n - 1} for ${n} samples.`);
+		throw new SignalError(
+			'invalid-argument',
+			`A prediction model of order ${order} needs a whole order from 1 to ${n - 1} for ${n} samples.`
+		);
 	}
 	const f = Float64Array.from(x),
 		b = Float64Array.from(x);
@@ -116,7 +119,14 @@ export function burgCoefficients(x: Float64Array, order: number): Float64Array {
  * Values of the continuation beyond one end: out[j − 1] for the sample j = 1 … out.length beyond the first
  * sample (fromStart) or the last. `at(i)` reads the signal i samples inward from that end.
  */
-function continueEnd(x: Float64Array, fromStart: boolean, treatment: EndTreatment, sampleHz: number, cutoffHz: number | null, out: Float64Array): void {
+function continueEnd(
+	x: Float64Array,
+	fromStart: boolean,
+	treatment: EndTreatment,
+	sampleHz: number,
+	cutoffHz: number | null,
+	out: Float64Array
+): void {
 	const n = x.length;
 	const at = fromStart ? (i: number) => x[i] : (i: number) => x[n - 1 - i];
 	const x0 = at(0);
@@ -209,11 +219,19 @@ function polyval(c: Float64Array, s: number): number {
  * The signal continued by `treatment`: L samples before, the n samples, L samples after (L from
  * continuationSamples). NaN samples are refused (fill gaps first).
  */
-export function continueSignal(x: Float64Array, sampleHz: number, cutoffHz: number | null, treatment: EndTreatment): { extended: Float64Array; pad: number } {
+export function continueSignal(
+	x: Float64Array,
+	sampleHz: number,
+	cutoffHz: number | null,
+	treatment: EndTreatment
+): { extended: Float64Array; pad: number } {
 	const n = x.length;
 	for (let i = 0; i < n; i++) {
 		if (!Number.isFinite(x[i])) {
-			throw new SignalError('missing-samples', `Sample ${i + 1} of ${n} is missing or not a number; fill the gaps (or trim the recording) before filtering.`);
+			throw new SignalError(
+				'missing-samples',
+				`Sample ${i + 1} of ${n} is missing or not a number; fill the gaps (or trim the recording) before filtering.`
+			);
 		}
 	}
 	const L = continuationSamples(treatment, n, sampleHz, cutoffHz);
@@ -242,7 +260,13 @@ export interface SmoothedSignal {
  * plus the continued, filtered samples just before and after them, for central differences at the ends.
  * `reflect-9` is exactly lowPassZeroLag (scipy.signal.filtfilt's defaults).
  */
-export function smoothWithEnds(x: Float64Array, sampleHz: number, cutoffHz: number | null, treatment: EndTreatment, out?: Float64Array): SmoothedSignal {
+export function smoothWithEnds(
+	x: Float64Array,
+	sampleHz: number,
+	cutoffHz: number | null,
+	treatment: EndTreatment,
+	out?: Float64Array
+): SmoothedSignal {
 	const n = x.length;
 	const value = out ?? new Float64Array(n);
 	if (value.length !== n) throw new SignalError('invalid-argument', `The output array has ${value.length} samples; the signal has ${n}.`);
@@ -276,7 +300,11 @@ export function smoothWithEnds(x: Float64Array, sampleHz: number, cutoffHz: numb
  * First and second derivatives of a smoothed signal: central differences at every sample, using the continued
  * samples beyond the ends; for `reflect-9` (before/after null) the one-sided formulas of differentiate().
  */
-export function differentiateWithEnds(s: SmoothedSignal, dt: number, out?: { velocity?: Float64Array; acceleration?: Float64Array }): { velocity: Float64Array; acceleration: Float64Array } {
+export function differentiateWithEnds(
+	s: SmoothedSignal,
+	dt: number,
+	out?: { velocity?: Float64Array; acceleration?: Float64Array }
+): { velocity: Float64Array; acceleration: Float64Array } {
 	const d = differentiate(s.value, dt, out);
 	if (s.before === null || s.after === null) return d;
 	const x = s.value,
@@ -289,7 +317,12 @@ export function differentiateWithEnds(s: SmoothedSignal, dt: number, out?: { vel
 }
 
 /** Angle, velocity and acceleration of one channel with the given end treatment (filter optional). */
-export function smoothAndDifferentiate(x: Float64Array, sampleHz: number, cutoffHz: number | null, treatment: EndTreatment): { value: Float64Array; velocity: Float64Array; acceleration: Float64Array } {
+export function smoothAndDifferentiate(
+	x: Float64Array,
+	sampleHz: number,
+	cutoffHz: number | null,
+	treatment: EndTreatment
+): { value: Float64Array; velocity: Float64Array; acceleration: Float64Array } {
 	const s = smoothWithEnds(x, sampleHz, cutoffHz, treatment);
 	return { value: s.value, ...differentiateWithEnds(s, 1 / sampleHz) };
 }
@@ -321,7 +354,14 @@ export function seededGaussian(seed: number): () => number {
  * exp(−(2π f s)²/2): smooth like a movement, yet neither a polynomial nor a finite sum of sinusoids, so no end
  * treatment continues it exactly.
  */
-export function smoothRandom(seed: number, amp: number, s: number, spacing: number, from: number, to: number): (t: number) => [number, number, number] {
+export function smoothRandom(
+	seed: number,
+	amp: number,
+	s: number,
+	spacing: number,
+	from: number,
+	to: number
+): (t: number) => [number, number, number] {
 	const g = seededGaussian(seed);
 	const first = from - 4 * s;
 	const count = Math.floor((to + 4 * s - first) / spacing) + 1;

@@ -3,7 +3,17 @@ import { z } from 'zod';
 import { compileModel, createWorkspace, inverseDynamicsBatch, PRISMATIC, type Vec3 } from '../dynamics/index';
 import type { Recording } from './recording';
 import type { SessionModel } from './session-model';
-import { DEFAULT_END_TREATMENT, END_TREATMENTS, END_TREATMENT_LABELS, EDGE_ZONE_FAMILY, differentiateWithEnds, edgeZoneSamples, smoothWithEnds, type EndTreatment, type SmoothedSignal } from './edges';
+import {
+	DEFAULT_END_TREATMENT,
+	END_TREATMENTS,
+	END_TREATMENT_LABELS,
+	EDGE_ZONE_FAMILY,
+	differentiateWithEnds,
+	edgeZoneSamples,
+	smoothWithEnds,
+	type EndTreatment,
+	type SmoothedSignal
+} from './edges';
 import { DEFAULT_MAX_GAP_SAMPLES, fillGaps, MIN_SAMPLES_FOR_FILTER, SignalError } from './signal';
 import { reliableRange, type ZoneSamples } from './zone-exclusion';
 
@@ -19,7 +29,9 @@ export const runOptionsSchema = z.object({
 	 * How each channel is continued beyond its first and last samples before filtering and differentiation
 	 * (src/lib/processing/edges.ts; docs/processing.md, "Ends of a recording"). Also used without a filter.
 	 */
-	endTreatment: z.enum(END_TREATMENTS, { error: `endTreatment must be one of ${END_TREATMENTS.join(', ')}` }).default(DEFAULT_END_TREATMENT),
+	endTreatment: z
+		.enum(END_TREATMENTS, { error: `endTreatment must be one of ${END_TREATMENTS.join(', ')}` })
+		.default(DEFAULT_END_TREATMENT),
 	/** Fill short gaps (empty cells) by cubic interpolation before filtering. */
 	fillGaps: z.boolean().default(false),
 	/** Gravity in lab axes, m/s²; default the session set-up's. */
@@ -137,26 +149,40 @@ export function runPipeline(
 	{ reuseInput = false }: { reuseInput?: boolean } = {}
 ): PipelineResult {
 	const parsed = runOptionsSchema.safeParse(optionsInput);
-	if (!parsed.success) throw new PipelineError(`run options: ${parsed.error.issues.map((i) => `${i.path.join('.') || 'options'}: ${i.message}`).join('; ')}`);
+	if (!parsed.success)
+		throw new PipelineError(`run options: ${parsed.error.issues.map((i) => `${i.path.join('.') || 'options'}: ${i.message}`).join('; ')}`);
 	const options = parsed.data;
 	const timings: Record<string, number> = {};
 	const progress = onProgress ?? (() => {});
-	const weights: Record<PipelineStage, [number, number]> = { filter: [0, 0.1], differentiate: [0.1, 0.2], dynamics: [0.2, 0.95], summary: [0.95, 1] };
-	const report = (stage: PipelineStage, within: number) => progress(weights[stage][0] + (weights[stage][1] - weights[stage][0]) * within, stage);
+	const weights: Record<PipelineStage, [number, number]> = {
+		filter: [0, 0.1],
+		differentiate: [0.1, 0.2],
+		dynamics: [0.2, 0.95],
+		summary: [0.95, 1]
+	};
+	const report = (stage: PipelineStage, within: number) =>
+		progress(weights[stage][0] + (weights[stage][1] - weights[stage][0]) * within, stage);
 
 	const frames = rec.time.length;
 	const n = built.dofs.length;
 	if (rec.channels.length !== n)
-		throw new PipelineError(`the recording has ${rec.channels.length} channels; the session model needs ${n} (${built.expected.map((e) => e.name).join(', ')})`);
+		throw new PipelineError(
+			`the recording has ${rec.channels.length} channels; the session model needs ${n} (${built.expected.map((e) => e.name).join(', ')})`
+		);
 	built.expected.forEach((e, j) => {
 		const ch = rec.channels[j];
 		if (ch.name !== e.name) throw new PipelineError(`channel ${j + 1} is "${ch.name}"; the session model expects "${e.name}" there`);
-		if (ch.values.length !== frames) throw new PipelineError(`channel "${ch.name}" has ${ch.values.length} samples; the time column has ${frames}`);
+		if (ch.values.length !== frames)
+			throw new PipelineError(`channel "${ch.name}" has ${ch.values.length} samples; the time column has ${frames}`);
 	});
-	if (!(rec.sampleHz > 0) || !Number.isFinite(rec.sampleHz)) throw new PipelineError(`sampling rate ${rec.sampleHz} Hz is not a positive number`);
+	if (!(rec.sampleHz > 0) || !Number.isFinite(rec.sampleHz))
+		throw new PipelineError(`sampling rate ${rec.sampleHz} Hz is not a positive number`);
 	if (frames < 4) throw new PipelineError(`the recording has ${frames} samples; differentiation needs at least 4`);
 	for (const name of Object.keys(options.perChannelCutoffHz ?? {}))
-		if (!built.dofs.some((d) => d.name === name)) throw new PipelineError(`perChannelCutoffHz names "${name}", which is not a channel of this session (${built.expected.map((e) => e.name).join(', ')})`);
+		if (!built.dofs.some((d) => d.name === name))
+			throw new PipelineError(
+				`perChannelCutoffHz names "${name}", which is not a channel of this session (${built.expected.map((e) => e.name).join(', ')})`
+			);
 	const dt = 1 / rec.sampleHz;
 	const nyquist = rec.sampleHz / 2;
 
@@ -174,12 +200,18 @@ export function runPipeline(
 		let missing = 0;
 		for (let k = 0; k < frames; k++) if (x[k] !== x[k]) missing++;
 		if (missing) {
-			if (!options.fillGaps) throw new PipelineError(`channel "${name}" has ${missing} missing samples; re-run with gap filling on, or fix the file`);
+			if (!options.fillGaps)
+				throw new PipelineError(`channel "${name}" has ${missing} missing samples; re-run with gap filling on, or fix the file`);
 			// the gap rule (gapBridgeable of signal.ts): a gap at the start or end, or a long one, stays missing
 			const r = fillGaps(x, DEFAULT_MAX_GAP_SAMPLES);
 			if (r.tooLong.length) {
 				const { start, length } = r.tooLong[0];
-				const where = start === 0 ? ' at the start (nothing to interpolate from)' : start + length === frames ? ' at the end (nothing to interpolate from)' : '';
+				const where =
+					start === 0
+						? ' at the start (nothing to interpolate from)'
+						: start + length === frames
+							? ' at the end (nothing to interpolate from)'
+							: '';
 				throw new PipelineError(`channel "${name}": a gap of ${length} samples at sample ${start + 1}${where} is too long to fill`);
 			}
 			x = r.filled;
@@ -190,7 +222,10 @@ export function runPipeline(
 		const own = reuseInput || x !== rec.channels[j].values; // gap filling already made a copy of its own
 		if (fc !== null) {
 			if (fc >= nyquist) throw new PipelineError(`cutoff ${fc} Hz for "${name}" must be below half the sampling rate (${nyquist} Hz)`);
-			if (frames < MIN_SAMPLES_FOR_FILTER) throw new PipelineError(`the recording has ${frames} samples; filtering needs at least ${MIN_SAMPLES_FOR_FILTER} (or run without a filter)`);
+			if (frames < MIN_SAMPLES_FOR_FILTER)
+				throw new PipelineError(
+					`the recording has ${frames} samples; filtering needs at least ${MIN_SAMPLES_FOR_FILTER} (or run without a filter)`
+				);
 		}
 		try {
 			const s = smoothWithEnds(x, rec.sampleHz, fc, options.endTreatment, own ? x : new Float64Array(frames));
@@ -312,7 +347,12 @@ export function runPipeline(
  * and without 0.15° noise, exceeds half the middle's error (the rule is in edges.ts and docs/processing.md);
  * the run's zone is the longest, capped at half the recording. The same at both ends: the rule pools them.
  */
-export function edgeZoneOf(sampleHz: number, frames: number, cutoffs: Record<string, number | null>, treatment: EndTreatment = DEFAULT_END_TREATMENT): EdgeZone {
+export function edgeZoneOf(
+	sampleHz: number,
+	frames: number,
+	cutoffs: Record<string, number | null>,
+	treatment: EndTreatment = DEFAULT_END_TREATMENT
+): EdgeZone {
 	const distinct = [...new Set(Object.values(cutoffs))];
 	if (!distinct.length) distinct.push(null);
 	let samples = 0,
@@ -352,7 +392,18 @@ function interleave(x: Float64Array, block: Float64Array, k0: number, len: numbe
 }
 
 /** Column j of the block's Q into the moment, moment per kg and power series. */
-function momentsOut(Q: Float64Array, k0: number, len: number, n: number, j: number, perKgFactor: number, velocity: Float64Array, moment: Float64Array, perKg: Float64Array, power: Float64Array): void {
+function momentsOut(
+	Q: Float64Array,
+	k0: number,
+	len: number,
+	n: number,
+	j: number,
+	perKgFactor: number,
+	velocity: Float64Array,
+	moment: Float64Array,
+	perKg: Float64Array,
+	power: Float64Array
+): void {
 	for (let k = 0; k < len; k++) {
 		const m = Q[k * n + j];
 		moment[k0 + k] = m;
@@ -394,8 +445,17 @@ export function statsOf(x: ArrayLike<number>, time: ArrayLike<number>, from = 0,
 		sum += v;
 	}
 	const samples = Math.max(0, to - from + 1);
-	if (!samples || hiK < 0 || loK < 0) return { peakPositive: NaN, peakPositiveTime: NaN, peakNegative: NaN, peakNegativeTime: NaN, range: NaN, mean: NaN, samples };
-	return { peakPositive: hi, peakPositiveTime: time[hiK], peakNegative: lo, peakNegativeTime: time[loK], range: hi - lo, mean: sum / samples, samples };
+	if (!samples || hiK < 0 || loK < 0)
+		return { peakPositive: NaN, peakPositiveTime: NaN, peakNegative: NaN, peakNegativeTime: NaN, range: NaN, mean: NaN, samples };
+	return {
+		peakPositive: hi,
+		peakPositiveTime: time[hiK],
+		peakNegative: lo,
+		peakNegativeTime: time[loK],
+		range: hi - lo,
+		mean: sum / samples,
+		samples
+	};
 }
 
 /**
@@ -412,7 +472,11 @@ export function summarise(
 ): SummaryRow {
 	const wholeTrial = statsOf(x, time);
 	const kept = reliableRange(x.length, zone);
-	const outside = !kept ? statsOf(x, time, 0, -1) : kept.first === 0 && kept.last === x.length - 1 ? { ...wholeTrial } : statsOf(x, time, kept.first, kept.last);
+	const outside = !kept
+		? statsOf(x, time, 0, -1)
+		: kept.first === 0 && kept.last === x.length - 1
+			? { ...wholeTrial }
+			: statsOf(x, time, kept.first, kept.last);
 	return { dof, quantity, ...outside, unit, wholeTrial };
 }
 
@@ -455,7 +519,8 @@ export function assertFiniteResults(
 ): void {
 	type Series = { quantity: string; kind: string; name: string; x: Float64Array; stride: number; offset: number };
 	const series: Series[] = [{ quantity: 'time', kind: 'the', name: 'recording', x: time, stride: 1, offset: 0 }];
-	const one = (quantity: string, kind: string, name: string, x: Float64Array) => series.push({ quantity, kind, name, x, stride: 1, offset: 0 });
+	const one = (quantity: string, kind: string, name: string, x: Float64Array) =>
+		series.push({ quantity, kind, name, x, stride: 1, offset: 0 });
 	for (const b of base) one('position or angle', 'base coordinate', b.name, b.value);
 	for (const d of dofs) one('angle', 'DOF', d.name, d.angle);
 	for (const b of base) one('velocity', 'base coordinate', b.name, b.velocity);
@@ -465,7 +530,9 @@ export function assertFiniteResults(
 	for (const d of dofs) one('moment', 'DOF', d.name, d.moment);
 	for (const d of dofs) one('moment per kg', 'DOF', d.name, d.momentPerKg);
 	for (const d of dofs) one('power', 'DOF', d.name, d.power);
-	for (const r of reactions) for (let c = 0; c < 3; c++) series.push({ quantity: `reaction force (${'xyz'[c]})`, kind: 'joint', name: r.joint, x: r.force, stride: 3, offset: c });
+	for (const r of reactions)
+		for (let c = 0; c < 3; c++)
+			series.push({ quantity: `reaction force (${'xyz'[c]})`, kind: 'joint', name: r.joint, x: r.force, stride: 3, offset: c });
 	let worst: { s: Series; k: number } | null = null;
 	for (const s of series) {
 		const k = firstNonFinite(s.x, s.stride, s.offset);
@@ -484,15 +551,27 @@ export function assertFiniteResults(
 	}
 	for (const row of summary) {
 		const figures = [row.peakPositive, row.peakPositiveTime, row.peakNegative, row.peakNegativeTime, row.range, row.mean];
-		const whole = row.wholeTrial ? [row.wholeTrial.peakPositive, row.wholeTrial.peakPositiveTime, row.wholeTrial.peakNegative, row.wholeTrial.peakNegativeTime, row.wholeTrial.range, row.wholeTrial.mean] : [];
+		const whole = row.wholeTrial
+			? [
+					row.wholeTrial.peakPositive,
+					row.wholeTrial.peakPositiveTime,
+					row.wholeTrial.peakNegative,
+					row.wholeTrial.peakNegativeTime,
+					row.wholeTrial.range,
+					row.wholeTrial.mean
+				]
+			: [];
 		const bad = (row.samples === 0 ? [] : figures).concat(row.wholeTrial?.samples === 0 ? [] : whole).find((v) => !Number.isFinite(v));
 		if (bad !== undefined)
-			throw new NonFiniteResultError(`The results are not finite numbers: the summary of the ${row.quantity} of DOF ${row.dof} holds ${bad}. The run stores nothing. Check the recording, then run it again.`, {
-				quantity: `summary of ${row.quantity}`,
-				dof: row.dof,
-				sample: -1,
-				time: NaN,
-				value: bad
-			});
+			throw new NonFiniteResultError(
+				`The results are not finite numbers: the summary of the ${row.quantity} of DOF ${row.dof} holds ${bad}. The run stores nothing. Check the recording, then run it again.`,
+				{
+					quantity: `summary of ${row.quantity}`,
+					dof: row.dof,
+					sample: -1,
+					time: NaN,
+					value: bad
+				}
+			);
 	}
 }

@@ -30,19 +30,38 @@ export const fixedBaseSchema = z
 	})
 	.superRefine((b, ctx) => {
 		if (b.orientation === 'custom' && !b.cardanXYZDeg && !b.rotationMatrix)
-			ctx.addIssue({ code: 'custom', path: ['cardanXYZDeg'], message: 'a custom orientation needs cardanXYZDeg: three angles (°), X, then Y, then Z (or rotationMatrix: the 3×3 rotation, row by row)' });
+			ctx.addIssue({
+				code: 'custom',
+				path: ['cardanXYZDeg'],
+				message:
+					'a custom orientation needs cardanXYZDeg: three angles (°), X, then Y, then Z (or rotationMatrix: the 3×3 rotation, row by row)'
+			});
 		if (b.cardanXYZDeg && b.rotationMatrix)
-			ctx.addIssue({ code: 'custom', path: ['rotationMatrix'], message: 'give the orientation once: cardanXYZDeg or rotationMatrix, not both' });
+			ctx.addIssue({
+				code: 'custom',
+				path: ['rotationMatrix'],
+				message: 'give the orientation once: cardanXYZDeg or rotationMatrix, not both'
+			});
 		if (b.orientation !== 'custom' && b.cardanXYZDeg)
-			ctx.addIssue({ code: 'custom', path: ['cardanXYZDeg'], message: `cardanXYZDeg is only used with orientation "custom" (this base is "${b.orientation}")` });
+			ctx.addIssue({
+				code: 'custom',
+				path: ['cardanXYZDeg'],
+				message: `cardanXYZDeg is only used with orientation "custom" (this base is "${b.orientation}")`
+			});
 		if (b.orientation !== 'custom' && b.rotationMatrix)
-			ctx.addIssue({ code: 'custom', path: ['rotationMatrix'], message: `rotationMatrix is only used with orientation "custom" (this base is "${b.orientation}")` });
+			ctx.addIssue({
+				code: 'custom',
+				path: ['rotationMatrix'],
+				message: `rotationMatrix is only used with orientation "custom" (this base is "${b.orientation}")`
+			});
 	});
 
 /** The limb's base follows the recording's `<limb>.base.px … rz` columns (prescribed motion). */
 export const movingBaseSchema = z.object({ kind: z.literal('moving') });
 
-export const baseSchema = z.discriminatedUnion('kind', [fixedBaseSchema, movingBaseSchema], { error: 'base kind must be "fixed" or "moving"' });
+export const baseSchema = z.discriminatedUnion('kind', [fixedBaseSchema, movingBaseSchema], {
+	error: 'base kind must be "fixed" or "moving"'
+});
 export type BaseSetup = z.infer<typeof baseSchema>;
 
 export const LOAD_SEGMENTS = ['hand', 'forearm', 'shank', 'foot'] as const;
@@ -58,7 +77,9 @@ export type LoadSetup = z.infer<typeof loadSchema>;
 
 export const sessionSetupSchema = z
 	.object({
-		table: z.enum(SEGMENT_TABLE_IDS as [SegmentTableId, ...SegmentTableId[]], { error: `table must be one of ${SEGMENT_TABLE_IDS.join(', ')}` }),
+		table: z.enum(SEGMENT_TABLE_IDS as [SegmentTableId, ...SegmentTableId[]], {
+			error: `table must be one of ${SEGMENT_TABLE_IDS.join(', ')}`
+		}),
 		limbs: z.array(z.enum(LIMBS, { error: `limb must be one of ${LIMBS.join(', ')}` })).min(1, 'choose at least one limb'),
 		bases: z.partialRecord(z.enum(LIMBS), baseSchema).default({}),
 		loads: z.array(loadSchema).default([]),
@@ -66,19 +87,32 @@ export const sessionSetupSchema = z
 		gravity: vec3.default([0, -9.81, 0])
 	})
 	.superRefine((s, ctx) => {
-		if (new Set(s.limbs).size !== s.limbs.length) ctx.addIssue({ code: 'custom', path: ['limbs'], message: 'each limb may be listed once' });
+		if (new Set(s.limbs).size !== s.limbs.length)
+			ctx.addIssue({ code: 'custom', path: ['limbs'], message: 'each limb may be listed once' });
 		for (const [limb, base] of Object.entries(s.bases)) {
 			if (!s.limbs.includes(limb as Limb))
-				ctx.addIssue({ code: 'custom', path: ['bases', limb], message: `a base is set for ${limb}, which is not among the session's limbs (${s.limbs.join(', ')})` });
+				ctx.addIssue({
+					code: 'custom',
+					path: ['bases', limb],
+					message: `a base is set for ${limb}, which is not among the session's limbs (${s.limbs.join(', ')})`
+				});
 			if (base?.kind === 'fixed' && base.orientation === 'thigh-on-seat' && !limb.endsWith('.leg'))
 				ctx.addIssue({ code: 'custom', path: ['bases', limb, 'orientation'], message: `"thigh-on-seat" applies to a leg, not to ${limb}` });
 		}
 		s.loads.forEach((l, i) => {
 			if (!s.limbs.includes(l.limb))
-				ctx.addIssue({ code: 'custom', path: ['loads', i, 'limb'], message: `load on ${l.limb}, which is not among the session's limbs (${s.limbs.join(', ')})` });
+				ctx.addIssue({
+					code: 'custom',
+					path: ['loads', i, 'limb'],
+					message: `load on ${l.limb}, which is not among the session's limbs (${s.limbs.join(', ')})`
+				});
 			const arm = l.limb.endsWith('.arm');
 			if (arm !== (l.segment === 'hand' || l.segment === 'forearm'))
-				ctx.addIssue({ code: 'custom', path: ['loads', i, 'segment'], message: `${l.limb} has no ${l.segment}: choose ${arm ? 'hand or forearm' : 'shank or foot'}` });
+				ctx.addIssue({
+					code: 'custom',
+					path: ['loads', i, 'segment'],
+					message: `${l.limb} has no ${l.segment}: choose ${arm ? 'hand or forearm' : 'shank or foot'}`
+				});
 		});
 	});
 export type SessionSetup = z.infer<typeof sessionSetupSchema>;
@@ -144,7 +178,8 @@ export function sessionSetupProblems(input: unknown): string[] {
 
 const rad = Math.PI / 180;
 type M3 = number[][];
-const mul = (A: M3, B: M3): Mat3 => [0, 1, 2].map((r) => [0, 1, 2].map((c) => A[r][0] * B[0][c] + A[r][1] * B[1][c] + A[r][2] * B[2][c])) as Mat3;
+const mul = (A: M3, B: M3): Mat3 =>
+	[0, 1, 2].map((r) => [0, 1, 2].map((c) => A[r][0] * B[0][c] + A[r][1] * B[1][c] + A[r][2] * B[2][c])) as Mat3;
 const rotX = (a: number): Mat3 => [
 	[1, 0, 0],
 	[0, Math.cos(a), -Math.sin(a)],
@@ -165,7 +200,8 @@ export function cardanXYZ(aRad: number, bRad: number, cRad: number): Mat3 {
 	return mul(mul(rotX(aRad), rotY(bRad)), rotZ(cRad));
 }
 /** Snap rounding-level entries (cos 90° = 6e-17) to exact 0/±1 so the engine keeps its exact-axis paths where it can. */
-const clean = (R: Mat3): Mat3 => R.map((row) => row.map((v) => (Math.abs(v) < 1e-15 ? 0 : Math.abs(Math.abs(v) - 1) < 1e-15 ? Math.sign(v) : v))) as Mat3;
+const clean = (R: Mat3): Mat3 =>
+	R.map((row) => row.map((v) => (Math.abs(v) < 1e-15 ? 0 : Math.abs(Math.abs(v) - 1) < 1e-15 ? Math.sign(v) : v))) as Mat3;
 
 /** Rotation of the limb root for a fixed base (body → lab), or null for the scaled model's own (upright) posture. */
 export function fixedBaseRotation(base: z.infer<typeof fixedBaseSchema>): Mat3 | null {
@@ -237,7 +273,16 @@ export function buildSessionModel(body: ParticipantBody, setupInput: SessionSetu
 		b.mass = after.mass;
 		b.com = after.com;
 		b.inertia = after.inertia;
-		loadsApplied.push({ limb: load.limb, segment: load.segment, body: name, label: load.label, massKg: load.massKg, pointM: load.pointM, before, after });
+		loadsApplied.push({
+			limb: load.limb,
+			segment: load.segment,
+			body: name,
+			label: load.label,
+			massKg: load.massKg,
+			pointM: load.pointM,
+			before,
+			after
+		});
 		loadNotes.push(
 			`${name} carries ${load.label ? `“${load.label}”, ` : ''}a ${load.massKg} kg point mass at [${load.pointM.join(', ')}] m (segment frame), merged as a rigid point mass: segment mass ${before.mass.toFixed(3)} → ${after.mass.toFixed(3)} kg.`
 		);
@@ -295,7 +340,19 @@ export function buildSessionModel(body: ParticipantBody, setupInput: SessionSetu
 			bodies.push(nb);
 			// a new joint centre starts wherever the joint point moves away from the parent's origin
 			if (isRoot || b.anchor.some((v) => v !== 0)) currentJoint = `${d.side}.${d.joint}`;
-			dofs.push({ name: d.name, limb, side: d.side, joint: d.joint, motion: d.motion, unit: 'rad', kind: 'angle', base: false, positive: d.positive, body: bodies.length - 1, jointCentre: currentJoint });
+			dofs.push({
+				name: d.name,
+				limb,
+				side: d.side,
+				joint: d.joint,
+				motion: d.motion,
+				unit: 'rad',
+				kind: 'angle',
+				base: false,
+				positive: d.positive,
+				body: bodies.length - 1,
+				jointCentre: currentJoint
+			});
 		}
 	}
 

@@ -157,7 +157,10 @@ export function filtfilt(
 		for (let k = 0; k < m; k++) sumA += an[k];
 		for (let k = 1; k < m; k++) sumB += bn[k] - an[k] * bn[0];
 		if (sumA === 0 || !Number.isFinite(sumA)) {
-			throw new SignalError('invalid-coefficients', 'The filter has a pole at z = 1 (the a coefficients sum to zero); it has no steady state.');
+			throw new SignalError(
+				'invalid-coefficients',
+				'The filter has a pole at z = 1 (the a coefficients sum to zero); it has no steady state.'
+			);
 		}
 		zi[0] = sumB / sumA;
 		let asum = 1,
@@ -381,7 +384,10 @@ export function fillGaps(
 	maxGapSamples: number
 ): { filled: Float64Array; gaps: { start: number; length: number }[]; tooLong: { start: number; length: number }[] } {
 	if (!Number.isInteger(maxGapSamples) || maxGapSamples < 0) {
-		throw new SignalError('invalid-argument', `The longest gap to fill must be a whole number of samples (0 or more); got ${maxGapSamples}.`);
+		throw new SignalError(
+			'invalid-argument',
+			`The longest gap to fill must be a whole number of samples (0 or more); got ${maxGapSamples}.`
+		);
 	}
 	const n = x.length;
 	const filled = Float64Array.from(x);

@@ -22,7 +22,11 @@ export function minJerk(w: Waypoints, t: number): [number, number, number] {
 				d = w[i].value - w[i - 1].value,
 				s = (t - w[i - 1].t) / T;
 			// x = x0 + d (10 s³ − 15 s⁴ + 6 s⁵)
-			return [w[i - 1].value + d * (10 * s ** 3 - 15 * s ** 4 + 6 * s ** 5), (d * (30 * s ** 2 - 60 * s ** 3 + 30 * s ** 4)) / T, (d * (60 * s - 180 * s ** 2 + 120 * s ** 3)) / T ** 2];
+			return [
+				w[i - 1].value + d * (10 * s ** 3 - 15 * s ** 4 + 6 * s ** 5),
+				(d * (30 * s ** 2 - 60 * s ** 3 + 30 * s ** 4)) / T,
+				(d * (60 * s - 180 * s ** 2 + 120 * s ** 3)) / T ** 2
+			];
 		}
 	}
 	return [w[w.length - 1].value, 0, 0];
@@ -70,7 +74,8 @@ export function simulateRecording(spec: RecordingSpec): SimulatedRecording {
 	const gravity = built.setup.gravity;
 	const targets: (Waypoints | TargetPath)[] = built.dofs.map((d) => spec.targets[d.name] ?? [{ t: 0, value: 0 }]);
 	for (const name of Object.keys(spec.targets))
-		if (!built.dofs.some((d) => d.name === name)) throw new Error(`target for "${name}", which is not a DOF of the model (${built.dofs.map((d) => d.name).join(', ')})`);
+		if (!built.dofs.some((d) => d.name === name))
+			throw new Error(`target for "${name}", which is not a DOF of the model (${built.dofs.map((d) => d.name).join(', ')})`);
 	const wn = 2 * Math.PI * (spec.trackingHz ?? 4),
 		zeta = spec.damping ?? 1;
 	const Kp = wn * wn,

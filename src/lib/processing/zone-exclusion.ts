@@ -21,14 +21,16 @@ export const EDGE_ZONE_WHY =
 	'near the ends of a trial the filter’s start-up and the end formulas of the derivatives make filtered angles, their derivatives and hence joint moments unreliable';
 
 /** Common practice, said next to the plots. */
-export const EXTRA_FRAMES_ADVICE = 'Recording extra frames before and after the movement of interest is common practice, so that the edge zones fall outside it.';
+export const EXTRA_FRAMES_ADVICE =
+	'Recording extra frames before and after the movement of interest is common practice, so that the edge zones fall outside it.';
 
 const count = (x: unknown) => (typeof x === 'number' && Number.isInteger(x) && x >= 0 ? x : 0);
 const seconds = (x: unknown) => (typeof x === 'number' && Number.isFinite(x) && x >= 0 ? x : 0);
 
 /** The view of a run's stored edge zone (the runs.edge_zone column; null or malformed = not computed, zero). */
 export function edgeZoneView(stored: unknown): EdgeZoneView {
-	if (!stored || typeof stored !== 'object') return { computed: false, startSeconds: 0, endSeconds: 0, startSamples: 0, endSamples: 0, basis: EDGE_ZONE_NOT_COMPUTED };
+	if (!stored || typeof stored !== 'object')
+		return { computed: false, startSeconds: 0, endSeconds: 0, startSamples: 0, endSamples: 0, basis: EDGE_ZONE_NOT_COMPUTED };
 	const z = stored as Record<string, unknown>;
 	return {
 		computed: true,
@@ -90,8 +92,16 @@ export interface ZoneBand {
  */
 export function zoneBands(first: number, last: number, zone: EdgeZoneView): ZoneBand[] {
 	const bands: ZoneBand[] = [];
-	if (zone.startSeconds > 0 && zone.startSamples > 0) bands.push({ end: 'start', from: first, to: Math.min(last, first + zone.startSeconds), seconds: zone.startSeconds, samples: zone.startSamples });
-	if (zone.endSeconds > 0 && zone.endSamples > 0) bands.push({ end: 'end', from: Math.max(first, last - zone.endSeconds), to: last, seconds: zone.endSeconds, samples: zone.endSamples });
+	if (zone.startSeconds > 0 && zone.startSamples > 0)
+		bands.push({
+			end: 'start',
+			from: first,
+			to: Math.min(last, first + zone.startSeconds),
+			seconds: zone.startSeconds,
+			samples: zone.startSamples
+		});
+	if (zone.endSeconds > 0 && zone.endSamples > 0)
+		bands.push({ end: 'end', from: Math.max(first, last - zone.endSeconds), to: last, seconds: zone.endSeconds, samples: zone.endSamples });
 	return bands;
 }
 

@@ -155,5 +155,8 @@ export interface FlashOutcome {
 }
 
 /** A file's outcome as the upload area shows it: an upload answer (UploadOutcome) or one carried in the cookie (FlashOutcome). */
-export type ShownOutcome = Omit<FlashOutcome, 'problems' | 'moreProblems' | 'trialId'> & { problems?: FlashOutcome['problems']; moreProblems?: number };
+export type ShownOutcome = Omit<FlashOutcome, 'problems' | 'moreProblems' | 'trialId'> & {
+	problems?: FlashOutcome['problems'];
+	moreProblems?: number;
+};
 export type ShownProblem = FlashOutcome['problems'][number];

@@ -23,7 +23,8 @@ export const load: PageServerLoad = async ({ locals, url }) => {
 async function validated(request: Request, provider: 'nodemailer' | 'password') {
 	const form = await request.clone().formData();
 	const email = String(form.get('email') ?? '').trim();
-	if (!/^[^\s@]+@[^\s@]+\.[^\s@]+$/.test(email)) return fail(400, { provider, email, error: 'Enter your e-mail address, e.g. name@lab.example.' });
+	if (!/^[^\s@]+@[^\s@]+\.[^\s@]+$/.test(email))
+		return fail(400, { provider, email, error: 'Enter your e-mail address, e.g. name@lab.example.' });
 	if (provider === 'password' && !String(form.get('password') ?? '')) return fail(400, { provider, email, error: 'Enter your password.' });
 	if (form.get('providerId') !== provider) return fail(400, { provider, email, error: 'Choose a way to sign in.' });
 	return null;

@@ -25,7 +25,8 @@ import {
 const read = (f: string) => JSON.parse(fs.readFileSync(`anthropometry/${f}`, 'utf8'));
 const stature = { file: 'drillis-contini-winter-2009.json', table: tables.drillis };
 /** Loads a (changed) copy of a segment-fractions file the way the app does. */
-const loadFractions = (data: unknown) => checkFractionsEndpoints('x.json', checkComplete('x.json', parseTable('x.json', fractionsTableSchema, data)), stature);
+const loadFractions = (data: unknown) =>
+	checkFractionsEndpoints('x.json', checkComplete('x.json', parseTable('x.json', fractionsTableSchema, data)), stature);
 const near = (a: number, b: number, digits: number) => expect(a).toBeCloseTo(b, digits);
 
 describe('the rows the model uses have the model’s endpoints', () => {
@@ -62,7 +63,9 @@ describe('the rows the model uses have the model’s endpoints', () => {
 			expect(s.comDistance.source).toContain('shank KJC–AJC');
 		}
 		// the regression table takes its geometry from the same row
-		const z = scaleLimbs({ sex: 'male', bodyMass: 73, stature: 1.741 }, 'zatsiorsky-regression-2002', ['left.leg']).segments.find((x) => x.segment === 'shank')!;
+		const z = scaleLimbs({ sex: 'male', bodyMass: 73, stature: 1.741 }, 'zatsiorsky-regression-2002', ['left.leg']).segments.find(
+			(x) => x.segment === 'shank'
+		)!;
 		expect([z.proximal, z.distal]).toEqual(['knee joint centre', 'ankle joint centre']);
 		expect(tables.zatsiorsky.segments.shank).toMatchObject({ proximal: 'knee joint centre', distal: 'ankle joint centre' });
 	});
@@ -70,7 +73,11 @@ describe('the rows the model uses have the model’s endpoints', () => {
 	it('keeps the row to the lateral malleolus in the data, with its endpoints named and why it is not used', () => {
 		const other = tables.deLeva.segments.shank.otherRows!;
 		expect(other).toHaveLength(1);
-		expect(other[0]).toMatchObject({ proximal: 'knee joint centre', distal: 'lateral malleolus', unused: expect.stringMatching(/ankle joint centre/) });
+		expect(other[0]).toMatchObject({
+			proximal: 'knee joint centre',
+			distal: 'lateral malleolus',
+			unused: expect.stringMatching(/ankle joint centre/)
+		});
 		// de Leva 1996 Table 4, shank KJC–LMAL (from memory; verified against an independent copy of the table)
 		expect(other[0].female!.comFraction.value).toBe(0.4416);
 		expect(other[0].male!.comFraction.value).toBe(0.4459);
@@ -79,15 +86,28 @@ describe('the rows the model uses have the model’s endpoints', () => {
 
 	it('every segment row of every table names its endpoints, and Dempster’s hand and foot say they are applied to longer lengths', () => {
 		for (const seg of SEGMENTS) {
-			for (const row of [tables.dempster.segments[seg], tables.deLeva.segments[seg], ...(tables.deLeva.segments[seg].otherRows ?? []), tables.zatsiorsky.segments[seg], tables.drillis.lengths[seg]]) {
+			for (const row of [
+				tables.dempster.segments[seg],
+				tables.deLeva.segments[seg],
+				...(tables.deLeva.segments[seg].otherRows ?? []),
+				tables.zatsiorsky.segments[seg],
+				tables.drillis.lengths[seg]
+			]) {
 				expect(row.proximal, seg).toBeTruthy();
 				expect(row.distal, seg).toBeTruthy();
 			}
 		}
 		// Winter 2009 Table 4.1 (from memory): hand wrist axis → knuckle II of the middle finger; foot lateral malleolus → head of metatarsal II
-		expect(tables.dempster.segments.hand).toMatchObject({ distal: 'knuckle II of the middle finger', takenAs: { distal: 'tip of the middle finger' } });
+		expect(tables.dempster.segments.hand).toMatchObject({
+			distal: 'knuckle II of the middle finger',
+			takenAs: { distal: 'tip of the middle finger' }
+		});
 		expect(tables.dempster.segments.hand.takenAs!.note).toMatch(/not to the fingertip[\s\S]*further from the wrist/);
-		expect(tables.dempster.segments.foot).toMatchObject({ proximal: 'lateral malleolus', distal: 'head of metatarsal II', takenAs: { proximal: 'ankle joint centre', distal: 'tip of the longest toe' } });
+		expect(tables.dempster.segments.foot).toMatchObject({
+			proximal: 'lateral malleolus',
+			distal: 'head of metatarsal II',
+			takenAs: { proximal: 'ankle joint centre', distal: 'tip of the longest toe' }
+		});
 		expect(tables.dempster.segments.foot.takenAs!.note).toMatch(/further forward/);
 		// de Leva's foot is measured from the heel; the model's foot hangs from the ankle
 		expect(modelEndpointsOf(tables.deLeva.segments.foot)).toEqual({ proximal: 'ankle joint centre', distal: 'tip of the longest toe' });
@@ -109,7 +129,11 @@ describe('the loader refuses rows whose endpoints are not the model’s', () => 
 		const ajc = { ...t.segments.shank, unused: 'the other row is used here' };
 		delete ajc.otherRows;
 		const { unused: _, ...lmal } = t.segments.shank.otherRows[0];
-		t.segments.shank = { ...lmal, takenAs: { distal: 'ankle joint centre', note: 'the lateral malleolus is near the ankle joint centre, said a test' }, otherRows: [ajc] };
+		t.segments.shank = {
+			...lmal,
+			takenAs: { distal: 'ankle joint centre', note: 'the lateral malleolus is near the ankle joint centre, said a test' },
+			otherRows: [ajc]
+		};
 		expect(() => loadFractions(t)).toThrow(
 			'anthropometry/x.json (table de-leva-1996): segments.shank: the row knee joint centre → lateral malleolus (taken as knee joint centre → ankle joint centre) stands in for the model’s endpoints, but otherRows.0 (knee joint centre → ankle joint centre) has them: use that row'
 		);
@@ -126,7 +150,9 @@ describe('the loader refuses rows whose endpoints are not the model’s', () => 
 	it('Dempster’s thigh from the greater trochanter without its stated stand-in', () => {
 		const t = read('dempster-winter-2009.json');
 		delete t.segments.thigh.takenAs;
-		expect(() => loadFractions(t)).toThrow(/segments\.thigh: endpoints greater trochanter → femoral condyles do not match the model, whose thigh runs hip joint centre → knee joint centre/);
+		expect(() => loadFractions(t)).toThrow(
+			/segments\.thigh: endpoints greater trochanter → femoral condyles do not match the model, whose thigh runs hip joint centre → knee joint centre/
+		);
 	});
 
 	it('a landmark the model does not know, and a stand-in without its reason', () => {
@@ -145,13 +171,20 @@ describe('the loader refuses rows whose endpoints are not the model’s', () => 
 			'anthropometry/s.json (table drillis-contini-winter-2009): lengths.shank: endpoints knee joint centre → medial malleolus do not match the model, whose shank runs knee joint centre → ankle joint centre'
 		);
 		delete s.lengths.shank.distal;
-		expect(() => checkStatureEndpoints('s.json', parseTable('s.json', statureTableSchema, s))).toThrow('lengths.shank: name the proximal and distal endpoints of the length');
+		expect(() => checkStatureEndpoints('s.json', parseTable('s.json', statureTableSchema, s))).toThrow(
+			'lengths.shank: name the proximal and distal endpoints of the length'
+		);
 	});
 
 	it('a mass regression row for another segment than its geometry row', () => {
 		const r = read('zatsiorsky-regression-2002.json');
 		r.segments.shank.distal = 'lateral malleolus';
-		expect(() => checkRegressionEndpoints('r.json', parseTable('r.json', regressionTableSchema, r), { file: 'de-leva-1996.json', table: tables.deLeva })).toThrow(
+		expect(() =>
+			checkRegressionEndpoints('r.json', parseTable('r.json', regressionTableSchema, r), {
+				file: 'de-leva-1996.json',
+				table: tables.deLeva
+			})
+		).toThrow(
 			'anthropometry/r.json (table zatsiorsky-regression-2002): segments.shank: endpoints knee joint centre → lateral malleolus do not match those of the geometry row it is combined with, anthropometry/de-leva-1996.json segments.shank (knee joint centre → ankle joint centre)'
 		);
 	});
@@ -187,7 +220,9 @@ describe('de Leva’s KJC–AJC shank row', () => {
 			expect(Math.abs(a.comFraction.value * La - b.comFraction.value * Lb)).toBeLessThan(0.00005);
 			// radii are printed to 0.1 %: half a unit on each side, 0.0005 × (La + Lb)
 			for (const axis of ['flexion', 'abduction', 'longitudinal'] as const) {
-				expect(Math.abs(a.gyration[axis].value * La - b.gyration[axis].value * Lb), `${sex} ${axis}`).toBeLessThanOrEqual(0.0005 * (La + Lb));
+				expect(Math.abs(a.gyration[axis].value * La - b.gyration[axis].value * Lb), `${sex} ${axis}`).toBeLessThanOrEqual(
+					0.0005 * (La + Lb)
+				);
 			}
 		}
 	});

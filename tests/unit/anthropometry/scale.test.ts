@@ -11,7 +11,13 @@ const near = (a: number, b: number, digits: number) => expect(a).toBeCloseTo(b, 
 type Hand = Partial<Record<'length' | 'mass' | 'com' | 'flexion' | 'longitudinal', number | [number, number]>>;
 function expectByHand(m: ReturnType<typeof scaleLimbs>, key: string, hand: Hand): void {
 	const s = seg(m, key);
-	const got = { length: s.length.value, mass: s.mass.value, com: s.comDistance.value, flexion: s.inertia.flexion.value, longitudinal: s.inertia.longitudinal.value };
+	const got = {
+		length: s.length.value,
+		mass: s.mass.value,
+		com: s.comDistance.value,
+		flexion: s.inertia.flexion.value,
+		longitudinal: s.inertia.longitudinal.value
+	};
 	for (const [field, want] of Object.entries(hand) as [keyof Hand, number | [number, number]][]) {
 		const [value, digits] = Array.isArray(want) ? want : [want, 6];
 		near(got[field], value, digits);
@@ -69,7 +75,10 @@ describe('regression table', () => {
 		// standard errors were not recalled (the table file records null), so the tolerance is 1 % of the mean
 		// mass or 0.01 kg, whichever is larger — Momentry's choice, not the published SE.
 		const subject = tables.zatsiorsky.referenceSubject;
-		const m = scaleLimbs({ sex: 'male', bodyMass: subject.bodyMass.value, stature: subject.stature.value }, 'zatsiorsky-regression-2002', ['right.leg', 'right.arm']);
+		const m = scaleLimbs({ sex: 'male', bodyMass: subject.bodyMass.value, stature: subject.stature.value }, 'zatsiorsky-regression-2002', [
+			'right.leg',
+			'right.arm'
+		]);
 		for (const s of m.segments) {
 			const meanMass = tables.deLeva.segments[s.segment].male!.massFraction.value * subject.bodyMass.value;
 			expect(Math.abs(s.mass.value - meanMass)).toBeLessThanOrEqual(Math.max(0.01 * meanMass, 0.01));
@@ -77,7 +86,9 @@ describe('regression table', () => {
 	});
 
 	it('is refused for women, with the reason', () => {
-		expect(() => scaleLimbs({ sex: 'female', bodyMass: 60, stature: 1.65 }, 'zatsiorsky-regression-2002', ['right.leg'])).toThrow(/fitted on men only/);
+		expect(() => scaleLimbs({ sex: 'female', bodyMass: 60, stature: 1.65 }, 'zatsiorsky-regression-2002', ['right.leg'])).toThrow(
+			/fitted on men only/
+		);
 	});
 });
 
@@ -108,10 +119,18 @@ describe('scaled trees through the engine', () => {
 		const { Q } = inverseDynamics(model, q, new Float64Array(model.n), new Float64Array(model.n), { gravity: [0, -g, 0] });
 		const [t, s, f] = ['right.thigh', 'right.shank', 'right.foot'].map((k) => seg(m, k));
 		// foot turns upright with the leg, so its COM lies above the ankle, at the lever L_thigh + L_shank
-		const hand = g * (t.mass.value * t.comDistance.value + s.mass.value * (t.length.value + s.comDistance.value) + f.mass.value * (t.length.value + s.length.value));
+		const hand =
+			g *
+			(t.mass.value * t.comDistance.value +
+				s.mass.value * (t.length.value + s.comDistance.value) +
+				f.mass.value * (t.length.value + s.length.value));
 		near(Q[m.dofs.findIndex((d) => d.name === 'right.hip.flexion')], hand, 9);
 		// and the knee carries the shank and foot: g (m_s d_s + m_f L_s)
-		near(Q[m.dofs.findIndex((d) => d.name === 'right.knee.flexion')], -g * (s.mass.value * s.comDistance.value + f.mass.value * s.length.value), 9);
+		near(
+			Q[m.dofs.findIndex((d) => d.name === 'right.knee.flexion')],
+			-g * (s.mass.value * s.comDistance.value + f.mass.value * s.length.value),
+			9
+		);
 	});
 
 	it('gives a valid model with a positive-definite mass matrix for all four limbs', () => {
@@ -156,10 +175,14 @@ describe('validation', () => {
 		expect(participantProblems({ ...ref, stature: 180 })).toEqual(['stature must be between 0.8 and 2.5 m (got 180 m)']);
 	});
 	it('non-positive measured length', () => {
-		expect(participantProblems({ ...ref, measuredLengths: { 'left.forearm': -0.2 } })).toEqual(['measured length of left.forearm must be a positive number of metres (got -0.2)']);
+		expect(participantProblems({ ...ref, measuredLengths: { 'left.forearm': -0.2 } })).toEqual([
+			'measured length of left.forearm must be a positive number of metres (got -0.2)'
+		]);
 	});
 	it('implausible measured length for the stature', () => {
-		expect(participantProblems({ ...ref, measuredLengths: { 'right.thigh': 44 } })[0]).toMatch(/^measured length of right\.thigh \(44 m\) is not plausible for a stature of 1\.8 m: expected 0\.221–0\.706 m \(is it in metres\?\)$/);
+		expect(participantProblems({ ...ref, measuredLengths: { 'right.thigh': 44 } })[0]).toMatch(
+			/^measured length of right\.thigh \(44 m\) is not plausible for a stature of 1\.8 m: expected 0\.221–0\.706 m \(is it in metres\?\)$/
+		);
 	});
 	it('unknown segment key', () => {
 		expect(participantProblems({ ...ref, measuredLengths: { 'right.tibia': 0.4 } })[0]).toMatch(/unknown segment/);

@@ -1,15 +1,30 @@
 // The table files in /anthropometry: all load and validate; every validation rule rejects a broken copy.
 import { describe, expect, it } from 'vitest';
 import fs from 'node:fs';
-import { tables, parseTable, fractionsTableSchema, statureTableSchema, regressionTableSchema, SEGMENTS } from '../../../src/lib/anthropometry';
+import {
+	tables,
+	parseTable,
+	fractionsTableSchema,
+	statureTableSchema,
+	regressionTableSchema,
+	SEGMENTS
+} from '../../../src/lib/anthropometry';
 
 const read = (f: string) => JSON.parse(fs.readFileSync(`anthropometry/${f}`, 'utf8'));
 const dempster = () => read('dempster-winter-2009.json');
 
 describe('published tables', () => {
 	it('every file in anthropometry/ is loaded and valid', () => {
-		const files = fs.readdirSync('anthropometry').filter((f) => f.endsWith('.json')).sort();
-		expect(files).toEqual(['de-leva-1996.json', 'dempster-winter-2009.json', 'drillis-contini-winter-2009.json', 'zatsiorsky-regression-2002.json']);
+		const files = fs
+			.readdirSync('anthropometry')
+			.filter((f) => f.endsWith('.json'))
+			.sort();
+		expect(files).toEqual([
+			'de-leva-1996.json',
+			'dempster-winter-2009.json',
+			'drillis-contini-winter-2009.json',
+			'zatsiorsky-regression-2002.json'
+		]);
 		expect(Object.keys(tables.dempster.segments).sort()).toEqual([...SEGMENTS].sort());
 		expect(tables.deLeva.sexes).toEqual(['female', 'male']);
 	});
@@ -38,7 +53,9 @@ describe('validation rules', () => {
 	it('a fraction must lie in (0, 1)', () => {
 		const t = dempster();
 		t.segments.thigh.any.massFraction.value = 1.2;
-		expect(() => parseTable('x.json', fractionsTableSchema, t)).toThrow('anthropometry/x.json: segments.thigh.any.massFraction.value: must be below 1');
+		expect(() => parseTable('x.json', fractionsTableSchema, t)).toThrow(
+			'anthropometry/x.json: segments.thigh.any.massFraction.value: must be below 1'
+		);
 		t.segments.thigh.any.massFraction.value = 0;
 		expect(() => parseTable('x.json', fractionsTableSchema, t)).toThrow(/massFraction.value: must be above 0/);
 	});
@@ -46,7 +63,9 @@ describe('validation rules', () => {
 	it('every number needs a source', () => {
 		const t = dempster();
 		t.segments.shank.any.comFraction.source = '';
-		expect(() => parseTable('x.json', fractionsTableSchema, t)).toThrow('segments.shank.any.comFraction.source: every number needs a source');
+		expect(() => parseTable('x.json', fractionsTableSchema, t)).toThrow(
+			'segments.shank.any.comFraction.source: every number needs a source'
+		);
 		delete t.segments.shank.any.comFraction.source;
 		expect(() => parseTable('x.json', fractionsTableSchema, t)).toThrow(/segments\.shank\.any\.comFraction\.source/);
 	});

@@ -17,11 +17,22 @@ function element(html: string, tag: string, attr: string): string {
 	const end = html.indexOf(`</${tag}>`, start);
 	return html.slice(start, end + tag.length + 3);
 }
-const cells = (row: string) => [...row.matchAll(/<td[^>]*data-field="(\w+)"[^>]*data-kind="(\w+)"[^>]*>([\s\S]*?)<\/td>/g)].map((m) => ({ field: m[1], kind: m[2], body: m[3] }));
+const cells = (row: string) =>
+	[...row.matchAll(/<td[^>]*data-field="(\w+)"[^>]*data-kind="(\w+)"[^>]*>([\s\S]*?)<\/td>/g)].map((m) => ({
+		field: m[1],
+		kind: m[2],
+		body: m[3]
+	}));
 const attr = (tag: string, name: string) => Number(new RegExp(`\\s${name}="([^"]+)"`).exec(tag)![1]);
 /** Server output without Svelte's hydration markers. */
 const clean = (html: string) => html.replace(/<!--[\s\S]*?-->/g, '');
-const decode = (s: string) => s.replace(/&amp;/g, '&').replace(/&lt;/g, '<').replace(/&gt;/g, '>').replace(/&quot;/g, '"').replace(/&#39;/g, "'");
+const decode = (s: string) =>
+	s
+		.replace(/&amp;/g, '&')
+		.replace(/&lt;/g, '<')
+		.replace(/&gt;/g, '>')
+		.replace(/&quot;/g, '"')
+		.replace(/&#39;/g, "'");
 
 describe('SegmentTable', () => {
 	const body = clean(render(SegmentTable, { props: { scaled } }).body);
@@ -69,7 +80,14 @@ describe('SegmentTable', () => {
 	});
 
 	it('names units in the headers, and the table, citation, sex rule and notes in the caption', () => {
-		for (const h of ['Length (m)', 'Mass (kg)', 'Centre of mass from proximal joint (m)', 'Flexion axis, medio-lateral (kg·m²)', 'Long axis (kg·m²)']) expect(body).toContain(h);
+		for (const h of [
+			'Length (m)',
+			'Mass (kg)',
+			'Centre of mass from proximal joint (m)',
+			'Flexion axis, medio-lateral (kg·m²)',
+			'Long axis (kg·m²)'
+		])
+			expect(body).toContain(h);
 		const caption = decode(element(body, 'caption', '<caption'));
 		expect(caption).toContain(scaled.table.title);
 		expect(caption).toContain(scaled.table.citation);
@@ -86,7 +104,9 @@ describe('SegmentTable, a row applied between the model’s endpoints rather tha
 		// Winter 2009 Table 4.1 (from memory): the hand runs from the wrist axis to knuckle II of the middle finger
 		expect(hand).toContain('wrist joint centre → knuckle II of the middle finger');
 		expect(hand).toMatch(/data-taken-as[^>]*>applied as wrist joint centre → tip of the middle finger/);
-		expect(decode(element(html, 'caption', '<caption'))).toContain('Hand (Winter 2009, Table 4.1): Winter’s hand fractions run from the wrist axis to knuckle II of the middle finger, not to the fingertip.');
+		expect(decode(element(html, 'caption', '<caption'))).toContain(
+			'Hand (Winter 2009, Table 4.1): Winter’s hand fractions run from the wrist axis to knuckle II of the middle finger, not to the fingertip.'
+		);
 		// de Leva's upper arm runs between joint centres: nothing to apply
 		const deLeva = clean(render(SegmentTable, { props: { scaled } }).body);
 		expect(element(deLeva, 'tr', 'data-segment="right.upperarm"')).not.toContain('data-taken-as');

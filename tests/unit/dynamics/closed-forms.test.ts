@@ -93,7 +93,11 @@ describe('prismatic joints', () => {
 		const model = compileModel({
 			bodies: [body({ name: 'slider', parent: -1, joint: { type: 'prismatic', axis: s }, mass: m, com: [0.1, 0.2, 0.3] })]
 		});
-		for (const [q, qd, qdd] of [[0, 0, 0], [0.2, 1.5, -3], [-0.4, -2, 7]]) {
+		for (const [q, qd, qdd] of [
+			[0, 0, 0],
+			[0.2, 1.5, -3],
+			[-0.4, -2, 7]
+		]) {
 			const { Q } = inverseDynamics(model, [q], [qd], [qdd], { gravity: G });
 			close(Q[0], m * qdd - (m * (-g * s[1])) / n);
 		}

@@ -44,12 +44,62 @@ export function branchedChain(): ModelInput {
 	return {
 		name: 'test chain',
 		bodies: [
-			body({ name: 'b0', parent: -1, joint: { type: 'revolute', axis: [0.2, 0.9, 0.1] }, anchor: [0.05, 0.1, -0.02], mass: 3.2, com: [0.02, -0.15, 0.03], inertia: skewInertia(0.03, 0.035, 0.012, [1, 2, 3], 0.7) }),
-			body({ name: 'b1', parent: 0, joint: { type: 'revolute', axis: [1, 0.3, -0.2] }, anchor: [0.01, -0.3, 0.02], rotation: axisAngle([0.3, -1, 0.5], 0.4), mass: 2.1, com: [0.01, -0.12, 0.04], inertia: skewInertia(0.02, 0.022, 0.006, [2, -1, 1], 1.1) }),
-			body({ name: 'b2', parent: 1, joint: { type: 'prismatic', axis: [0.1, -1, 0.2] }, anchor: [0.02, -0.25, 0], mass: 1.4, com: [0.03, -0.05, 0.01], inertia: skewInertia(0.004, 0.005, 0.002, [0, 1, 1], 0.3) }),
-			body({ name: 'b3', parent: 2, joint: { type: 'revolute', axis: [0.3, 0.1, 1] }, anchor: [0, -0.1, 0.03], mass: 0.8, com: [0.06, -0.02, 0.01], inertia: skewInertia(0.001, 0.0015, 0.0012, [1, 1, 0], 0.9) }),
-			body({ name: 'b4', parent: 1, joint: { type: 'revolute', axis: [-0.4, 0.2, 1] }, anchor: [-0.05, -0.1, 0.06], rotation: axisAngle([1, 0.2, 0.1], -0.6), mass: 1.9, com: [-0.08, -0.1, 0.02], inertia: skewInertia(0.01, 0.012, 0.004, [1, -2, 0.5], 0.5) }),
-			body({ name: 'b5', parent: 4, joint: { type: 'revolute', axis: [0, 1, 0.3] }, anchor: [-0.2, -0.15, 0], mass: 0.6, com: [-0.04, -0.05, 0.02], inertia: skewInertia(0.0008, 0.0009, 0.0003, [0.2, 0.3, 1], 1.3) })
+			body({
+				name: 'b0',
+				parent: -1,
+				joint: { type: 'revolute', axis: [0.2, 0.9, 0.1] },
+				anchor: [0.05, 0.1, -0.02],
+				mass: 3.2,
+				com: [0.02, -0.15, 0.03],
+				inertia: skewInertia(0.03, 0.035, 0.012, [1, 2, 3], 0.7)
+			}),
+			body({
+				name: 'b1',
+				parent: 0,
+				joint: { type: 'revolute', axis: [1, 0.3, -0.2] },
+				anchor: [0.01, -0.3, 0.02],
+				rotation: axisAngle([0.3, -1, 0.5], 0.4),
+				mass: 2.1,
+				com: [0.01, -0.12, 0.04],
+				inertia: skewInertia(0.02, 0.022, 0.006, [2, -1, 1], 1.1)
+			}),
+			body({
+				name: 'b2',
+				parent: 1,
+				joint: { type: 'prismatic', axis: [0.1, -1, 0.2] },
+				anchor: [0.02, -0.25, 0],
+				mass: 1.4,
+				com: [0.03, -0.05, 0.01],
+				inertia: skewInertia(0.004, 0.005, 0.002, [0, 1, 1], 0.3)
+			}),
+			body({
+				name: 'b3',
+				parent: 2,
+				joint: { type: 'revolute', axis: [0.3, 0.1, 1] },
+				anchor: [0, -0.1, 0.03],
+				mass: 0.8,
+				com: [0.06, -0.02, 0.01],
+				inertia: skewInertia(0.001, 0.0015, 0.0012, [1, 1, 0], 0.9)
+			}),
+			body({
+				name: 'b4',
+				parent: 1,
+				joint: { type: 'revolute', axis: [-0.4, 0.2, 1] },
+				anchor: [-0.05, -0.1, 0.06],
+				rotation: axisAngle([1, 0.2, 0.1], -0.6),
+				mass: 1.9,
+				com: [-0.08, -0.1, 0.02],
+				inertia: skewInertia(0.01, 0.012, 0.004, [1, -2, 0.5], 0.5)
+			}),
+			body({
+				name: 'b5',
+				parent: 4,
+				joint: { type: 'revolute', axis: [0, 1, 0.3] },
+				anchor: [-0.2, -0.15, 0],
+				mass: 0.6,
+				com: [-0.04, -0.05, 0.02],
+				inertia: skewInertia(0.0008, 0.0009, 0.0003, [0.2, 0.3, 1], 1.3)
+			})
 		]
 	};
 }

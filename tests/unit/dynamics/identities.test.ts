@@ -77,7 +77,9 @@ describe('forward and inverse dynamics', () => {
 			// moment about its axis of each outboard weight m_k g applied at c_k, with the sign reversed.
 			for (let i = 0; i < n; i++) {
 				const R = pose.rotation.subarray(9 * i, 9 * i + 9);
-				const a = [0, 1, 2].map((row) => R[3 * row] * model.axis[3 * i] + R[3 * row + 1] * model.axis[3 * i + 1] + R[3 * row + 2] * model.axis[3 * i + 2]);
+				const a = [0, 1, 2].map(
+					(row) => R[3 * row] * model.axis[3 * i] + R[3 * row + 1] * model.axis[3 * i + 1] + R[3 * row + 2] * model.axis[3 * i + 2]
+				);
 				const p = pose.jointCentre.subarray(3 * i, 3 * i + 3);
 				let hand = 0;
 				for (let k = 0; k < n; k++) {
@@ -140,11 +142,22 @@ describe('batch inverse dynamics', () => {
 describe('fast paths', () => {
 	it('axis-aligned joints and zero anchors give the same numbers as the general formulas', async () => {
 		const { scaleLimbs } = await import('../../../src/lib/anthropometry');
-		const limbs = scaleLimbs({ sex: 'male', bodyMass: 80, stature: 1.8 }, 'de-leva-1996', ['right.leg', 'left.leg', 'right.arm', 'left.arm']);
+		const limbs = scaleLimbs({ sex: 'male', bodyMass: 80, stature: 1.8 }, 'de-leva-1996', [
+			'right.leg',
+			'left.leg',
+			'right.arm',
+			'left.arm'
+		]);
 		const fast = compileModel(limbs.model);
 		expect(Array.from(fast.planar).filter((c) => c > 0).length).toBe(fast.n);
 		// the same model with every shortcut switched off
-		const general = { ...fast, axisCode: new Uint8Array(fast.n), axisSign: new Float64Array(fast.n).fill(1), anchorZero: new Uint8Array(fast.n), planar: new Uint8Array(fast.n) };
+		const general = {
+			...fast,
+			axisCode: new Uint8Array(fast.n),
+			axisSign: new Float64Array(fast.n).fill(1),
+			anchorZero: new Uint8Array(fast.n),
+			planar: new Uint8Array(fast.n)
+		};
 		const rr = rng(11);
 		for (let k = 0; k < 10; k++) {
 			const q = uniform(rr, -1.5, 1.5, fast.n),

@@ -12,7 +12,9 @@ describe('RK45 on a passive 3-D chain', () => {
 		const qd0 = [1.0, -0.5, 0.2, 1.5, 0.8, -1.2];
 		const sim = simulate(model, { q0, qd0, times, method: 'rk45', atol: 1e-12, rtol: 1e-12, gravity: G });
 		const n = model.n;
-		const E = Array.from(times, (_, k) => energy(model, sim.q.subarray(k * n, k * n + n), sim.qd.subarray(k * n, k * n + n), { gravity: G }));
+		const E = Array.from(times, (_, k) =>
+			energy(model, sim.q.subarray(k * n, k * n + n), sim.qd.subarray(k * n, k * n + n), { gravity: G })
+		);
 		const T = E.map((e) => e.kinetic);
 		// Relative to the energy actually exchanged: the largest kinetic energy reached.
 		const scale = Math.max(...T);
@@ -45,7 +47,15 @@ describe('RK4 on a pendulum', () => {
 	it('small swings have the compound pendulum period 2π √((I_cm + m l²) / (m g l))', () => {
 		// Source: the small-angle compound pendulum, any mechanics textbook.
 		const period = 2 * Math.PI * Math.sqrt((Icm + m * l * l) / (m * g * l));
-		const sim = simulate(model, { q0: [1e-4], qd0: [0], times: [0, period / 2, period], method: 'rk45', atol: 1e-14, rtol: 1e-12, gravity: [0, -g, 0] });
+		const sim = simulate(model, {
+			q0: [1e-4],
+			qd0: [0],
+			times: [0, period / 2, period],
+			method: 'rk45',
+			atol: 1e-14,
+			rtol: 1e-12,
+			gravity: [0, -g, 0]
+		});
 		expect(sim.q[1] / 1e-4).toBeCloseTo(-1, 6);
 		expect(sim.q[2] / 1e-4).toBeCloseTo(1, 6);
 		expect(sim.qd[2]).toBeCloseTo(0, 9);
@@ -56,7 +66,15 @@ describe('RK4 on a pendulum', () => {
 	it('applies a torque law: a constant torque holds the pendulum at the matching angle', () => {
 		const q = 0.7;
 		const hold = m * g * l * Math.sin(q);
-		const sim = simulate(model, { q0: [q], qd0: [0], times: [0, 1, 3], torque: (_t, _q, _qd, out) => (out[0] = hold), method: 'rk4', step: 0.01, gravity: [0, -g, 0] });
+		const sim = simulate(model, {
+			q0: [q],
+			qd0: [0],
+			times: [0, 1, 3],
+			torque: (_t, _q, _qd, out) => (out[0] = hold),
+			method: 'rk4',
+			step: 0.01,
+			gravity: [0, -g, 0]
+		});
 		expect(sim.q[2]).toBeCloseTo(q, 12);
 	});
 

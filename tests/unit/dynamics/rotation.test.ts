@@ -15,7 +15,10 @@ interface Case {
 	why?: string;
 }
 const committed = 'tests/fixtures/dynamics/scipy-polar.json';
-const { fixture, regenerated } = loadReference<{ source: string; accepted: Case[]; refused: Case[] }>('tests/reference/scipy_polar.py', committed);
+const { fixture, regenerated } = loadReference<{ source: string; accepted: Case[]; refused: Case[] }>(
+	'tests/reference/scipy_polar.py',
+	committed
+);
 const maxDiff = (A: Mat3, B: Mat3) => Math.max(...A.flatMap((row, r) => row.map((v, c) => Math.abs(v - B[r][c]))));
 
 /** Rx(a)·Ry(b)·Rz(c), written out (a closed form independent of the code under test). */
@@ -30,41 +33,50 @@ function cardan(a: number, b: number, c: number): Mat3 {
 const round6 = (R: Mat3) => R.map((row) => row.map((v) => Number(v.toFixed(6)))) as Mat3;
 
 describe(`nearestRotation against scipy.linalg.polar and numpy.linalg.svd (${regenerated ? 'regenerated now' : 'committed fixture'}: ${fixture.source})`, () => {
-	it.runIf(regenerated)(`the committed fixture is what the script writes now (else: rerun tests/reference/scipy_polar.py --out ${committed})`, () => {
-		const old = JSON.parse(fs.readFileSync(committed, 'utf8')) as typeof fixture;
-		expect(old.accepted.map((c) => c.m)).toEqual(fixture.accepted.map((c) => c.m));
-		for (let i = 0; i < old.accepted.length; i++) expect(maxDiff(old.accepted[i].polar, fixture.accepted[i].polar)).toBeLessThan(1e-14);
-	});
-
-	it.each(fixture.accepted.map((c, i) => [i, c] as const))('random rotation %i rounded to 6 decimals: accepted, corrected to scipy’s polar factor within 1e-12', (_, c) => {
-		expect(orthonormalityError(c.m)).toBeCloseTo(c.error, 12);
-		expect(det3(c.m)).toBeCloseTo(c.det, 12);
-		const r = checkRotation(c.m);
-		expect(r.ok).toBe(true);
-		if (!r.ok) return;
-		expect(r.corrected).toBe(true);
-		expect(orthonormalityError(r.rotation)).toBeLessThan(1e-12);
-		expect(det3(r.rotation)).toBeCloseTo(1, 12);
-		expect(maxDiff(r.rotation, c.polar)).toBeLessThan(1e-12);
-		expect(maxDiff(r.rotation, c.svd)).toBeLessThan(1e-12);
-		// the correction stays within the rounding: no entry moves by more than a few units of the 6th decimal
-		expect(maxDiff(r.rotation, c.m)).toBeLessThan(2e-6);
-	});
-
-	it.each(fixture.refused.map((c) => [c.why!, c] as const))('%s: refused, the message giving the norm, the tolerance and the sign of the determinant', (why, c) => {
-		const r = checkRotation(c.m);
-		expect(r.ok).toBe(false);
-		if (r.ok) return;
-		expect(r.error).toBeCloseTo(c.error, 12);
-		expect(r.det).toBeCloseTo(c.det, 12);
-		if (why.includes('1e-3')) {
-			expect(r.message).toContain(`‖RᵀR − I‖ (Frobenius norm) is ${Number(c.error.toPrecision(3))}, more than the tolerance 1.00e-5`);
-			expect(r.message).not.toMatch(/its determinant/);
-		} else {
-			expect(r.message).toMatch(/its determinant is -1, negative: an improper rotation \(a reflection/);
-			expect(r.message).not.toMatch(/Frobenius/);
+	it.runIf(regenerated)(
+		`the committed fixture is what the script writes now (else: rerun tests/reference/scipy_polar.py --out ${committed})`,
+		() => {
+			const old = JSON.parse(fs.readFileSync(committed, 'utf8')) as typeof fixture;
+			expect(old.accepted.map((c) => c.m)).toEqual(fixture.accepted.map((c) => c.m));
+			for (let i = 0; i < old.accepted.length; i++) expect(maxDiff(old.accepted[i].polar, fixture.accepted[i].polar)).toBeLessThan(1e-14);
 		}
-	});
+	);
+
+	it.each(fixture.accepted.map((c, i) => [i, c] as const))(
+		'random rotation %i rounded to 6 decimals: accepted, corrected to scipy’s polar factor within 1e-12',
+		(_, c) => {
+			expect(orthonormalityError(c.m)).toBeCloseTo(c.error, 12);
+			expect(det3(c.m)).toBeCloseTo(c.det, 12);
+			const r = checkRotation(c.m);
+			expect(r.ok).toBe(true);
+			if (!r.ok) return;
+			expect(r.corrected).toBe(true);
+			expect(orthonormalityError(r.rotation)).toBeLessThan(1e-12);
+			expect(det3(r.rotation)).toBeCloseTo(1, 12);
+			expect(maxDiff(r.rotation, c.polar)).toBeLessThan(1e-12);
+			expect(maxDiff(r.rotation, c.svd)).toBeLessThan(1e-12);
+			// the correction stays within the rounding: no entry moves by more than a few units of the 6th decimal
+			expect(maxDiff(r.rotation, c.m)).toBeLessThan(2e-6);
+		}
+	);
+
+	it.each(fixture.refused.map((c) => [c.why!, c] as const))(
+		'%s: refused, the message giving the norm, the tolerance and the sign of the determinant',
+		(why, c) => {
+			const r = checkRotation(c.m);
+			expect(r.ok).toBe(false);
+			if (r.ok) return;
+			expect(r.error).toBeCloseTo(c.error, 12);
+			expect(r.det).toBeCloseTo(c.det, 12);
+			if (why.includes('1e-3')) {
+				expect(r.message).toContain(`‖RᵀR − I‖ (Frobenius norm) is ${Number(c.error.toPrecision(3))}, more than the tolerance 1.00e-5`);
+				expect(r.message).not.toMatch(/its determinant/);
+			} else {
+				expect(r.message).toMatch(/its determinant is -1, negative: an improper rotation \(a reflection/);
+				expect(r.message).not.toMatch(/Frobenius/);
+			}
+		}
+	);
 });
 
 describe('checkRotation', () => {
@@ -107,7 +119,15 @@ describe('checkRotation', () => {
 		expect(Math.abs(r.error - closed)).toBeLessThan(3e-6);
 		expect(r.message).toContain(`is ${Number(r.error.toPrecision(3))}, more than the tolerance 1.00e-5`);
 		expect(checkRotation(R.map((row) => row.map((v) => v * 1.001)) as Mat3).ok).toBe(false);
-		expect((checkRotation([[0, 0, 0], [0, 1, 0], [0, 0, 1]]) as { message: string }).message).toMatch(/determinant is 0: it is singular/);
+		expect(
+			(
+				checkRotation([
+					[0, 0, 0],
+					[0, 1, 0],
+					[0, 0, 1]
+				]) as { message: string }
+			).message
+		).toMatch(/determinant is 0: it is singular/);
 	});
 
 	it('nearestRotation of a rotation times a symmetric positive definite matrix gives the rotation back (polar decomposition, closed form)', () => {
@@ -125,7 +145,20 @@ describe('checkRotation', () => {
 describe('the model schema takes typed rotations', () => {
 	const model = (rotation: Mat3): ModelInput => ({
 		bodies: [
-			{ name: 'upper', parent: -1, joint: { type: 'revolute', axis: [0, 0, 1] }, anchor: [0, 0, 0], rotation, mass: 2, com: [0, -0.2, 0], inertia: [[0.02, 0, 0], [0, 0.002, 0], [0, 0, 0.02]] }
+			{
+				name: 'upper',
+				parent: -1,
+				joint: { type: 'revolute', axis: [0, 0, 1] },
+				anchor: [0, 0, 0],
+				rotation,
+				mass: 2,
+				com: [0, -0.2, 0],
+				inertia: [
+					[0.02, 0, 0],
+					[0, 0.002, 0],
+					[0, 0, 0.02]
+				]
+			}
 		]
 	});
 
@@ -140,7 +173,9 @@ describe('the model schema takes typed rotations', () => {
 
 	it('a rotation off by 1e-3 and a reflection are refused, naming the body and the numbers', () => {
 		const [off, reflection] = fixture.refused;
-		expect(modelProblems(model(off.m))[0]).toMatch(/^body 0 "upper": rotation: must be a proper rotation matrix \(orthonormal, determinant \+1\): it is not orthonormal: ‖RᵀR − I‖ \(Frobenius norm\) is 0\.00145, more than the tolerance 1\.00e-5/);
+		expect(modelProblems(model(off.m))[0]).toMatch(
+			/^body 0 "upper": rotation: must be a proper rotation matrix \(orthonormal, determinant \+1\): it is not orthonormal: ‖RᵀR − I‖ \(Frobenius norm\) is 0\.00145, more than the tolerance 1\.00e-5/
+		);
 		expect(modelProblems(model(reflection.m))[0]).toMatch(/rotation: .*its determinant is -1, negative/);
 	});
 });

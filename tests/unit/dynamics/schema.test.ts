@@ -30,7 +30,9 @@ describe('model schema', () => {
 	});
 
 	it('rejects a non-finite axis', () => {
-		expect(problemsWith((m) => (m.bodies[0].joint.axis = [Infinity, 0, 1]))).toEqual(['body 0 "upper": joint.axis.0: must be a finite number']);
+		expect(problemsWith((m) => (m.bodies[0].joint.axis = [Infinity, 0, 1]))).toEqual([
+			'body 0 "upper": joint.axis.0: must be a finite number'
+		]);
 	});
 
 	it('rejects negative mass', () => {
@@ -38,12 +40,26 @@ describe('model schema', () => {
 	});
 
 	it('rejects an asymmetric inertia tensor', () => {
-		const p = problemsWith((m) => (m.bodies[1].inertia = [[0.02, 0.001, 0], [0, 0.02, 0], [0, 0, 0.02]]));
+		const p = problemsWith(
+			(m) =>
+				(m.bodies[1].inertia = [
+					[0.02, 0.001, 0],
+					[0, 0.02, 0],
+					[0, 0, 0.02]
+				])
+		);
 		expect(p).toEqual(['body 1 "lower": inertia: must be symmetric (largest difference between I[r][c] and I[c][r] is 0.00100 kg·m²)']);
 	});
 
 	it('rejects an inertia tensor that is not positive semi-definite', () => {
-		const p = problemsWith((m) => (m.bodies[1].inertia = [[0.01, 0.02, 0], [0.02, 0.01, 0], [0, 0, 0.01]]));
+		const p = problemsWith(
+			(m) =>
+				(m.bodies[1].inertia = [
+					[0.01, 0.02, 0],
+					[0.02, 0.01, 0],
+					[0, 0, 0.01]
+				])
+		);
 		expect(p).toHaveLength(1);
 		expect(p[0]).toMatch(/^body 1 "lower": inertia: must be positive semi-definite \(smallest principal moment -0\.01000 kg·m²\)$/);
 	});
@@ -78,7 +94,16 @@ describe('model schema', () => {
 	});
 
 	it('rejects a rotation that is not a proper rotation', () => {
-		expect(problemsWith((m) => (m.bodies[1].rotation = [[1, 0, 0], [0, 1, 0], [0, 0, -1]]))).toEqual([
+		expect(
+			problemsWith(
+				(m) =>
+					(m.bodies[1].rotation = [
+						[1, 0, 0],
+						[0, 1, 0],
+						[0, 0, -1]
+					])
+			)
+		).toEqual([
 			'body 1 "lower": rotation: must be a proper rotation matrix (orthonormal, determinant +1): its determinant is -1, negative: an improper rotation (a reflection; one axis has the wrong sign, e.g. a left-handed frame)'
 		]);
 	});

@@ -1,7 +1,16 @@
 // Against a general-purpose reference: sympy.physics.mechanics (Kane's method) on a 3-D six-body branched tree.
 // tests/reference/sympy_chain.py derives M, c and Q; the fixture is regenerated when python3 with sympy is present.
 import { describe, expect, it } from 'vitest';
-import { compileModel, inverseDynamics, massMatrix, bias, forwardKinematics, energy, type ExternalLoad, type Vec3 } from '../../../src/lib/dynamics';
+import {
+	compileModel,
+	inverseDynamics,
+	massMatrix,
+	bias,
+	forwardKinematics,
+	energy,
+	type ExternalLoad,
+	type Vec3
+} from '../../../src/lib/dynamics';
 import { loadReference } from '../../reference/fixture';
 
 interface Fixture {
@@ -9,13 +18,27 @@ interface Fixture {
 	model: unknown;
 	gravity: Vec3;
 	externalLoads: ExternalLoad[];
-	states: { q: number[]; qd: number[]; qdd: number[]; M: number[][]; c: number[]; Q: number[]; comWorld: Vec3[]; kineticEnergy: number; potentialEnergy: number }[];
+	states: {
+		q: number[];
+		qd: number[];
+		qdd: number[];
+		M: number[][];
+		c: number[];
+		Q: number[];
+		comWorld: Vec3[];
+		kineticEnergy: number;
+		potentialEnergy: number;
+	}[];
 }
 
 const committed = 'tests/fixtures/dynamics/sympy-chain.json';
 
 // MOMENTRY_SYMPY=off forces the committed fixture (to check that path without uninstalling sympy).
-const { fixture, regenerated } = loadReference<Fixture>('tests/reference/sympy_chain.py', committed, { modules: 'sympy, numpy', off: 'MOMENTRY_SYMPY', timeoutMs: 240_000 });
+const { fixture, regenerated } = loadReference<Fixture>('tests/reference/sympy_chain.py', committed, {
+	modules: 'sympy, numpy',
+	off: 'MOMENTRY_SYMPY',
+	timeoutMs: 240_000
+});
 const model = compileModel(fixture.model);
 const n = model.n;
 const opts = { gravity: fixture.gravity, loads: fixture.externalLoads };

@@ -11,8 +11,13 @@ const person = { sex: 'female' as const, bodyMass: 64.2, stature: 1.68 };
 const angles: [number, number, number] = [10, -20, 35];
 const R = cardanXYZ(angles[0] * deg, angles[1] * deg, angles[2] * deg);
 const typed = R.map((row) => row.map((v) => Number(v.toFixed(6)))) as Mat3;
-const setup = (base: Record<string, unknown>) => ({ table: 'de-leva-1996' as const, limbs: ['right.arm' as const], bases: { 'right.arm': { kind: 'fixed', orientation: 'custom', ...base } } });
-const motion = (n: string, t: number) => (n.endsWith('shoulder.flexion') ? (40 + 30 * Math.sin(2 * t)) * deg : n.endsWith('elbow.flexion') ? 60 * deg : 0);
+const setup = (base: Record<string, unknown>) => ({
+	table: 'de-leva-1996' as const,
+	limbs: ['right.arm' as const],
+	bases: { 'right.arm': { kind: 'fixed', orientation: 'custom', ...base } }
+});
+const motion = (n: string, t: number) =>
+	n.endsWith('shoulder.flexion') ? (40 + 30 * Math.sin(2 * t)) * deg : n.endsWith('elbow.flexion') ? 60 * deg : 0;
 
 describe('a base turned by a typed rotation matrix', () => {
 	it('6 decimals: accepted; the model’s root rotation is orthonormal within 1e-12 and the Cardan rotation within 1e-6', () => {
@@ -31,16 +36,23 @@ describe('a base turned by a typed rotation matrix', () => {
 		const a = runPipeline(byMatrix, makeRecording(byMatrix, 200, 100, motion), { cutoffHz: null });
 		const b = runPipeline(byAngles, makeRecording(byAngles, 200, 100, motion), { cutoffHz: null });
 		const peak = Math.max(...b.dofs.flatMap((d) => Array.from(d.moment, Math.abs)));
-		for (let j = 0; j < b.dofs.length; j++) for (let k = 0; k < 200; k += 9) expect(Math.abs(a.dofs[j].moment[k] - b.dofs[j].moment[k])).toBeLessThan(1e-5 * peak);
+		for (let j = 0; j < b.dofs.length; j++)
+			for (let k = 0; k < 200; k += 9) expect(Math.abs(a.dofs[j].moment[k] - b.dofs[j].moment[k])).toBeLessThan(1e-5 * peak);
 	});
 
 	it('an entry off by 1e-3, a reflection, and both orientation forms at once are refused, naming the field and the numbers', () => {
 		const off = typed.map((row) => [...row]) as Mat3;
 		off[2][0] += 1e-3;
 		const [p] = sessionSetupProblems(setup({ rotationMatrix: off }));
-		expect(p).toMatch(/^bases\.right\.arm\.rotationMatrix: must be a proper rotation matrix \(orthonormal, determinant \+1\): it is not orthonormal: ‖RᵀR − I‖ \(Frobenius norm\) is (\d\.\d+e-3|0\.00\d+), more than the tolerance 1\.00e-5/);
+		expect(p).toMatch(
+			/^bases\.right\.arm\.rotationMatrix: must be a proper rotation matrix \(orthonormal, determinant \+1\): it is not orthonormal: ‖RᵀR − I‖ \(Frobenius norm\) is (\d\.\d+e-3|0\.00\d+), more than the tolerance 1\.00e-5/
+		);
 		const mirror = typed.map((row) => [row[0], row[1], -row[2]]) as Mat3;
-		expect(sessionSetupProblems(setup({ rotationMatrix: mirror }))[0]).toMatch(/rotationMatrix: .*its determinant is -1, negative: an improper rotation/);
-		expect(sessionSetupProblems(setup({ rotationMatrix: typed, cardanXYZDeg: angles }))).toEqual(['bases.right.arm.rotationMatrix: give the orientation once: cardanXYZDeg or rotationMatrix, not both']);
+		expect(sessionSetupProblems(setup({ rotationMatrix: mirror }))[0]).toMatch(
+			/rotationMatrix: .*its determinant is -1, negative: an improper rotation/
+		);
+		expect(sessionSetupProblems(setup({ rotationMatrix: typed, cardanXYZDeg: angles }))).toEqual([
+			'bases.right.arm.rotationMatrix: give the orientation once: cardanXYZDeg or rotationMatrix, not both'
+		]);
 	});
 });

@@ -148,7 +148,12 @@ describe('detectPeaks', () => {
 		// f = 1.3 Hz over 4 s: peaks between samples, so the highest sample lies within half a sample period (0.005 s)
 		const f = 1.3;
 		const t4 = Float64Array.from({ length: 401 }, (_, i) => i / 100);
-		const peaks = times(detectPeaks(Float64Array.from(t4, (t) => Math.sin(2 * Math.PI * f * t)), t4));
+		const peaks = times(
+			detectPeaks(
+				Float64Array.from(t4, (t) => Math.sin(2 * Math.PI * f * t)),
+				t4
+			)
+		);
 		const expected = [0, 1, 2, 3, 4].map((k) => 1 / (4 * f) + k / f); // 0.192, 0.962, 1.731, 2.500, 3.269 s
 		expect(peaks.length).toBe(expected.length);
 		peaks.forEach((p, k) => expect(Math.abs(p - expected[k])).toBeLessThanOrEqual(0.005 + 1e-12));
@@ -216,7 +221,11 @@ describe('detectCrossings', () => {
 		expect(down.length).toBe(eDown.length);
 		up.forEach((c, k) => expect(Math.abs(c - eUp[k])).toBeLessThan(1e-5));
 		down.forEach((c, k) => expect(Math.abs(c - eDown[k])).toBeLessThan(1e-5));
-		expectClose(detectCrossings(values, time, 0, 'both'), [...up, ...down].sort((a, b) => a - b), 12);
+		expectClose(
+			detectCrossings(values, time, 0, 'both'),
+			[...up, ...down].sort((a, b) => a - b),
+			12
+		);
 	});
 
 	it('finds crossings of 0.5 at asin(0.5)/(2πf) + k/f (closed form)', () => {

@@ -24,7 +24,16 @@ interface ScipyFixture {
 	padding: {
 		settling: { sampleHz: number; cutoffHz: number; poleRadius: number; samples: number }[];
 		filtfilt: { name: string; sampleHz: number; cutoffHz: number; padType: PadType; padLen: number; y: number[] }[];
-		polynomial: { name: string; sampleHz: number; cutoffHz: number; degree: number; window: number; samples: number; start: number[]; end: number[] }[];
+		polynomial: {
+			name: string;
+			sampleHz: number;
+			cutoffHz: number;
+			degree: number;
+			window: number;
+			samples: number;
+			start: number[];
+			end: number[];
+		}[];
 	};
 }
 interface BurgFixture {
@@ -34,7 +43,9 @@ interface BurgFixture {
 }
 
 const scipy = loadReference<ScipyFixture>('tests/reference/scipy_filter.py', 'tests/fixtures/processing/scipy-filtfilt.json');
-const burgRef = loadReference<BurgFixture>('tests/reference/statsmodels_burg.py', 'tests/fixtures/processing/statsmodels-burg.json', { modules: 'statsmodels, numpy' });
+const burgRef = loadReference<BurgFixture>('tests/reference/statsmodels_burg.py', 'tests/fixtures/processing/statsmodels-burg.json', {
+	modules: 'statsmodels, numpy'
+});
 
 function maxAbs(x: ArrayLike<number>): number {
 	let m = 0;
@@ -94,7 +105,10 @@ describe(`Burg's method against statsmodels (${burgRef.regenerated ? 'regenerate
 	it("sunspots, order 4: statsmodels.regression.linear_model.burg's documented example", () => {
 		const s = burgRef.fixture.sunspots;
 		const mean = s.x.reduce((a, b) => a + b, 0) / s.x.length;
-		const a = burgCoefficients(Float64Array.from(s.x, (v) => v - mean), s.order);
+		const a = burgCoefficients(
+			Float64Array.from(s.x, (v) => v - mean),
+			s.order
+		);
 		for (let i = 0; i < s.order; i++) {
 			expect(Math.abs(-a[i + 1] - s.rho[i])).toBeLessThan(1e-9);
 			expect(Math.abs(-a[i + 1] - s.documented[i])).toBeLessThan(1e-8); // printed with 8 decimals
@@ -152,7 +166,10 @@ describe('continuations against closed forms', () => {
 
 	it('a trial in motion at its ends: the filtered second derivative at the first and last samples is near the truth with prediction, far from it with reflection', () => {
 		// truth of the filtered signal's second derivative: x″ (content ≤ 2.3 Hz, attenuated ≤ 1.2 % by the 6 Hz double pass)
-		const d2 = (t: number) => -0.4 * (2 * Math.PI * 0.9) ** 2 * Math.sin(2 * Math.PI * 0.9 * t + 0.3) - 0.15 * (2 * Math.PI * 2.3) ** 2 * Math.sin(2 * Math.PI * 2.3 * t + 1.1) + 0.1;
+		const d2 = (t: number) =>
+			-0.4 * (2 * Math.PI * 0.9) ** 2 * Math.sin(2 * Math.PI * 0.9 * t + 0.3) -
+			0.15 * (2 * Math.PI * 2.3) ** 2 * Math.sin(2 * Math.PI * 2.3 * t + 1.1) +
+			0.1;
 		const scale = maxAbs(Float64Array.from({ length: n }, (_, k) => d2(k * h)));
 		const err = (t: (typeof END_TREATMENTS)[number]) => {
 			const r = smoothAndDifferentiate(x, fs, 6, t);

@@ -3,7 +3,12 @@ import type { Recording } from '../../../src/lib/processing/recording';
 import type { SessionModel } from '../../../src/lib/processing/session-model';
 
 /** A recording of `frames` samples at `sampleHz` whose channel j (in built.expected order) is value(name, t). */
-export function makeRecording(built: SessionModel, frames: number, sampleHz: number, value: (name: string, t: number) => number): Recording {
+export function makeRecording(
+	built: SessionModel,
+	frames: number,
+	sampleHz: number,
+	value: (name: string, t: number) => number
+): Recording {
 	const time = Float64Array.from({ length: frames }, (_, k) => k / sampleHz);
 	return {
 		time,

@@ -24,10 +24,15 @@ const { fixture, regenerated } = loadReference<Fixture>('tests/reference/scipy_p
 const timeOf = (n: number, fs: number) => Array.from({ length: n }, (_, i) => i / fs);
 
 describe(`detectPeaks against scipy.signal.find_peaks (${regenerated ? 'regenerated now' : 'committed fixture'}: ${fixture.source})`, () => {
-	it.runIf(regenerated)(`the committed fixture is what the script writes now (else: rerun tests/reference/scipy_peaks.py --out ${committed})`, () => {
-		const old: Fixture = JSON.parse(fs.readFileSync(committed, 'utf8'));
-		expect(old.signals.map((s) => [s.name, s.peaks, s.byProminence, s.byDistance])).toEqual(fixture.signals.map((s) => [s.name, s.peaks, s.byProminence, s.byDistance]));
-	});
+	it.runIf(regenerated)(
+		`the committed fixture is what the script writes now (else: rerun tests/reference/scipy_peaks.py --out ${committed})`,
+		() => {
+			const old: Fixture = JSON.parse(fs.readFileSync(committed, 'utf8'));
+			expect(old.signals.map((s) => [s.name, s.peaks, s.byProminence, s.byDistance])).toEqual(
+				fixture.signals.map((s) => [s.name, s.peaks, s.byProminence, s.byDistance])
+			);
+		}
+	);
 
 	for (const s of fixture.signals) {
 		const time = timeOf(s.x.length, s.sampleHz);

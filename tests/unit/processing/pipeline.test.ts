@@ -1,7 +1,13 @@
 // Pipeline mechanics: progress by stage, summaries and power against closed forms, and precise refusals.
 import { describe, expect, it } from 'vitest';
 import { buildSessionModel } from '../../../src/lib/processing/session-model';
-import { assertFiniteResults, NonFiniteResultError, PipelineError, runPipeline, runOptionsSchema } from '../../../src/lib/processing/pipeline';
+import {
+	assertFiniteResults,
+	NonFiniteResultError,
+	PipelineError,
+	runPipeline,
+	runOptionsSchema
+} from '../../../src/lib/processing/pipeline';
 import { makeRecording } from './helpers';
 
 const person = { sex: 'male' as const, bodyMass: 80, stature: 1.8 };
@@ -36,7 +42,11 @@ describe('runPipeline', () => {
 		expect(row.unit).toBe('rad');
 		const d = r.dofs.find((x) => x.name === 'right.knee.flexion')!;
 		for (let k = 0; k < 401; k += 13) expect(d.power[k]).toBeCloseTo(d.moment[k] * d.velocity[k], 12);
-		expect(r.summary.filter((s) => s.dof === 'right.knee.flexion').map((s) => `${s.quantity} ${s.unit}`)).toEqual(['moment N·m', 'angle rad', 'power W']);
+		expect(r.summary.filter((s) => s.dof === 'right.knee.flexion').map((s) => `${s.quantity} ${s.unit}`)).toEqual([
+			'moment N·m',
+			'angle rad',
+			'power W'
+		]);
 	});
 
 	it('takes per-channel cutoffs and a gravity override', () => {
@@ -53,15 +63,22 @@ describe('runPipeline', () => {
 		const wrong = { ...rec, channels: rec.channels.slice(1) };
 		expect(() => runPipeline(built, wrong, {})).toThrow(/has 5 channels; the session model needs 6/);
 		const swapped = { ...rec, channels: [rec.channels[1], rec.channels[0], ...rec.channels.slice(2)] };
-		expect(() => runPipeline(built, swapped, {})).toThrow(/channel 1 is "right.hip.adduction"; the session model expects "right.hip.flexion"/);
-		const holes = { ...rec, channels: rec.channels.map((c, j) => (j === 3 ? { ...c, values: c.values.map((v, k) => (k === 50 ? NaN : v)) } : c)) };
+		expect(() => runPipeline(built, swapped, {})).toThrow(
+			/channel 1 is "right.hip.adduction"; the session model expects "right.hip.flexion"/
+		);
+		const holes = {
+			...rec,
+			channels: rec.channels.map((c, j) => (j === 3 ? { ...c, values: c.values.map((v, k) => (k === 50 ? NaN : v)) } : c))
+		};
 		expect(() => runPipeline(built, holes, {})).toThrow(PipelineError);
 		expect(() => runPipeline(built, holes, {})).toThrow(/"right.knee.flexion" has 1 missing samples/);
 		const filled = runPipeline(built, holes, { fillGaps: true });
 		expect(filled.applied.filledGaps).toEqual({ 'right.knee.flexion': 1 });
 		expect(() => runPipeline(built, rec, { cutoffHz: 60 })).toThrow(/below half the sampling rate \(50 Hz\)/);
 		expect(() => runPipeline(built, rec, { cutoffHz: -1 })).toThrow(/cutoffHz: must be a positive frequency/);
-		expect(() => runPipeline(built, rec, { perChannelCutoffHz: { 'right.knee.flex': 8 } })).toThrow(/names "right.knee.flex", which is not a channel of this session/);
+		expect(() => runPipeline(built, rec, { perChannelCutoffHz: { 'right.knee.flex': 8 } })).toThrow(
+			/names "right.knee.flex", which is not a channel of this session/
+		);
 	});
 
 	it('defaults: 6 Hz, no gap filling', () => {
@@ -106,7 +123,9 @@ describe('a result that is not a finite number fails the run (NonFiniteResultErr
 		expect((err as Error).name).toBe('PipelineError');
 		const at = (err as NonFiniteResultError).at;
 		expect(Number.isFinite(at.value)).toBe(false);
-		expect((err as Error).message).toContain(`the ${at.quantity} of DOF ${at.dof} is ${at.value} at ${Number(at.time.toPrecision(6))} s (sample ${at.sample + 1})`);
+		expect((err as Error).message).toContain(
+			`the ${at.quantity} of DOF ${at.dof} is ${at.value} at ${Number(at.time.toPrecision(6))} s (sample ${at.sample + 1})`
+		);
 		expect((err as Error).message).toMatch(/stores nothing/);
 		expect(['moment', 'moment per kg', 'power']).toContain(at.quantity);
 		// the first sample that overflows lies next to the spike (sample 201, t = 2 s)
@@ -114,23 +133,34 @@ describe('a result that is not a finite number fails the run (NonFiniteResultErr
 	});
 
 	it('gravity of 1e308 m/s²: every moment overflows from the first sample, named with its time 0 s', () => {
-		expect(() => runPipeline(built, rec, { gravity: [0, -1e308, 0] })).toThrow(/the moment of DOF right\.hip\.flexion is (-?Infinity|NaN) at 0 s \(sample 1\)/);
+		expect(() => runPipeline(built, rec, { gravity: [0, -1e308, 0] })).toThrow(
+			/the moment of DOF right\.hip\.flexion is (-?Infinity|NaN) at 0 s \(sample 1\)/
+		);
 	});
 
 	it('a NaN that reaches the results (a recording built around the parser) is named too', () => {
-		const bad = { ...rec, channels: rec.channels.map((c, j) => (j === 3 ? { ...c, values: c.values.map((v, k) => (k === 7 ? Infinity : v)) } : c)) };
+		const bad = {
+			...rec,
+			channels: rec.channels.map((c, j) => (j === 3 ? { ...c, values: c.values.map((v, k) => (k === 7 ? Infinity : v)) } : c))
+		};
 		// the velocity next to it (central difference, sample 7 at 0.06 s) is the first: named before the moments it spoils
-		expect(() => runPipeline(built, bad, { cutoffHz: null })).toThrow(/the velocity of DOF right\.knee\.flexion is -?Infinity at 0\.06 s \(sample 7\)/);
+		expect(() => runPipeline(built, bad, { cutoffHz: null })).toThrow(
+			/the velocity of DOF right\.knee\.flexion is -?Infinity at 0\.06 s \(sample 7\)/
+		);
 	});
 
 	it('assertFiniteResults passes finite results and refuses a summary figure that is not finite', () => {
 		const r = runPipeline(built, rec, {});
 		expect(() => assertFiniteResults(r.time, r.dofs, r.base, r.reactions, r.summary)).not.toThrow();
 		const summary = r.summary.map((s, i) => (i === 4 ? { ...s, mean: Infinity } : s));
-		expect(() => assertFiniteResults(r.time, r.dofs, r.base, r.reactions, summary)).toThrow(new RegExp(`summary of the ${r.summary[4].quantity} of DOF ${r.summary[4].dof.replace(/\./g, '\\.')} holds Infinity`));
+		expect(() => assertFiniteResults(r.time, r.dofs, r.base, r.reactions, summary)).toThrow(
+			new RegExp(`summary of the ${r.summary[4].quantity} of DOF ${r.summary[4].dof.replace(/\./g, '\\.')} holds Infinity`)
+		);
 		const force = Float64Array.from(r.reactions[1].force);
 		force[3 * 10 + 2] = NaN;
 		const reactions = r.reactions.map((x, i) => (i === 1 ? { ...x, force } : x));
-		expect(() => assertFiniteResults(r.time, r.dofs, r.base, reactions, r.summary)).toThrow(new RegExp(`reaction force \\(z\\) of joint ${r.reactions[1].joint.replace(/\./g, '\\.')} is NaN at 0\\.1 s \\(sample 11\\)`));
+		expect(() => assertFiniteResults(r.time, r.dofs, r.base, reactions, r.summary)).toThrow(
+			new RegExp(`reaction force \\(z\\) of joint ${r.reactions[1].joint.replace(/\./g, '\\.')} is NaN at 0\\.1 s \\(sample 11\\)`)
+		);
 	});
 });

@@ -17,7 +17,10 @@ import {
 import { scaleLimbs, LIMBS } from '../../../src/lib/anthropometry/scale';
 
 const FIX = join(import.meta.dirname, '../../fixtures/recordings');
-const LEG: ExpectedChannel[] = ['right.hip.flexion', 'right.knee.flexion', 'right.ankle.dorsiflexion'].map((name) => ({ name, kind: 'angle' }));
+const LEG: ExpectedChannel[] = ['right.hip.flexion', 'right.knee.flexion', 'right.ankle.dorsiflexion'].map((name) => ({
+	name,
+	kind: 'angle'
+}));
 const channels = (names: string[]): ExpectedChannel[] => names.map((name) => ({ name, kind: schemeKind(name) }));
 const opts = (o: Partial<ParseOptions> = {}): ParseOptions => ({ fileName: 'trial.csv', expected: LEG, ...o });
 
@@ -27,7 +30,12 @@ async function* chunked(bytes: Uint8Array, size: number): AsyncGenerator<Uint8Ar
 const utf8 = (s: string) => new TextEncoder().encode(s);
 
 /** A file in our layout at `hz`, one line per sample, `cells(i, t)` giving the angle cells. */
-function file(header: string, n: number, cells: (i: number, t: number) => (string | number)[], { hz = 100, d = ',', timeDigits = 2 } = {}): string {
+function file(
+	header: string,
+	n: number,
+	cells: (i: number, t: number) => (string | number)[],
+	{ hz = 100, d = ',', timeDigits = 2 } = {}
+): string {
 	const lines = [header];
 	for (let i = 0; i < n; i++) lines.push([(i / hz).toFixed(timeDigits), ...cells(i, i / hz)].join(d));
 	return lines.join('\n') + '\n';
@@ -47,7 +55,13 @@ const codes = (r: ParseResult) => problems(r).map((p) => p.code);
 
 describe('well-formed samples (tests/fixtures/recordings/good)', () => {
 	const index = JSON.parse(readFileSync(join(FIX, 'good/index.json'), 'utf8')) as Record<string, { expected: string[] }>;
-	const load = async (name: string) => recording(await parseRecording(new Uint8Array(readFileSync(join(FIX, 'good', name))), opts({ fileName: name, expected: channels(index[name].expected) })));
+	const load = async (name: string) =>
+		recording(
+			await parseRecording(
+				new Uint8Array(readFileSync(join(FIX, 'good', name))),
+				opts({ fileName: name, expected: channels(index[name].expected) })
+			)
+		);
 
 	test.each(Object.keys(index))('%s parses with no warnings, at 100 Hz, channels in the expected order', async (name) => {
 		const rec = await load(name);
@@ -118,7 +132,10 @@ describe('units and signs', () => {
 	});
 
 	test('time (ms) is converted to seconds and sets the sampling rate', async () => {
-		const text = file('time (ms),right.hip.flexion (deg),right.knee.flexion (deg),right.ankle.dorsiflexion (deg)', 40, () => [1, 2, 3], { hz: 0.25, timeDigits: 0 });
+		const text = file('time (ms),right.hip.flexion (deg),right.knee.flexion (deg),right.ankle.dorsiflexion (deg)', 40, () => [1, 2, 3], {
+			hz: 0.25,
+			timeDigits: 0
+		});
 		const rec = recording(await parseRecording(text, opts()));
 		expect(rec.time[1]).toBe(0.004);
 		expect(rec.sampleHz).toBeCloseTo(250, 9);
@@ -143,9 +160,17 @@ describe('chunk boundaries anywhere give the same result', () => {
 		...readdirSync(join(FIX, 'good'))
 			.filter((f) => f.endsWith('.csv'))
 			.map((f) => ['good', f]),
-		...['truncated-last-line.csv', 'semicolon-decimal-comma-bad-cell.csv', 'utf16le-bom.csv', 'latin1-degree-sign.csv', 'time-repeated-frame.csv', 'blank-cell.csv'].map((f) => ['malformed', f])
+		...[
+			'truncated-last-line.csv',
+			'semicolon-decimal-comma-bad-cell.csv',
+			'utf16le-bom.csv',
+			'latin1-degree-sign.csv',
+			'time-repeated-frame.csv',
+			'blank-cell.csv'
+		].map((f) => ['malformed', f])
 	];
-	const expectedFor = (dir: string, f: string) => channels((JSON.parse(readFileSync(join(FIX, dir, 'index.json'), 'utf8')) as Record<string, { expected: string[] }>)[f].expected);
+	const expectedFor = (dir: string, f: string) =>
+		channels((JSON.parse(readFileSync(join(FIX, dir, 'index.json'), 'utf8')) as Record<string, { expected: string[] }>)[f].expected);
 	test.each(files)('%s/%s fed in 1-byte, 7-byte and whole chunks', async (dir, f) => {
 		const bytes = new Uint8Array(readFileSync(join(FIX, dir, f)));
 		const o = opts({ fileName: f, expected: expectedFor(dir, f) });
@@ -195,33 +220,54 @@ describe('validation rules', () => {
 		lines[20] = lines[20].replace(/,-5$/, ',abc');
 		const r = await parseRecording(lines.join('\n'), opts({ fileName: 'K60-T3.csv' }));
 		expect(problems(r)).toEqual([
-			{ file: 'K60-T3.csv', row: 21, column: 'right.ankle.dorsiflexion (deg)', code: 'non-numeric', severity: 'error', message: expect.stringContaining('"abc"') }
+			{
+				file: 'K60-T3.csv',
+				row: 21,
+				column: 'right.ankle.dorsiflexion (deg)',
+				code: 'non-numeric',
+				severity: 'error',
+				message: expect.stringContaining('"abc"')
+			}
 		]);
 	});
 
 	test('non-numeric text is truncated in the message', async () => {
 		const long = 'x'.repeat(200);
-		const r = await parseRecording(legFile(40, (i) => [1, i === 3 ? long : 2, 3]), opts());
+		const r = await parseRecording(
+			legFile(40, (i) => [1, i === 3 ? long : 2, 3]),
+			opts()
+		);
 		expect(problems(r)[0].message.length).toBeLessThan(200);
 		expect(problems(r)[0].message).toContain('xxxx…');
 	});
 
 	test('after 20 problems of one code, one summary line says how many more', async () => {
-		const r = await parseRecording(legFile(60, (i) => [1, i < 50 ? 'bad' : 2, 3]), opts());
+		const r = await parseRecording(
+			legFile(60, (i) => [1, i < 50 ? 'bad' : 2, 3]),
+			opts()
+		);
 		const p = problems(r);
 		expect(p.filter((x) => x.code === 'non-numeric')).toHaveLength(MAX_PROBLEMS_PER_CODE + 1);
 		expect(p.at(-1)!.message).toMatch(/and 30 more/);
 	});
 
 	test('a comma file with decimal commas says that a comma cannot be the decimal mark', async () => {
-		const r = await parseRecording(legFile(40, () => ['1,5', '2,25', '3,0']), opts());
+		const r = await parseRecording(
+			legFile(40, () => ['1,5', '2,25', '3,0']),
+			opts()
+		);
 		expect(codes(r)[0]).toBe('cell-count');
 		expect(problems(r)[0].message).toMatch(/comma cannot also be the decimal mark/);
 	});
 
 	test('decimal commas are read in semicolon and tab files', async () => {
 		for (const d of [';', '\t']) {
-			const text = file(['time (s)', 'right.hip.flexion (deg)', 'right.knee.flexion (deg)', 'right.ankle.dorsiflexion (deg)'].join(d), 40, () => ['1,5', '-2,25', '1e1'], { d });
+			const text = file(
+				['time (s)', 'right.hip.flexion (deg)', 'right.knee.flexion (deg)', 'right.ankle.dorsiflexion (deg)'].join(d),
+				40,
+				() => ['1,5', '-2,25', '1e1'],
+				{ d }
+			);
 			const rec = recording(await parseRecording(text.replace(/(\d)\.(\d)/g, '$1,$2'), opts()));
 			expect(rec.channels.map((c) => c.values[0])).toEqual([1.5 * (Math.PI / 180), -2.25 * (Math.PI / 180), 10 * (Math.PI / 180)]);
 		}
@@ -229,7 +275,10 @@ describe('validation rules', () => {
 
 	test('sampling irregular beyond the tolerance names the row and both intervals; print rounding is allowed for', async () => {
 		// 120 Hz printed to 4 decimals: intervals of 0.0083 and 0.0084 s are rounding, not irregular sampling
-		const ok = file('time,right.hip.flexion (deg),right.knee.flexion (deg),right.ankle.dorsiflexion (deg)', 60, () => [1, 2, 3], { hz: 120, timeDigits: 4 });
+		const ok = file('time,right.hip.flexion (deg),right.knee.flexion (deg),right.ankle.dorsiflexion (deg)', 60, () => [1, 2, 3], {
+			hz: 120,
+			timeDigits: 4
+		});
 		expect(recording(await parseRecording(ok, opts())).sampleHz).toBeCloseTo(120, 1);
 		const lines = legFile(60).split('\n');
 		lines[30] = lines[30].replace(/^0\.29/, '0.2915');
@@ -252,7 +301,10 @@ describe('validation rules', () => {
 		for (let i = 20; i < 23; i++) expect(Math.abs(rec.channels[1].values[i] * (180 / Math.PI) - truth(i / 100))).toBeLessThan(0.01);
 		const long = await parseRecording(text, opts({ fillGaps: true, maxGapSamples: 2 }));
 		expect(codes(long)).toEqual(['gap-too-long']);
-		const edge = await parseRecording(legFile(60, (i) => [1, i < 2 ? 'NaN' : 5, 3]), opts({ fillGaps: true }));
+		const edge = await parseRecording(
+			legFile(60, (i) => [1, i < 2 ? 'NaN' : 5, 3]),
+			opts({ fillGaps: true })
+		);
 		expect(problems(edge)[0].message).toMatch(/at the start of the recording/);
 	});
 
@@ -273,7 +325,11 @@ describe('validation rules', () => {
 
 describe('mapping files from other systems', () => {
 	// the knee column is mapped as radians below, so its values are radians a knee can reach (20 rad would be refused)
-	const foreign = file('Time_ms;R Hip Flex [deg];R Knee Flex;R Ankle DF;Marker X', 40, (i) => [10, (20 + i) / 10, -5, 999], { hz: 0.1, timeDigits: 0, d: ';' });
+	const foreign = file('Time_ms;R Hip Flex [deg];R Knee Flex;R Ankle DF;Marker X', 40, (i) => [10, (20 + i) / 10, -5, 999], {
+		hz: 0.1,
+		timeDigits: 0,
+		d: ';'
+	});
 
 	test('headers outside our scheme ask for a mapping with suggestions a person confirms', async () => {
 		const r = await parseRecording(foreign, opts());
@@ -334,8 +390,14 @@ describe('mapping files from other systems', () => {
 		};
 		const withCol = (h: string, c: ColumnMapping['columns'][string]) => ({ ...base, columns: { ...base.columns, [h]: c } });
 		const run = async (m: unknown) => codes(await parseRecording(foreign, opts({ mapping: m as ColumnMapping })));
-		expect(await run(withCol('R Knee Flex', { channel: 'right.knee.flexion', unit: 'mm', flip: false }))).toEqual(['mapping-unit-mismatch', 'missing-channel']);
-		expect(await run(withCol('R Knee Flex', { channel: 'right.hip.flexion', unit: 'deg', flip: false }))).toEqual(['mapping-duplicate-channel', 'missing-channel']);
+		expect(await run(withCol('R Knee Flex', { channel: 'right.knee.flexion', unit: 'mm', flip: false }))).toEqual([
+			'mapping-unit-mismatch',
+			'missing-channel'
+		]);
+		expect(await run(withCol('R Knee Flex', { channel: 'right.hip.flexion', unit: 'deg', flip: false }))).toEqual([
+			'mapping-duplicate-channel',
+			'missing-channel'
+		]);
 		expect(await run(withCol('Marker X', { channel: 'left.knee.flexion', unit: 'deg', flip: false }))).toEqual(['mapping-unknown-channel']);
 		expect(await run({ ...base, timeColumn: 'Zeit' })).toContain('mapping-column-missing');
 		expect(await run({ ...base, timeUnit: 'min' })).toEqual(['mapping-invalid']);
@@ -346,7 +408,10 @@ describe('mapping files from other systems', () => {
 
 describe('malformed corpus (tests/fixtures/recordings/malformed)', () => {
 	const dir = join(FIX, 'malformed');
-	const index = JSON.parse(readFileSync(join(dir, 'index.json'), 'utf8')) as Record<string, { code: string; expected: string[]; options?: Partial<ParseOptions> }>;
+	const index = JSON.parse(readFileSync(join(dir, 'index.json'), 'utf8')) as Record<
+		string,
+		{ code: string; expected: string[]; options?: Partial<ParseOptions> }
+	>;
 
 	test('has at least 25 files, each listed once in index.json', () => {
 		const files = readdirSync(dir).filter((f) => f !== 'index.json');
@@ -355,7 +420,10 @@ describe('malformed corpus (tests/fixtures/recordings/malformed)', () => {
 	});
 
 	test.each(Object.entries(index))('%s is rejected with its code and a message', async (name, { code, expected, options }) => {
-		const r = await parseRecording(new Uint8Array(readFileSync(join(dir, name))), opts({ fileName: name, expected: channels(expected), ...options }));
+		const r = await parseRecording(
+			new Uint8Array(readFileSync(join(dir, name))),
+			opts({ fileName: name, expected: channels(expected), ...options })
+		);
 		const p = problems(r);
 		expect(p.map((x) => x.code)).toContain(code);
 		const hit = p.find((x) => x.code === code)!;
@@ -378,9 +446,15 @@ describe('checking without keeping values (keepValues: false, as the upload does
 			expect(scan.recording.channels.map((c) => [c.name, c.values.length])).toEqual(full.recording.channels.map((c) => [c.name, 0]));
 		} else if (!full.ok && !scan.ok) expect(scan.problems).toEqual(full.problems);
 	};
-	const malformed = JSON.parse(readFileSync(join(FIX, 'malformed/index.json'), 'utf8')) as Record<string, { expected: string[]; options?: Partial<ParseOptions> }>;
+	const malformed = JSON.parse(readFileSync(join(FIX, 'malformed/index.json'), 'utf8')) as Record<
+		string,
+		{ expected: string[]; options?: Partial<ParseOptions> }
+	>;
 	test.each(Object.entries(malformed))('malformed %s: the same problems', async (name, { expected, options }) => {
-		await same(new Uint8Array(readFileSync(join(FIX, 'malformed', name))), opts({ fileName: name, expected: channels(expected), ...options }));
+		await same(
+			new Uint8Array(readFileSync(join(FIX, 'malformed', name))),
+			opts({ fileName: name, expected: channels(expected), ...options })
+		);
 	});
 	const good = JSON.parse(readFileSync(join(FIX, 'good/index.json'), 'utf8')) as Record<string, { expected: string[] }>;
 	test.each(Object.entries(good))('good %s: the same recording apart from the values', async (name, { expected }) => {
@@ -430,15 +504,23 @@ describe('hard limits: values no recording of a person can hold are refused (imp
 
 	// IEEE 754-2008 binary64: the smallest positive normal number is 2^−1022 ≈ 2.2250738585072014e-308; below it lie the
 	// subnormals (down to 2^−1074 ≈ 4.9e-324) and then 0
-	test.each(['1e-400', '-1e-400', '2.2e-308', '5e-324', '0.0000001e-320'])('%s underflows (a non-zero literal read as 0 or as a subnormal) and is refused', async (cell) => {
-		const p = await refusedAt(kneeAt17(cell));
-		expect(p).toMatchObject({ row: 19, column: 'right.knee.flexion (deg)' });
-		expect(p.message).toMatch(/underflow/);
-	});
+	test.each(['1e-400', '-1e-400', '2.2e-308', '5e-324', '0.0000001e-320'])(
+		'%s underflows (a non-zero literal read as 0 or as a subnormal) and is refused',
+		async (cell) => {
+			const p = await refusedAt(kneeAt17(cell));
+			expect(p).toMatchObject({ row: 19, column: 'right.knee.flexion (deg)' });
+			expect(p.message).toMatch(/underflow/);
+		}
+	);
 
 	test('before this check 1e-400 was read as 0 silently: now it is not, while real zeros stay zeros', async () => {
 		expect(Number('1e-400')).toBe(0);
-		const zeros = recording(await parseRecording(legFile(40, (i) => [10, 30, i === 3 ? '0' : i === 4 ? '-0.000' : i === 5 ? '0e-400' : i === 6 ? '2.2250738585072014e-308' : 0]), opts()));
+		const zeros = recording(
+			await parseRecording(
+				legFile(40, (i) => [10, 30, i === 3 ? '0' : i === 4 ? '-0.000' : i === 5 ? '0e-400' : i === 6 ? '2.2250738585072014e-308' : 0]),
+				opts()
+			)
+		);
 		expect(zeros.channels[2].values[5]).toBe(0);
 		expect(zeros.channels[2].values[6]).toBe(2.2250738585072014e-308 * (Math.PI / 180));
 	});
@@ -452,7 +534,12 @@ describe('hard limits: values no recording of a person can hold are refused (imp
 	});
 
 	test('radians are compared with 4π (720°): 12.566 rad accepted, 12.567 rad refused', async () => {
-		const rad = (cell: string) => file('time (s),right.hip.flexion (rad),right.knee.flexion (rad),right.ankle.dorsiflexion (rad)', 40, (i) => [0.1, i === 17 ? cell : 0.5, 0]);
+		const rad = (cell: string) =>
+			file('time (s),right.hip.flexion (rad),right.knee.flexion (rad),right.ankle.dorsiflexion (rad)', 40, (i) => [
+				0.1,
+				i === 17 ? cell : 0.5,
+				0
+			]);
 		expect(4 * Math.PI).toBeGreaterThan(12.566);
 		expect(4 * Math.PI).toBeLessThan(12.567);
 		expect(recording(await parseRecording(rad('12.566'), opts())).channels[1].values[17]).toBe(12.566);
@@ -461,7 +548,12 @@ describe('hard limits: values no recording of a person can hold are refused (imp
 	});
 
 	const MOVING = channels(['right.knee.flexion', 'right.leg.base.px', 'right.leg.base.py']);
-	const based = (unit: 'm' | 'mm', cell: string) => file(`time (s),right.knee.flexion (deg),right.leg.base.px (${unit}),right.leg.base.py (${unit})`, 40, (i) => [30, i === 17 ? cell : unit === 'm' ? 0.2 : 200, unit === 'm' ? 0.9 : 900]);
+	const based = (unit: 'm' | 'mm', cell: string) =>
+		file(`time (s),right.knee.flexion (deg),right.leg.base.px (${unit}),right.leg.base.py (${unit})`, 40, (i) => [
+			30,
+			i === 17 ? cell : unit === 'm' ? 0.2 : 200,
+			unit === 'm' ? 0.9 : 900
+		]);
 
 	test('a base position of 101 m is refused; 100 m is accepted; a column in mm is compared in m', async () => {
 		const m = await refusedAt(based('m', '101'), { expected: MOVING });
@@ -469,8 +561,16 @@ describe('hard limits: values no recording of a person can hold are refused (imp
 		expect(m.message).toMatch(/"101" \(m\) is 101 m, beyond the hard limit of ±100 m/);
 		const mm = await refusedAt(based('mm', '-101000'), { expected: MOVING });
 		expect(mm.message).toMatch(/"-101000" \(mm\) is -101 m/);
-		for (const [unit, cell] of [['m', '100'], ['m', '-99.999'], ['mm', '100000'], ['mm', '-99999.9']] as const)
-			expect(recording(await parseRecording(based(unit, cell), opts({ expected: MOVING }))).channels[1].values[17]).toBeCloseTo(Number(cell) / (unit === 'mm' ? 1000 : 1), 12);
+		for (const [unit, cell] of [
+			['m', '100'],
+			['m', '-99.999'],
+			['mm', '100000'],
+			['mm', '-99999.9']
+		] as const)
+			expect(recording(await parseRecording(based(unit, cell), opts({ expected: MOVING }))).channels[1].values[17]).toBeCloseTo(
+				Number(cell) / (unit === 'mm' ? 1000 : 1),
+				12
+			);
 	});
 
 	test('mapped files are held to the same limits after unit conversion (and a sign flip changes nothing)', async () => {
@@ -478,13 +578,21 @@ describe('hard limits: values no recording of a person can hold are refused (imp
 		const mapping: ColumnMapping = {
 			timeColumn: 'T',
 			timeUnit: 's',
-			columns: { Knee: { channel: 'right.knee.flexion', unit: 'deg', flip: true }, 'Pelvis X': { channel: 'right.leg.base.px', unit: 'mm', flip: true } }
+			columns: {
+				Knee: { channel: 'right.knee.flexion', unit: 'deg', flip: true },
+				'Pelvis X': { channel: 'right.leg.base.px', unit: 'mm', flip: true }
+			}
 		};
 		const expected = channels(['right.knee.flexion', 'right.leg.base.px']);
 		const p = await refusedAt(text, { expected, mapping });
 		expect(p).toMatchObject({ row: 19, column: 'Pelvis X' });
 		expect(p.message).toMatch(/100\.5 m/);
-		const ok = recording(await parseRecording(file('T;Knee;Pelvis X', 40, () => [30, '99999'], { d: ';' }), opts({ expected, mapping })));
+		const ok = recording(
+			await parseRecording(
+				file('T;Knee;Pelvis X', 40, () => [30, '99999'], { d: ';' }),
+				opts({ expected, mapping })
+			)
+		);
 		expect(ok.channels[1].values[0]).toBeCloseTo(-99.999, 12);
 	});
 
@@ -493,7 +601,9 @@ describe('hard limits: values no recording of a person can hold are refused (imp
 		lines[9] = lines[9].replace(/^[^,]+/, '1e-400');
 		const p = await refusedAt(lines.join('\n'));
 		expect(p).toMatchObject({ row: 10, column: 'time (s)' });
-		lines[9] = legFile().split('\n')[9].replace(/^[^,]+/, '1e400');
+		lines[9] = legFile()
+			.split('\n')[9]
+			.replace(/^[^,]+/, '1e400');
 		expect((await refusedAt(lines.join('\n'))).message).toMatch(/overflows/);
 	});
 });
@@ -507,7 +617,7 @@ describe('line ends: LF, CRLF and lone CR, also mixed in one file', () => {
 			.map((line, k, all) => (k === all.length - 1 ? line : line + ['\n', '\r', '\r\n'][k % 3]))
 			.join('');
 
-	test('a mixed file gives the LF file\'s recording, fed in 1-byte, 7-byte and whole chunks and as strings', async () => {
+	test("a mixed file gives the LF file's recording, fed in 1-byte, 7-byte and whole chunks and as strings", async () => {
 		const text = mixed(lf);
 		expect(text).toMatch(/\r[^\n]/);
 		expect(text).toMatch(/[^\r]\n/);

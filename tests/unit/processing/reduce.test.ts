@@ -32,7 +32,8 @@ function noisySignal(n: number, seed: number): { time: Float64Array; values: Flo
 }
 
 function expectStrictlyIncreasing(t: number[]): void {
-	for (let k = 1; k < t.length; k++) if (!(t[k] > t[k - 1])) throw new Error(`time not increasing at output ${k}: ${t[k - 1]} then ${t[k]}`);
+	for (let k = 1; k < t.length; k++)
+		if (!(t[k] > t[k - 1])) throw new Error(`time not increasing at output ${k}: ${t[k - 1]} then ${t[k]}`);
 }
 
 /** For every bucket, its minimum and maximum finite sample (time and value) are in the output. */
@@ -93,7 +94,10 @@ describe('reduceForPlot', () => {
 		const { time, values } = noisySignal(n, 21);
 		const out = reduceForPlot(time, values, 2000);
 		const drawn = new Set(out.t);
-		const reference = LTTB(Array.from(time, (t, i): [number, number] => [t, values[i]]), 668);
+		const reference = LTTB(
+			Array.from(time, (t, i): [number, number] => [t, values[i]]),
+			668
+		);
 		expect(reference.length).toBe(668);
 		for (let k = 0; k < reference.length; k++) expect(drawn.has((reference[k] as [number, number])[0])).toBe(true);
 	});
@@ -132,7 +136,11 @@ describe('reduceForPlot', () => {
 
 	it('skips NaN samples and keeps one NaN in every gap so a line breaks', () => {
 		const { time, values } = noisySignal(1e5, 13);
-		const gapsAt = [[100, 150], [40_000, 40_001], [70_000, 72_500]];
+		const gapsAt = [
+			[100, 150],
+			[40_000, 40_001],
+			[70_000, 72_500]
+		];
 		for (const [a, b] of gapsAt) for (let i = a; i < b; i++) values[i] = Number.NaN;
 		values[0] = Number.NaN; // leading gap: dropped
 		values[99_999] = Number.NaN; // trailing gap: dropped
@@ -187,7 +195,14 @@ describe('LTTB (downsample package) on a tiny example', () => {
 	//    P = (3,2): |(−3)(−1) − (−1)(−2)| / 2 = |1| / 2 = 0.5
 	//    P = (4,0): |(−3)(−3) − (−2)(−2)| / 2 = |5| / 2 = 2.5   → picks (4,0), index 4
 	//  First and last points are always kept → indices [0, 2, 4, 5].
-	const pts: [number, number][] = [[0, 0], [1, 1], [2, 3], [3, 2], [4, 0], [5, 1]];
+	const pts: [number, number][] = [
+		[0, 0],
+		[1, 1],
+		[2, 3],
+		[3, 2],
+		[4, 0],
+		[5, 1]
+	];
 
 	it('picks the largest triangle in each bucket (hand-computed)', () => {
 		expect(LTTBIndexesForBuckets([[pts[0]], [pts[1], pts[2]], [pts[3], pts[4]], [pts[5]]])).toEqual([0, 2, 4, 5]);
@@ -224,11 +239,19 @@ describe('reduceForPlot as the series API uses it', () => {
 	});
 	it('keeps a gap of NaN visible', () => {
 		const v = new Float64Array(100).fill(NaN);
-		const r = reduceForPlot(Float64Array.from({ length: 100 }, (_, i) => i), v, 10);
+		const r = reduceForPlot(
+			Float64Array.from({ length: 100 }, (_, i) => i),
+			v,
+			10
+		);
 		expect(r.v.every(Number.isNaN)).toBe(true);
 		// a gap inside a curve: one NaN point between finite ones, so the drawn line breaks there
 		const w = Float64Array.from({ length: 1000 }, (_, i) => (i >= 400 && i < 450 ? NaN : Math.sin(i / 50)));
-		const g = reduceForPlot(Float64Array.from({ length: 1000 }, (_, i) => i), w, 50);
+		const g = reduceForPlot(
+			Float64Array.from({ length: 1000 }, (_, i) => i),
+			w,
+			50
+		);
 		const k = g.v.findIndex(Number.isNaN);
 		expect(k).toBeGreaterThan(0);
 		expect(g.t[k]).toBe(400);

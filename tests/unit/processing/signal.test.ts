@@ -28,7 +28,15 @@ interface Fixture {
 		doublePassGainAtCutoff: number;
 	}[];
 	signals: { name: string; sampleHz: number; x: number[]; outputs: { cutoffHz: number; doublePassCorrection: boolean; y: number[] }[] }[];
-	residual: { sampleHz: number; sigma: number; noiseRms: number; highestSignalHz: number; x: number[]; cutoffs: number[]; residuals: number[] };
+	residual: {
+		sampleHz: number;
+		sigma: number;
+		noiseRms: number;
+		highestSignalHz: number;
+		x: number[];
+		cutoffs: number[];
+		residuals: number[];
+	};
 }
 
 const committed = 'tests/fixtures/processing/scipy-filtfilt.json';
@@ -85,15 +93,18 @@ describe(`scipy.signal reference (${regenerated ? 'regenerated now' : 'committed
 		expect(new Set(fixture.signals.map((s) => s.name))).toEqual(new Set(['noisy sinusoid', 'step', 'chirp']));
 	});
 
-	it.runIf(regenerated)('the committed fixture is what the script writes now (else: rerun tests/reference/scipy_filter.py --out ' + committed + ')', () => {
-		const old: Fixture = JSON.parse(fs.readFileSync(committed, 'utf8'));
-		expect(old.signals.map((s) => s.name)).toEqual(fixture.signals.map((s) => s.name));
-		fixture.signals.forEach((s, k) => {
-			expect(relErr(old.signals[k].x, s.x)).toBeLessThan(1e-12);
-			s.outputs.forEach((o, j) => expect(relErr(old.signals[k].outputs[j].y, o.y)).toBeLessThan(1e-12));
-		});
-		expect(relErr(old.residual.x, fixture.residual.x)).toBeLessThan(1e-12);
-	});
+	it.runIf(regenerated)(
+		'the committed fixture is what the script writes now (else: rerun tests/reference/scipy_filter.py --out ' + committed + ')',
+		() => {
+			const old: Fixture = JSON.parse(fs.readFileSync(committed, 'utf8'));
+			expect(old.signals.map((s) => s.name)).toEqual(fixture.signals.map((s) => s.name));
+			fixture.signals.forEach((s, k) => {
+				expect(relErr(old.signals[k].x, s.x)).toBeLessThan(1e-12);
+				s.outputs.forEach((o, j) => expect(relErr(old.signals[k].outputs[j].y, o.y)).toBeLessThan(1e-12));
+			});
+			expect(relErr(old.residual.x, fixture.residual.x)).toBeLessThan(1e-12);
+		}
+	);
 
 	for (const d of fixture.designs) {
 		it(`butter(2) at ${d.cutoffHz} Hz / ${d.sampleHz} Hz ${d.doublePassCorrection ? 'with' : 'without'} double-pass correction: b, a, design cutoff (scipy.signal.butter)`, () => {
@@ -120,7 +131,9 @@ describe(`scipy.signal reference (${regenerated ? 'regenerated now' : 'committed
 				const f = butterworthLowPass(o.cutoffHz, s.sampleHz, { doublePassCorrection: o.doublePassCorrection });
 				expect(relErr(filtfilt(f.b, f.a, x), o.y, amplitude)).toBeLessThan(1e-9);
 				// scipy's own coefficients through our filtfilt: separates the pass from the design
-				const d = fixture.designs.find((e) => e.sampleHz === s.sampleHz && e.cutoffHz === o.cutoffHz && e.doublePassCorrection === o.doublePassCorrection)!;
+				const d = fixture.designs.find(
+					(e) => e.sampleHz === s.sampleHz && e.cutoffHz === o.cutoffHz && e.doublePassCorrection === o.doublePassCorrection
+				)!;
 				expect(relErr(filtfilt(d.b, d.a, x), o.y, amplitude)).toBeLessThan(1e-9);
 				if (o.doublePassCorrection) expect(relErr(lowPassZeroLag(x, s.sampleHz, o.cutoffHz), o.y, amplitude)).toBeLessThan(1e-9);
 				// in place (out = x) gives the same result
@@ -254,7 +267,14 @@ describe('differentiate: finite differences against the analytic derivatives of 
 			ea = Math.max(ea, Math.abs(d.acceleration[i] - s.a(i)));
 		}
 		const ends = [0, n - 1];
-		return { s, d, ev, ea, endV: Math.max(...ends.map((i) => Math.abs(d.velocity[i] - s.v(i)))), endA: Math.max(...ends.map((i) => Math.abs(d.acceleration[i] - s.a(i)))) };
+		return {
+			s,
+			d,
+			ev,
+			ea,
+			endV: Math.max(...ends.map((i) => Math.abs(d.velocity[i] - s.v(i)))),
+			endA: Math.max(...ends.map((i) => Math.abs(d.acceleration[i] - s.a(i))))
+		};
 	}
 
 	it('within the O(h²) bounds inside and at the ends (100 Hz)', () => {

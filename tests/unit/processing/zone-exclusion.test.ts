@@ -33,7 +33,15 @@ describe('summarise leaves the edge zone out', () => {
 		expect(row.mean).toBeCloseTo(1.4, 15); // (1 + 2 + 5 + 3 − 4) / 5 = 7 / 5
 		expect(row.samples).toBe(5);
 		// the whole trial, edge zones included: 10 at 0 s, −9 at 0.7 s, mean 8 / 8
-		expect(row.wholeTrial).toEqual({ peakPositive: 10, peakPositiveTime: 0, peakNegative: -9, peakNegativeTime: time[7], range: 19, mean: 1, samples: 8 });
+		expect(row.wholeTrial).toEqual({
+			peakPositive: 10,
+			peakPositiveTime: 0,
+			peakNegative: -9,
+			peakNegativeTime: time[7],
+			range: 19,
+			mean: 1,
+			samples: 8
+		});
 		expect(row.dof).toBe('right.knee.flexion');
 		expect(row.unit).toBe('N·m');
 	});
@@ -47,7 +55,13 @@ describe('summarise leaves the edge zone out', () => {
 		expect(row.peakNegativeTime).toBeCloseTo(0.3, 15);
 		expect(row.mean).toBeCloseTo(6 / 8, 15); // 0 + 3 + 3 − 1 − 1 + 2 + 0 + 0 = 6
 		const { wholeTrial, ...outside } = row;
-		expect({ peakPositive: outside.peakPositive, peakNegative: outside.peakNegative, range: outside.range, mean: outside.mean, samples: outside.samples }).toEqual({
+		expect({
+			peakPositive: outside.peakPositive,
+			peakNegative: outside.peakNegative,
+			range: outside.range,
+			mean: outside.mean,
+			samples: outside.samples
+		}).toEqual({
 			peakPositive: wholeTrial.peakPositive,
 			peakNegative: wholeTrial.peakNegative,
 			range: wholeTrial.range,
@@ -74,7 +88,9 @@ describe('summarise leaves the edge zone out', () => {
 	it('the pipeline summary leaves out exactly the run’s own edge zone and keeps the whole trial beside it', () => {
 		const built = buildSessionModel({ sex: 'male', bodyMass: 80, stature: 1.8 }, { table: 'de-leva-1996', limbs: ['right.leg'] });
 		// the largest angle sits at the very first sample (a falling ramp plus a bump in the middle)
-		const rec = makeRecording(built, 401, 100, (n, t) => (n === 'right.knee.flexion' ? 1.5 - 0.2 * t + 0.3 * Math.exp(-((t - 2) ** 2) / 0.1) : 0));
+		const rec = makeRecording(built, 401, 100, (n, t) =>
+			n === 'right.knee.flexion' ? 1.5 - 0.2 * t + 0.3 * Math.exp(-((t - 2) ** 2) / 0.1) : 0
+		);
 		const r = runPipeline(built, rec, { cutoffHz: 6 });
 		const z = r.edgeZone;
 		expect(z.startSamples + z.endSamples).toBeGreaterThan(0);
@@ -105,7 +121,19 @@ describe('samples, times and repetitions in the zone', () => {
 	const zone = { startSamples: 2, endSamples: 3 }; // samples 0, 1 and 8, 9, 10 inside
 
 	it('marks samples and finds the span outside the zone', () => {
-		expect(Array.from(t11, (_, k) => inEdgeZone(k, 11, zone))).toEqual([true, true, false, false, false, false, false, false, true, true, true]);
+		expect(Array.from(t11, (_, k) => inEdgeZone(k, 11, zone))).toEqual([
+			true,
+			true,
+			false,
+			false,
+			false,
+			false,
+			false,
+			false,
+			true,
+			true,
+			true
+		]);
 		expect(reliableRange(11, zone)).toEqual({ first: 2, last: 7 });
 		expect(reliableSpan(t11, zone)).toEqual({ from: t11[2], to: t11[7] });
 		expect(reliableRange(11, { startSamples: 6, endSamples: 5 })).toBeNull();
@@ -169,7 +197,10 @@ describe('a recording wholly inside its edge zones', () => {
 		const { buildSessionModel } = await import('../../../src/lib/processing/session-model');
 		const { runPipeline, PipelineError } = await import('../../../src/lib/processing/pipeline');
 		const { makeRecording } = await import('./helpers');
-		const built = buildSessionModel({ sex: 'female', bodyMass: 64, stature: 1.68 }, { table: 'de-leva-1996', limbs: ['right.leg'], bases: {}, loads: [], gravity: [0, -9.81, 0] });
+		const built = buildSessionModel(
+			{ sex: 'female', bodyMass: 64, stature: 1.68 },
+			{ table: 'de-leva-1996', limbs: ['right.leg'], bases: {}, loads: [], gravity: [0, -9.81, 0] }
+		);
 		const short = () => makeRecording(built, 20, 200, (n, t) => (n === 'right.knee.flexion' ? 0.6 + 0.4 * Math.sin(Math.PI * t) : 0));
 		expect(() => runPipeline(built, short(), { cutoffHz: 6 })).toThrow(PipelineError);
 		expect(() => runPipeline(built, short(), { cutoffHz: 6 })).toThrow(/lies wholly inside its edge zones .*record more frames/);

@@ -23,11 +23,17 @@ describe('parseConsentAnswers', () => {
 	it('accepts yesterday and tomorrow (time zones), refuses two days off', () => {
 		expect(parseConsentAnswers(form({ ...all, signedOn: '2026-12-01' }), ['a', 'b'], '2026-12-02').signedOn).toBe('2026-12-01');
 		expect(parseConsentAnswers(form({ ...all, signedOn: '2026-12-03' }), ['a', 'b'], '2026-12-02').signedOn).toBe('2026-12-03');
-		expect(errorsOf(() => parseConsentAnswers(form({ ...all, signedOn: '2026-11-30' }), ['a', 'b'], '2026-12-02')).signedOn).toMatch(/today’s date \(2026-12-02\)/);
-		expect(errorsOf(() => parseConsentAnswers(form({ ...all, signedOn: '2.12.2026' }), ['a', 'b'], '2026-12-02')).signedOn).toMatch(/YYYY-MM-DD/);
+		expect(errorsOf(() => parseConsentAnswers(form({ ...all, signedOn: '2026-11-30' }), ['a', 'b'], '2026-12-02')).signedOn).toMatch(
+			/today’s date \(2026-12-02\)/
+		);
+		expect(errorsOf(() => parseConsentAnswers(form({ ...all, signedOn: '2.12.2026' }), ['a', 'b'], '2026-12-02')).signedOn).toMatch(
+			/YYYY-MM-DD/
+		);
 	});
 	it('names each unticked statement and a missing name', () => {
-		const e = errorsOf(() => parseConsentAnswers(form({ 'confirm-0': 'yes', fullName: ' ', signedOn: '2026-12-02' }), ['a', 'b', 'c'], '2026-12-02'));
+		const e = errorsOf(() =>
+			parseConsentAnswers(form({ 'confirm-0': 'yes', fullName: ' ', signedOn: '2026-12-02' }), ['a', 'b', 'c'], '2026-12-02')
+		);
 		expect(Object.keys(e).sort()).toEqual(['confirm-1', 'confirm-2', 'fullName']);
 	});
 });

@@ -9,7 +9,9 @@ const problems = (text: string, mayImportPersonal = true) => {
 
 describe('checkImportText', () => {
 	it('numbers rows by the line they start on, skipping blank lines and counting lines inside quoted values', () => {
-		const r = checkImportText('\n sex,body_mass_kg,stature_m,notes\nfemale,60,1.6,"a\nb\nc"\n\n,,,\nmale,70,1.7,\n', { mayImportPersonal: false });
+		const r = checkImportText('\n sex,body_mass_kg,stature_m,notes\nfemale,60,1.6,"a\nb\nc"\n\n,,,\nmale,70,1.7,\n', {
+			mayImportPersonal: false
+		});
 		expect(r.ok).toBe(true);
 		// header on line 2; the first participant on line 3 (its note runs to line 5); lines 6 (empty) and 7 (empty values) are skipped
 		expect(r.rows.map((x) => x.row)).toEqual([3, 8]);

@@ -26,15 +26,30 @@ describe('assertStorable (called by writeResults before anything is written)', (
 		const c2 = computeRun(body, setup, recording(), runOptionsSchema.parse({}));
 		const force = c2.series.find((s) => s.quantity === 'reaction_force')!;
 		new Float64Array(force.data.buffer, force.data.byteOffset, force.data.byteLength / 8)[3 * 5 + 1] = NaN;
-		expect(() => assertStorable(c2)).toThrow(new RegExp(`the reaction force \\(y\\) of ${force.name.replace(/\./g, '\\.')} at 0\\.05 s \\(sample 6\\) is NaN`));
+		expect(() => assertStorable(c2)).toThrow(
+			new RegExp(`the reaction force \\(y\\) of ${force.name.replace(/\./g, '\\.')} at 0\\.05 s \\(sample 6\\) is NaN`)
+		);
 	});
 
 	it('refuses a summary figure that is not finite (null in JSON), but not a part with no samples', () => {
 		const c = computeRun(body, setup, recording(), runOptionsSchema.parse({}));
 		const row = c.summary[0];
-		expect(() => assertStorable({ ...c, summary: [{ ...row, mean: NaN }] })).toThrow(new RegExp(`summary's mean of the ${row.quantity} of ${row.dof.replace(/\./g, '\\.')} is NaN`));
-		expect(() => assertStorable({ ...c, summary: [{ ...row, wholeTrial: { ...row.wholeTrial, peakPositive: -Infinity } }] })).toThrow(/peakPositive \(whole trial\)/);
-		const empty = { ...row, peakPositive: NaN, peakPositiveTime: NaN, peakNegative: NaN, peakNegativeTime: NaN, range: NaN, mean: NaN, samples: 0 };
+		expect(() => assertStorable({ ...c, summary: [{ ...row, mean: NaN }] })).toThrow(
+			new RegExp(`summary's mean of the ${row.quantity} of ${row.dof.replace(/\./g, '\\.')} is NaN`)
+		);
+		expect(() => assertStorable({ ...c, summary: [{ ...row, wholeTrial: { ...row.wholeTrial, peakPositive: -Infinity } }] })).toThrow(
+			/peakPositive \(whole trial\)/
+		);
+		const empty = {
+			...row,
+			peakPositive: NaN,
+			peakPositiveTime: NaN,
+			peakNegative: NaN,
+			peakNegativeTime: NaN,
+			range: NaN,
+			mean: NaN,
+			samples: 0
+		};
 		expect(() => assertStorable({ ...c, summary: [empty] })).not.toThrow();
 	});
 

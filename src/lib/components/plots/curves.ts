@@ -9,7 +9,8 @@ export type PlotCurve = Omit<Curve, 'quantity'> & { quantity: string };
 export type PlotSeries = Pick<SeriesAnswer, 'runId' | 'samples' | 'bodyMassKg'> & { curves: PlotCurve[]; edgeZone?: EdgeZoneView };
 
 /** "right.shoulder.internalRotation" → "right shoulder internal rotation". */
-export const dofWords = (name: string): string => name.replace(/[._]/g, ' ').replace(/([a-z])([A-Z])/g, (_, a: string, b: string) => `${a} ${b.toLowerCase()}`);
+export const dofWords = (name: string): string =>
+	name.replace(/[._]/g, ' ').replace(/([a-z])([A-Z])/g, (_, a: string, b: string) => `${a} ${b.toLowerCase()}`);
 
 /** "right.knee.flexion" → "Right knee flexion" (as a title). */
 export function dofLabel(name: string): string {

@@ -33,8 +33,13 @@ export interface PlotZone {
 	title: string;
 }
 
-const QUANTITY_WORD: Record<string, string> = { moment: 'moment', moment_per_kg: 'moment', angle: 'angle', power: 'power', velocity: 'velocity' };
-
+const QUANTITY_WORD: Record<string, string> = {
+	moment: 'moment',
+	moment_per_kg: 'moment',
+	angle: 'angle',
+	power: 'power',
+	velocity: 'velocity'
+};
 
 /** Short positive sense: "flexion: shank backward" → "flexion". */
 export const positiveWord = (positive: string | null) => (positive ? positive.split(':')[0].trim() : null);
@@ -49,7 +54,8 @@ export function displayUnit(unit: string): { unit: string; factor: number } {
 /** e.g. "right knee flexion moment (N·m), + = flexion". Power: + = generation (moment and motion in the same sense). */
 export function axisLabel(name: string, quantity: string, unit: string, positive: string | null): string {
 	const word = QUANTITY_WORD[quantity] ?? quantity;
-	const sign = quantity === 'power' ? 'generation (moment and motion in the same sense)' : (positiveWord(positive) ?? 'positive sense not recorded');
+	const sign =
+		quantity === 'power' ? 'generation (moment and motion in the same sense)' : (positiveWord(positive) ?? 'positive sense not recorded');
 	return `${dofWords(name)} ${word} (${unit}), + = ${sign}`;
 }
 

@@ -61,10 +61,22 @@ export async function loadActor(userId: string | undefined, sessionVersion: numb
 	const user = await User.findByPk(userId, { include: [StudyMember] });
 	if (!user || user.deactivatedAt || (sessionVersion ?? 0) !== user.sessionVersion) return null;
 	const members = user.StudyMembers ?? [];
-	return { id: user.id, email: user.email, name: user.name, isAdmin: user.isAdmin, roles: new Map(members.map((m) => [m.studyId, m.role])) };
+	return {
+		id: user.id,
+		email: user.email,
+		name: user.name,
+		isAdmin: user.isAdmin,
+		roles: new Map(members.map((m) => [m.studyId, m.role]))
+	};
 }
 
-async function deny(actor: Actor | null, ctx: RequestContext, action: string, studyId: string | null, kind: 'not-found' | 'forbidden'): Promise<never> {
+async function deny(
+	actor: Actor | null,
+	ctx: RequestContext,
+	action: string,
+	studyId: string | null,
+	kind: 'not-found' | 'forbidden'
+): Promise<never> {
 	await record({
 		action: 'access.denied',
 		actorUserId: actor?.id ?? null,
@@ -94,7 +106,12 @@ export async function guardLab(actor: Actor | null, ctx: RequestContext, action:
  * Guards an action on a record of `studyId`. Someone with no role in the study gets not-found, so that the
  * record's existence does not leak; a member whose role does not allow it gets forbidden. Denials are audited.
  */
-export async function guardStudyAction(actor: Actor | null, ctx: RequestContext, action: StudyAction, studyId: string | null | undefined): Promise<Actor> {
+export async function guardStudyAction(
+	actor: Actor | null,
+	ctx: RequestContext,
+	action: StudyAction,
+	studyId: string | null | undefined
+): Promise<Actor> {
 	const a = requireActor(actor);
 	if (!studyId || !a.roles.has(studyId)) await deny(a, ctx, action, studyId ?? null, 'not-found');
 	if (!may(a, action, studyId!)) await deny(a, ctx, action, studyId!, 'forbidden');

@@ -30,13 +30,20 @@ function authAdapter(): Adapter {
 	return adapter;
 }
 
-export const normaliseEmail = (e: unknown) => String(e ?? '').trim().toLowerCase();
+export const normaliseEmail = (e: unknown) =>
+	String(e ?? '')
+		.trim()
+		.toLowerCase();
 
 function clientAddress(request: Request): string | null {
 	return request.headers.get('x-momentry-client-address');
 }
 
-export const { handle: authHandle, signIn, signOut } = SvelteKitAuth(async (): Promise<SvelteKitAuthConfig> => ({
+export const {
+	handle: authHandle,
+	signIn,
+	signOut
+} = SvelteKitAuth(async (): Promise<SvelteKitAuthConfig> => ({
 	adapter: authAdapter(),
 	secret: process.env.AUTH_SECRET,
 	trustHost: true,
@@ -65,7 +72,13 @@ export const { handle: authHandle, signIn, signOut } = SvelteKitAuth(async (): P
 				const ip = clientAddress(request);
 				const throttle = await checkThrottle(email, ip);
 				if (throttle.blocked) {
-					await record({ action: 'auth.sign-in', actorLabel: email, outcome: 'denied', ipAddress: ip, details: { method: 'password', reason: 'rate limited' } });
+					await record({
+						action: 'auth.sign-in',
+						actorLabel: email,
+						outcome: 'denied',
+						ipAddress: ip,
+						details: { method: 'password', reason: 'rate limited' }
+					});
 					throw new RateLimited();
 				}
 				const user = await User.findOne({ where: { email } });
@@ -94,11 +107,23 @@ export const { handle: authHandle, signIn, signOut } = SvelteKitAuth(async (): P
 			if (email?.verificationRequest) {
 				// Unknown and deactivated addresses get the same page as real ones, and no e-mail.
 				if (!usable) {
-					await record({ action: 'auth.sign-in-link', actorLabel: normaliseEmail(user.email), outcome: 'denied', ipAddress: currentClientAddress(), details: { reason: existing ? 'deactivated' : 'no such account' } });
+					await record({
+						action: 'auth.sign-in-link',
+						actorLabel: normaliseEmail(user.email),
+						outcome: 'denied',
+						ipAddress: currentClientAddress(),
+						details: { reason: existing ? 'deactivated' : 'no such account' }
+					});
 					// exactly where Auth.js sends a real request (it forwards to pages.verifyRequest from there)
 					return '/auth/verify-request?provider=nodemailer&type=email';
 				}
-				await record({ action: 'auth.sign-in-link', actorLabel: existing.email, actorUserId: existing.id, ipAddress: currentClientAddress(), details: { sent: true } });
+				await record({
+					action: 'auth.sign-in-link',
+					actorLabel: existing.email,
+					actorUserId: existing.id,
+					ipAddress: currentClientAddress(),
+					details: { sent: true }
+				});
 				return true;
 			}
 			return Boolean(usable);
@@ -126,7 +151,12 @@ export const { handle: authHandle, signIn, signOut } = SvelteKitAuth(async (): P
 			});
 		}
 	},
-	logger: { error: (e) => { if (!(e instanceof CredentialsSignin)) console.error('[auth]', e.message); }, warn: () => {} }
+	logger: {
+		error: (e) => {
+			if (!(e instanceof CredentialsSignin)) console.error('[auth]', e.message);
+		},
+		warn: () => {}
+	}
 }));
 
 export { LIMITS };

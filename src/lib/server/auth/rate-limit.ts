@@ -14,7 +14,13 @@ export async function checkThrottle(email: string, ip: string | null): Promise<T
 	const since = new Date(Date.now() - LIMITS.windowMinutes * 60_000);
 	const [byAccount, byAddress] = await Promise.all([
 		SignInFailure.findAll({ where: { email, occurredAt: { [Op.gt]: since } }, order: [['occurredAt', 'ASC']], attributes: ['occurredAt'] }),
-		ip ? SignInFailure.findAll({ where: { ipAddress: ip, occurredAt: { [Op.gt]: since } }, order: [['occurredAt', 'ASC']], attributes: ['occurredAt'] }) : Promise.resolve([])
+		ip
+			? SignInFailure.findAll({
+					where: { ipAddress: ip, occurredAt: { [Op.gt]: since } },
+					order: [['occurredAt', 'ASC']],
+					attributes: ['occurredAt']
+				})
+			: Promise.resolve([])
 	]);
 	const over = byAccount.length >= LIMITS.perAccount ? byAccount : byAddress.length >= LIMITS.perAddress ? byAddress : null;
 	if (!over) return { blocked: false, retryAfterMinutes: 0 };

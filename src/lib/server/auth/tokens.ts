@@ -33,10 +33,7 @@ export function hashToken(token: string): string {
  */
 export async function issueToken(purpose: TokenPurpose, userId: string, transaction?: Transaction, now = new Date()): Promise<string> {
 	const token = randomBytes(32).toString('base64url');
-	await OneTimeToken.update(
-		{ expiresAt: now },
-		{ where: { purpose, userId, usedAt: null, expiresAt: { [Op.gt]: now } }, transaction }
-	);
+	await OneTimeToken.update({ expiresAt: now }, { where: { purpose, userId, usedAt: null, expiresAt: { [Op.gt]: now } }, transaction });
 	await OneTimeToken.create(
 		{ purpose, userId, tokenHash: hashToken(token), expiresAt: new Date(now.getTime() + TOKEN_LIFETIME_MS[purpose]) },
 		{ transaction }
@@ -46,7 +43,11 @@ export async function issueToken(purpose: TokenPurpose, userId: string, transact
 
 async function check(purpose: TokenPurpose, token: string, transaction: Transaction | undefined, lock: boolean): Promise<TokenCheck> {
 	if (!SHAPE.test(token)) return { ok: false, reason: 'unknown' };
-	const row = await OneTimeToken.findOne({ where: { tokenHash: hashToken(token) }, transaction, lock: lock && transaction ? transaction.LOCK.UPDATE : undefined });
+	const row = await OneTimeToken.findOne({
+		where: { tokenHash: hashToken(token) },
+		transaction,
+		lock: lock && transaction ? transaction.LOCK.UPDATE : undefined
+	});
 	if (!row) return { ok: false, reason: 'unknown' };
 	if (row.purpose !== purpose) return { ok: false, reason: 'wrong-purpose' };
 	if (row.usedAt) return { ok: false, reason: 'used' };

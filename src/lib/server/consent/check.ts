@@ -35,7 +35,9 @@ export async function requireValidConsent(participantId: string, work: ConsentWo
 }
 
 /** Where the participant's consent stands, since when, and under which form version (for consent and withdrawal). */
-export async function consentStateOf(participantId: string): Promise<{ state: ConsentState; since: Date | null; formVersion: number | null }> {
+export async function consentStateOf(
+	participantId: string
+): Promise<{ state: ConsentState; since: Date | null; formVersion: number | null }> {
 	const row = await readState(participantId);
 	if (!row) return { state: 'not_invited', since: null, formVersion: null };
 	return { state: row.consent_state, since: row.consent_state_since, formVersion: row.form_version };

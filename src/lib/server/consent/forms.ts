@@ -28,7 +28,11 @@ export async function listConsentVersions(studyId: string): Promise<ConsentVersi
 }
 
 const consentSchema = z.object({
-	bodyMarkdown: z.string().trim().min(1, 'Write the text of the consent form.').max(50_000, 'Keep the consent form under 50,000 characters.'),
+	bodyMarkdown: z
+		.string()
+		.trim()
+		.min(1, 'Write the text of the consent form.')
+		.max(50_000, 'Keep the consent form under 50,000 characters.'),
 	confirmations: z
 		.array(z.string().max(500, 'Keep each confirmation statement under 500 characters.'))
 		.min(1, 'Give at least one confirmation statement, one per line.')
@@ -42,7 +46,12 @@ export interface ConsentFormInput {
 }
 
 /** Publishes a new version (the next number); earlier versions are never touched. */
-export async function publishConsentVersion(actor: Actor | null, ctx: RequestContext, rawStudyId: string, input: ConsentFormInput): Promise<number> {
+export async function publishConsentVersion(
+	actor: Actor | null,
+	ctx: RequestContext,
+	rawStudyId: string,
+	input: ConsentFormInput
+): Promise<number> {
 	const { actor: a, study } = await studyFor(actor, ctx, 'consent.publish', rawStudyId);
 	const r = consentSchema.safeParse({
 		bodyMarkdown: text(input.bodyMarkdown),

@@ -25,7 +25,16 @@ export async function issueLink(
 	const token = randomBytes(32).toString('base64url');
 	const now = p.now ?? new Date();
 	const expiresAt = p.purpose === 'consent' ? new Date(now.getTime() + CONSENT_LINK_LIFETIME_MS) : null;
-	const id = await insertLink(t, { participantId: p.participantId, formVersionId: p.formVersionId, purpose: p.purpose, kind: p.kind, hash: hashToken(token), expiresAt, sentBy: p.sentBy, now });
+	const id = await insertLink(t, {
+		participantId: p.participantId,
+		formVersionId: p.formVersionId,
+		purpose: p.purpose,
+		kind: p.kind,
+		hash: hashToken(token),
+		expiresAt,
+		sentBy: p.sentBy,
+		now
+	});
 	return { id, token, expiresAt };
 }
 

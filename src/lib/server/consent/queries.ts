@@ -17,7 +17,8 @@ export const STATE_SQL = `
 
 const select = <T extends object>(sql: string, replacements: Record<string, unknown>, transaction?: Transaction) =>
 	db().query<T>(sql, { replacements, type: QueryTypes.SELECT, transaction });
-const run = (sql: string, replacements: Record<string, unknown>, transaction?: Transaction) => db().query(sql, { replacements, transaction });
+const run = (sql: string, replacements: Record<string, unknown>, transaction?: Transaction) =>
+	db().query(sql, { replacements, transaction });
 
 // ---------------------------------------------------------------- the participant's state
 
@@ -45,11 +46,15 @@ export async function readState(participantId: string, transaction?: Transaction
 
 /** The state of each listed participant. */
 export async function statesOf(participantIds: string[]): Promise<{ id: string; state: ConsentState }[]> {
-	return select<{ id: string; state: ConsentState }>(`SELECT p.id, ${STATE_SQL} AS state FROM participants p WHERE p.id IN (:ids)`, { ids: participantIds });
+	return select<{ id: string; state: ConsentState }>(`SELECT p.id, ${STATE_SQL} AS state FROM participants p WHERE p.id IN (:ids)`, {
+		ids: participantIds
+	});
 }
 
 /** The participant's study and state as readers see it (expired when every link lapsed). */
-export async function studyAndStateOf(participantId: string): Promise<{ study_id: string; state: ConsentState; stored_state: ConsentState } | null> {
+export async function studyAndStateOf(
+	participantId: string
+): Promise<{ study_id: string; state: ConsentState; stored_state: ConsentState } | null> {
 	const rows = await select<{ study_id: string; state: ConsentState; stored_state: ConsentState }>(
 		`SELECT p.study_id, ${STATE_SQL} AS state, p.consent_state AS stored_state FROM participants p WHERE p.id = :id`,
 		{ id: participantId }
@@ -81,7 +86,15 @@ export async function lockParticipant(t: Transaction, participantId: string): Pr
 /** Writes the new state on the participant and appends the history row, in the caller's transaction. */
 export async function writeStateChange(
 	t: Transaction,
-	c: { participantId: string; from: ConsentState; to: ConsentState; actorUserId: string | null; actorLabel: string; formVersionId: string | null; note: string | null }
+	c: {
+		participantId: string;
+		from: ConsentState;
+		to: ConsentState;
+		actorUserId: string | null;
+		actorLabel: string;
+		formVersionId: string | null;
+		note: string | null;
+	}
 ): Promise<void> {
 	await run(
 		`UPDATE participants SET consent_state = :to, consent_state_since = now(), consent_form_version_id = coalesce(:formVersionId, consent_form_version_id) WHERE id = :id`,
@@ -92,7 +105,15 @@ export async function writeStateChange(
 		`INSERT INTO consent_events (participant_id, from_state, to_state, actor_user_id, actor_label, form_version, note)
 		 VALUES (:participantId, :from, :to, :actorUserId, :actorLabel,
 		         (SELECT version FROM consent_form_versions WHERE id = coalesce(:formVersionId, (SELECT consent_form_version_id FROM participants WHERE id = :participantId))), :note)`,
-		{ participantId: c.participantId, from: c.from, to: c.to, actorUserId: c.actorUserId, actorLabel: c.actorLabel, formVersionId: c.formVersionId, note: c.note },
+		{
+			participantId: c.participantId,
+			from: c.from,
+			to: c.to,
+			actorUserId: c.actorUserId,
+			actorLabel: c.actorLabel,
+			formVersionId: c.formVersionId,
+			note: c.note
+		},
 		t
 	);
 }
@@ -108,7 +129,10 @@ export interface ConsentEventRow {
 
 /** The participant's consent history, newest first. */
 export const historyOf = (participantId: string) =>
-	select<ConsentEventRow>(`SELECT at, from_state, to_state, actor_label, form_version, note FROM consent_events WHERE participant_id = :id ORDER BY at DESC, id DESC`, { id: participantId });
+	select<ConsentEventRow>(
+		`SELECT at, from_state, to_state, actor_label, form_version, note FROM consent_events WHERE participant_id = :id ORDER BY at DESC, id DESC`,
+		{ id: participantId }
+	);
 
 // ---------------------------------------------------------------- the study's contact
 
@@ -149,7 +173,16 @@ export interface LinkRow {
 
 export async function insertLink(
 	t: Transaction,
-	l: { participantId: string; formVersionId: string | null; purpose: LinkPurpose; kind: LinkKind; hash: string; expiresAt: Date | null; sentBy: string | null; now: Date }
+	l: {
+		participantId: string;
+		formVersionId: string | null;
+		purpose: LinkPurpose;
+		kind: LinkKind;
+		hash: string;
+		expiresAt: Date | null;
+		sentBy: string | null;
+		now: Date;
+	}
 ): Promise<string> {
 	const [row] = await select<{ id: string }>(
 		`INSERT INTO consent_invitations (participant_id, form_version_id, purpose, kind, token_hash, expires_at, sent_by, created_at)
@@ -188,7 +221,9 @@ export async function markLinkUsed(t: Transaction, linkId: string): Promise<void
 export async function markLinksMailed(linkIds: string[], error: string | null): Promise<void> {
 	if (linkIds.length === 0) return;
 	await run(
-		error ? `UPDATE consent_invitations SET mail_error = :error WHERE id IN (:linkIds)` : `UPDATE consent_invitations SET sent_at = now(), mail_error = NULL WHERE id IN (:linkIds)`,
+		error
+			? `UPDATE consent_invitations SET mail_error = :error WHERE id IN (:linkIds)`
+			: `UPDATE consent_invitations SET sent_at = now(), mail_error = NULL WHERE id IN (:linkIds)`,
 		{ linkIds, error }
 	);
 }
@@ -216,7 +251,15 @@ export const sentLinksOf = (participantId: string) =>
 /** A decision taken through a link (consent and decline carry the confirmations and the date signed). */
 export async function insertConsentRecord(
 	t: Transaction,
-	r: { participantId: string; decision: 'consented' | 'declined' | 'withdrawn'; formVersionId: string | null; confirmations: string[]; signedOn: string | null; linkId: string; ip: string | null }
+	r: {
+		participantId: string;
+		decision: 'consented' | 'declined' | 'withdrawn';
+		formVersionId: string | null;
+		confirmations: string[];
+		signedOn: string | null;
+		linkId: string;
+		ip: string | null;
+	}
 ): Promise<string> {
 	const [row] = await select<{ id: string }>(
 		`INSERT INTO consent_records (participant_id, decision, form_version_id, confirmations, signed_on, invitation_id, ip_address)

@@ -13,7 +13,15 @@ import { renderMarkdown } from './markdown';
 import { currentLab } from '../studies/lab';
 import { sendMail } from '../mail/index';
 import { CONSENT_STATE_LABEL, type ConsentState } from './check';
-import { checkLink, CONSENT_LINK_LIFETIME_DAYS, issueLink, markLinksMailed, markLinkUsed, revokeOpenConsentLinks, type LinkRefusal } from './links';
+import {
+	checkLink,
+	CONSENT_LINK_LIFETIME_DAYS,
+	issueLink,
+	markLinksMailed,
+	markLinkUsed,
+	revokeOpenConsentLinks,
+	type LinkRefusal
+} from './links';
 import * as q from './queries';
 import { flagRunsOfParticipant, listFlaggedRuns } from '../runs/flags';
 import type { ConsentEventView, ConsentPage, LinkView, RefusedLink, StudyContact, WithdrawPage } from '../../types/consent';
@@ -56,7 +64,15 @@ async function currentFormVersion(studyId: string, transaction?: Transaction): P
 async function studyContact(studyId: string, t?: Transaction): Promise<StudyContact> {
 	const s = (await q.contactRowOf(studyId, t))!;
 	const lab = await currentLab();
-	return { studyId: s.id, studyCode: s.code, title: s.title, ethicsReference: s.ethics_reference, labName: lab?.name ?? null, contactName: s.pi_name, contactEmail: s.pi_email };
+	return {
+		studyId: s.id,
+		studyCode: s.code,
+		title: s.title,
+		ethicsReference: s.ethics_reference,
+		labName: lab?.name ?? null,
+		contactName: s.pi_name,
+		contactEmail: s.pi_email
+	};
 }
 
 async function personalOf(participantId: string, transaction?: Transaction): Promise<{ fullName: string | null; email: string | null }> {
@@ -93,15 +109,33 @@ async function changeState(t: Transaction, c: Change): Promise<void> {
 /** An invitation that lapsed without a decision is written to the history as "expired" (lazily, when next seen). */
 async function settleExpiry(t: Transaction, p: ParticipantRow): Promise<ParticipantRow> {
 	if (p.stored_state !== 'invited' || p.state !== 'expired') return p;
-	await changeState(t, { participant: p, to: 'expired', actorUserId: null, actorLabel: SYSTEM_LABEL, note: `The consent link lapsed after ${CONSENT_LINK_LIFETIME_DAYS} days without a decision.` });
-	await record({ action: 'consent.expired', actorLabel: SYSTEM_LABEL, studyId: p.study_id, recordType: 'participant', recordId: p.id, details: { code: p.code } }, t);
+	await changeState(t, {
+		participant: p,
+		to: 'expired',
+		actorUserId: null,
+		actorLabel: SYSTEM_LABEL,
+		note: `The consent link lapsed after ${CONSENT_LINK_LIFETIME_DAYS} days without a decision.`
+	});
+	await record(
+		{
+			action: 'consent.expired',
+			actorLabel: SYSTEM_LABEL,
+			studyId: p.study_id,
+			recordType: 'participant',
+			recordId: p.id,
+			details: { code: p.code }
+		},
+		t
+	);
 	return { ...p, stored_state: 'expired', state: 'expired' };
 }
 
 // ---------------------------------------------------------------- e-mails
 
 function contactLine(c: StudyContact): string {
-	return c.contactEmail ? `${c.contactName ?? c.contactEmail} (principal investigator), ${c.contactEmail}` : `the study team of ${c.labName ?? 'the laboratory'}`;
+	return c.contactEmail
+		? `${c.contactName ?? c.contactEmail} (principal investigator), ${c.contactEmail}`
+		: `the study team of ${c.labName ?? 'the laboratory'}`;
 }
 
 function studyLine(c: StudyContact): string {
@@ -119,7 +153,14 @@ function footer(c: StudyContact, withdrawLink: string): string {
 
 const fmtDate = (d: Date) => d.toISOString().slice(0, 10);
 
-function invitationMail(kind: SendKind, c: StudyContact, name: string | null, consentLink: string, withdrawLink: string, expiresAt: Date): { subject: string; text: string } {
+function invitationMail(
+	kind: SendKind,
+	c: StudyContact,
+	name: string | null,
+	consentLink: string,
+	withdrawLink: string,
+	expiresAt: Date
+): { subject: string; text: string } {
 	const hello = name ? `Dear ${name},` : 'Hello,';
 	const lead =
 		kind === 'reminder'
@@ -171,7 +212,14 @@ export async function consentOverview(actor: Actor | null, ctx: RequestContext, 
 			formVersion: version?.version ?? null
 		},
 		currentFormVersion: form?.version ?? null,
-		history: events.map<ConsentEventView>((e) => ({ at: e.at.toISOString(), from: e.from_state, to: e.to_state, actor: e.actor_label, formVersion: e.form_version, note: e.note })),
+		history: events.map<ConsentEventView>((e) => ({
+			at: e.at.toISOString(),
+			from: e.from_state,
+			to: e.to_state,
+			actor: e.actor_label,
+			formVersion: e.form_version,
+			note: e.note
+		})),
 		links: links.map<LinkView>((l) => ({
 			kind: l.kind,
 			purpose: l.purpose,
@@ -213,7 +261,13 @@ const SEND_WORD: Record<SendKind, string> = { invitation: 'invitation', resend: 
  * withdrawal link and makes earlier consent links stop working. The state change is committed before the e-mail
  * goes out, so a mail failure loses nothing: MailNotSent says so and the page offers to send again.
  */
-export async function sendConsentLink(actor: Actor | null, ctx: RequestContext, rawId: string, rawPid: string, kind: SendKind): Promise<void> {
+export async function sendConsentLink(
+	actor: Actor | null,
+	ctx: RequestContext,
+	rawId: string,
+	rawPid: string,
+	kind: SendKind
+): Promise<void> {
 	const { actor: a, study } = await studyFor(actor, ctx, 'consent.invite', rawId);
 	const target = await participantOfStudy(study.id, rawPid);
 	const ip = ctx.ipAddress;
@@ -221,20 +275,43 @@ export async function sendConsentLink(actor: Actor | null, ctx: RequestContext, 
 		const p = await settleExpiry(t, await lockParticipant(t, target.id));
 		const personal = await personalOf(p.id, t);
 		if (!personal.email) {
-			throw new FormProblem({ form: `${p.code} has no e-mail address in their personal data. Add one on the participant page, then send the ${SEND_WORD[kind]}.` }, 'conflict');
+			throw new FormProblem(
+				{
+					form: `${p.code} has no e-mail address in their personal data. Add one on the participant page, then send the ${SEND_WORD[kind]}.`
+				},
+				'conflict'
+			);
 		}
 		const form = await currentFormVersion(study.id, t);
-		if (!form) throw new FormProblem({ form: 'This study has no consent form yet. The principal investigator publishes one under “Consent forms” first.' }, 'conflict');
+		if (!form)
+			throw new FormProblem(
+				{ form: 'This study has no consent form yet. The principal investigator publishes one under “Consent forms” first.' },
+				'conflict'
+			);
 		if (!SEND_ALLOWED[kind].includes(p.state)) {
 			const hint =
-				kind === 'invitation' ? (p.state === 'invited' ? 'An invitation is open: send a reminder or a new link instead.' : 'There is nothing to invite to.') : 'Send an invitation instead.';
-			throw new FormProblem({ form: `${p.code} is ${CONSENT_STATE_LABEL[p.state]}: a ${SEND_WORD[kind]} cannot be sent now. ${hint}` }, 'conflict');
+				kind === 'invitation'
+					? p.state === 'invited'
+						? 'An invitation is open: send a reminder or a new link instead.'
+						: 'There is nothing to invite to.'
+					: 'Send an invitation instead.';
+			throw new FormProblem(
+				{ form: `${p.code} is ${CONSENT_STATE_LABEL[p.state]}: a ${SEND_WORD[kind]} cannot be sent now. ${hint}` },
+				'conflict'
+			);
 		}
 		const superseded = await revokeOpenConsentLinks(t, p.id);
 		const consentLink = await issueLink(t, { participantId: p.id, purpose: 'consent', kind, formVersionId: form.id, sentBy: a.id });
 		const withdrawLink = await issueLink(t, { participantId: p.id, purpose: 'withdraw', kind, formVersionId: form.id, sentBy: a.id });
 		if (p.stored_state !== 'invited' || p.state !== 'invited') {
-			await changeState(t, { participant: p, to: 'invited', actorUserId: a.id, actorLabel: a.email, formVersionId: form.id, note: `Invitation sent (form version ${form.version}).` });
+			await changeState(t, {
+				participant: p,
+				to: 'invited',
+				actorUserId: a.id,
+				actorLabel: a.email,
+				formVersionId: form.id,
+				note: `Invitation sent (form version ${form.version}).`
+			});
 		} else {
 			// not a change of state, but part of the story the history tells
 			await changeState(t, {
@@ -279,7 +356,17 @@ export async function sendConsentLink(actor: Actor | null, ctx: RequestContext, 
 	} catch (err) {
 		const why = (err as Error).message;
 		await markLinksMailed(ids, why.slice(0, 500));
-		await record({ action: 'consent.mail.failed', actorUserId: a.id, actorLabel: a.email, outcome: 'failed', studyId: study.id, recordType: 'participant', recordId: prepared.p.id, ipAddress: ip, details: { kind, error: why } });
+		await record({
+			action: 'consent.mail.failed',
+			actorUserId: a.id,
+			actorLabel: a.email,
+			outcome: 'failed',
+			studyId: study.id,
+			recordType: 'participant',
+			recordId: prepared.p.id,
+			ipAddress: ip,
+			details: { kind, error: why }
+		});
 		throw new MailNotSent(
 			`The ${SEND_WORD[kind]} for ${prepared.p.code} is recorded, but the e-mail could not be sent (${why}). Check the mail server on the status page, then use “Send a new link”.`
 		);
@@ -303,14 +390,30 @@ export class LinkRefused extends FormProblem {
 	}
 }
 
-async function refusal(reason: LinkRefusal | 'decided', participantId: string | null, ip: string | null, action: string | null, state?: ConsentState): Promise<RefusedLink> {
+async function refusal(
+	reason: LinkRefusal | 'decided',
+	participantId: string | null,
+	ip: string | null,
+	action: string | null,
+	state?: ConsentState
+): Promise<RefusedLink> {
 	let contact: StudyContact | null = null;
 	let studyId: string | null = null;
 	if (participantId) {
 		studyId = (await Participant.findByPk(participantId, { attributes: ['studyId'] }))?.studyId ?? null;
 		if (studyId) contact = await studyContact(studyId);
 	}
-	if (action) await record({ action, actorLabel: PARTICIPANT_LABEL, outcome: 'denied', studyId, recordType: participantId ? 'participant' : null, recordId: participantId, ipAddress: ip, details: { reason, state } });
+	if (action)
+		await record({
+			action,
+			actorLabel: PARTICIPANT_LABEL,
+			outcome: 'denied',
+			studyId,
+			recordType: participantId ? 'participant' : null,
+			recordId: participantId,
+			ipAddress: ip,
+			details: { reason, state }
+		});
 	return { refused: reason, state, contact };
 }
 
@@ -353,10 +456,15 @@ export interface DecisionOutcome {
 export type ConsentAnswers = Record<string, string>;
 
 /** The form's answers checked: every confirmation ticked, a name typed, and today's date (± 1 day for time zones). */
-export function parseConsentAnswers(form: ConsentAnswers, confirmations: string[], today = todayIso()): { fullName: string; signedOn: string } {
+export function parseConsentAnswers(
+	form: ConsentAnswers,
+	confirmations: string[],
+	today = todayIso()
+): { fullName: string; signedOn: string } {
 	const errors: Record<string, string> = {};
 	confirmations.forEach((_, i) => {
-		if (form[`confirm-${i}`] !== 'yes') errors[`confirm-${i}`] = 'Tick this statement to agree, or choose “I do not wish to take part” below.';
+		if (form[`confirm-${i}`] !== 'yes')
+			errors[`confirm-${i}`] = 'Tick this statement to agree, or choose “I do not wish to take part” below.';
 	});
 	const name = z
 		.string()
@@ -367,7 +475,8 @@ export function parseConsentAnswers(form: ConsentAnswers, confirmations: string[
 	if (!name.success) errors.fullName = name.error.issues[0].message;
 	const signedOn = (form.signedOn ?? '').trim();
 	if (!/^\d{4}-\d{2}-\d{2}$/.test(signedOn) || Number.isNaN(Date.parse(signedOn))) errors.signedOn = 'Enter today’s date (YYYY-MM-DD).';
-	else if (Math.abs(Date.parse(signedOn) - Date.parse(today)) > 86_400_000) errors.signedOn = `Enter today’s date (${today}); a signature cannot be dated another day.`;
+	else if (Math.abs(Date.parse(signedOn) - Date.parse(today)) > 86_400_000)
+		errors.signedOn = `Enter today’s date (${today}); a signature cannot be dated another day.`;
 	if (Object.keys(errors).length) throw new FormProblem(errors);
 	return { fullName: name.success ? name.data : '', signedOn };
 }
@@ -390,8 +499,26 @@ async function participantChanged(
 	ip: string | null,
 	c: { to: ConsentState; formVersionId?: string; note: string; action: string; details: Record<string, unknown> }
 ): Promise<void> {
-	await changeState(t, { participant: p, to: c.to, actorUserId: null, actorLabel: PARTICIPANT_LABEL, formVersionId: c.formVersionId, note: c.note });
-	await record({ action: c.action, actorLabel: PARTICIPANT_LABEL, studyId: p.study_id, recordType: 'participant', recordId: p.id, ipAddress: ip, details: { code: p.code, ...c.details } }, t);
+	await changeState(t, {
+		participant: p,
+		to: c.to,
+		actorUserId: null,
+		actorLabel: PARTICIPANT_LABEL,
+		formVersionId: c.formVersionId,
+		note: c.note
+	});
+	await record(
+		{
+			action: c.action,
+			actorLabel: PARTICIPANT_LABEL,
+			studyId: p.study_id,
+			recordType: 'participant',
+			recordId: p.id,
+			ipAddress: ip,
+			details: { code: p.code, ...c.details }
+		},
+		t
+	);
 }
 
 /** Mails the participant; a failure is recorded (and written on the links mailed) but loses nothing already saved. */
@@ -407,7 +534,15 @@ async function mailParticipant(
 		return true;
 	} catch (err) {
 		await markLinksMailed(linkIds, (err as Error).message.slice(0, 500));
-		await record({ action: 'consent.mail.failed', actorLabel: SYSTEM_LABEL, outcome: 'failed', studyId: p.study_id, recordType: 'participant', recordId: p.id, details: { kind, error: (err as Error).message } });
+		await record({
+			action: 'consent.mail.failed',
+			actorLabel: SYSTEM_LABEL,
+			outcome: 'failed',
+			studyId: p.study_id,
+			recordType: 'participant',
+			recordId: p.id,
+			details: { kind, error: (err as Error).message }
+		});
 		return false;
 	}
 }
@@ -417,11 +552,21 @@ async function mailParticipant(
  * was shown for: another participant is refused; a version published since is refused with a request to read again
  * (so the version recorded is always the one the person read). The link is used up in the decision's transaction.
  */
-export async function decide(ctx: RequestContext, token: string, form: ConsentAnswers, decision: 'consented' | 'declined'): Promise<DecisionOutcome> {
+export async function decide(
+	ctx: RequestContext,
+	token: string,
+	form: ConsentAnswers,
+	decision: 'consented' | 'declined'
+): Promise<DecisionOutcome> {
 	const ip = ctx.ipAddress;
 	const postedParticipant = form.participantId ?? '';
 	const postedVersion = form.formVersionId ?? '';
-	type Done = { p: ParticipantRow; current: FormVersionRow; answers: { fullName: string; signedOn: string } | null; withdrawLink: { id: string; token: string } | null };
+	type Done = {
+		p: ParticipantRow;
+		current: FormVersionRow;
+		answers: { fullName: string; signedOn: string } | null;
+		withdrawLink: { id: string; token: string } | null;
+	};
 	const step = await db().transaction(async (t): Promise<LinkStep<Done> | { wrongParticipant: string }> => {
 		const check = await checkLink('consent', token, t);
 		if (!check.ok) return { refused: { reason: check.reason, participantId: check.link?.participant_id ?? null } };
@@ -432,7 +577,9 @@ export async function decide(ctx: RequestContext, token: string, form: ConsentAn
 		const current = (await currentFormVersion(p.study_id, t))!;
 		if (postedVersion !== current.id) {
 			throw new ReReadProblem(
-				{ form: `The consent form was updated to version ${current.version} after you opened this page. Please read the new version below and decide again; nothing has been recorded yet.` },
+				{
+					form: `The consent form was updated to version ${current.version} after you opened this page. Please read the new version below and decide again; nothing has been recorded yet.`
+				},
 				'conflict'
 			);
 		}
@@ -451,11 +598,17 @@ export async function decide(ctx: RequestContext, token: string, form: ConsentAn
 		await participantChanged(t, p, ip, {
 			to: decision,
 			formVersionId: current.id,
-			note: decision === 'consented' ? `Consent given under form version ${current.version}, signed ${answers!.signedOn}.` : `Declined to take part (form version ${current.version} shown).`,
+			note:
+				decision === 'consented'
+					? `Consent given under form version ${current.version}, signed ${answers!.signedOn}.`
+					: `Declined to take part (form version ${current.version} shown).`,
 			action: decision === 'consented' ? 'consent.given' : 'consent.declined',
 			details: { formVersion: current.version, recordId }
 		});
-		const withdrawLink = decision === 'consented' ? await issueLink(t, { participantId: p.id, purpose: 'withdraw', kind: 'confirmation', formVersionId: current.id, sentBy: null }) : null;
+		const withdrawLink =
+			decision === 'consented'
+				? await issueLink(t, { participantId: p.id, purpose: 'withdraw', kind: 'confirmation', formVersionId: current.id, sentBy: null })
+				: null;
 		return { done: { p, current, answers, withdrawLink } };
 	});
 	if ('wrongParticipant' in step) {
@@ -468,7 +621,10 @@ export async function decide(ctx: RequestContext, token: string, form: ConsentAn
 			ipAddress: ip,
 			details: { reason: 'wrong-participant', posted: postedParticipant.slice(0, 64) }
 		});
-		throw new FormProblem({ form: 'This form does not belong to the link it was sent with, so nothing was recorded. Open the link from your e-mail again.' }, 'forbidden');
+		throw new FormProblem(
+			{ form: 'This form does not belong to the link it was sent with, so nothing was recorded. Open the link from your e-mail again.' },
+			'forbidden'
+		);
 	}
 	if ('refused' in step) return refuseLink(step.refused, ip, 'consent.link.refused');
 	const done = step.done;
@@ -484,13 +640,23 @@ export async function decide(ctx: RequestContext, token: string, form: ConsentAn
 				: `${personal.fullName ? `Dear ${personal.fullName},` : 'Hello,'}\n\nWe have recorded that you do not wish to take part in the study ${studyLine(contact)}. ` +
 					`Thank you for letting us know; we will not contact you again about it.\n\nQuestions: ${contactLine(contact)}.`;
 		const subject = `${done.answers ? 'Your consent' : 'Your decision'}: study ${contact.studyCode}`.slice(0, 200);
-		mailed = await mailParticipant(done.p, { to: personal.email, subject, text }, 'confirmation', done.withdrawLink ? [done.withdrawLink.id] : []);
+		mailed = await mailParticipant(
+			done.p,
+			{ to: personal.email, subject, text },
+			'confirmation',
+			done.withdrawLink ? [done.withdrawLink.id] : []
+		);
 	}
 	return { decision, mailed, contact, formVersion: done.current.version };
 }
 
 /** The plain-text copy of what was agreed, for the participant's own records. */
-export function consentCopy(c: StudyContact, form: { version: number; body_markdown: string; confirmations: string[] }, answers: { fullName: string; signedOn: string }, withdrawLink: string): string {
+export function consentCopy(
+	c: StudyContact,
+	form: { version: number; body_markdown: string; confirmations: string[] },
+	answers: { fullName: string; signedOn: string },
+	withdrawLink: string
+): string {
 	return (
 		`Dear ${answers.fullName},\n\nThank you. We have recorded your consent to take part in the study ${studyLine(c)}.\n` +
 		`Below is a copy of what you agreed to; please keep it.\n\n` +
@@ -503,12 +669,14 @@ export function consentCopy(c: StudyContact, form: { version: number; body_markd
 
 // ---------------------------------------------------------------- participant: withdrawal
 
-const WITHDRAW_EFFECT = (s: ConsentState): WithdrawPage['effect'] => (s === 'consented' ? 'withdraw' : s === 'invited' || s === 'expired' ? 'decline' : 'nothing');
+const WITHDRAW_EFFECT = (s: ConsentState): WithdrawPage['effect'] =>
+	s === 'consented' ? 'withdraw' : s === 'invited' || s === 'expired' ? 'decline' : 'nothing';
 
 /** The page a withdrawal link opens, or why it cannot be used (looking does not use the link up). */
 export async function withdrawPageFor(ctx: RequestContext, token: string, audit = true): Promise<WithdrawPage | RefusedLink> {
 	const check = await checkLink('withdraw', token);
-	if (!check.ok) return refusal(check.reason, check.link?.participant_id ?? null, ctx.ipAddress, audit ? 'consent.withdraw-link.refused' : null);
+	if (!check.ok)
+		return refusal(check.reason, check.link?.participant_id ?? null, ctx.ipAddress, audit ? 'consent.withdraw-link.refused' : null);
 	const p = (await q.studyAndStateOf(check.link.participant_id))!;
 	return { contact: await studyContact(p.study_id), state: p.state, effect: WITHDRAW_EFFECT(p.state) };
 }
@@ -548,7 +716,10 @@ export async function withdraw(ctx: RequestContext, token: string): Promise<With
 		});
 		await participantChanged(t, p, ip, {
 			to: effect === 'withdraw' ? 'withdrawn' : 'declined',
-			note: effect === 'withdraw' ? `Consent withdrawn; ${flagged.length} existing run(s) flagged for the PI's decision.` : 'Declined through the withdrawal link before consenting.',
+			note:
+				effect === 'withdraw'
+					? `Consent withdrawn; ${flagged.length} existing run(s) flagged for the PI's decision.`
+					: 'Declined through the withdrawal link before consenting.',
 			action: effect === 'withdraw' ? 'consent.withdrawn' : 'consent.declined',
 			details: { flaggedRuns: flagged }
 		});
@@ -568,7 +739,15 @@ export async function withdraw(ctx: RequestContext, token: string): Promise<With
 					`under the rules the ethics board approved for this study, whether they are kept or excluded. Nothing is deleted without that decision.\n\n` +
 					`Questions, or if you wish your data to be erased: ${contactLine(contact)}.`
 				: `${hello}\n\nWe have recorded that you do not wish to take part in the study ${studyLine(contact)}. We will not contact you again about it.\n\nQuestions: ${contactLine(contact)}.`;
-		mailed = await mailParticipant(done.p, { to: personal.email, subject: `${done.effect === 'withdraw' ? 'Your withdrawal' : 'Your decision'}: study ${contact.studyCode}`, text }, 'withdrawal');
+		mailed = await mailParticipant(
+			done.p,
+			{
+				to: personal.email,
+				subject: `${done.effect === 'withdraw' ? 'Your withdrawal' : 'Your decision'}: study ${contact.studyCode}`,
+				text
+			},
+			'withdrawal'
+		);
 	}
 	return { effect: done.effect, mailed, contact, flaggedRuns: done.flagged.length };
 }

@@ -36,11 +36,7 @@ export async function migrateUp(sequelize: Sequelize, log?: (msg: string) => voi
 }
 
 /** Reverts the last migration, or all of them with `{ all: true }`. */
-export async function migrateDown(
-	sequelize: Sequelize,
-	opts: { all?: boolean } = {},
-	log?: (msg: string) => void
-): Promise<string[]> {
+export async function migrateDown(sequelize: Sequelize, opts: { all?: boolean } = {}, log?: (msg: string) => void): Promise<string[]> {
 	const done = await migrator(sequelize, log).down(opts.all ? { to: 0 } : undefined);
 	return done.map((m) => m.name);
 }

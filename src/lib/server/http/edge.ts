@@ -97,7 +97,10 @@ export async function formEdge<T, X extends Record<string, unknown> = Record<str
 }
 
 /** What a form posted, as strings, without passwords and codes (never echoed back into a page). */
-export function formValues(form: FormData, secret: readonly string[] = ['password', 'code', 'currentPassword', 'newPassword']): FieldErrors {
+export function formValues(
+	form: FormData,
+	secret: readonly string[] = ['password', 'code', 'currentPassword', 'newPassword']
+): FieldErrors {
 	const out: FieldErrors = {};
 	for (const [k, v] of form.entries()) if (!secret.includes(k) && typeof v === 'string') out[k] = v;
 	return out;
@@ -112,7 +115,8 @@ export function requireActor(event: RequestEvent): Actor {
 }
 
 /** A lab-wide action's guard for a route (administrators only). */
-export const requireLab = (event: RequestEvent, action: LabAction): Promise<Actor> => edge(event, () => guardLab(actorOf(event), contextOf(event), action));
+export const requireLab = (event: RequestEvent, action: LabAction): Promise<Actor> =>
+	edge(event, () => guardLab(actorOf(event), contextOf(event), action));
 
 /** A study action's guard for a route: 404 for non-members, 403 for a role without the permission. */
 export const requireStudy = (event: RequestEvent, action: StudyAction, studyId: string | null | undefined): Promise<Actor> =>

@@ -25,7 +25,12 @@ export async function queue(): Promise<PgBoss> {
 	starting ??= (async () => {
 		const c = config();
 		// maintenance moves jobs of a vanished worker (expired while active) back to retry; see RUN_EXPIRE_SECONDS
-		const b = new PgBoss({ connectionString: c.DATABASE_URL, schema: 'jobs', application_name: 'momentry-queue', maintenanceIntervalSeconds: c.QUEUE_MAINTENANCE_SECONDS });
+		const b = new PgBoss({
+			connectionString: c.DATABASE_URL,
+			schema: 'jobs',
+			application_name: 'momentry-queue',
+			maintenanceIntervalSeconds: c.QUEUE_MAINTENANCE_SECONDS
+		});
 		b.on('error', (err) => console.error('[queue]', err.message));
 		await b.start();
 		for (const name of Object.values(QUEUES)) {

@@ -14,5 +14,10 @@ try {
 	port.postMessage({ type: 'done', computed } satisfies RunThreadMessage, transfer);
 } catch (err) {
 	const e = err as Error;
-	port.postMessage({ type: 'error', name: e?.name ?? 'Error', message: e?.message ?? String(err), problems: (e as { problems?: string[] }).problems } satisfies RunThreadMessage);
+	port.postMessage({
+		type: 'error',
+		name: e?.name ?? 'Error',
+		message: e?.message ?? String(err),
+		problems: (e as { problems?: string[] }).problems
+	} satisfies RunThreadMessage);
 }

@@ -39,7 +39,13 @@ export const IMPORT_COLUMNS: readonly ImportColumn[] = [
 	{ name: 'body_mass_kg', field: 'bodyMassKg', required: true, personal: false, meaning: 'kilograms, 20–300, with a decimal point (64.2)' },
 	{ name: 'stature_m', field: 'statureM', required: true, personal: false, meaning: 'metres, 0.8–2.5, with a decimal point (1.68)' },
 	{ name: 'dominant_side', field: 'dominantSide', required: false, personal: false, meaning: 'left or right; empty when not recorded' },
-	{ name: 'notes', field: 'notes', required: false, personal: false, meaning: 'research notes, up to 2,000 characters; no names or contact details' },
+	{
+		name: 'notes',
+		field: 'notes',
+		required: false,
+		personal: false,
+		meaning: 'research notes, up to 2,000 characters; no names or contact details'
+	},
 	{ name: 'full_name', field: 'fullName', required: false, personal: true, meaning: 'personal data' },
 	{ name: 'email', field: 'email', required: false, personal: true, meaning: 'personal data; needed later for e-mailed consent' },
 	{ name: 'phone', field: 'phone', required: false, personal: true, meaning: 'personal data; digits, spaces and + ( ) - only' }
@@ -99,15 +105,29 @@ export function decodeUtf8(bytes: Uint8Array): string | null {
 }
 
 const columnList = IMPORT_COLUMNS.map((c) => c.name).join(', ');
-const fail = (problems: ImportProblem[], columns: string[] = [], delimiter = ','): CheckResult => ({ ok: false, fileProblems: problems, rows: [], columns, delimiter, personal: false });
+const fail = (problems: ImportProblem[], columns: string[] = [], delimiter = ','): CheckResult => ({
+	ok: false,
+	fileProblems: problems,
+	rows: [],
+	columns,
+	delimiter,
+	personal: false
+});
 
 /** Checks a participant list without touching the database: the same rules as the create form, row by row. */
 export function checkImportText(raw: string, opts: { mayImportPersonal: boolean }): CheckResult {
 	const text = canonicalText(raw);
 	if (text.trim() === '') {
-		return fail([{ message: `The file is empty. It needs a header row naming the columns (at least sex, body_mass_kg, stature_m) and one row per participant.` }]);
+		return fail([
+			{
+				message: `The file is empty. It needs a header row naming the columns (at least sex, body_mass_kg, stature_m) and one row per participant.`
+			}
+		]);
 	}
-	if (text.includes('\u0000')) return fail([{ message: 'The file holds binary data, not text: save the list as CSV (comma, semicolon or tab separated) and try again.' }]);
+	if (text.includes('\u0000'))
+		return fail([
+			{ message: 'The file holds binary data, not text: save the list as CSV (comma, semicolon or tab separated) and try again.' }
+		]);
 
 	// papaparse reports where each record ends; the line a record starts on is counted from there (a quoted value may span lines)
 	const records: { row: number; cells: string[]; errors: Papa.ParseError[] }[] = [];
@@ -132,7 +152,8 @@ export function checkImportText(raw: string, opts: { mayImportPersonal: boolean 
 	const hr = header.row;
 	const names = header.cells.map((c) => c.toLowerCase());
 	const problems: ImportProblem[] = [];
-	if (header.errors.length) problems.push({ row: hr, message: 'the header row has a quote that is not closed; column names need no quotes.' });
+	if (header.errors.length)
+		problems.push({ row: hr, message: 'the header row has a quote that is not closed; column names need no quotes.' });
 	const seen = new Map<string, number>();
 	names.forEach((name, i) => {
 		const nth = `column ${i + 1}`;
@@ -142,7 +163,11 @@ export function checkImportText(raw: string, opts: { mayImportPersonal: boolean 
 		}
 		const col = BY_NAME.get(name);
 		if (!col) {
-			problems.push({ row: hr, column: header.cells[i], message: `“${header.cells[i]}” is not one of Momentry's columns. Use only ${columnList}.` });
+			problems.push({
+				row: hr,
+				column: header.cells[i],
+				message: `“${header.cells[i]}” is not one of Momentry's columns. Use only ${columnList}.`
+			});
 		} else if (col.personal && !opts.mayImportPersonal) {
 			problems.push({
 				row: hr,
@@ -151,19 +176,33 @@ export function checkImportText(raw: string, opts: { mayImportPersonal: boolean 
 			});
 		}
 		const first = seen.get(name);
-		if (first !== undefined) problems.push({ row: hr, column: header.cells[i], message: `columns ${first + 1} and ${i + 1} are both “${name}”. Keep one of them.` });
+		if (first !== undefined)
+			problems.push({
+				row: hr,
+				column: header.cells[i],
+				message: `columns ${first + 1} and ${i + 1} are both “${name}”. Keep one of them.`
+			});
 		else seen.set(name, i);
 	});
 	for (const col of IMPORT_COLUMNS) {
-		if (col.required && !seen.has(col.name)) problems.push({ row: hr, message: `the header has no column ${col.name}, which is required (${col.meaning}).` });
+		if (col.required && !seen.has(col.name))
+			problems.push({ row: hr, message: `the header has no column ${col.name}, which is required (${col.meaning}).` });
 	}
 	if (problems.length) return fail(problems, names, delimiter);
 	if (records.length === 0) {
-		return fail([{ message: 'The file has a header row but no participant rows. Add one row per participant below the header.' }], names, delimiter);
+		return fail(
+			[{ message: 'The file has a header row but no participant rows. Add one row per participant below the header.' }],
+			names,
+			delimiter
+		);
 	}
 	if (records.length > IMPORT_MAX_ROWS) {
 		return fail(
-			[{ message: `The file has ${records.length.toLocaleString('en')} participant rows; import at most ${IMPORT_MAX_ROWS.toLocaleString('en')} at a time. Split the file and import the parts one after another.` }],
+			[
+				{
+					message: `The file has ${records.length.toLocaleString('en')} participant rows; import at most ${IMPORT_MAX_ROWS.toLocaleString('en')} at a time. Split the file and import the parts one after another.`
+				}
+			],
 			names,
 			delimiter
 		);
@@ -199,15 +238,29 @@ export function checkImportText(raw: string, opts: { mayImportPersonal: boolean 
 			const col = BY_FIELD.get(field as keyof ParticipantInput);
 			const v = col ? (values[col.name] ?? '') : '';
 			// spreadsheets set to a decimal comma write 64,2; say so instead of "not a number"
-			const message = (field === 'bodyMassKg' || field === 'statureM') && /^\d+,\d+$/.test(v) ? `write numbers with a decimal point: ${v.replace(',', '.')}, not ${v}.` : issue.message;
+			const message =
+				(field === 'bodyMassKg' || field === 'statureM') && /^\d+,\d+$/.test(v)
+					? `write numbers with a decimal point: ${v.replace(',', '.')}, not ${v}.`
+					: issue.message;
 			rowProblems.push({ row: rec.row, column: col ? (header.cells[names.indexOf(col.name)] ?? col.name) : undefined, message });
 		}
 		return { row: rec.row, values, problems: rowProblems };
 	});
-	return { ok: rows.every((r) => r.problems.length === 0), fileProblems: [], rows, columns: names, delimiter, personal: names.some((n) => BY_NAME.get(n)?.personal) };
+	return {
+		ok: rows.every((r) => r.problems.length === 0),
+		fileProblems: [],
+		rows,
+		columns: names,
+		delimiter,
+		personal: names.some((n) => BY_NAME.get(n)?.personal)
+	};
 }
 
-function viewOf(check: CheckResult, meta: { fileName: string; sizeBytes: number; sha256: string; content: string }, study: Study): ImportView {
+function viewOf(
+	check: CheckResult,
+	meta: { fileName: string; sizeBytes: number; sha256: string; content: string },
+	study: Study
+): ImportView {
 	const prefix = prefixOf(study);
 	const first = study.nextParticipantNumber;
 	const all = [...check.fileProblems, ...check.rows.flatMap((r) => r.problems)];
@@ -217,7 +270,12 @@ function viewOf(check: CheckResult, meta: { fileName: string; sizeBytes: number;
 		sha256: meta.sha256,
 		delimiter: DELIMITER_NAMES[check.delimiter] ?? check.delimiter,
 		columns: check.columns,
-		rows: check.rows.map((r, i) => ({ row: r.row, code: formatCode(prefix, first + i), values: r.values, problems: r.problems.map(describeProblem) })),
+		rows: check.rows.map((r, i) => ({
+			row: r.row,
+			code: formatCode(prefix, first + i),
+			values: r.values,
+			problems: r.problems.map(describeProblem)
+		})),
 		problems: all.slice(0, LISTED_PROBLEMS).map(describeProblem),
 		problemCount: all.length,
 		ok: check.ok,
@@ -254,9 +312,15 @@ export class ImportRefused extends FormProblem {
 const kb = (n: number) => `${Math.ceil(n / 1024).toLocaleString('en')} KB`;
 
 /** Step 1, the dry run: reads the uploaded file and checks it; nothing is written. */
-export async function checkImportUpload(actor: Actor | null, ctx: RequestContext, rawId: string, file: FormDataEntryValue | null): Promise<ImportView> {
+export async function checkImportUpload(
+	actor: Actor | null,
+	ctx: RequestContext,
+	rawId: string,
+	file: FormDataEntryValue | null
+): Promise<ImportView> {
 	const { actor: a, study } = await studyFor(actor, ctx, 'participant.import', rawId);
-	if (!(file instanceof File) || (file.size === 0 && file.name === '')) throw new ImportRefused('invalid', undefined, 'Choose a CSV file first.');
+	if (!(file instanceof File) || (file.size === 0 && file.name === ''))
+		throw new ImportRefused('invalid', undefined, 'Choose a CSV file first.');
 	if (file.size > IMPORT_LIMIT_BYTES) {
 		throw new ImportRefused(
 			'too-large',
@@ -265,7 +329,12 @@ export async function checkImportUpload(actor: Actor | null, ctx: RequestContext
 		);
 	}
 	const decoded = decodeUtf8(new Uint8Array(await file.arrayBuffer()));
-	if (decoded === null) throw new ImportRefused('invalid', undefined, `${file.name} is not UTF-8 text. Save it again as “CSV UTF-8” (or plain UTF-8 text) and check it again.`);
+	if (decoded === null)
+		throw new ImportRefused(
+			'invalid',
+			undefined,
+			`${file.name} is not UTF-8 text. Save it again as “CSV UTF-8” (or plain UTF-8 text) and check it again.`
+		);
 	const content = canonicalText(decoded);
 	const check = checkImportText(content, { mayImportPersonal: may(a, 'participant.personal.edit', study.id) });
 	const view = viewOf(check, { fileName: file.name, sizeBytes: file.size, sha256: sha256Hex(content), content }, study);
@@ -287,19 +356,31 @@ class CodesMoved extends Error {}
  * Step 2: imports the file that was checked (sent back as text with its SHA-256), checked again here. Codes, personal
  * rows and audit entries are written in one transaction; any failure leaves the study as it was.
  */
-export async function runImport(actor: Actor | null, ctx: RequestContext, rawId: string, checked: CheckedFile): Promise<{ count: number; firstCode: string; lastCode: string }> {
+export async function runImport(
+	actor: Actor | null,
+	ctx: RequestContext,
+	rawId: string,
+	checked: CheckedFile
+): Promise<{ count: number; firstCode: string; lastCode: string }> {
 	const { actor: a, study } = await studyFor(actor, ctx, 'participant.import', rawId);
 	const content = canonicalText(checked.content);
 	const { sha256, firstNumber } = checked;
 	const fileName = checked.fileName.slice(0, 200) || 'participants.csv';
-	if (content.trim() === '' || !/^[0-9a-f]{64}$/.test(sha256)) throw new ImportRefused('invalid', undefined, 'There is no checked file to import. Choose the file and check it first.');
-	if (sha256Hex(content) !== sha256) throw new ImportRefused('invalid', undefined, 'The checked file changed on its way back. Choose the file and check it again.');
-	if (Buffer.byteLength(content, 'utf8') > IMPORT_LIMIT_BYTES) throw new ImportRefused('too-large', undefined, `The file is over ${kb(IMPORT_LIMIT_BYTES)}. Split it and import the parts one after another.`);
+	if (content.trim() === '' || !/^[0-9a-f]{64}$/.test(sha256))
+		throw new ImportRefused('invalid', undefined, 'There is no checked file to import. Choose the file and check it first.');
+	if (sha256Hex(content) !== sha256)
+		throw new ImportRefused('invalid', undefined, 'The checked file changed on its way back. Choose the file and check it again.');
+	if (Buffer.byteLength(content, 'utf8') > IMPORT_LIMIT_BYTES)
+		throw new ImportRefused(
+			'too-large',
+			undefined,
+			`The file is over ${kb(IMPORT_LIMIT_BYTES)}. Split it and import the parts one after another.`
+		);
 	const check = checkImportText(content, { mayImportPersonal: may(a, 'participant.personal.edit', study.id) });
 	const meta = { fileName, sizeBytes: Buffer.byteLength(content, 'utf8'), sha256, content };
 	if (!check.ok) throw new ImportRefused('invalid', viewOf(check, meta, study));
 	const ip = ctx.ipAddress;
-		try {
+	try {
 		return await db().transaction(async (transaction) => {
 			// the same row lock as adding one participant: imports and additions take turns, codes stay consecutive
 			const locked = (await Study.findByPk(study.id, { transaction, lock: transaction.LOCK.UPDATE }))!;
@@ -309,7 +390,9 @@ export async function runImport(actor: Actor | null, ctx: RequestContext, rawId:
 			const codes: string[] = [];
 			// rows go in as multi-row inserts of IMPORT_CHUNK rows; an error in any chunk rolls back the earlier ones too
 			for (let at = 0; at < check.rows.length; at += IMPORT_CHUNK) {
-				const chunk = check.rows.slice(at, at + IMPORT_CHUNK).map((row) => ({ row: row.row, input: row.input!, code: formatCode(prefix, n++) }));
+				const chunk = check.rows
+					.slice(at, at + IMPORT_CHUNK)
+					.map((row) => ({ row: row.row, input: row.input!, code: formatCode(prefix, n++) }));
 				codes.push(...chunk.map((c) => c.code));
 				const made = await Participant.bulkCreate(
 					chunk.map(({ input, code }) => researchRowOf(study.id, code, input)),
@@ -362,7 +445,17 @@ export async function runImport(actor: Actor | null, ctx: RequestContext, rawId:
 		if (err instanceof UniqueConstraintError) {
 			const taken = err.errors.find((e) => e.path === 'code')?.value ?? err.errors[0]?.value;
 			const reason = `code ${taken ?? '(unknown)'} is already in use`;
-			await record({ action: 'participants.import.failed', actorUserId: a.id, actorLabel: a.email, outcome: 'failed', studyId: study.id, recordType: 'study', recordId: study.id, ipAddress: ip, details: { sha256, fileName, reason } });
+			await record({
+				action: 'participants.import.failed',
+				actorUserId: a.id,
+				actorLabel: a.email,
+				outcome: 'failed',
+				studyId: study.id,
+				recordType: 'study',
+				recordId: study.id,
+				ipAddress: ip,
+				details: { sha256, fileName, reason }
+			});
 			const view = viewOf(check, meta, study);
 			view.notice = `Nothing was imported: the database refused the import because ${reason} (the study's code counter is behind the codes that exist). No participant, code or personal data was saved. Ask a lab administrator to check the study's code counter.`;
 			view.content = undefined;

@@ -25,10 +25,22 @@ export function parseListQuery(url: URL): ListQuery {
 	return { q, sort, dir, page };
 }
 
-const personalOf = (p: ParticipantPersonal | null | undefined): Personal => ({ fullName: p?.fullName ?? null, email: p?.email ?? null, phone: p?.phone ?? null });
+const personalOf = (p: ParticipantPersonal | null | undefined): Personal => ({
+	fullName: p?.fullName ?? null,
+	email: p?.email ?? null,
+	phone: p?.phone ?? null
+});
 
 function rowOf(p: Participant, personal: ParticipantPersonal | null | undefined, seesPersonal: boolean): ParticipantRow {
-	const row: ParticipantRow = { id: p.id, code: p.code, sex: p.sex, birthYear: p.birthYear, bodyMassKg: p.bodyMassKg, statureM: p.statureM, createdOn: p.createdAt.toISOString().slice(0, 10) };
+	const row: ParticipantRow = {
+		id: p.id,
+		code: p.code,
+		sex: p.sex,
+		birthYear: p.birthYear,
+		bodyMassKg: p.bodyMassKg,
+		statureM: p.statureM,
+		createdOn: p.createdAt.toISOString().slice(0, 10)
+	};
 	if (seesPersonal) row.personal = personalOf(personal);
 	return row;
 }
@@ -41,11 +53,15 @@ export async function listParticipants(actor: Actor | null, ctx: RequestContext,
 	if (query.q) Object.assign(where, { code: { [Op.iLike]: `%${query.q.replace(/[\\%_]/g, (c) => '\\' + c)}%` } });
 	const { rows, count } = await Participant.findAndCountAll({
 		where,
-		order: [[SORT_COLUMNS[query.sort], query.dir.toUpperCase()], ['code', 'ASC']],
+		order: [
+			[SORT_COLUMNS[query.sort], query.dir.toUpperCase()],
+			['code', 'ASC']
+		],
 		limit: PAGE_SIZE,
 		offset: (query.page - 1) * PAGE_SIZE
 	});
-	const personal = seesPersonal && rows.length ? await ParticipantPersonal.findAll({ where: { participantId: rows.map((r) => r.id) } }) : [];
+	const personal =
+		seesPersonal && rows.length ? await ParticipantPersonal.findAll({ where: { participantId: rows.map((r) => r.id) } }) : [];
 	const byId = new Map(personal.map((p) => [p.participantId, p]));
 	const consentStates = await consentStatesOf(rows.map((r) => r.id));
 	return {
@@ -56,7 +72,10 @@ export async function listParticipants(actor: Actor | null, ctx: RequestContext,
 		seesPersonal,
 		mayCreate: may(a, 'participant.create', study.id),
 		mayImport: may(a, 'participant.import', study.id),
-		participants: rows.map((p) => ({ ...rowOf(p, byId.get(p.id), seesPersonal), consentState: consentStates.get(p.id) ?? ('not_invited' as const) }))
+		participants: rows.map((p) => ({
+			...rowOf(p, byId.get(p.id), seesPersonal),
+			consentState: consentStates.get(p.id) ?? ('not_invited' as const)
+		}))
 	};
 }
 
@@ -79,7 +98,10 @@ export const participantSchema = z.object({
 	birthYear: z
 		.string()
 		.trim()
-		.refine((v) => v === '' || (/^\d{4}$/.test(v) && Number(v) >= 1900 && Number(v) <= thisYear), `Enter a year between 1900 and ${thisYear}, or leave it empty.`)
+		.refine(
+			(v) => v === '' || (/^\d{4}$/.test(v) && Number(v) >= 1900 && Number(v) <= thisYear),
+			`Enter a year between 1900 and ${thisYear}, or leave it empty.`
+		)
 		.transform((v) => (v ? Number(v) : null)),
 	dominantSide: z.enum(['', 'left', 'right'], { error: 'Choose left, right or not recorded.' }).transform((v) => v || null),
 	notes: optionalText(2000, 'the notes'),
@@ -93,7 +115,10 @@ export const participantSchema = z.object({
 	phone: z
 		.string()
 		.trim()
-		.refine((v) => v === '' || /^\+?[0-9 ()\-/.]{5,30}$/.test(v), 'Enter a phone number of digits, spaces and + ( ) - only, or leave it empty.')
+		.refine(
+			(v) => v === '' || /^\+?[0-9 ()\-/.]{5,30}$/.test(v),
+			'Enter a phone number of digits, spaces and + ( ) - only, or leave it empty.'
+		)
 		.transform((v) => v || null)
 });
 export type ParticipantInput = z.infer<typeof participantSchema>;
@@ -105,7 +130,14 @@ const personalSchema = participantSchema.pick({ fullName: true, email: true, pho
 export const personalFieldsOf = (input: ParticipantInput) => PERSONAL_FIELDS.filter((k) => input[k] !== null);
 export const RESEARCH_FIELDS = ['sex', 'birthYear', 'bodyMassKg', 'statureM', 'dominantSide', 'notes'] as const;
 export type ResearchField = (typeof RESEARCH_FIELDS)[number];
-const researchSchema = participantSchema.pick({ sex: true, birthYear: true, bodyMassKg: true, statureM: true, dominantSide: true, notes: true });
+const researchSchema = participantSchema.pick({
+	sex: true,
+	birthYear: true,
+	bodyMassKg: true,
+	statureM: true,
+	dominantSide: true,
+	notes: true
+});
 
 /** Form values: what a form posted, by field name. */
 export type FormFields = Record<string, string>;
@@ -118,15 +150,41 @@ function parseWith<T extends z.ZodType>(schema: T, values: FormFields, keys: rea
 }
 
 /** Writes one audit row about a participant (in the caller's transaction, when given). */
-function audit(actor: Actor, ctx: RequestContext, study: Study, p: Pick<Participant, 'id'>, action: string, details?: Record<string, unknown>, transaction?: Transaction) {
-	return record({ action, actorUserId: actor.id, actorLabel: actor.email, studyId: study.id, recordType: 'participant', recordId: p.id, ipAddress: ctx.ipAddress, details }, transaction);
+function audit(
+	actor: Actor,
+	ctx: RequestContext,
+	study: Study,
+	p: Pick<Participant, 'id'>,
+	action: string,
+	details?: Record<string, unknown>,
+	transaction?: Transaction
+) {
+	return record(
+		{
+			action,
+			actorUserId: actor.id,
+			actorLabel: actor.email,
+			studyId: study.id,
+			recordType: 'participant',
+			recordId: p.id,
+			ipAddress: ctx.ipAddress,
+			details
+		},
+		transaction
+	);
 }
 
 /**
  * Corrects a participant's research fields. The audit row keeps before and after of each changed field, except
  * the notes, whose text stays out of the append-only log (a name typed there by mistake must be removable).
  */
-export async function updateResearchFields(actor: Actor | null, ctx: RequestContext, rawId: string, rawPid: string, values: FormFields): Promise<{ changed: ResearchField[] }> {
+export async function updateResearchFields(
+	actor: Actor | null,
+	ctx: RequestContext,
+	rawId: string,
+	rawPid: string,
+	values: FormFields
+): Promise<{ changed: ResearchField[] }> {
 	const { actor: a, study } = await studyFor(actor, ctx, 'participant.edit', rawId);
 	const p = await participantIn(study.id, rawPid);
 	const data = parseWith(researchSchema, values, RESEARCH_FIELDS);
@@ -148,12 +206,22 @@ export async function updateResearchFields(actor: Actor | null, ctx: RequestCont
 }
 
 /** Corrects a participant's personal data; the audit row names the fields that changed, never their values. */
-export async function savePersonal(actor: Actor | null, ctx: RequestContext, rawId: string, rawPid: string, values: FormFields): Promise<void> {
+export async function savePersonal(
+	actor: Actor | null,
+	ctx: RequestContext,
+	rawId: string,
+	rawPid: string,
+	values: FormFields
+): Promise<void> {
 	const { actor: a, study } = await studyFor(actor, ctx, 'participant.personal.edit', rawId);
 	const p = await participantIn(study.id, rawPid);
 	const data = parseWith(personalSchema, values, PERSONAL_FIELDS);
 	await db().transaction(async (transaction) => {
-		const [row] = await ParticipantPersonal.findOrCreate({ where: { participantId: p.id }, defaults: { participantId: p.id, fullName: null, email: null, phone: null }, transaction });
+		const [row] = await ParticipantPersonal.findOrCreate({
+			where: { participantId: p.id },
+			defaults: { participantId: p.id, fullName: null, email: null, phone: null },
+			transaction
+		});
 		const changed = PERSONAL_FIELDS.filter((k) => row[k] !== data[k]);
 		if (changed.length === 0) return;
 		await row.update(data, { transaction });
@@ -167,7 +235,12 @@ export function parseParticipant(values: FormFields): ParticipantInput {
 
 export const formatCode = (prefix: string, n: number) => `${prefix}-${String(n).padStart(3, '0')}`;
 /** The study's code prefix: the one set for it, else the letters of its protocol code. */
-export const prefixOf = (s: Pick<Study, 'participantPrefix' | 'code'>) => s.participantPrefix ?? s.code.replace(/[^A-Z]/gi, '').slice(0, 3).toUpperCase();
+export const prefixOf = (s: Pick<Study, 'participantPrefix' | 'code'>) =>
+	s.participantPrefix ??
+	s.code
+		.replace(/[^A-Z]/gi, '')
+		.slice(0, 3)
+		.toUpperCase();
 
 /** The participants row of a new participant (research fields only). */
 export const researchRowOf = (studyId: string, code: string, input: ParticipantInput) => ({
@@ -181,10 +254,20 @@ export const researchRowOf = (studyId: string, code: string, input: ParticipantI
 	notes: input.notes
 });
 /** The personal-data row of a new participant (its own table). */
-export const personalRowOf = (participantId: string, input: ParticipantInput) => ({ participantId, fullName: input.fullName, email: input.email, phone: input.phone });
+export const personalRowOf = (participantId: string, input: ParticipantInput) => ({
+	participantId,
+	fullName: input.fullName,
+	email: input.email,
+	phone: input.phone
+});
 
 /** Adds a participant with the next code of the study; personal data goes to its own table. Audited. */
-export async function createParticipant(actor: Actor | null, ctx: RequestContext, rawId: string, values: FormFields): Promise<{ id: string; code: string }> {
+export async function createParticipant(
+	actor: Actor | null,
+	ctx: RequestContext,
+	rawId: string,
+	values: FormFields
+): Promise<{ id: string; code: string }> {
 	const { actor: a, study } = await studyFor(actor, ctx, 'participant.create', rawId);
 	const input = parseParticipant(values);
 	return db().transaction(async (transaction) => {
@@ -203,7 +286,14 @@ export async function createParticipant(actor: Actor | null, ctx: RequestContext
 
 /** Every measured length, by segment, newest first; `latest` marks the one scaling uses. */
 async function lengthHistory(participantId: string): Promise<LengthView[]> {
-	const lengths = await ParticipantLength.findAll({ where: { participantId }, order: [['segment', 'ASC'], ['measuredOn', 'DESC'], ['createdAt', 'DESC']] });
+	const lengths = await ParticipantLength.findAll({
+		where: { participantId },
+		order: [
+			['segment', 'ASC'],
+			['measuredOn', 'DESC'],
+			['createdAt', 'DESC']
+		]
+	});
 	const seen = new Set<string>();
 	return lengths.map((l) => {
 		const latest = !seen.has(l.segment);
@@ -269,13 +359,27 @@ const lengthSchema = z.object({
 });
 
 /** Adds one measurement to the history (earlier ones stay). */
-export async function addLength(actor: Actor | null, ctx: RequestContext, rawId: string, rawPid: string, values: FormFields): Promise<void> {
+export async function addLength(
+	actor: Actor | null,
+	ctx: RequestContext,
+	rawId: string,
+	rawPid: string,
+	values: FormFields
+): Promise<void> {
 	const { actor: a, study } = await studyFor(actor, ctx, 'participant.edit', rawId);
 	const p = await participantIn(study.id, rawPid);
 	const data = parseWith(lengthSchema, values, ['segment', 'lengthM', 'measuredOn']);
 	await db().transaction(async (transaction) => {
 		const l = await ParticipantLength.create({ participantId: p.id, ...data }, { transaction });
-		await audit(a, ctx, study, p, 'participant.length.added', { lengthId: l.id, segment: l.segment, lengthM: l.lengthM, measuredOn: l.measuredOn }, transaction);
+		await audit(
+			a,
+			ctx,
+			study,
+			p,
+			'participant.length.added',
+			{ lengthId: l.id, segment: l.segment, lengthM: l.lengthM, measuredOn: l.measuredOn },
+			transaction
+		);
 	});
 }
 

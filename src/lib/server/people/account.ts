@@ -22,7 +22,13 @@ export interface AccountOverview {
 export async function accountOverview(who: Actor | null): Promise<AccountOverview> {
 	const actor = requireActor(who);
 	const user = await User.findByPk(actor.id, { attributes: ['id', 'passwordHash'] });
-	return { name: actor.name, email: actor.email, isAdmin: actor.isAdmin, hasPassword: Boolean(user?.passwordHash), roles: await rolesOf(actor) };
+	return {
+		name: actor.name,
+		email: actor.email,
+		isAdmin: actor.isAdmin,
+		hasPassword: Boolean(user?.passwordHash),
+		roles: await rolesOf(actor)
+	};
 }
 
 export type PasswordField = 'current' | 'next' | 'repeat';
@@ -53,13 +59,34 @@ async function tryChangePassword(actor: Actor, ip: string | null, input: Passwor
 	if (user.passwordHash) {
 		const throttle = await checkThrottle(user.email, ip);
 		if (throttle.blocked) {
-			await record({ action: 'auth.password-changed', actorUserId: user.id, actorLabel: user.email, outcome: 'denied', ipAddress: ip, recordType: 'user', recordId: user.id, details: { reason: 'rate limited' } });
+			await record({
+				action: 'auth.password-changed',
+				actorUserId: user.id,
+				actorLabel: user.email,
+				outcome: 'denied',
+				ipAddress: ip,
+				recordType: 'user',
+				recordId: user.id,
+				details: { reason: 'rate limited' }
+			});
 			return { current: `Too many wrong passwords. Wait ${throttle.retryAfterMinutes} minutes and try again.` };
 		}
 		if (!(await verifyPassword(user.passwordHash, input.current))) {
 			await recordFailure(user.email, ip);
-			await record({ action: 'auth.password-changed', actorUserId: user.id, actorLabel: user.email, outcome: 'failed', ipAddress: ip, recordType: 'user', recordId: user.id, details: { reason: 'wrong current password' } });
-			return { current: 'That is not your current password. Check it and try again; if you have forgotten it, sign out and ask for a password reset.' };
+			await record({
+				action: 'auth.password-changed',
+				actorUserId: user.id,
+				actorLabel: user.email,
+				outcome: 'failed',
+				ipAddress: ip,
+				recordType: 'user',
+				recordId: user.id,
+				details: { reason: 'wrong current password' }
+			});
+			return {
+				current:
+					'That is not your current password. Check it and try again; if you have forgotten it, sign out and ask for a password reset.'
+			};
 		}
 		if (input.current === input.next) return { next: 'The new password is the same as the current one: choose a different one.' };
 	}
@@ -71,7 +98,15 @@ async function tryChangePassword(actor: Actor, ip: string | null, input: Passwor
 	await db().transaction(async (transaction) => {
 		await User.update({ passwordHash }, { where: { id: user.id }, transaction });
 		await record(
-			{ action: 'auth.password-changed', actorUserId: user.id, actorLabel: user.email, ipAddress: ip, recordType: 'user', recordId: user.id, details: { hadPassword: Boolean(user.passwordHash), signedOutEverywhere: true } },
+			{
+				action: 'auth.password-changed',
+				actorUserId: user.id,
+				actorLabel: user.email,
+				ipAddress: ip,
+				recordType: 'user',
+				recordId: user.id,
+				details: { hadPassword: Boolean(user.passwordHash), signedOutEverywhere: true }
+			},
 			transaction
 		);
 	});
@@ -92,5 +127,10 @@ async function tryChangePassword(actor: Actor, ip: string | null, input: Passwor
 export async function signOutRecorded(actor: Actor | null, ctx: RequestContext, everywhere: boolean): Promise<void> {
 	if (!actor) return;
 	if (everywhere) await signOutEverywhere(actor.id);
-	await record({ action: everywhere ? 'auth.sign-out-everywhere' : 'auth.sign-out', actorUserId: actor.id, actorLabel: actor.email, ipAddress: ctx.ipAddress });
+	await record({
+		action: everywhere ? 'auth.sign-out-everywhere' : 'auth.sign-out',
+		actorUserId: actor.id,
+		actorLabel: actor.email,
+		ipAddress: ctx.ipAddress
+	});
 }

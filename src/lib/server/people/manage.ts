@@ -10,7 +10,16 @@ import { currentLab } from '../studies/lab';
 import { sendMail } from '../mail/index';
 import { hashPassword, passwordProblem } from '../auth/password';
 import { consume, inspectToken, issueToken, LINK_REFUSED_MESSAGE, TOKEN_LIFETIME_MS, type TokenRefusal } from '../auth/tokens';
-import { PEOPLE_PER_PAGE, PEOPLE_SORTS, type PeoplePage, type PeopleQuery, type PeopleSort, type PersonSummary, type RoleHeld, type StudyChoice } from '../../types/people';
+import {
+	PEOPLE_PER_PAGE,
+	PEOPLE_SORTS,
+	type PeoplePage,
+	type PeopleQuery,
+	type PeopleSort,
+	type PersonSummary,
+	type RoleHeld,
+	type StudyChoice
+} from '../../types/people';
 
 /** Every session of the account stops working at its next request (they carry the old version number). */
 export async function signOutEverywhere(userId: string, transaction?: Transaction): Promise<void> {
@@ -49,13 +58,21 @@ function assertManager(actor: Actor): void {
 	if (!may(actor, 'people.manage')) throw new FormProblem({ form: 'Only a lab administrator can manage people.' }, 'forbidden');
 }
 
-
 const days = (ms: number) => Math.round(ms / 86_400_000);
 const minutes = (ms: number) => Math.round(ms / 60_000);
 
 // ---------------------------------------------------------------------------------------------- list and read
 
-export { PEOPLE_PER_PAGE, PEOPLE_SORTS, type PeoplePage, type PeopleQuery, type PeopleSort, type PersonSummary, type RoleHeld, type StudyChoice } from '../../types/people';
+export {
+	PEOPLE_PER_PAGE,
+	PEOPLE_SORTS,
+	type PeoplePage,
+	type PeopleQuery,
+	type PeopleSort,
+	type PersonSummary,
+	type RoleHeld,
+	type StudyChoice
+} from '../../types/people';
 
 /** Reads ?q=&sort=&dir=&page= leniently: anything unknown falls back to the default. */
 export function parsePeopleQuery(params: URLSearchParams): PeopleQuery {
@@ -104,16 +121,33 @@ export async function listPeople(actor: Actor, query: PeopleQuery): Promise<Peop
 	// a stable order (ties broken by e-mail, then id) keeps a person from appearing on two pages
 	const order =
 		query.sort === 'name'
-			? [[fn('lower', col('name')), `${dir} NULLS LAST`], ['email', 'ASC'], ['id', 'ASC']]
+			? [
+					[fn('lower', col('name')), `${dir} NULLS LAST`],
+					['email', 'ASC'],
+					['id', 'ASC']
+				]
 			: query.sort === 'email'
-				? [['email', dir], ['id', 'ASC']]
-				: [['createdAt', dir], ['email', 'ASC'], ['id', 'ASC']];
+				? [
+						['email', dir],
+						['id', 'ASC']
+					]
+				: [
+						['createdAt', dir],
+						['email', 'ASC'],
+						['id', 'ASC']
+					];
 	const total = await User.count({ where });
 	const pageCount = Math.max(1, Math.ceil(total / PEOPLE_PER_PAGE));
 	const page = Math.min(query.page, pageCount);
 	const users = await User.findAll({ where, order: order as never, limit: PEOPLE_PER_PAGE, offset: (page - 1) * PEOPLE_PER_PAGE });
 	const roles = await rolesOf(users.map((u) => u.id));
-	return { query: { ...query, page }, people: users.map((u) => summary(u, roles.get(u.id) ?? [])), total, pageCount, perPage: PEOPLE_PER_PAGE };
+	return {
+		query: { ...query, page },
+		people: users.map((u) => summary(u, roles.get(u.id) ?? [])),
+		total,
+		pageCount,
+		perPage: PEOPLE_PER_PAGE
+	};
 }
 
 /** Every study, for the role pickers. */
@@ -149,7 +183,12 @@ export function parseRole(value: unknown, studyCode: string, field: string): Stu
 	return v as StudyRole;
 }
 
-async function applyRole(userId: string, study: Study, role: StudyRole | null, transaction: Transaction): Promise<{ before: StudyRole | null; after: StudyRole | null }> {
+async function applyRole(
+	userId: string,
+	study: Study,
+	role: StudyRole | null,
+	transaction: Transaction
+): Promise<{ before: StudyRole | null; after: StudyRole | null }> {
 	const member = await StudyMember.findOne({ where: { userId, studyId: study.id }, transaction, lock: transaction.LOCK.UPDATE });
 	const before = member?.role ?? null;
 	if (before === role) return { before, after: role };
@@ -160,7 +199,13 @@ async function applyRole(userId: string, study: Study, role: StudyRole | null, t
 }
 
 /** Gives, changes or (role null) removes a person's role in one study. Returns false when nothing changed. */
-export async function setStudyRole(actor: Actor, ctx: RequestContext, userId: string, studyId: string, role: StudyRole | null): Promise<boolean> {
+export async function setStudyRole(
+	actor: Actor,
+	ctx: RequestContext,
+	userId: string,
+	studyId: string,
+	role: StudyRole | null
+): Promise<boolean> {
 	assertManager(actor);
 	return db().transaction(async (transaction) => {
 		const person = await lockedPerson(userId, transaction);
@@ -189,7 +234,10 @@ export async function setStudyRole(actor: Actor, ctx: RequestContext, userId: st
 export async function setLabAdmin(actor: Actor, ctx: RequestContext, userId: string, isAdmin: boolean): Promise<boolean> {
 	assertManager(actor);
 	if (userId === actor.id && !isAdmin) {
-		throw new FormProblem({ isAdmin: 'You cannot remove your own lab administrator role. Ask another administrator to do it.' }, 'conflict');
+		throw new FormProblem(
+			{ isAdmin: 'You cannot remove your own lab administrator role. Ask another administrator to do it.' },
+			'conflict'
+		);
 	}
 	return db().transaction(async (transaction) => {
 		const person = await lockedPerson(userId, transaction);
@@ -217,13 +265,22 @@ export async function setLabAdmin(actor: Actor, ctx: RequestContext, userId: str
  */
 export async function deactivatePerson(actor: Actor, ctx: RequestContext, userId: string): Promise<void> {
 	assertManager(actor);
-	if (userId === actor.id) throw new FormProblem({ form: 'You cannot deactivate your own account. Ask another administrator to do it.' }, 'conflict');
+	if (userId === actor.id)
+		throw new FormProblem({ form: 'You cannot deactivate your own account. Ask another administrator to do it.' }, 'conflict');
 	await db().transaction(async (transaction) => {
 		const person = await lockedPerson(userId, transaction);
 		if (person.deactivatedAt) throw new FormProblem({ form: `${person.email} is already deactivated.` }, 'conflict');
 		await person.update({ deactivatedAt: new Date(), sessionVersion: person.sessionVersion + 1 }, { transaction });
 		await record(
-			{ action: 'people.deactivated', actorUserId: actor.id, actorLabel: actor.email, recordType: 'user', recordId: person.id, ipAddress: ctx.ipAddress, details: { email: person.email } },
+			{
+				action: 'people.deactivated',
+				actorUserId: actor.id,
+				actorLabel: actor.email,
+				recordType: 'user',
+				recordId: person.id,
+				ipAddress: ctx.ipAddress,
+				details: { email: person.email }
+			},
 			transaction
 		);
 	});
@@ -287,13 +344,20 @@ export function parseInvitation(input: FormInput, studies: StudyChoice[]): Invit
  * Invites a person: creates the account when the address is new (no password), gives the chosen study roles,
  * and e-mails a single-use link. If the e-mail cannot be sent nothing is kept, so the administrator can retry.
  */
-export async function invitePerson(actor: Actor, ctx: RequestContext, input: InvitationInput): Promise<{ userId: string; created: boolean }> {
+export async function invitePerson(
+	actor: Actor,
+	ctx: RequestContext,
+	input: InvitationInput
+): Promise<{ userId: string; created: boolean }> {
 	assertManager(actor);
 	const lab = await currentLab();
 	return db().transaction(async (transaction) => {
 		let person = await User.findOne({ where: { email: input.email }, transaction, lock: transaction.LOCK.UPDATE });
 		if (person?.deactivatedAt) {
-			throw new FormProblem({ email: `${input.email} belongs to a deactivated account. Reactivate it on that person’s page, then invite them again.` }, 'conflict');
+			throw new FormProblem(
+				{ email: `${input.email} belongs to a deactivated account. Reactivate it on that person’s page, then invite them again.` },
+				'conflict'
+			);
 		}
 		const created = !person;
 		if (!person) person = await User.create({ email: input.email, name: input.name, emailVerified: null }, { transaction });
@@ -336,7 +400,12 @@ export async function invitePerson(actor: Actor, ctx: RequestContext, input: Inv
 					`Without a password you sign in with a link e-mailed to you each time.\nIf you were not expecting this invitation, ignore this e-mail.`
 			});
 		} catch (err) {
-			throw new FormProblem({ form: `The invitation e-mail to ${person.email} could not be sent (${(err as Error).message}). Nothing was saved; try again, or check the mail server on the status page.` }, 'upstream');
+			throw new FormProblem(
+				{
+					form: `The invitation e-mail to ${person.email} could not be sent (${(err as Error).message}). Nothing was saved; try again, or check the mail server on the status page.`
+				},
+				'upstream'
+			);
 		}
 		return { userId: person.id, created };
 	});
@@ -369,8 +438,26 @@ function parseNewPassword(input: FormInput, optional: boolean, errors: FieldErro
 /** A link that cannot be used, once its refusal is in the audit log: gone, with the one message people see. */
 const linkGone = () => new FormProblem({ form: LINK_REFUSED_MESSAGE }, 'gone');
 
-async function linkRefused(action: string, reason: LinkRefused['refused'], ctx: RequestContext, userId: string | null, transaction?: Transaction): Promise<LinkRefused> {
-	await record({ action, actorUserId: userId, actorLabel: 'e-mailed link', outcome: 'denied', recordType: 'user', recordId: userId, ipAddress: ctx.ipAddress, details: { reason } }, transaction);
+async function linkRefused(
+	action: string,
+	reason: LinkRefused['refused'],
+	ctx: RequestContext,
+	userId: string | null,
+	transaction?: Transaction
+): Promise<LinkRefused> {
+	await record(
+		{
+			action,
+			actorUserId: userId,
+			actorLabel: 'e-mailed link',
+			outcome: 'denied',
+			recordType: 'user',
+			recordId: userId,
+			ipAddress: ctx.ipAddress,
+			details: { reason }
+		},
+		transaction
+	);
 	return { refused: reason };
 }
 
@@ -378,7 +465,11 @@ async function linkRefused(action: string, reason: LinkRefused['refused'], ctx: 
  * Accepts an invitation: saves the name, the password if one was chosen, and that the address is confirmed.
  * A link that cannot be used is audited and answered as gone.
  */
-export async function acceptInvitation(ctx: RequestContext, token: string, input: FormInput): Promise<{ email: string; passwordSet: boolean }> {
+export async function acceptInvitation(
+	ctx: RequestContext,
+	token: string,
+	input: FormInput
+): Promise<{ email: string; passwordSet: boolean }> {
 	const errors: FieldErrors = {};
 	const name = text(input, 'name').trim();
 	if (!name) errors.name = 'Enter your name as your colleagues should see it.';
@@ -397,7 +488,8 @@ export async function acceptInvitation(ctx: RequestContext, token: string, input
 		const used = await consume('invitation', token, transaction);
 		if (!used.ok) return linkRefused('people.invitation-accepted', used.reason, ctx, null, transaction);
 		const person = await User.findByPk(used.userId, { transaction, lock: transaction.LOCK.UPDATE });
-		if (!person || person.deactivatedAt) return linkRefused('people.invitation-accepted', 'account-deactivated', ctx, used.userId, transaction);
+		if (!person || person.deactivatedAt)
+			return linkRefused('people.invitation-accepted', 'account-deactivated', ctx, used.userId, transaction);
 		await person.update(
 			{ name, emailVerified: person.emailVerified ?? new Date(), ...(passwordHash ? { passwordHash } : {}) },
 			{ transaction }
@@ -433,15 +525,33 @@ export async function requestPasswordReset(ctx: RequestContext, email: string): 
 	const address = email.trim().toLowerCase();
 	const person = await User.findOne({ where: { email: address } });
 	const refuse = (reason: string) =>
-		record({ action: 'auth.password-reset-requested', actorUserId: person?.id ?? null, actorLabel: address, outcome: 'denied', ipAddress: ctx.ipAddress, details: { reason } });
+		record({
+			action: 'auth.password-reset-requested',
+			actorUserId: person?.id ?? null,
+			actorLabel: address,
+			outcome: 'denied',
+			ipAddress: ctx.ipAddress,
+			details: { reason }
+		});
 	if (!person) return void (await refuse('no such account'));
 	if (person.deactivatedAt) return void (await refuse('deactivated'));
-	const recent = await OneTimeToken.count({ where: { userId: person.id, purpose: 'password-reset', createdAt: { [Op.gt]: new Date(Date.now() - 3600_000) } } });
+	const recent = await OneTimeToken.count({
+		where: { userId: person.id, purpose: 'password-reset', createdAt: { [Op.gt]: new Date(Date.now() - 3600_000) } }
+	});
 	if (recent >= RESETS_PER_HOUR) return void (await refuse('too many requests'));
 
 	await db().transaction(async (transaction) => {
 		const token = await issueToken('password-reset', person.id, transaction);
-		await record({ action: 'auth.password-reset-requested', actorUserId: person.id, actorLabel: person.email, ipAddress: ctx.ipAddress, details: { sent: true } }, transaction);
+		await record(
+			{
+				action: 'auth.password-reset-requested',
+				actorUserId: person.id,
+				actorLabel: person.email,
+				ipAddress: ctx.ipAddress,
+				details: { sent: true }
+			},
+			transaction
+		);
 		await sendMail({
 			to: person.email,
 			subject: 'Reset your Momentry password',
@@ -479,9 +589,20 @@ export async function resetPassword(ctx: RequestContext, token: string, input: F
 		if (!used.ok) return linkRefused('auth.password-reset', used.reason, ctx, null, transaction);
 		const person = await User.findByPk(used.userId, { transaction, lock: transaction.LOCK.UPDATE });
 		if (!person || person.deactivatedAt) return linkRefused('auth.password-reset', 'account-deactivated', ctx, used.userId, transaction);
-		await person.update({ passwordHash, sessionVersion: person.sessionVersion + 1, emailVerified: person.emailVerified ?? new Date() }, { transaction });
+		await person.update(
+			{ passwordHash, sessionVersion: person.sessionVersion + 1, emailVerified: person.emailVerified ?? new Date() },
+			{ transaction }
+		);
 		await record(
-			{ action: 'auth.password-reset', actorUserId: person.id, actorLabel: person.email, recordType: 'user', recordId: person.id, ipAddress: ctx.ipAddress, details: { signedOutEverywhere: true } },
+			{
+				action: 'auth.password-reset',
+				actorUserId: person.id,
+				actorLabel: person.email,
+				recordType: 'user',
+				recordId: person.id,
+				ipAddress: ctx.ipAddress,
+				details: { signedOutEverywhere: true }
+			},
 			transaction
 		);
 		return { email: person.email };

@@ -11,11 +11,26 @@ import { isUuid, may, studyFor, type Actor } from '../access/guard';
 import type { RequestContext } from '../access/context';
 import { includeEdgeZonesOf, recordRunAction, runIn, storedSeries, timeOfRun } from '../runs/runs';
 import { sessionIn } from '../sessions/sessions';
-import { doneRunsOfParticipant, doneRunsOfSession, eventSetOfRun, participantsWithDoneRuns, upsertEvents, type DoneRunRow } from './queries';
+import {
+	doneRunsOfParticipant,
+	doneRunsOfSession,
+	eventSetOfRun,
+	participantsWithDoneRuns,
+	upsertEvents,
+	type DoneRunRow
+} from './queries';
 import { reduceForPlot } from '../../processing/reduce';
 import { cyclePeaks, eventProblems, meanSd, meanSdOf, normaliseCycles } from '../../processing/cycles';
 import { reliableSpan, repetitionsInEdgeZone } from '../../processing/zone-exclusion';
-import { COMPARE_QUANTITIES, type CompareGroup, type CompareQuantity, type EventSet, type ReviewAnswer, type ReviewCurve, type ReviewRun } from '../../types/review';
+import {
+	COMPARE_QUANTITIES,
+	type CompareGroup,
+	type CompareQuantity,
+	type EventSet,
+	type ReviewAnswer,
+	type ReviewCurve,
+	type ReviewRun
+} from '../../types/review';
 import type { ResultQuantity } from '../../types/runs';
 
 export { COMPARE_QUANTITIES, type CompareGroup, type CompareQuantity, type EventSet, type ReviewAnswer, type ReviewCurve, type ReviewRun };
@@ -49,7 +64,13 @@ export async function reviewRun(row: DoneRunRow, quantity: ResultQuantity, maxPo
 		.filter((c) => !c.component)
 		.map((c) => {
 			const red = reduceForPlot(time, c.values, maxPoints);
-			return { name: c.name, unit: c.unit, positive: c.positive, v: Array.from(c.values, round6), drawn: red.t.map((x) => indexOf(time, x)) };
+			return {
+				name: c.name,
+				unit: c.unit,
+				positive: c.positive,
+				v: Array.from(c.values, round6),
+				drawn: red.t.map((x) => indexOf(time, x))
+			};
 		});
 	return {
 		runId: row.id,
@@ -69,12 +90,18 @@ export async function reviewRun(row: DoneRunRow, quantity: ResultQuantity, maxPo
 }
 
 const reviewQuery = z.object({
-	quantity: z.enum(['moment', 'moment_per_kg', 'angle', 'power'], { error: 'quantity must be one of moment, moment_per_kg, angle, power' }).default('moment'),
+	quantity: z
+		.enum(['moment', 'moment_per_kg', 'angle', 'power'], { error: 'quantity must be one of moment, moment_per_kg, angle, power' })
+		.default('moment'),
 	points: z.coerce.number().int().min(10, 'points must be at least 10').max(20_000, 'points must be at most 20000').default(2000)
 });
 
 /** GET …/sessions/[sid]/review: the session's done runs (not excluded) with their curves for the review plots. */
-export async function loadSessionReview(actor: Actor | null, ctx: RequestContext, input: { studyId: string; sessionId: string; query: URLSearchParams }): Promise<ReviewAnswer> {
+export async function loadSessionReview(
+	actor: Actor | null,
+	ctx: RequestContext,
+	input: { studyId: string; sessionId: string; query: URLSearchParams }
+): Promise<ReviewAnswer> {
 	const { study } = await studyFor(actor, ctx, 'study.read', input.studyId);
 	const session = await sessionIn(study.id, input.sessionId);
 	const sp = input.query;
@@ -84,7 +111,8 @@ export async function loadSessionReview(actor: Actor | null, ctx: RequestContext
 	for (const r of await doneRunsOfSession(session.id)) runs.push(await reviewRun(r, q.data.quantity, q.data.points));
 	return {
 		quantity: q.data.quantity,
-		convention: 'Internal joint moments (the moment the proximal segment exerts on the distal one); every quantity positive in its DOF’s positive sense.',
+		convention:
+			'Internal joint moments (the moment the proximal segment exerts on the distal one); every quantity positive in its DOF’s positive sense.',
 		maxPoints: q.data.points,
 		runs
 	};
@@ -100,14 +128,20 @@ export async function eventsOfRun(runId: string): Promise<number[] | null> {
 type RunRef = { studyId: string; runId: string };
 
 /** GET …/runs/[rid]/events */
-export async function readRunEvents(actor: Actor | null, ctx: RequestContext, input: RunRef): Promise<{ runId: string; events: EventSet | null }> {
+export async function readRunEvents(
+	actor: Actor | null,
+	ctx: RequestContext,
+	input: RunRef
+): Promise<{ runId: string; events: EventSet | null }> {
 	const { study } = await studyFor(actor, ctx, 'study.read', input.studyId);
 	const { run } = await runIn(study.id, input.runId);
 	return { runId: run.id, events: await eventSetOfRun(run.id) };
 }
 
 const eventsSchema = z.object({
-	times: z.array(z.number({ error: 'Every event time must be a number of seconds.' }), { error: 'Give the event times as a list of seconds.' }).max(2000, 'At most 2000 events per run.'),
+	times: z
+		.array(z.number({ error: 'Every event time must be a number of seconds.' }), { error: 'Give the event times as a list of seconds.' })
+		.max(2000, 'At most 2000 events per run.'),
 	source: z.enum(['manual', 'peaks', 'threshold'], { error: 'source must be manual, peaks or threshold.' }).default('manual'),
 	rule: z.record(z.string(), z.unknown()).nullable().optional()
 });
@@ -133,7 +167,11 @@ async function eventsBodyOf(request: Request): Promise<unknown> {
 	try {
 		const form = await request.formData();
 		const rule = form.get('rule');
-		return { times: parseTimesText(String(form.get('times') ?? '')), source: form.get('source') || undefined, rule: rule ? JSON.parse(String(rule)) : undefined };
+		return {
+			times: parseTimesText(String(form.get('times') ?? '')),
+			source: form.get('source') || undefined,
+			rule: rule ? JSON.parse(String(rule)) : undefined
+		};
 	} catch {
 		throw new FormProblem({ rule: 'The rule is not valid JSON.' });
 	}
@@ -167,7 +205,12 @@ export async function saveRunEvents(actor: Actor | null, ctx: RequestContext, in
 		await assertSessionUnlocked(trial.sessionId, t);
 		const before = await eventSetOfRun(run.id, t);
 		const updatedAt = await upsertEvents({ runId: run.id, times, source, rule, actorId: a.id }, t);
-		await recordRunAction(a, ctx, { action: 'run.events.save', studyId: study.id, runId: run.id, details: { source, rule, times, previous: before?.times ?? null } }, t);
+		await recordRunAction(
+			a,
+			ctx,
+			{ action: 'run.events.save', studyId: study.id, runId: run.id, details: { source, rule, times, previous: before?.times ?? null } },
+			t
+		);
 		return { times, source, rule, updatedAt: new Date(updatedAt).toISOString() };
 	});
 }
@@ -182,7 +225,11 @@ type Pooled = Map<string, { unit: string; positive: string | null; cycles: numbe
  * that overlaps the run's edge zone is left out, and a whole trial is normalised from its first to its last sample
  * outside the zone (nothing when the zone covers the trial).
  */
-async function runCycles(runId: string, quantity: CompareQuantity, includeEdgeZones: boolean): Promise<{ basis: 'events' | 'whole'; count: number; leftOut: number; trimmed: boolean; byDof: Pooled }> {
+async function runCycles(
+	runId: string,
+	quantity: CompareQuantity,
+	includeEdgeZones: boolean
+): Promise<{ basis: 'events' | 'whole'; count: number; leftOut: number; trimmed: boolean; byDof: Pooled }> {
 	const s = await storedSeries(runId, { quantity });
 	const events = await eventsOfRun(runId);
 	const byEvents = Boolean(events && events.length >= 2);
@@ -243,7 +290,6 @@ function pool(into: Pooled, from: Pooled): void {
 	}
 }
 
-
 type Counts = { runs: number; cycles: number; byEvents: number; wholeTrials: number; leftOut: number; trimmed: number };
 const noCounts = (): Counts => ({ runs: 0, cycles: 0, byEvents: 0, wholeTrials: 0, leftOut: 0, trimmed: 0 });
 
@@ -263,19 +309,34 @@ async function collect(rows: DoneRunRow[], quantity: CompareQuantity, counts: Co
 	return pooled;
 }
 
-const ids = (sp: URLSearchParams, key: string) => sp.getAll(key).filter(isUuid).map((x) => x.toLowerCase());
+const ids = (sp: URLSearchParams, key: string) =>
+	sp
+		.getAll(key)
+		.filter(isUuid)
+		.map((x) => x.toLowerCase());
 
 /** The compare page: pick lists (codes and dates only) and the chosen comparison. */
 export async function loadCompare(actor: Actor | null, ctx: RequestContext, input: { studyId: string; query: URLSearchParams }) {
 	const { actor: a, study } = await studyFor(actor, ctx, 'study.read', input.studyId);
 	const sp = input.query;
 	const mode = sp.get('mode') === 'group' ? 'group' : 'sessions';
-	const quantity = (COMPARE_QUANTITIES as readonly string[]).includes(sp.get('quantity') ?? '') ? (sp.get('quantity') as CompareQuantity) : 'moment';
+	const quantity = (COMPARE_QUANTITIES as readonly string[]).includes(sp.get('quantity') ?? '')
+		? (sp.get('quantity') as CompareQuantity)
+		: 'moment';
 	const participants = await participantsWithDoneRuns(study.id);
 	const participantId = ids(sp, 'participant')[0] ?? null;
 	const chosenP = participants.find((p) => p.id === participantId) ?? null;
 	const sessions = chosenP
-		? (await Session.findAll({ where: { participantId: chosenP.id, studyId: study.id }, attributes: ['id', 'sessionOn', 'task'], order: [['sessionOn', 'ASC'], ['createdAt', 'ASC']] })).map((s) => ({
+		? (
+				await Session.findAll({
+					where: { participantId: chosenP.id, studyId: study.id },
+					attributes: ['id', 'sessionOn', 'task'],
+					order: [
+						['sessionOn', 'ASC'],
+						['createdAt', 'ASC']
+					]
+				})
+			).map((s) => ({
 				id: s.id,
 				sessionOn: String(s.sessionOn),
 				task: s.task
@@ -306,7 +367,8 @@ export async function loadCompare(actor: Actor | null, ctx: RequestContext, inpu
 			for (const [name, d] of own) if (d.cycles.length) means.set(name, { ...d, cycles: [meanSd(d.cycles).mean] });
 			pool(perParticipant, means);
 		}
-		if (chosen.length) groups.push(summarise(`Group of ${chosen.length} participant${chosen.length === 1 ? '' : 's'}`, perParticipant, counts));
+		if (chosen.length)
+			groups.push(summarise(`Group of ${chosen.length} participant${chosen.length === 1 ? '' : 's'}`, perParticipant, counts));
 	}
 	return {
 		study: { id: study.id, code: study.code, title: study.title },

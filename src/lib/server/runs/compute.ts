@@ -41,7 +41,15 @@ export function modelRecord(built: SessionModel, options: RunOptions): Record<st
 		setup: built.setup,
 		parameters: built.parameters,
 		loadsApplied: built.loadsApplied,
-		dofs: built.dofs.map((d) => ({ name: d.name, joint: d.joint, motion: d.motion, unit: d.unit, base: d.base, positive: d.positive, jointCentre: d.jointCentre }))
+		dofs: built.dofs.map((d) => ({
+			name: d.name,
+			joint: d.joint,
+			motion: d.motion,
+			unit: d.unit,
+			base: d.base,
+			positive: d.positive,
+			jointCentre: d.jointCentre
+		}))
 	};
 }
 
@@ -65,11 +73,18 @@ export function seriesRows(result: PipelineResult, built: SessionModel): SeriesR
 			{ name: d.name, quantity: 'velocity', unit: u.velocity, components: 1, data: encodeFloat64(d.velocity) },
 			{ name: d.name, quantity: 'acceleration', unit: u.acceleration, components: 1, data: encodeFloat64(d.acceleration) },
 			{ name: d.name, quantity: 'moment', unit: d.momentUnit ?? u.moment, components: 1, data: encodeFloat64(d.moment) },
-			{ name: d.name, quantity: 'moment_per_kg', unit: d.momentUnit === 'N' ? 'N/kg' : u.moment_per_kg, components: 1, data: encodeFloat64(d.momentPerKg) },
+			{
+				name: d.name,
+				quantity: 'moment_per_kg',
+				unit: d.momentUnit === 'N' ? 'N/kg' : u.moment_per_kg,
+				components: 1,
+				data: encodeFloat64(d.momentPerKg)
+			},
 			{ name: d.name, quantity: 'power', unit: u.power, components: 1, data: encodeFloat64(d.power) }
 		);
 	}
-	for (const r of result.reactions) rows.push({ name: r.joint, quantity: 'reaction_force', unit: 'N', components: 3, data: encodeFloat64(r.force) });
+	for (const r of result.reactions)
+		rows.push({ name: r.joint, quantity: 'reaction_force', unit: 'N', components: 3, data: encodeFloat64(r.force) });
 	return rows;
 }
 
@@ -84,12 +99,20 @@ export function computeRun(
 	const built = buildSessionModel(body, setup);
 	// the recording was parsed for this run alone: its arrays are filtered in place
 	const result = runPipeline(built, recording, options, onProgress, { reuseInput: true });
-	return { series: seriesRows(result, built), summary: result.summary, edgeZone: result.edgeZone, model: modelRecord(built, options), timings: result.timings };
+	return {
+		series: seriesRows(result, built),
+		summary: result.summary,
+		edgeZone: result.edgeZone,
+		model: modelRecord(built, options),
+		timings: result.timings
+	};
 }
 
 /** The samples of an encoded series without a copy where the bytes are aligned (as encodeFloat64 leaves them). */
 function samplesOf(data: Buffer): Float64Array {
-	return data.byteOffset % 8 === 0 && os.endianness() === 'LE' ? new Float64Array(data.buffer, data.byteOffset, data.byteLength / 8) : decodeFloat64(data);
+	return data.byteOffset % 8 === 0 && os.endianness() === 'LE'
+		? new Float64Array(data.buffer, data.byteOffset, data.byteLength / 8)
+		: decodeFloat64(data);
 }
 
 /**
@@ -101,7 +124,10 @@ function samplesOf(data: Buffer): Float64Array {
  */
 export function assertStorable(computed: ComputedRun): void {
 	const refuse = (what: string, value: number, at: { quantity: string; dof: string; sample: number; time: number }): never => {
-		throw new NonFiniteResultError(`The results cannot be stored: ${what} is ${value}, not a finite number. The run stores nothing; check the recording and run it again.`, { ...at, value });
+		throw new NonFiniteResultError(
+			`The results cannot be stored: ${what} is ${value}, not a finite number. The run stores nothing; check the recording and run it again.`,
+			{ ...at, value }
+		);
 	};
 	const timeRow = computed.series.find((s) => s.quantity === 'time');
 	const time = timeRow ? samplesOf(timeRow.data) : new Float64Array(0);
@@ -113,7 +139,11 @@ export function assertStorable(computed: ComputedRun): void {
 			const k = Math.floor(i / s.components);
 			const t = time[k];
 			const axis = s.components === 3 ? ` (${'xyz'[i % 3]})` : '';
-			refuse(`the ${s.quantity.replace(/_/g, ' ')}${axis} of ${s.name} at ${Number.isFinite(t) ? `${Number(t.toPrecision(6))} s (sample ${k + 1})` : `sample ${k + 1}`}`, v, { quantity: s.quantity, dof: s.name, sample: k, time: t });
+			refuse(
+				`the ${s.quantity.replace(/_/g, ' ')}${axis} of ${s.name} at ${Number.isFinite(t) ? `${Number(t.toPrecision(6))} s (sample ${k + 1})` : `sample ${k + 1}`}`,
+				v,
+				{ quantity: s.quantity, dof: s.name, sample: k, time: t }
+			);
 		}
 	}
 	const FIGURES = ['peakPositive', 'peakPositiveTime', 'peakNegative', 'peakNegativeTime', 'range', 'mean'] as const;
@@ -126,11 +156,18 @@ export function assertStorable(computed: ComputedRun): void {
 			if (!part || part.samples === 0) continue;
 			for (const f of FIGURES) {
 				const v = part[f];
-				if (typeof v === 'number' && !Number.isFinite(v)) refuse(`the summary's ${f}${label} of the ${row.quantity} of ${row.dof}`, v, { quantity: `summary of ${row.quantity}`, dof: row.dof, sample: -1, time: NaN });
+				if (typeof v === 'number' && !Number.isFinite(v))
+					refuse(`the summary's ${f}${label} of the ${row.quantity} of ${row.dof}`, v, {
+						quantity: `summary of ${row.quantity}`,
+						dof: row.dof,
+						sample: -1,
+						time: NaN
+					});
 			}
 		}
 	}
 	// (the edge zone is stored with the run; read loosely, so this check does not depend on its exact shape)
 	for (const [k, v] of Object.entries(computed.edgeZone ?? {}))
-		if (typeof v === 'number' && !Number.isFinite(v)) refuse(`the edge zone's ${k}`, v, { quantity: 'edge zone', dof: k, sample: -1, time: NaN });
+		if (typeof v === 'number' && !Number.isFinite(v))
+			refuse(`the edge zone's ${k}`, v, { quantity: 'edge zone', dof: k, sample: -1, time: NaN });
 }

@@ -18,7 +18,16 @@ import { isUuid, may, studyFor, type Actor, type StudyAction } from '../access/g
 import type { RequestContext } from '../access/context';
 import { component, decodeFloat64 } from './results-codec';
 import { participantBody, readRecording } from './process';
-import { latestDoneRunPerTrial, runRowById, runRowsOfSession, sessionIdOfTrial, trialContextInStudy, trialContextOfRun, type RunRow, type TrialContext } from './queries';
+import {
+	latestDoneRunPerTrial,
+	runRowById,
+	runRowsOfSession,
+	sessionIdOfTrial,
+	trialContextInStudy,
+	trialContextOfRun,
+	type RunRow,
+	type TrialContext
+} from './queries';
 import { reduceForPlot } from '../../processing/reduce';
 import { buildSessionModel, sessionSetupSchema } from '../../processing/session-model';
 import { runOptionsSchema, type RunOptions, type SummaryRow, type SummaryStats } from '../../processing/pipeline';
@@ -55,8 +64,15 @@ export function softwareVersion(): string {
 	let commit = process.env.MOMENTRY_COMMIT ?? '';
 	if (!commit) {
 		try {
-			commit = execFileSync('git', ['rev-parse', '--short=12', 'HEAD'], { stdio: ['ignore', 'pipe', 'ignore'], timeout: 3_000 }).toString().trim();
-			const dirty = execFileSync('git', ['status', '--porcelain', '--untracked-files=no', '--', 'src'], { stdio: ['ignore', 'pipe', 'ignore'], timeout: 3_000 }).toString().trim();
+			commit = execFileSync('git', ['rev-parse', '--short=12', 'HEAD'], { stdio: ['ignore', 'pipe', 'ignore'], timeout: 3_000 })
+				.toString()
+				.trim();
+			const dirty = execFileSync('git', ['status', '--porcelain', '--untracked-files=no', '--', 'src'], {
+				stdio: ['ignore', 'pipe', 'ignore'],
+				timeout: 3_000
+			})
+				.toString()
+				.trim();
 			if (commit && dirty) commit += '.modified';
 		} catch {
 			commit = '';
@@ -136,7 +152,8 @@ export function parseRunOptions(input: unknown): RunOptions {
 	return r.data;
 }
 
-const numberOrNull = (v: FormDataEntryValue | null) => (v === null || String(v).trim() === '' ? null : Number(String(v).trim().replace(',', '.')));
+const numberOrNull = (v: FormDataEntryValue | null) =>
+	v === null || String(v).trim() === '' ? null : Number(String(v).trim().replace(',', '.'));
 
 /**
  * The "New run" form: filter=lowpass|none, cutoffHz, optional channelCutoff.<channel> fields (from residual
@@ -156,7 +173,8 @@ export function runOptionsFromForm(form: FormData): RunOptions {
 	let gravity: [number, number, number] | undefined;
 	if (form.get('gravity') === 'custom') {
 		const g = (['gravityX', 'gravityY', 'gravityZ'] as const).map((f) => numberOrNull(form.get(f)));
-		if (g.some((x) => x === null || !Number.isFinite(x))) errors.gravity = 'Enter all three components of gravity in m/s² (lab X anterior, Y superior, Z right).';
+		if (g.some((x) => x === null || !Number.isFinite(x)))
+			errors.gravity = 'Enter all three components of gravity in m/s² (lab X anterior, Y superior, Z right).';
 		else gravity = g as [number, number, number];
 	}
 	if (Object.keys(errors).length) throw new FormProblem(errors);
@@ -173,7 +191,11 @@ export function runOptionsFromForm(form: FormData): RunOptions {
 export function jsonBody(request: Request): () => Promise<unknown> {
 	return async () => {
 		const type = request.headers.get('content-type') ?? '';
-		if (!type.includes('application/json')) throw new FormProblem({ form: 'Send the run options as JSON (content-type: application/json), e.g. {"cutoffHz": 6}.' }, 'unsupported');
+		if (!type.includes('application/json'))
+			throw new FormProblem(
+				{ form: 'Send the run options as JSON (content-type: application/json), e.g. {"cutoffHz": 6}.' },
+				'unsupported'
+			);
 		try {
 			const text = await request.text();
 			return text.trim() ? JSON.parse(text) : {};
@@ -193,7 +215,16 @@ export function recordRunAction(
 	transaction: Transaction
 ): Promise<unknown> {
 	return record(
-		{ action: e.action, actorUserId: actor.id, actorLabel: actor.email, studyId: e.studyId, recordType: 'run', recordId: e.runId, ipAddress: ctx.ipAddress, details: e.details },
+		{
+			action: e.action,
+			actorUserId: actor.id,
+			actorLabel: actor.email,
+			studyId: e.studyId,
+			recordType: 'run',
+			recordId: e.runId,
+			ipAddress: ctx.ipAddress,
+			details: e.details
+		},
 		transaction
 	);
 }
@@ -227,11 +258,32 @@ export async function startRun(actor: Actor | null, ctx: RequestContext, input: 
 	const { actor: a, study, trial } = await guardedTrial(actor, ctx, 'run.start', input);
 	refuseIfLocked(trial.sessionState);
 	const options = input.options;
-	const opts = options instanceof FormData ? runOptionsFromForm(options) : parseRunOptions(typeof options === 'function' ? await options() : options);
+	const opts =
+		options instanceof FormData ? runOptionsFromForm(options) : parseRunOptions(typeof options === 'function' ? await options() : options);
 	const runId = await db().transaction(async (transaction) => {
 		await mayProcess(trial, transaction);
-		const run = await Run.create({ trialId: trial.trialId, state: 'queued', options: opts, rawSha256: trial.sha256, softwareVersion: softwareVersion(), createdBy: a.id }, { transaction });
-		await recordRunAction(a, ctx, { action: 'run.started', studyId: study.id, runId: run.id, details: { trialId: trial.trialId, sessionId: trial.sessionId, options: opts } }, transaction);
+		const run = await Run.create(
+			{
+				trialId: trial.trialId,
+				state: 'queued',
+				options: opts,
+				rawSha256: trial.sha256,
+				softwareVersion: softwareVersion(),
+				createdBy: a.id
+			},
+			{ transaction }
+		);
+		await recordRunAction(
+			a,
+			ctx,
+			{
+				action: 'run.started',
+				studyId: study.id,
+				runId: run.id,
+				details: { trialId: trial.trialId, sessionId: trial.sessionId, options: opts }
+			},
+			transaction
+		);
 		return run.id;
 	});
 	await queueOrFail(runId);
@@ -250,7 +302,12 @@ export async function retryRun(actor: Actor | null, ctx: RequestContext, input: 
 			{ where: { id: run.id, state: 'failed' }, transaction }
 		);
 		if (!changed) return false;
-		await recordRunAction(a, ctx, { action: 'run.retried', studyId: study.id, runId: run.id, details: { previousError: run.error, attempts: run.attempts } }, transaction);
+		await recordRunAction(
+			a,
+			ctx,
+			{ action: 'run.retried', studyId: study.id, runId: run.id, details: { previousError: run.error, attempts: run.attempts } },
+			transaction
+		);
 		return true;
 	});
 	// two people clicking at once: the second finds the run already queued again
@@ -273,7 +330,12 @@ const invalid = (issues: { message: string }[]) => new DomainError('invalid', is
 const seriesQuery = z.object({
 	quantity: z.enum(SERIES_QUANTITIES, { error: `quantity must be one of ${SERIES_QUANTITIES.join(', ')}` }).default('moment'),
 	dof: z.string().trim().min(1).max(100).optional(),
-	points: z.coerce.number({ error: 'points must be a whole number from 10 to 100000' }).int('points must be a whole number from 10 to 100000').min(10, 'points must be at least 10').max(100_000, 'points must be at most 100000').optional()
+	points: z.coerce
+		.number({ error: 'points must be a whole number from 10 to 100000' })
+		.int('points must be a whole number from 10 to 100000')
+		.min(10, 'points must be at least 10')
+		.max(100_000, 'points must be at most 100000')
+		.optional()
 });
 
 function requireDone(run: RunView): void {
@@ -283,7 +345,10 @@ function requireDone(run: RunView): void {
 /** What the results read of a run's stored model record (the rest is shown as stored). */
 const storedModelSchema = z
 	.object({
-		dofs: z.array(z.looseObject({ name: z.string(), positive: z.string().nullish() })).optional().catch(undefined),
+		dofs: z
+			.array(z.looseObject({ name: z.string(), positive: z.string().nullish() }))
+			.optional()
+			.catch(undefined),
 		bodyMassKg: z.number().optional().catch(undefined)
 	})
 	.catch({});
@@ -291,7 +356,12 @@ const storedModelSchema = z
 /** A done run's stored summary, model and edge zone, parsed once. */
 async function storedResultsOf(runId: string) {
 	const row = await Run.findByPk(runId, { attributes: ['summary', 'model', 'edgeZone'] });
-	return { summary: row?.summary, model: row?.model ?? null, parsedModel: storedModelSchema.parse(row?.model ?? {}), edgeZone: edgeZoneView(row?.edgeZone) };
+	return {
+		summary: row?.summary,
+		model: row?.model ?? null,
+		parsedModel: storedModelSchema.parse(row?.model ?? {}),
+		edgeZone: edgeZoneView(row?.edgeZone)
+	};
 }
 
 export interface StoredCurve {
@@ -321,7 +391,9 @@ export async function storedSeries(
 	const timeRow = rows.find((r) => r.quantity === 'time');
 	if (!timeRow) throw conflict('This run has no stored time vector.');
 	const curves: StoredCurve[] = [];
-	const data = rows.filter((r) => r.quantity !== 'time').sort((a, b) => (order.get(a.name) ?? 1e9) - (order.get(b.name) ?? 1e9) || a.name.localeCompare(b.name));
+	const data = rows
+		.filter((r) => r.quantity !== 'time')
+		.sort((a, b) => (order.get(a.name) ?? 1e9) - (order.get(b.name) ?? 1e9) || a.name.localeCompare(b.name));
 	for (const r of data) {
 		const all = decodeFloat64(r.data);
 		for (let c = 0; c < r.components; c++) {
@@ -358,10 +430,18 @@ export async function seriesOfRun(runId: string, q: { quantity: ResultQuantity; 
 }
 
 /** GET …/series: query parameters validated (invalid, naming the parameter), run in study, run done. */
-export async function loadSeries(actor: Actor | null, ctx: RequestContext, input: RunRef & { query: URLSearchParams }): Promise<SeriesAnswer> {
+export async function loadSeries(
+	actor: Actor | null,
+	ctx: RequestContext,
+	input: RunRef & { query: URLSearchParams }
+): Promise<SeriesAnswer> {
 	const { run } = await guardedRun(actor, ctx, 'study.read', input);
 	const sp = input.query;
-	const parsed = seriesQuery.safeParse({ quantity: sp.get('quantity') ?? undefined, dof: sp.get('dof') ?? undefined, points: sp.get('points') ?? undefined });
+	const parsed = seriesQuery.safeParse({
+		quantity: sp.get('quantity') ?? undefined,
+		dof: sp.get('dof') ?? undefined,
+		points: sp.get('points') ?? undefined
+	});
 	if (!parsed.success) throw invalid(parsed.error.issues);
 	requireDone(run);
 	return seriesOfRun(run.id, parsed.data);
@@ -383,10 +463,14 @@ function includeEdgeZonesStrict(sp: URLSearchParams): boolean {
 	const v = sp.get(INCLUDE_EDGE_ZONES);
 	if (v === null || v === '0' || v === 'false') return false;
 	if (v === '1' || v === 'true') return true;
-	throw new DomainError('invalid', `${INCLUDE_EDGE_ZONES} must be 1 (include the edge zones) or 0 (leave them out, the default); got “${v.slice(0, 40)}”.`);
+	throw new DomainError(
+		'invalid',
+		`${INCLUDE_EDGE_ZONES} must be 1 (include the edge zones) or 0 (leave them out, the default); got “${v.slice(0, 40)}”.`
+	);
 }
 
-type StoredSummaryRow = Partial<Record<keyof SummaryStats, number | null>> & Pick<SummaryRow, 'dof' | 'quantity' | 'unit'> & { wholeTrial?: Partial<Record<keyof SummaryStats, number | null>> };
+type StoredSummaryRow = Partial<Record<keyof SummaryStats, number | null>> &
+	Pick<SummaryRow, 'dof' | 'quantity' | 'unit'> & { wholeTrial?: Partial<Record<keyof SummaryStats, number | null>> };
 
 /**
  * The stored summary rows in the chosen scope: outside the edge zones (the rows' own figures, the default) or the
@@ -415,11 +499,17 @@ export function summaryRows(stored: unknown, includeEdgeZones: boolean): Summary
 /** What a summary's figures cover, in words. */
 export function summaryScope(edgeZone: EdgeZoneView, includeEdgeZones: boolean): string {
 	if (!edgeZone.computed) return 'every sample (the run was made before edge zones were introduced: its edge zone was not computed)';
-	return includeEdgeZones ? 'every sample, edge zones included' : 'the samples outside the edge zones (the first and last stretches where results are not reliable)';
+	return includeEdgeZones
+		? 'every sample, edge zones included'
+		: 'the samples outside the edge zones (the first and last stretches where results are not reliable)';
 }
 
 /** GET …/runs/[rid]/summary[?includeEdgeZones=1]: peaks, range and mean per DOF, without the edge zones unless asked. */
-export async function loadSummary(actor: Actor | null, ctx: RequestContext, input: RunRef & { query: URLSearchParams }): Promise<SummaryAnswer> {
+export async function loadSummary(
+	actor: Actor | null,
+	ctx: RequestContext,
+	input: RunRef & { query: URLSearchParams }
+): Promise<SummaryAnswer> {
 	const { run } = await guardedRun(actor, ctx, 'study.read', input);
 	const include = includeEdgeZonesStrict(input.query);
 	requireDone(run);
@@ -443,7 +533,13 @@ export async function loadRunPage(actor: Actor | null, ctx: RequestContext, inpu
 	const include = includeEdgeZonesOf(input.query);
 	return {
 		study: { id: study.id, code: study.code, title: study.title },
-		trial: { id: trial.trialId, fileName: trial.fileName, sessionId: trial.sessionId, participantCode: trial.participantCode, sampleHz: trial.sampleHz },
+		trial: {
+			id: trial.trialId,
+			fileName: trial.fileName,
+			sessionId: trial.sessionId,
+			participantCode: trial.participantCode,
+			sampleHz: trial.sampleHz
+		},
 		run,
 		canStart: may(a, 'run.start', study.id),
 		summary: done ? summaryRows(stored.summary, include) : [],
@@ -478,7 +574,14 @@ export async function trialResiduals(trial: TrialContext, fillGaps: boolean): Pr
 	}
 	const channels = rec.channels.map((c): ChannelResidual => {
 		if (c.values.some((v) => Number.isNaN(v))) {
-			return { channel: c.name, cutoffs: [], residuals: [], suggestedHz: null, noiseLine: null, problem: 'This channel has gaps; tick “fill short gaps” to analyse it.' };
+			return {
+				channel: c.name,
+				cutoffs: [],
+				residuals: [],
+				suggestedHz: null,
+				noiseLine: null,
+				problem: 'This channel has gaps; tick “fill short gaps” to analyse it.'
+			};
 		}
 		try {
 			const r = residualAnalysis(c.values, rec.sampleHz);
@@ -500,7 +603,15 @@ export async function loadTrialPage(actor: Actor | null, ctx: RequestContext, in
 	const fillGaps = input.query.get('fillGaps') === 'on';
 	return {
 		study: { id: study.id, code: study.code, title: study.title },
-		trial: { id: trial.trialId, fileName: trial.fileName, sessionId: trial.sessionId, participantCode: trial.participantCode, sampleHz: trial.sampleHz, channels: trial.channels, sessionState: trial.sessionState },
+		trial: {
+			id: trial.trialId,
+			fileName: trial.fileName,
+			sessionId: trial.sessionId,
+			participantCode: trial.participantCode,
+			sampleHz: trial.sampleHz,
+			channels: trial.channels,
+			sessionState: trial.sessionState
+		},
 		runs,
 		canStart: may(a, 'run.start', study.id),
 		residuals: wantResiduals ? await trialResiduals(trial, fillGaps) : null,
@@ -509,7 +620,11 @@ export async function loadTrialPage(actor: Actor | null, ctx: RequestContext, in
 }
 
 /** GET /api/…/trials/[tid]/residuals */
-export async function loadResiduals(actor: Actor | null, ctx: RequestContext, input: TrialRef & { query: URLSearchParams }): Promise<TrialResiduals & { trialId: string }> {
+export async function loadResiduals(
+	actor: Actor | null,
+	ctx: RequestContext,
+	input: TrialRef & { query: URLSearchParams }
+): Promise<TrialResiduals & { trialId: string }> {
 	const { trial } = await guardedTrial(actor, ctx, 'study.read', input);
 	return { trialId: trial.trialId, ...(await trialResiduals(trial, input.query.get('fillGaps') === 'on')) };
 }

@@ -19,7 +19,19 @@ import { normaliseCycles } from '../../processing/cycles';
 import { EDGE_ZONE_NOT_COMPUTED, edgeZoneView, inEdgeZone, reliableSpan, timeInEdgeZone } from '../../processing/zone-exclusion';
 
 /** Column names of results.csv, in order (documented in README.txt and the project README). */
-export const RESULT_COLUMNS = ['participant', 'trial', 'run', 'dof', 'quantity', 'unit', 'axis', 'repetition', 'x', 'value', 'in_edge_zone'] as const;
+export const RESULT_COLUMNS = [
+	'participant',
+	'trial',
+	'run',
+	'dof',
+	'quantity',
+	'unit',
+	'axis',
+	'repetition',
+	'x',
+	'value',
+	'in_edge_zone'
+] as const;
 
 export interface ExportTrial {
 	trial: ExportTrialRow;
@@ -72,8 +84,16 @@ async function seriesValues(runId: string, name: string, quantity: RunSeries['qu
 export async function refuseNonFinite(trials: ExportTrial[]): Promise<void> {
 	for (const { trial, run } of trials) {
 		if (!run) continue;
-		if (run.state !== 'done') throw conflict(`Run ${run.number} of trial “${trial.file_name}” is ${run.state}, not done; it cannot be exported.`);
-		const meta = await RunSeries.findAll({ where: { runId: run.id }, attributes: ['name', 'quantity'], order: [['name', 'ASC'], ['quantity', 'ASC']] });
+		if (run.state !== 'done')
+			throw conflict(`Run ${run.number} of trial “${trial.file_name}” is ${run.state}, not done; it cannot be exported.`);
+		const meta = await RunSeries.findAll({
+			where: { runId: run.id },
+			attributes: ['name', 'quantity'],
+			order: [
+				['name', 'ASC'],
+				['quantity', 'ASC']
+			]
+		});
 		for (const s of meta) {
 			const values = (await seriesValues(run.id, s.name, s.quantity))!;
 			const k = values.findIndex((v) => !Number.isFinite(v));
@@ -91,7 +111,9 @@ async function* resultsCsv(participantCode: string, trials: ExportTrial[]): Asyn
 	yield Buffer.from(RESULT_COLUMNS.join(',') + '\n');
 	for (const { trial, run } of trials) {
 		if (!run) continue;
-		const meta = (await RunSeries.findAll({ where: { runId: run.id }, attributes: ['name', 'quantity', 'unit', 'components'] })).filter((s) => s.quantity !== 'time');
+		const meta = (await RunSeries.findAll({ where: { runId: run.id }, attributes: ['name', 'quantity', 'unit', 'components'] })).filter(
+			(s) => s.quantity !== 'time'
+		);
 		const timeRow = await RunSeries.findOne({ where: { runId: run.id, quantity: 'time' }, attributes: ['data'] });
 		if (!timeRow) continue;
 		const time = decodeFloat64(timeRow.data);
@@ -104,7 +126,12 @@ async function* resultsCsv(participantCode: string, trials: ExportTrial[]): Asyn
 		const zone = edgeZoneView(stored?.edgeZone);
 		const span = reliableSpan(time, zone);
 		const order = new Map((model.dofs ?? []).map((d, i) => [d.name, i]));
-		meta.sort((a, b) => (order.get(a.name) ?? 1e9) - (order.get(b.name) ?? 1e9) || a.name.localeCompare(b.name) || QUANTITY_ORDER.indexOf(a.quantity) - QUANTITY_ORDER.indexOf(b.quantity));
+		meta.sort(
+			(a, b) =>
+				(order.get(a.name) ?? 1e9) - (order.get(b.name) ?? 1e9) ||
+				a.name.localeCompare(b.name) ||
+				QUANTITY_ORDER.indexOf(a.quantity) - QUANTITY_ORDER.indexOf(b.quantity)
+		);
 		const head = `${csvText(participantCode)},${csvText(trial.file_name)},${run.number},`;
 		for (const s of meta) {
 			const all = (await seriesValues(run.id, s.name, s.quantity))!;
@@ -187,7 +214,11 @@ CAUTION: these results are model-based estimates for research. They are not a cl
 const filterOf = (o: RunView['options']) =>
 	o.cutoffHz === null
 		? { kind: 'none' }
-		: { kind: 'zero-lag Butterworth low-pass (run forward and backward)', cutoffHz: o.cutoffHz, perChannelCutoffHz: o.perChannelCutoffHz ?? {} };
+		: {
+				kind: 'zero-lag Butterworth low-pass (run forward and backward)',
+				cutoffHz: o.cutoffHz,
+				perChannelCutoffHz: o.perChannelCutoffHz ?? {}
+			};
 
 /** A run's edge zone for provenance.json, with the end treatment from the run's options (null where none was recorded). */
 function edgeZoneOf(run: RunView, stored: unknown) {
@@ -211,7 +242,9 @@ export async function exportSession(actor: Actor | null, ctx: RequestContext, re
 	await refuseNonFinite(trials);
 	const approval = await approvalOf(s.id);
 	const exportedAt = new Date();
-	const stored = await Promise.all(trials.map(async (t) => (t.run ? await Run.findByPk(t.run.id, { attributes: ['model', 'summary', 'edgeZone'] }) : null)));
+	const stored = await Promise.all(
+		trials.map(async (t) => (t.run ? await Run.findByPk(t.run.id, { attributes: ['model', 'summary', 'edgeZone'] }) : null))
+	);
 	const runs = stored.map((r) => r?.model ?? null);
 	const provenance = {
 		format: 'momentry-session-export/1',
@@ -254,11 +287,22 @@ export async function exportSession(actor: Actor | null, ctx: RequestContext, re
 					anthropometricTable: { id: tableId, ...(SEGMENT_TABLES[tableId] ?? {}) },
 					model
 				},
-				runsNotExported: t.others.map((r) => ({ number: r.number, state: r.state, flagDecision: r.flagDecision, reason: r.flagDecision === 'exclude' ? 'excluded' : r.state !== 'done' ? `not done (${r.state})` : 'a newer run is exported' }))
+				runsNotExported: t.others.map((r) => ({
+					number: r.number,
+					state: r.state,
+					flagDecision: r.flagDecision,
+					reason: r.flagDecision === 'exclude' ? 'excluded' : r.state !== 'done' ? `not done (${r.state})` : 'a newer run is exported'
+				}))
 			};
 		})
 	};
-	await recordSession(a, ctx, 'session.exported', { studyId: study.id, sessionId: s.id }, { runs: trials.filter((t) => t.run).map((t) => t.run!.id), trials: trials.length });
+	await recordSession(
+		a,
+		ctx,
+		'session.exported',
+		{ studyId: study.id, sessionId: s.id },
+		{ runs: trials.filter((t) => t.run).map((t) => t.run!.id), trials: trials.length }
+	);
 
 	const archive = new ZipArchive({ zlib: { level: 6 } });
 	const date = exportedAt;
@@ -266,7 +310,10 @@ export async function exportSession(actor: Actor | null, ctx: RequestContext, re
 	archive.append(JSON.stringify(provenance, null, 2) + '\n', { name: 'provenance.json', date });
 	archive.append(Readable.from(resultsCsv(p.code, trials), { objectMode: false }), { name: 'results.csv', date });
 	for (const t of trials) {
-		archive.append(Readable.from(readRaw(t.trial.raw_upload_id, { expectSha256: t.trial.sha256 }), { objectMode: false }), { name: t.archivePath, date });
+		archive.append(Readable.from(readRaw(t.trial.raw_upload_id, { expectSha256: t.trial.sha256 }), { objectMode: false }), {
+			name: t.archivePath,
+			date
+		});
 	}
 	archive.finalize().catch((err: unknown) => console.error('session export failed:', err));
 	const safe = (x: string) => x.replace(/[^A-Za-z0-9._-]+/g, '_');

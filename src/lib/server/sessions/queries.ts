@@ -12,12 +12,28 @@ const select = <T extends object>(sql: string, replacements: Record<string, unkn
 
 /** Every transition of the session, oldest first. */
 export async function historyRows(sessionId: string): Promise<HistoryRow[]> {
-	const rows = await select<{ at: Date; from_state: string | null; to_state: string; actor: string; note: string | null; signature_meaning: string | null; signature_method: string | null }>(
+	const rows = await select<{
+		at: Date;
+		from_state: string | null;
+		to_state: string;
+		actor: string;
+		note: string | null;
+		signature_meaning: string | null;
+		signature_method: string | null;
+	}>(
 		`SELECT t.at, t.from_state, t.to_state, coalesce(u.name, t.actor_label) AS actor, t.note, t.signature_meaning, t.signature_method
 		 FROM session_transitions t LEFT JOIN users u ON u.id = t.actor_user_id WHERE t.session_id = :sessionId ORDER BY t.at, t.id`,
 		{ sessionId }
 	);
-	return rows.map((r) => ({ at: new Date(r.at).toISOString(), from: r.from_state, to: r.to_state, actorName: r.actor, note: r.note, meaning: r.signature_meaning, method: r.signature_method }));
+	return rows.map((r) => ({
+		at: new Date(r.at).toISOString(),
+		from: r.from_state,
+		to: r.to_state,
+		actorName: r.actor,
+		note: r.note,
+		meaning: r.signature_meaning,
+		method: r.signature_method
+	}));
 }
 
 /** The latest approval of a session that is approved now, or null. */
@@ -43,12 +59,19 @@ export async function countDoneRuns(sessionId: string, transaction?: Transaction
 
 /** The session's state, its row locked FOR UPDATE for the rest of the transaction. */
 export async function lockSessionState(sessionId: string, transaction: Transaction): Promise<SessionState> {
-	const rows = await select<{ state: SessionState }>(`SELECT state FROM sessions WHERE id = :id FOR UPDATE`, { id: sessionId }, transaction);
+	const rows = await select<{ state: SessionState }>(
+		`SELECT state FROM sessions WHERE id = :id FOR UPDATE`,
+		{ id: sessionId },
+		transaction
+	);
 	return rows[0].state;
 }
 
 export async function setSessionState(sessionId: string, to: SessionState, transaction: Transaction): Promise<void> {
-	await db().query(`UPDATE sessions SET state = :to, updated_at = now() WHERE id = :id`, { replacements: { to, id: sessionId }, transaction });
+	await db().query(`UPDATE sessions SET state = :to, updated_at = now() WHERE id = :id`, {
+		replacements: { to, id: sessionId },
+		transaction
+	});
 }
 
 export interface TransitionRow {
@@ -67,7 +90,16 @@ export async function insertTransition(t: TransitionRow, transaction: Transactio
 	const rows = await select<{ id: string }>(
 		`INSERT INTO session_transitions (session_id, from_state, to_state, actor_user_id, actor_label, note, signature_meaning, signature_method)
 		 VALUES (:sid, :from, :to, :uid, :label, :note, :meaning, :method) RETURNING id`,
-		{ sid: t.sessionId, from: t.from, to: t.to, uid: t.actorUserId, label: t.actorLabel, note: t.note, meaning: t.meaning, method: t.method },
+		{
+			sid: t.sessionId,
+			from: t.from,
+			to: t.to,
+			uid: t.actorUserId,
+			label: t.actorLabel,
+			note: t.note,
+			meaning: t.meaning,
+			method: t.method
+		},
 		transaction
 	);
 	return rows[0].id;
@@ -93,20 +125,33 @@ export const usableCodes = (userId: string, sessionId: string) =>
 
 /** Codes the person asked for in the last `minutes`. */
 export async function countRecentCodes(userId: string, sessionId: string, minutes: number): Promise<number> {
-	const rows = await select<{ n: string }>(`SELECT count(*) AS n FROM signature_codes WHERE user_id = :u AND session_id = :s AND created_at > now() - make_interval(mins => :w)`, {
-		u: userId,
-		s: sessionId,
-		w: minutes
-	});
+	const rows = await select<{ n: string }>(
+		`SELECT count(*) AS n FROM signature_codes WHERE user_id = :u AND session_id = :s AND created_at > now() - make_interval(mins => :w)`,
+		{
+			u: userId,
+			s: sessionId,
+			w: minutes
+		}
+	);
 	return Number(rows[0]?.n ?? 0);
 }
 
 /** Stores a new code, ending any earlier usable one for this session; its expiry. */
-export async function replaceCode(userId: string, sessionId: string, codeHash: string, salt: string, minutes: number, transaction: Transaction): Promise<Date> {
-	await db().query(`UPDATE signature_codes SET expires_at = now() WHERE user_id = :u AND session_id = :s AND used_at IS NULL AND expires_at > now()`, {
-		replacements: { u: userId, s: sessionId },
-		transaction
-	});
+export async function replaceCode(
+	userId: string,
+	sessionId: string,
+	codeHash: string,
+	salt: string,
+	minutes: number,
+	transaction: Transaction
+): Promise<Date> {
+	await db().query(
+		`UPDATE signature_codes SET expires_at = now() WHERE user_id = :u AND session_id = :s AND used_at IS NULL AND expires_at > now()`,
+		{
+			replacements: { u: userId, s: sessionId },
+			transaction
+		}
+	);
 	const rows = await select<{ id: string; expires_at: Date }>(
 		`INSERT INTO signature_codes (user_id, session_id, code_hash, salt, expires_at) VALUES (:u, :s, :h, :salt, now() + make_interval(mins => :m)) RETURNING id, expires_at`,
 		{ u: userId, s: sessionId, h: codeHash, salt, m: minutes },
@@ -117,7 +162,11 @@ export async function replaceCode(userId: string, sessionId: string, codeHash: s
 
 /** Marks a code used; false when it was used (or expired) a moment ago. */
 export async function useCode(codeId: string, transaction: Transaction): Promise<boolean> {
-	const rows = await select<{ id: string }>(`UPDATE signature_codes SET used_at = now() WHERE id = :id AND used_at IS NULL AND expires_at > now() RETURNING id`, { id: codeId }, transaction);
+	const rows = await select<{ id: string }>(
+		`UPDATE signature_codes SET used_at = now() WHERE id = :id AND used_at IS NULL AND expires_at > now() RETURNING id`,
+		{ id: codeId },
+		transaction
+	);
 	return rows.length > 0;
 }
 

@@ -11,7 +11,15 @@ import type { RequestContext } from '../access/context';
 import { record } from '../audit/record';
 import { isUuid } from '../studies/studies';
 import { consentStateOf, requireValidConsent, CONSENT_STATE_LABEL } from '../consent/check';
-import type { PresetView, SessionFormChoices, SessionFormPage, SessionFormValues, SessionPageSession, SessionRow, TrialView } from '../../types/sessions';
+import type {
+	PresetView,
+	SessionFormChoices,
+	SessionFormPage,
+	SessionFormValues,
+	SessionPageSession,
+	SessionRow,
+	TrialView
+} from '../../types/sessions';
 import { LIMBS, type ParticipantBody } from '../../anthropometry/scale';
 import { SEGMENT_TABLES, SEGMENT_TABLE_IDS, type SegmentTableId } from '../../anthropometry/tables';
 import { buildSessionModel, LOAD_SEGMENTS, sessionSetupSchema, type SessionSetup } from '../../processing/session-model';
@@ -33,7 +41,11 @@ const metaSchema = z.object({
 		.refine((v) => ISO_DATE.test(v) && !Number.isNaN(Date.parse(v)), 'Enter the date of the session (YYYY-MM-DD).')
 		.refine((v) => v <= new Date().toISOString().slice(0, 10), 'The session date cannot be in the future.'),
 	operator: z.string().trim().min(1, 'Enter who ran the session.').max(200, 'Keep the operator under 200 characters.'),
-	task: z.string().trim().min(1, 'Enter the task (e.g. "reach to the top shelf with a 2 kg box").').max(200, 'Keep the task under 200 characters.'),
+	task: z
+		.string()
+		.trim()
+		.min(1, 'Enter the task (e.g. "reach to the top shelf with a 2 kg box").')
+		.max(200, 'Keep the task under 200 characters.'),
 	conditions: z
 		.string()
 		.trim()
@@ -67,7 +79,12 @@ function matrix9(text: string): [[number, number, number], [number, number, numb
  */
 export function parseSessionForm(form: FormData): { meta: SessionMeta; setup: SessionSetup } {
 	const errors: Record<string, string> = {};
-	const m = metaSchema.safeParse({ sessionOn: str(form, 'sessionOn'), operator: str(form, 'operator'), task: str(form, 'task'), conditions: str(form, 'conditions') });
+	const m = metaSchema.safeParse({
+		sessionOn: str(form, 'sessionOn'),
+		operator: str(form, 'operator'),
+		task: str(form, 'task'),
+		conditions: str(form, 'conditions')
+	});
 	if (!m.success) for (const i of m.error.issues) errors[String(i.path[0])] ??= i.message;
 
 	const limbs = form.getAll('limbs').map(String);
@@ -89,7 +106,9 @@ export function parseSessionForm(form: FormData): { meta: SessionMeta; setup: Se
 			const m = c ? null : matrix9(text);
 			if (c) bases[limb] = { kind: 'fixed', orientation: 'custom', cardanXYZDeg: c };
 			else if (m) bases[limb] = { kind: 'fixed', orientation: 'custom', rotationMatrix: m };
-			else errors[`cardan.${limb}`] = 'Enter three angles (°), X then Y then Z (e.g. "0, 0, 90"), or the nine entries of the rotation matrix row by row.';
+			else
+				errors[`cardan.${limb}`] =
+					'Enter three angles (°), X then Y then Z (e.g. "0, 0, 90"), or the nine entries of the rotation matrix row by row.';
 		} else bases[limb] = { kind: 'fixed', orientation: choice };
 	}
 
@@ -107,11 +126,18 @@ export function parseSessionForm(form: FormData): { meta: SessionMeta; setup: Se
 		}
 		const point = pointText ? triple(pointText) : null;
 		if (!point) {
-			errors[`load.${i}.point`] = 'Enter where the mass sits, x, y, z in m in the segment frame from its proximal joint (e.g. "0, -0.08, 0").';
+			errors[`load.${i}.point`] =
+				'Enter where the mass sits, x, y, z in m in the segment frame from its proximal joint (e.g. "0, -0.08, 0").';
 			continue;
 		}
 		const label = str(form, `load.${i}.label`);
-		loads.push({ limb: str(form, `load.${i}.limb`), segment: str(form, `load.${i}.segment`), massKg: mass, pointM: point, ...(label ? { label } : {}) });
+		loads.push({
+			limb: str(form, `load.${i}.limb`),
+			segment: str(form, `load.${i}.segment`),
+			massKg: mass,
+			pointM: point,
+			...(label ? { label } : {})
+		});
 		loadRow.push(i);
 	}
 
@@ -220,7 +246,14 @@ export interface ParticipantRef {
 export async function participantBodyOf(participantId: string, transaction?: Transaction): Promise<ParticipantBody> {
 	const p = await Participant.findByPk(participantId, { transaction });
 	if (!p) throw new Error(`participant ${participantId} does not exist`);
-	const lengths = await ParticipantLength.findAll({ where: { participantId }, order: [['measuredOn', 'DESC'], ['createdAt', 'DESC']], transaction });
+	const lengths = await ParticipantLength.findAll({
+		where: { participantId },
+		order: [
+			['measuredOn', 'DESC'],
+			['createdAt', 'DESC']
+		],
+		transaction
+	});
 	const measuredLengths: Record<string, number> = {};
 	for (const l of lengths) measuredLengths[l.segment] ??= l.lengthM;
 	return {
@@ -259,7 +292,17 @@ export function recordSession(
 	details: Record<string, unknown>,
 	opts: { outcome?: 'failed'; transaction?: Transaction } = {}
 ) {
-	const entry = { action, actorUserId: actor.id, actorLabel: actor.email, outcome: opts.outcome, studyId: ids.studyId, recordType: 'session', recordId: ids.sessionId, ipAddress: ctx.ipAddress, details };
+	const entry = {
+		action,
+		actorUserId: actor.id,
+		actorLabel: actor.email,
+		outcome: opts.outcome,
+		studyId: ids.studyId,
+		recordType: 'session',
+		recordId: ids.sessionId,
+		ipAddress: ctx.ipAddress,
+		details
+	};
 	return record(entry, opts.transaction);
 }
 
@@ -272,7 +315,11 @@ export async function newSessionForm(actor: Actor | null, ctx: RequestContext, r
 }
 
 /** Adds a session (state draft) for a consented participant from the session form. Audited. */
-export async function createSession(actor: Actor | null, ctx: RequestContext, input: ParticipantRef & { form: FormData }): Promise<{ id: string }> {
+export async function createSession(
+	actor: Actor | null,
+	ctx: RequestContext,
+	input: ParticipantRef & { form: FormData }
+): Promise<{ id: string }> {
 	const { actor: a, study } = await studyFor(actor, ctx, 'session.create', input.studyId);
 	const p = await participantIn(study.id, input.participantId);
 	const { meta, setup } = parseSessionForm(input.form);
@@ -313,7 +360,8 @@ export async function editSession(actor: Actor | null, ctx: RequestContext, inpu
 	await db().transaction(async (transaction) => {
 		const s = (await Session.findByPk(found.id, { transaction, lock: transaction.LOCK.UPDATE }))!;
 		refuseIfLocked(s.state);
-		if (!EDITABLE_STATES.includes(s.state)) throw conflict(`This session is ${s.state.replace('_', ' ')}; it can be changed only while it is a draft or returned.`);
+		if (!EDITABLE_STATES.includes(s.state))
+			throw conflict(`This session is ${s.state.replace('_', ' ')}; it can be changed only while it is a draft or returned.`);
 		const trials = await Trial.count({ where: { sessionId: s.id }, transaction });
 		if (trials > 0 && channelKey(buildSessionModel(body, s.setup)) !== channelKey(next))
 			throw new FormProblem({
@@ -328,14 +376,34 @@ export async function editSession(actor: Actor | null, ctx: RequestContext, inpu
 }
 
 /** The sessions of a participant, newest first, with their trial counts (for the participant page). */
-export async function listSessionsOfParticipant(actor: Actor | null, ctx: RequestContext, ref: ParticipantRef): Promise<{ sessions: SessionRow[]; mayCreate: boolean }> {
+export async function listSessionsOfParticipant(
+	actor: Actor | null,
+	ctx: RequestContext,
+	ref: ParticipantRef
+): Promise<{ sessions: SessionRow[]; mayCreate: boolean }> {
 	const { actor: a, study } = await studyFor(actor, ctx, 'study.read', ref.studyId);
 	const p = await participantIn(study.id, ref.participantId);
-	const rows = await Session.findAll({ where: { participantId: p.id, studyId: study.id }, order: [['sessionOn', 'DESC'], ['createdAt', 'DESC']] });
+	const rows = await Session.findAll({
+		where: { participantId: p.id, studyId: study.id },
+		order: [
+			['sessionOn', 'DESC'],
+			['createdAt', 'DESC']
+		]
+	});
 	const counts = new Map<string, number>();
-	if (rows.length) for (const r of await Trial.count({ where: { sessionId: rows.map((r) => r.id) }, group: ['sessionId'] })) counts.set(String(r.sessionId), Number(r.count));
+	if (rows.length)
+		for (const r of await Trial.count({ where: { sessionId: rows.map((r) => r.id) }, group: ['sessionId'] }))
+			counts.set(String(r.sessionId), Number(r.count));
 	return {
-		sessions: rows.map((s) => ({ id: s.id, sessionOn: s.sessionOn, operator: s.operator, task: s.task, state: s.state, limbs: [...s.setup.limbs], trials: counts.get(s.id) ?? 0 })),
+		sessions: rows.map((s) => ({
+			id: s.id,
+			sessionOn: s.sessionOn,
+			operator: s.operator,
+			task: s.task,
+			state: s.state,
+			limbs: [...s.setup.limbs],
+			trials: counts.get(s.id) ?? 0
+		})),
 		mayCreate: may(a, 'session.create', study.id)
 	};
 }
@@ -353,7 +421,12 @@ export const trialView = (t: Trial): TrialView => ({
 	createdAt: t.createdAt.toISOString()
 });
 
-export const presetView = (m: MappingPreset): PresetView => ({ id: m.id, name: m.name, mapping: m.mapping, createdAt: m.createdAt.toISOString() });
+export const presetView = (m: MappingPreset): PresetView => ({
+	id: m.id,
+	name: m.name,
+	mapping: m.mapping,
+	createdAt: m.createdAt.toISOString()
+});
 
 /** Everything the session page shows: set-up, expected channels, trials, presets and what the person may do. */
 export async function readSession(actor: Actor | null, ctx: RequestContext, ref: SessionRef) {

@@ -25,7 +25,12 @@ export const CODE_MINUTES = 10;
 export const CODE_REQUESTS = 5;
 export const CODE_WINDOW_MINUTES = 15;
 
-export const STATE_WORD: Record<SessionState, string> = { draft: 'draft', in_review: 'in review', returned: 'returned', approved: 'approved' };
+export const STATE_WORD: Record<SessionState, string> = {
+	draft: 'draft',
+	in_review: 'in review',
+	returned: 'returned',
+	approved: 'approved'
+};
 
 /** Each step: the permission it needs, the states it leaves from, where it goes, and the note it asks for. */
 const STEPS: Record<Transition, { action: StudyAction; from: readonly SessionState[]; to: SessionState; field: string; label: string }> = {
@@ -111,7 +116,13 @@ async function checkSignature(actor: Actor, ctx: RequestContext, studyId: string
 	const hasPassword = passwordHash !== null;
 	const field = hasPassword ? 'password' : 'code';
 	const throttle = await checkThrottle(`signature:${actor.email}`, null);
-	if (throttle.blocked) throw new FormProblem({ [field]: `Too many wrong signatures. Try again in ${throttle.retryAfterMinutes} minute${throttle.retryAfterMinutes === 1 ? '' : 's'}.` }, 'rate-limited');
+	if (throttle.blocked)
+		throw new FormProblem(
+			{
+				[field]: `Too many wrong signatures. Try again in ${throttle.retryAfterMinutes} minute${throttle.retryAfterMinutes === 1 ? '' : 's'}.`
+			},
+			'rate-limited'
+		);
 	if (hasPassword) {
 		const password = text(form, 'password');
 		if (!password) throw new FormProblem({ password: 'Enter your password to sign the approval.' });
@@ -120,28 +131,51 @@ async function checkSignature(actor: Actor, ctx: RequestContext, studyId: string
 		throw new FormProblem({ password: 'That is not your password. Nothing was approved; enter it again.' });
 	}
 	const code = text(form, 'code').replace(/\s+/g, '');
-	if (!/^\d{6}$/.test(code)) throw new FormProblem({ code: 'Enter the 6-digit code from the e-mail (ask for one with “E-mail me a code”).' });
+	if (!/^\d{6}$/.test(code))
+		throw new FormProblem({ code: 'Enter the 6-digit code from the e-mail (ask for one with “E-mail me a code”).' });
 	const rows = await q.usableCodes(actor.id, sessionId);
 	const hit = rows.find((r) => timingSafeEqual(Buffer.from(hashCode(code, r.salt), 'hex'), Buffer.from(r.code_hash, 'hex')));
 	if (hit) return { method: 'email_code', codeId: hit.id };
-	await signatureFailed(actor, ctx, studyId, sessionId, 'email_code', rows.length ? 'wrong code' : 'no valid code (used, expired or never sent)');
-	throw new FormProblem({ code: rows.length ? 'That code is not right. Nothing was approved; check the e-mail and enter it again.' : 'That code is used or has expired (codes last 10 minutes). Ask for a new one.' });
+	await signatureFailed(
+		actor,
+		ctx,
+		studyId,
+		sessionId,
+		'email_code',
+		rows.length ? 'wrong code' : 'no valid code (used, expired or never sent)'
+	);
+	throw new FormProblem({
+		code: rows.length
+			? 'That code is not right. Nothing was approved; check the e-mail and enter it again.'
+			: 'That code is used or has expired (codes last 10 minutes). Ask for a new one.'
+	});
 }
 
 /** E-mails the PI a fresh 6-digit code for signing this session's approval (accounts without a password). */
 export async function sendSignatureCode(actor: Actor | null, ctx: RequestContext, ref: SessionRef): Promise<{ expiresAt: string }> {
 	const { actor: a, study, session: s } = await studySession(actor, ctx, 'session.approve', ref);
 	if (s.state !== 'in_review') refuseState('approve', s.state);
-	if ((await passwordHashOf(a.id)) !== null) throw new FormProblem({ code: 'Your account has a password: sign with your password instead.' }, 'conflict');
+	if ((await passwordHashOf(a.id)) !== null)
+		throw new FormProblem({ code: 'Your account has a password: sign with your password instead.' }, 'conflict');
 	if ((await q.countRecentCodes(a.id, s.id, CODE_WINDOW_MINUTES)) >= CODE_REQUESTS)
-		throw new FormProblem({ code: `You asked for ${CODE_REQUESTS} codes in ${CODE_WINDOW_MINUTES} minutes. Use the latest one, or wait a few minutes.` }, 'rate-limited');
+		throw new FormProblem(
+			{ code: `You asked for ${CODE_REQUESTS} codes in ${CODE_WINDOW_MINUTES} minutes. Use the latest one, or wait a few minutes.` },
+			'rate-limited'
+		);
 	const code = String(randomInt(0, 1_000_000)).padStart(6, '0');
 	const salt = randomBytes(16).toString('hex');
 	const participant = await participantCodeOf(s.participantId);
 	const expiresAt = await db().transaction(async (transaction) => {
 		// a new code replaces any earlier one for this session
 		const expires = await q.replaceCode(a.id, s.id, hashCode(code, salt), salt, CODE_MINUTES, transaction);
-		await recordSession(a, ctx, 'session.signature-code-sent', { studyId: study.id, sessionId: s.id }, { expiresAt: expires }, { transaction });
+		await recordSession(
+			a,
+			ctx,
+			'session.signature-code-sent',
+			{ studyId: study.id, sessionId: s.id },
+			{ expiresAt: expires },
+			{ transaction }
+		);
 		return expires;
 	});
 	await enqueueMail({
@@ -158,9 +192,11 @@ export async function sendSignatureCode(actor: Actor | null, ctx: RequestContext
 // ---------------------------------------------------------------------------------------------- transitions
 
 /** The session page's address for e-mails (the configured origin, else the request's). */
-const sessionLink = (ctx: RequestContext, studyId: string, sessionId: string) => `${linkBase(ctx)}/studies/${studyId}/sessions/${sessionId}`;
+const sessionLink = (ctx: RequestContext, studyId: string, sessionId: string) =>
+	`${linkBase(ctx)}/studies/${studyId}/sessions/${sessionId}`;
 
-const participantCodeOf = async (participantId: string): Promise<string> => (await Participant.findByPk(participantId, { attributes: ['code'] }))?.code ?? '';
+const participantCodeOf = async (participantId: string): Promise<string> =>
+	(await Participant.findByPk(participantId, { attributes: ['code'] }))?.code ?? '';
 
 /**
  * Moves the session one step. Order of refusals: access (forbidden/not-found), state (conflict), fields (invalid),
@@ -168,30 +204,39 @@ const participantCodeOf = async (participantId: string): Promise<string> => (awa
  * row FOR UPDATE, the state is checked again, consent (approve), the change, its history row and its audit entry.
  * E-mails go out after commit.
  */
-export async function transition(actor: Actor | null, ctx: RequestContext, input: SessionRef & { step: Transition; form: StepForm }): Promise<{ to: SessionState }> {
+export async function transition(
+	actor: Actor | null,
+	ctx: RequestContext,
+	input: SessionRef & { step: Transition; form: StepForm }
+): Promise<{ to: SessionState }> {
 	const { step, form } = input;
 	const { actor: a, study, session: found } = await studySession(actor, ctx, STEPS[step].action, input);
 	if (!STEPS[step].from.includes(found.state)) refuseState(step, found.state);
 	let note: string | null = null;
 	let signature: Signature | null = null;
 	if (step === 'approve') {
-		if (text(form, 'meaning') !== SIGNATURE_MEANING) throw new FormProblem({ meaning: `Tick the box to confirm that your signature means “${SIGNATURE_MEANING}”.` });
+		if (text(form, 'meaning') !== SIGNATURE_MEANING)
+			throw new FormProblem({ meaning: `Tick the box to confirm that your signature means “${SIGNATURE_MEANING}”.` });
 	} else {
 		note = noteOf(form, step);
 		if (form.confirm !== 'yes') throw new FormProblem({ confirm: 'Tick the box to confirm this step.' });
 	}
 	if (step === 'submit' && (await q.countDoneRuns(found.id)) === 0)
-		throw conflict('This session has no trial with a finished (done) run yet; upload a trial and run it before submitting the session for review.');
+		throw conflict(
+			'This session has no trial with a finished (done) run yet; upload a trial and run it before submitting the session for review.'
+		);
 	if (step === 'approve') signature = await checkSignature(a, ctx, study.id, found.id, form);
 
 	const to = STEPS[step].to;
 	const transitionId = await db().transaction(async (transaction) => {
 		const from = await q.lockSessionState(found.id, transaction);
 		if (!STEPS[step].from.includes(from)) refuseState(step, from);
-		if (step === 'submit' && (await q.countDoneRuns(found.id, transaction)) === 0) throw conflict('This session has no trial with a finished (done) run yet.');
+		if (step === 'submit' && (await q.countDoneRuns(found.id, transaction)) === 0)
+			throw conflict('This session has no trial with a finished (done) run yet.');
 		if (step === 'approve') {
 			await requireValidConsent(found.participantId, 'approval', transaction);
-			if (signature?.codeId && !(await q.useCode(signature.codeId, transaction))) throw new FormProblem({ code: 'That code was used a moment ago. Ask for a new one.' });
+			if (signature?.codeId && !(await q.useCode(signature.codeId, transaction)))
+				throw new FormProblem({ code: 'That code was used a moment ago. Ask for a new one.' });
 		}
 		await q.setSessionState(found.id, to, transaction);
 		const id = await q.insertTransition(
@@ -207,7 +252,12 @@ export async function transition(actor: Actor | null, ctx: RequestContext, input
 			},
 			transaction
 		);
-		const details = { from, to, ...(note ? { [STEPS[step].field]: note } : {}), ...(signature ? { meaning: SIGNATURE_MEANING, method: signature.method } : {}) };
+		const details = {
+			from,
+			to,
+			...(note ? { [STEPS[step].field]: note } : {}),
+			...(signature ? { meaning: SIGNATURE_MEANING, method: signature.method } : {})
+		};
 		await recordSession(a, ctx, `session.${VERB[step]}`, { studyId: study.id, sessionId: found.id }, details, { transaction });
 		return id;
 	});
@@ -221,12 +271,21 @@ export async function transition(actor: Actor | null, ctx: RequestContext, input
 }
 
 /** Submitted → the study's PIs; approved, returned or reopened → the person who last submitted it. */
-async function notify(ctx: RequestContext, step: Transition, s: Session, study: { id: string; code: string }, actor: Actor, note: string | null, transitionId: string) {
+async function notify(
+	ctx: RequestContext,
+	step: Transition,
+	s: Session,
+	study: { id: string; code: string },
+	actor: Actor,
+	note: string | null,
+	transitionId: string
+) {
 	const link = sessionLink(ctx, study.id, s.id);
 	const participant = await participantCodeOf(s.participantId);
 	const who = actor.name ?? actor.email;
 	const what = `the session of ${participant} on ${s.sessionOn} (study ${study.code})`;
-	const to = step === 'submit' ? await q.piEmails(study.id, actor.id) : (await q.lastSubmitterEmails(s.id)).filter((e) => e !== actor.email);
+	const to =
+		step === 'submit' ? await q.piEmails(study.id, actor.id) : (await q.lastSubmitterEmails(s.id)).filter((e) => e !== actor.email);
 	const subject: Record<Transition, string> = {
 		submit: `For your approval: ${study.code} ${participant}, session ${s.sessionOn}`,
 		approve: `Approved: ${study.code} ${participant}, session ${s.sessionOn}`,
@@ -239,7 +298,8 @@ async function notify(ctx: RequestContext, step: Transition, s: Session, study: 
 		return: `${who} returned ${what} to you with this comment:\n${note}\n\nMake the changes, then submit it again:\n${link}`,
 		reopen: `${who} reopened ${what}, which was approved, for this reason:\n${note}\n\nIt can be changed again; submit it once it is ready:\n${link}`
 	};
-	for (const address of to) await enqueueMail({ to: address, subject: subject[step], text: body[step] }, `session-transition ${transitionId} ${address}`);
+	for (const address of to)
+		await enqueueMail({ to: address, subject: subject[step], text: body[step] }, `session-transition ${transitionId} ${address}`);
 }
 
 // ---------------------------------------------------------------------------------------------- work queues
@@ -250,7 +310,11 @@ export async function workQueuesOf(actor: Actor, limit = 50): Promise<WorkQueues
 	const pi = studiesAs('pi');
 	const researcher = studiesAs('researcher');
 	const technician = studiesAs('technician');
-	const [approve, returned, recordings] = await Promise.all([q.workQueue('approve', pi, limit), q.workQueue('returned', researcher, limit), q.workQueue('recordings', technician, limit)]);
+	const [approve, returned, recordings] = await Promise.all([
+		q.workQueue('approve', pi, limit),
+		q.workQueue('returned', researcher, limit),
+		q.workQueue('recordings', technician, limit)
+	]);
 	return {
 		approve,
 		returned,

@@ -19,7 +19,10 @@ export const ETHICS_WARNING_DAYS = 30;
 export type { EthicsState } from '../../types/studies';
 
 /** Where an approval stands on `today` (ISO date strings compare as dates). */
-export function ethicsState(expiresOn: string | null, today = new Date().toISOString().slice(0, 10)): { state: EthicsState; daysLeft: number | null } {
+export function ethicsState(
+	expiresOn: string | null,
+	today = new Date().toISOString().slice(0, 10)
+): { state: EthicsState; daysLeft: number | null } {
 	if (!expiresOn) return { state: 'none', daysLeft: null };
 	const daysLeft = Math.round((Date.parse(expiresOn) - Date.parse(today)) / 86_400_000);
 	if (daysLeft < 0) return { state: 'expired', daysLeft };
@@ -38,11 +41,18 @@ export function fieldErrors(issues: z.core.$ZodIssue[]): Record<string, string> 
 
 const ISO_DATE = /^\d{4}-\d{2}-\d{2}$/;
 const settingsSchema = z.object({
-	ethicsReference: z.string().trim().max(200, 'Keep the ethics reference under 200 characters.').transform((v) => v || null),
+	ethicsReference: z
+		.string()
+		.trim()
+		.max(200, 'Keep the ethics reference under 200 characters.')
+		.transform((v) => v || null),
 	ethicsExpiresOn: z
 		.string()
 		.trim()
-		.refine((v) => v === '' || (ISO_DATE.test(v) && !Number.isNaN(Date.parse(v))), 'Enter the expiry as a date (YYYY-MM-DD), or leave it empty.')
+		.refine(
+			(v) => v === '' || (ISO_DATE.test(v) && !Number.isNaN(Date.parse(v))),
+			'Enter the expiry as a date (YYYY-MM-DD), or leave it empty.'
+		)
 		.transform((v) => v || null),
 	defaultTable: z.enum(TABLE_IDS, { error: 'Choose one of the listed segment tables.' })
 });
@@ -81,7 +91,11 @@ export async function settingsOf(actor: Actor | null, ctx: RequestContext, rawSt
 export async function saveSettings(actor: Actor | null, ctx: RequestContext, rawStudyId: string, input: SettingsInput): Promise<void> {
 	const { actor: a, study } = await studyFor(actor, ctx, 'study.edit', rawStudyId);
 	const next = parseSettings(input);
-	const before = { ethicsReference: study.ethicsReference ?? null, ethicsExpiresOn: study.ethicsExpiresOn ?? null, defaultTable: study.defaultTable };
+	const before = {
+		ethicsReference: study.ethicsReference ?? null,
+		ethicsExpiresOn: study.ethicsExpiresOn ?? null,
+		defaultTable: study.defaultTable
+	};
 	await db().transaction(async (transaction) => {
 		await study.update(next, { transaction });
 		await record(

@@ -48,11 +48,18 @@ export async function listStudies(who: Actor | null): Promise<{ studies: StudySu
 export async function readStudy(who: Actor | null, ctx: RequestContext, rawStudyId: string): Promise<StudyDetail> {
 	// a malformed id is denied like an unknown one before anything is queried (its text stays in the audit row's path)
 	const { actor, study: found } = await studyFor(who, ctx, 'study.read', rawStudyId);
-	const study = await Study.findByPk(found.id, { include: [{ model: StudyMember, include: [{ model: User, attributes: ['id', 'name', 'email'] }] }] });
+	const study = await Study.findByPk(found.id, {
+		include: [{ model: StudyMember, include: [{ model: User, attributes: ['id', 'name', 'email'] }] }]
+	});
 	if (!study) throw notFound();
 	const members = study.StudyMembers ?? [];
 	const team = members
-		.map((m) => ({ name: m.user?.name ?? m.user?.email ?? 'Unknown person', role: m.role, roleLabel: ROLE_LABELS[m.role], isYou: m.userId === actor.id }))
+		.map((m) => ({
+			name: m.user?.name ?? m.user?.email ?? 'Unknown person',
+			role: m.role,
+			roleLabel: ROLE_LABELS[m.role],
+			isYou: m.userId === actor.id
+		}))
 		.sort((a, b) => ROLE_ORDER[a.role] - ROLE_ORDER[b.role] || a.name.localeCompare(b.name));
 	const role = actor.roles.get(study.id)!;
 	return {

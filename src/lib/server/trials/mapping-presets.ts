@@ -29,7 +29,11 @@ export const presetBodyProblem = () =>
 	new FormProblem({ mapping: 'Send the preset as JSON {"name", "mapping"} or as a form with a name and the mapping as JSON text.' });
 
 /** Saves a preset `{ name, mapping }` (the route reads it from JSON or from a form's `name` and `mapping` JSON text). Audited. */
-export async function createPreset(actor: Actor | null, ctx: RequestContext, input: { studyId: string; preset: () => Promise<PresetInput> }): Promise<PresetView> {
+export async function createPreset(
+	actor: Actor | null,
+	ctx: RequestContext,
+	input: { studyId: string; preset: () => Promise<PresetInput> }
+): Promise<PresetView> {
 	const { actor: a, study } = await studyFor(actor, ctx, 'mapping.preset', input.studyId);
 	let sent: PresetInput;
 	try {
@@ -43,7 +47,10 @@ export async function createPreset(actor: Actor | null, ctx: RequestContext, inp
 	const m = columnMappingSchema.safeParse(sent.mapping);
 	if (!m.success) {
 		const i = m.error.issues[0];
-		errors.mapping = sent.mapping === undefined ? 'Send the column mapping to save.' : `The mapping is not usable: ${i.path.join('.') || 'mapping'}: ${i.message}`;
+		errors.mapping =
+			sent.mapping === undefined
+				? 'Send the column mapping to save.'
+				: `The mapping is not usable: ${i.path.join('.') || 'mapping'}: ${i.message}`;
 	}
 	if (!n.success || !m.success) throw new FormProblem(errors);
 	try {
@@ -53,15 +60,31 @@ export async function createPreset(actor: Actor | null, ctx: RequestContext, inp
 			return view(p);
 		});
 	} catch (err) {
-		if (err instanceof UniqueConstraintError) throw new FormProblem({ name: `The study already has a preset named “${n.data}”; choose another name.` }, 'conflict');
+		if (err instanceof UniqueConstraintError)
+			throw new FormProblem({ name: `The study already has a preset named “${n.data}”; choose another name.` }, 'conflict');
 		throw err;
 	}
 }
 
 /** The audit entry of a saved preset (here and when an upload saves its mapping as one). */
-export function recordPreset(actor: Actor, ctx: RequestContext, studyId: string, p: MappingPreset, transaction: Parameters<typeof record>[1]) {
+export function recordPreset(
+	actor: Actor,
+	ctx: RequestContext,
+	studyId: string,
+	p: MappingPreset,
+	transaction: Parameters<typeof record>[1]
+) {
 	return record(
-		{ action: 'mapping_preset.created', actorUserId: actor.id, actorLabel: actor.email, studyId, recordType: 'mapping_preset', recordId: p.id, ipAddress: ctx.ipAddress, details: { name: p.name } },
+		{
+			action: 'mapping_preset.created',
+			actorUserId: actor.id,
+			actorLabel: actor.email,
+			studyId,
+			recordType: 'mapping_preset',
+			recordId: p.id,
+			ipAddress: ctx.ipAddress,
+			details: { name: p.name }
+		},
 		transaction
 	);
 }

@@ -24,5 +24,6 @@ export async function* readRaw(uploadId: string, opts: { expectSha256?: string; 
 		hash?.update(chunk.bytes);
 		yield chunk.bytes;
 	}
-	if (hash && hash.digest('hex') !== opts.expectSha256) throw new Error(`raw upload ${uploadId}: the stored bytes do not match their SHA-256 (${opts.expectSha256})`);
+	if (hash && hash.digest('hex') !== opts.expectSha256)
+		throw new Error(`raw upload ${uploadId}: the stored bytes do not match their SHA-256 (${opts.expectSha256})`);
 }

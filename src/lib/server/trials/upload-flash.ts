@@ -21,16 +21,33 @@ export function encodeFlash(outcomes: UploadOutcome[]): string {
 			fileName: o.fileName.slice(0, 120),
 			status: o.status,
 			message: o.message.slice(0, cut),
-			problems: (o.problems ?? []).slice(0, nProblems).map((p) => ({ code: p.code, message: p.message.slice(0, cut), row: p.row, column: p.column?.slice(0, 60), severity: p.severity })),
+			problems: (o.problems ?? [])
+				.slice(0, nProblems)
+				.map((p) => ({ code: p.code, message: p.message.slice(0, cut), row: p.row, column: p.column?.slice(0, 60), severity: p.severity })),
 			moreProblems: Math.max(0, (o.problems ?? []).length - nProblems),
 			...(o.duplicateOf ? { duplicateOf: o.duplicateOf } : {}),
-			...(o.needsMapping ? { needsMapping: { headers: o.needsMapping.headers.slice(0, 60), ...(withSuggested ? { suggested: o.needsMapping.suggested } : {}) } } : {}),
+			...(o.needsMapping
+				? {
+						needsMapping: {
+							headers: o.needsMapping.headers.slice(0, 60),
+							...(withSuggested ? { suggested: o.needsMapping.suggested } : {})
+						}
+					}
+				: {}),
 			...(o.trial ? { trialId: o.trial.id } : {})
 		}));
 		const v = enc(flash);
 		if (v.length <= MAX_COOKIE) return v;
 	}
-	return enc(outcomes.slice(0, 3).map((o) => ({ fileName: o.fileName.slice(0, 60), status: o.status, message: o.message.slice(0, 60), problems: [], moreProblems: o.problems?.length ?? 0 })));
+	return enc(
+		outcomes.slice(0, 3).map((o) => ({
+			fileName: o.fileName.slice(0, 60),
+			status: o.status,
+			message: o.message.slice(0, 60),
+			problems: [],
+			moreProblems: o.problems?.length ?? 0
+		}))
+	);
 }
 
 export function decodeFlash(value: string | undefined): FlashOutcome[] | null {

@@ -62,31 +62,60 @@ function mappingFromTableFields(fields: Fields): unknown | null {
 		const header = fields.get(`col.${i}.header`);
 		if (header === undefined) continue;
 		const channel = fields.get(`col.${i}.channel`) ?? '';
-		columns[header] = { channel: channel || null, unit: fields.get(`col.${i}.unit`) ?? 'deg', flip: fields.get(`col.${i}.flip`) === 'on' || fields.get(`col.${i}.flip`) === 'true' };
+		columns[header] = {
+			channel: channel || null,
+			unit: fields.get(`col.${i}.unit`) ?? 'deg',
+			flip: fields.get(`col.${i}.flip`) === 'on' || fields.get(`col.${i}.flip`) === 'true'
+		};
 	}
 	return { timeColumn: fields.get('timeColumn'), timeUnit: fields.get('timeUnit') || 's', columns };
 }
 
 /** The mapping the person chose for these files, or a problem naming the field that is wrong. */
-async function resolveMapping(fields: Fields, studyId: string): Promise<{ mapping?: ColumnMapping; presetId?: string; problem?: Omit<Problem, 'file'> }> {
+async function resolveMapping(
+	fields: Fields,
+	studyId: string
+): Promise<{ mapping?: ColumnMapping; presetId?: string; problem?: Omit<Problem, 'file'> }> {
 	const presetId = fields.get('presetId')?.trim();
 	let raw: unknown = null;
 	if (presetId) {
 		const preset = isUuid(presetId) ? await MappingPreset.findOne({ where: { id: presetId.toLowerCase(), studyId } }) : null;
-		if (!preset) return { problem: { field: 'presetId', code: 'preset-unknown', message: 'The chosen mapping preset does not exist in this study; choose another or map the columns again.', severity: 'error' } };
+		if (!preset)
+			return {
+				problem: {
+					field: 'presetId',
+					code: 'preset-unknown',
+					message: 'The chosen mapping preset does not exist in this study; choose another or map the columns again.',
+					severity: 'error'
+				}
+			};
 		raw = preset.mapping;
 	} else if (fields.get('mapping')?.trim()) {
 		try {
 			raw = JSON.parse(fields.get('mapping')!);
 		} catch {
-			return { problem: { field: 'mapping', code: 'mapping-not-json', message: 'The column mapping sent with the file is not valid JSON.', severity: 'error' } };
+			return {
+				problem: {
+					field: 'mapping',
+					code: 'mapping-not-json',
+					message: 'The column mapping sent with the file is not valid JSON.',
+					severity: 'error'
+				}
+			};
 		}
 	} else raw = mappingFromTableFields(fields);
 	if (raw === null) return {};
 	const r = columnMappingSchema.safeParse(raw);
 	if (!r.success) {
 		const i = r.error.issues[0];
-		return { problem: { field: ['mapping', ...i.path].join('.'), code: 'mapping-invalid', message: `The column mapping is not usable: ${i.path.join('.') || 'mapping'}: ${i.message}`, severity: 'error' } };
+		return {
+			problem: {
+				field: ['mapping', ...i.path].join('.'),
+				code: 'mapping-invalid',
+				message: `The column mapping is not usable: ${i.path.join('.') || 'mapping'}: ${i.message}`,
+				severity: 'error'
+			}
+		};
 	}
 	return { mapping: r.data, presetId };
 }
@@ -172,7 +201,11 @@ async function receiveFile(ctx: FileContext, file: Readable, info: busboy.FileIn
 	const sequelize = db();
 	const { mapping, presetId, problem: mappingProblem } = await resolveMapping(ctx.fields, ctx.studyId);
 	const t: Transaction = await sequelize.transaction();
-	const chunks = chunker(file, (seq, bytes) => writeRawChunk(uploadId, seq, bytes, t), () => truncated);
+	const chunks = chunker(
+		file,
+		(seq, bytes) => writeRawChunk(uploadId, seq, bytes, t),
+		() => truncated
+	);
 	let outcome: UploadOutcome;
 	try {
 		// inside the file's transaction too: an approval signed while the file was arriving wins
@@ -204,13 +237,24 @@ async function receiveFile(ctx: FileContext, file: Readable, info: busboy.FileIn
 		const base = { fileName, byteSize, sha256 };
 		const dup = await Trial.findOne({ where: { sessionId: ctx.session.id, sha256 }, transaction: t });
 		if (truncated || (file as Readable & { truncated?: boolean }).truncated) {
-			outcome = { ...base, status: 413, message: `${fileName}: the file is larger than the ${mb(ctx.limit)} limit; nothing was stored. Split the recording or ask the lab administrator to raise UPLOAD_LIMIT_BYTES.` };
+			outcome = {
+				...base,
+				status: 413,
+				message: `${fileName}: the file is larger than the ${mb(ctx.limit)} limit; nothing was stored. Split the recording or ask the lab administrator to raise UPLOAD_LIMIT_BYTES.`
+			};
 		} else if (byteSize === 0) {
 			outcome = {
 				...base,
 				status: 422,
 				message: `${fileName} is empty (0 bytes); nothing was stored.`,
-				problems: [{ file: fileName, code: 'empty-file', message: `${fileName} is empty (0 bytes): choose the recording file again.`, severity: 'error' }]
+				problems: [
+					{
+						file: fileName,
+						code: 'empty-file',
+						message: `${fileName} is empty (0 bytes): choose the recording file again.`,
+						severity: 'error'
+					}
+				]
 			};
 		} else if (dup) {
 			outcome = {
@@ -220,13 +264,25 @@ async function receiveFile(ctx: FileContext, file: Readable, info: busboy.FileIn
 				duplicateOf: { trialId: dup.id, fileName: dup.fileName, uploadedAt: dup.createdAt.toISOString() }
 			};
 		} else if (mappingProblem) {
-			outcome = { ...base, status: 422, message: `${fileName}: ${mappingProblem.message}`, problems: [{ file: fileName, ...mappingProblem }] };
+			outcome = {
+				...base,
+				status: 422,
+				message: `${fileName}: ${mappingProblem.message}`,
+				problems: [{ file: fileName, ...mappingProblem }]
+			};
 		} else if (!parsed) {
 			outcome = {
 				...base,
 				status: 422,
 				message: `${fileName} could not be read as a recording; nothing was stored.`,
-				problems: [{ file: fileName, code: 'unreadable', message: `${fileName} could not be read as a delimited text recording (${parseCrash?.message ?? 'unknown reason'}).`, severity: 'error' }]
+				problems: [
+					{
+						file: fileName,
+						code: 'unreadable',
+						message: `${fileName} could not be read as a delimited text recording (${parseCrash?.message ?? 'unknown reason'}).`,
+						severity: 'error'
+					}
+				]
 			};
 		} else if (!parsed.ok) {
 			const n = parsed.problems.filter((p) => p.severity === 'error').length || parsed.problems.length;
@@ -242,7 +298,10 @@ async function receiveFile(ctx: FileContext, file: Readable, info: busboy.FileIn
 		} else {
 			const rec = parsed.recording;
 			const frames = rec.time.length;
-			await RawUpload.create({ id: uploadId, sha256, byteSize, fileName, contentType: info.mimeType || null, uploadedBy: ctx.actor.id }, { transaction: t });
+			await RawUpload.create(
+				{ id: uploadId, sha256, byteSize, fileName, contentType: info.mimeType || null, uploadedBy: ctx.actor.id },
+				{ transaction: t }
+			);
 			const trial = await Trial.create(
 				{
 					sessionId: ctx.session.id,
@@ -263,11 +322,15 @@ async function receiveFile(ctx: FileContext, file: Readable, info: busboy.FileIn
 			const presetName = ctx.fields.get('presetName')?.trim().slice(0, 100);
 			let presetNote = '';
 			if (mapping && !presetId && presetName) {
-				if (!may(ctx.actor, 'mapping.preset', ctx.studyId)) presetNote = ' The mapping was not saved as a preset: your role may not save presets.';
+				if (!may(ctx.actor, 'mapping.preset', ctx.studyId))
+					presetNote = ' The mapping was not saved as a preset: your role may not save presets.';
 				else if (await MappingPreset.findOne({ where: { studyId: ctx.studyId, name: presetName }, transaction: t }))
 					presetNote = ` The mapping was not saved as a preset: the study already has a preset named “${presetName}”.`;
 				else {
-					const p = await MappingPreset.create({ studyId: ctx.studyId, name: presetName, mapping, createdBy: ctx.actor.id }, { transaction: t });
+					const p = await MappingPreset.create(
+						{ studyId: ctx.studyId, name: presetName, mapping, createdBy: ctx.actor.id },
+						{ transaction: t }
+					);
 					presetSaved = { id: p.id, name: p.name };
 					await recordPreset(ctx.actor, ctx.requestContext, ctx.studyId, p, t);
 				}
@@ -281,7 +344,18 @@ async function receiveFile(ctx: FileContext, file: Readable, info: busboy.FileIn
 					recordType: 'trial',
 					recordId: trial.id,
 					ipAddress: ctx.requestContext.ipAddress,
-					details: { sessionId: ctx.session.id, participant: ctx.participantCode, fileName, byteSize, sha256, frames, sampleHz: rec.sampleHz, mapped: !!mapping, presetId: presetId ?? null, warnings: rec.warnings.length }
+					details: {
+						sessionId: ctx.session.id,
+						participant: ctx.participantCode,
+						fileName,
+						byteSize,
+						sha256,
+						frames,
+						sampleHz: rec.sampleHz,
+						mapped: !!mapping,
+						presetId: presetId ?? null,
+						warnings: rec.warnings.length
+					}
 				},
 				t
 			);
@@ -305,7 +379,11 @@ async function receiveFile(ctx: FileContext, file: Readable, info: busboy.FileIn
 		}
 		if (err instanceof UniqueConstraintError) {
 			// the same file arrived twice at once: the other request stored it
-			outcome = { fileName, status: 409, message: `${fileName} was uploaded to this session at the same moment by another request; it was not stored twice.` };
+			outcome = {
+				fileName,
+				status: 409,
+				message: `${fileName} was uploaded to this session at the same moment by another request; it was not stored twice.`
+			};
 		} else if (isDomainError(err) && err.kind === 'conflict') {
 			outcome = { fileName, status: 409, message: err.message };
 		} else throw err;
@@ -348,14 +426,20 @@ export interface UploadRequest extends SessionRef {
  * consent, not multipart, malformed multipart, no file) are thrown as domain errors; each file gets its own outcome.
  * Fields (`mapping`, `presetId`, `presetName`, `fillGaps`, or the mapping table's fields) must come before the files.
  */
-export async function receiveTrials(actor: Actor | null, reqCtx: RequestContext, input: UploadRequest): Promise<{ studyId: string; sessionId: string; outcomes: UploadOutcome[] }> {
+export async function receiveTrials(
+	actor: Actor | null,
+	reqCtx: RequestContext,
+	input: UploadRequest
+): Promise<{ studyId: string; sessionId: string; outcomes: UploadOutcome[] }> {
 	const { body, contentType } = input;
 	const { actor: a, study } = await studyFor(actor, reqCtx, 'trial.upload', input.studyId);
 	try {
 		const session = await sessionIn(study.id, input.sessionId);
 		refuseIfLocked(session.state);
-		if (!EDITABLE_STATES.includes(session.state)) throw conflict(`This session is ${session.state.replace('_', ' ')}; trials can be added only while it is a draft or returned.`);
-		if (!/^multipart\/form-data\b/i.test(contentType)) throw new DomainError('unsupported', 'Send the recording as multipart/form-data: a form with a file field named "file".');
+		if (!EDITABLE_STATES.includes(session.state))
+			throw conflict(`This session is ${session.state.replace('_', ' ')}; trials can be added only while it is a draft or returned.`);
+		if (!/^multipart\/form-data\b/i.test(contentType))
+			throw new DomainError('unsupported', 'Send the recording as multipart/form-data: a form with a file field named "file".');
 		await requireValidConsent(session.participantId, 'upload');
 		let expected: ExpectedChannel[];
 		try {
@@ -411,12 +495,19 @@ export async function receiveTrials(actor: Actor | null, reqCtx: RequestContext,
 			source.unpipe(bb);
 			source.resume();
 			await chain;
-			throw invalid(`The upload is not a well-formed multipart form (${(err as Error).message}); nothing more was read.${outcomes.length ? ` ${outcomes.length} file(s) before the fault were handled.` : ''}`);
+			throw invalid(
+				`The upload is not a well-formed multipart form (${(err as Error).message}); nothing more was read.${outcomes.length ? ` ${outcomes.length} file(s) before the fault were handled.` : ''}`
+			);
 		}
 		await chain;
 		if (chainError) throw chainError;
 		if (outcomes.length === 0) throw invalid('No file was sent: choose at least one recording file (form field "file").');
-		if (tooMany) outcomes.push({ fileName: '(further files)', status: 400, message: `Only ${MAX_FILES_PER_REQUEST} files can be sent at once; the rest were not read. Send them again.` });
+		if (tooMany)
+			outcomes.push({
+				fileName: '(further files)',
+				status: 400,
+				message: `Only ${MAX_FILES_PER_REQUEST} files can be sent at once; the rest were not read. Send them again.`
+			});
 		return { studyId: study.id, sessionId: session.id, outcomes };
 	} catch (err) {
 		await drain(body);

@@ -25,7 +25,11 @@ async function act(event: RequestEvent, decision: 'consented' | 'declined') {
 		{
 			values,
 			// a refused link shows why; a form version published meanwhile asks to read again (ticks cleared)
-			extra: (p) => ({ refused: p instanceof LinkRefused ? p.refused : null, ticked: p instanceof ReReadProblem ? [] : ticked, reRead: p instanceof ReReadProblem })
+			extra: (p) => ({
+				refused: p instanceof LinkRefused ? p.refused : null,
+				ticked: p instanceof ReReadProblem ? [] : ticked,
+				reRead: p instanceof ReReadProblem
+			})
 		}
 	);
 }

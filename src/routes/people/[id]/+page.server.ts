@@ -4,7 +4,18 @@ import { FormProblem } from '$lib/server/errors';
 import type { Actor } from '$lib/server/access/guard';
 import type { RequestContext } from '$lib/server/access/context';
 import { contextOf, edge, formEdge, requireLab } from '$lib/server/http/edge';
-import { deactivatePerson, getPerson, listStudies, parseRole, reactivatePerson, ROLE_LABELS, setLabAdmin, setStudyRole, STUDY_ROLES, type FormInput } from '$lib/server/people/manage';
+import {
+	deactivatePerson,
+	getPerson,
+	listStudies,
+	parseRole,
+	reactivatePerson,
+	ROLE_LABELS,
+	setLabAdmin,
+	setStudyRole,
+	STUDY_ROLES,
+	type FormInput
+} from '$lib/server/people/manage';
 import type { Actions, PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async (event) => {
@@ -35,7 +46,8 @@ const confirmed = (what: 'deactivate' | 'reactivate', service: typeof deactivate
 	change(event, async (actor, ctx, input) => {
 		const word = what === 'deactivate' ? 'Deactivation' : 'Reactivation';
 		const button = what === 'deactivate' ? 'Deactivate' : 'Reactivate';
-		if (input.confirm !== 'yes') throw new FormProblem({ form: `${word} was not confirmed. Use “${button} account…” and confirm on the panel that opens.` });
+		if (input.confirm !== 'yes')
+			throw new FormProblem({ form: `${word} was not confirmed. Use “${button} account…” and confirm on the panel that opens.` });
 		await service(actor, ctx, event.params.id);
 		redirect(303, `/people/${event.params.id}?done=${what}d`);
 	});
@@ -48,13 +60,19 @@ export const actions: Actions = {
 			const role = parseRole(input.role, study.code, 'role');
 			const changed = await setStudyRole(actor, ctx, event.params.id, study.id, role);
 			const what = role ? `now ${ROLE_LABELS[role]}` : 'no role any more';
-			return { studyId: study.id, done: changed ? `${study.code}: ${what}.` : `${study.code}: unchanged (${role ? ROLE_LABELS[role] : 'no role'}).` };
+			return {
+				studyId: study.id,
+				done: changed ? `${study.code}: ${what}.` : `${study.code}: unchanged (${role ? ROLE_LABELS[role] : 'no role'}).`
+			};
 		}),
 	admin: (event) =>
 		change(event, async (actor, ctx, input) => {
-			if (input.isAdmin !== 'yes' && input.isAdmin !== 'no') throw new FormProblem({ isAdmin: 'Say whether the person should be a lab administrator (yes or no).' });
+			if (input.isAdmin !== 'yes' && input.isAdmin !== 'no')
+				throw new FormProblem({ isAdmin: 'Say whether the person should be a lab administrator (yes or no).' });
 			const changed = await setLabAdmin(actor, ctx, event.params.id, input.isAdmin === 'yes');
-			return { done: !changed ? 'Nothing to change.' : input.isAdmin === 'yes' ? 'Now a lab administrator.' : 'No longer a lab administrator.' };
+			return {
+				done: !changed ? 'Nothing to change.' : input.isAdmin === 'yes' ? 'Now a lab administrator.' : 'No longer a lab administrator.'
+			};
 		}),
 	deactivate: confirmed('deactivate', deactivatePerson),
 	reactivate: confirmed('reactivate', reactivatePerson)

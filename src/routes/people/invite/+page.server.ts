@@ -7,7 +7,12 @@ import type { Actions, PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async (event) => {
 	const actor = await requireLab(event, 'people.manage');
-	return { studies: await listStudies(actor), roles: STUDY_ROLES, roleLabels: ROLE_LABELS, linkDays: TOKEN_LIFETIME_MS.invitation / 86_400_000 };
+	return {
+		studies: await listStudies(actor),
+		roles: STUDY_ROLES,
+		roleLabels: ROLE_LABELS,
+		linkDays: TOKEN_LIFETIME_MS.invitation / 86_400_000
+	};
 };
 
 export const actions: Actions = {

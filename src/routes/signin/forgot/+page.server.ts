@@ -10,11 +10,15 @@ export const load: PageServerLoad = async () => ({ linkMinutes: TOKEN_LIFETIME_M
 export const actions: Actions = {
 	default: async (event) => {
 		const form = await event.request.formData();
-		const email = String(form.get('email') ?? '').trim().toLowerCase();
+		const email = String(form.get('email') ?? '')
+			.trim()
+			.toLowerCase();
 		const problem = emailProblem(email, 'your');
 		if (problem) return fail(400, { email, error: problem, sent: false });
 		// not awaited: how long the answer takes must not tell whether an e-mail was sent
-		requestPasswordReset(contextOf(event), email).catch((err: Error) => console.error('[password reset] could not send the link:', err.message));
+		requestPasswordReset(contextOf(event), email).catch((err: Error) =>
+			console.error('[password reset] could not send the link:', err.message)
+		);
 		return { email, error: null, sent: true };
 	}
 };

@@ -12,7 +12,10 @@ export const sessionFormLoad = async <T extends object>(event: RequestEvent, rea
 	edge(event, async () => ({ ...(await read(...callerOf(event))), today: new Date().toISOString().slice(0, 10) }));
 
 /** Saves the posted session form with `save`, then goes to the address it returns. */
-export async function sessionFormAction(event: RequestEvent, save: (actor: Actor | null, ctx: RequestContext, form: FormData) => Promise<string>) {
+export async function sessionFormAction(
+	event: RequestEvent,
+	save: (actor: Actor | null, ctx: RequestContext, form: FormData) => Promise<string>
+) {
 	const form = await event.request.formData();
 	return formEdge(event, async () => redirect(303, await save(...callerOf(event), form)), { extra: { values: formValuesFrom(form) } });
 }

@@ -58,7 +58,9 @@ export const up: Migration = async ({ context: qi }) => {
 		role: { type: DataTypes.TEXT, allowNull: false },
 		created_at: { type: DataTypes.DATE, allowNull: false, defaultValue: now }
 	});
-	await qi.sequelize.query(`ALTER TABLE study_members ADD CONSTRAINT study_members_role CHECK (role IN ('pi', 'researcher', 'technician'))`);
+	await qi.sequelize.query(
+		`ALTER TABLE study_members ADD CONSTRAINT study_members_role CHECK (role IN ('pi', 'researcher', 'technician'))`
+	);
 	await qi.addIndex('study_members', ['user_id']);
 
 	// single-use e-mailed links of our own (invitations, password resets); only a hash of the token is kept
@@ -71,7 +73,9 @@ export const up: Migration = async ({ context: qi }) => {
 		used_at: { type: DataTypes.DATE, allowNull: true },
 		created_at: { type: DataTypes.DATE, allowNull: false, defaultValue: now }
 	});
-	await qi.sequelize.query(`ALTER TABLE one_time_tokens ADD CONSTRAINT one_time_tokens_purpose CHECK (purpose IN ('invitation', 'password-reset'))`);
+	await qi.sequelize.query(
+		`ALTER TABLE one_time_tokens ADD CONSTRAINT one_time_tokens_purpose CHECK (purpose IN ('invitation', 'password-reset'))`
+	);
 
 	await qi.createTable('sign_in_failures', {
 		id: { type: DataTypes.BIGINT, primaryKey: true, autoIncrement: true },
@@ -84,7 +88,16 @@ export const up: Migration = async ({ context: qi }) => {
 };
 
 export const down: Migration = async ({ context: qi }) => {
-	for (const t of ['sign_in_failures', 'one_time_tokens', 'study_members', 'studies', 'verification_tokens', 'sessions', 'accounts', 'users']) {
+	for (const t of [
+		'sign_in_failures',
+		'one_time_tokens',
+		'study_members',
+		'studies',
+		'verification_tokens',
+		'sessions',
+		'accounts',
+		'users'
+	]) {
 		await qi.dropTable(t);
 	}
 };

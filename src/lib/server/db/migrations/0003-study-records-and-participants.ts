@@ -24,8 +24,14 @@ export const up: Migration = async ({ context: qi }) => {
 		published_at: { type: DataTypes.DATE, allowNull: false, defaultValue: now },
 		published_by: { type: DataTypes.UUID, allowNull: true, references: { model: 'users', key: 'id' }, onDelete: 'SET NULL' }
 	});
-	await qi.addConstraint('consent_form_versions', { type: 'unique', fields: ['study_id', 'version'], name: 'consent_form_versions_study_version' });
-	await qi.sequelize.query(`ALTER TABLE consent_form_versions ADD CONSTRAINT consent_form_versions_confirmations CHECK (jsonb_typeof(confirmations) = 'array')`);
+	await qi.addConstraint('consent_form_versions', {
+		type: 'unique',
+		fields: ['study_id', 'version'],
+		name: 'consent_form_versions_study_version'
+	});
+	await qi.sequelize.query(
+		`ALTER TABLE consent_form_versions ADD CONSTRAINT consent_form_versions_confirmations CHECK (jsonb_typeof(confirmations) = 'array')`
+	);
 
 	await qi.createTable('participants', {
 		id: uuid,
@@ -40,7 +46,9 @@ export const up: Migration = async ({ context: qi }) => {
 		created_at: { type: DataTypes.DATE, allowNull: false, defaultValue: now }
 	});
 	await qi.sequelize.query(`ALTER TABLE participants ADD CONSTRAINT participants_sex CHECK (sex IN ('female', 'male', 'not reported'))`);
-	await qi.sequelize.query(`ALTER TABLE participants ADD CONSTRAINT participants_dominant_side CHECK (dominant_side IS NULL OR dominant_side IN ('left', 'right'))`);
+	await qi.sequelize.query(
+		`ALTER TABLE participants ADD CONSTRAINT participants_dominant_side CHECK (dominant_side IS NULL OR dominant_side IN ('left', 'right'))`
+	);
 	await qi.addIndex('participants', ['study_id', 'code']);
 
 	await qi.createTable('participant_personal', {
@@ -64,5 +72,6 @@ export const up: Migration = async ({ context: qi }) => {
 export const down: Migration = async ({ context: qi }) => {
 	for (const t of ['participant_lengths', 'participant_personal', 'participants', 'consent_form_versions']) await qi.dropTable(t);
 	await qi.sequelize.query(`ALTER TABLE studies DROP CONSTRAINT studies_default_table`);
-	for (const c of ['next_participant_number', 'participant_prefix', 'default_table', 'ethics_expires_on', 'ethics_reference']) await qi.removeColumn('studies', c);
+	for (const c of ['next_participant_number', 'participant_prefix', 'default_table', 'ethics_expires_on', 'ethics_reference'])
+		await qi.removeColumn('studies', c);
 };

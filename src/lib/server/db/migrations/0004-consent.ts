@@ -67,7 +67,9 @@ export const up: Migration = async ({ context: qi }) => {
 		BEGIN
 			RAISE EXCEPTION 'consent_events is append-only (% refused)', TG_OP;
 		END $$`);
-	await q(`CREATE TRIGGER consent_events_no_update BEFORE UPDATE ON consent_events FOR EACH ROW EXECUTE FUNCTION consent_events_append_only()`);
+	await q(
+		`CREATE TRIGGER consent_events_no_update BEFORE UPDATE ON consent_events FOR EACH ROW EXECUTE FUNCTION consent_events_append_only()`
+	);
 };
 
 export const down: Migration = async ({ context: qi }) => {

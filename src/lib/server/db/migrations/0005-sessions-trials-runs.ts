@@ -142,6 +142,7 @@ export const up: Migration = async ({ context: qi }) => {
 };
 
 export const down: Migration = async ({ context: qi }) => {
-	for (const t of ['run_series', 'runs', 'mapping_presets', 'trials', 'raw_upload_chunks', 'raw_uploads', 'sessions']) await qi.dropTable(t);
+	for (const t of ['run_series', 'runs', 'mapping_presets', 'trials', 'raw_upload_chunks', 'raw_uploads', 'sessions'])
+		await qi.dropTable(t);
 	await qi.sequelize.query(`ALTER TABLE auth_sessions RENAME TO sessions`);
 };

@@ -23,16 +23,24 @@ export const up: Migration = async ({ context: qi }) => {
 		signature_method: { type: DataTypes.TEXT, allowNull: true }
 	});
 	const states = `('draft', 'in_review', 'returned', 'approved')`;
-	await q(`ALTER TABLE session_transitions ADD CONSTRAINT session_transitions_states CHECK ((from_state IS NULL OR from_state IN ${states}) AND to_state IN ${states})`);
-	await q(`ALTER TABLE session_transitions ADD CONSTRAINT session_transitions_method CHECK (signature_method IS NULL OR signature_method IN ('password', 'email_code'))`);
+	await q(
+		`ALTER TABLE session_transitions ADD CONSTRAINT session_transitions_states CHECK ((from_state IS NULL OR from_state IN ${states}) AND to_state IN ${states})`
+	);
+	await q(
+		`ALTER TABLE session_transitions ADD CONSTRAINT session_transitions_method CHECK (signature_method IS NULL OR signature_method IN ('password', 'email_code'))`
+	);
 	// an approval is always signed, and only an approval carries a signature
 	await q(
 		`ALTER TABLE session_transitions ADD CONSTRAINT session_transitions_signed CHECK ((to_state = 'approved') = (signature_meaning IS NOT NULL AND signature_method IS NOT NULL))`
 	);
 	await qi.addIndex('session_transitions', ['session_id', 'at']);
 	// the history is a record: it is appended to, never changed
-	await q(`CREATE FUNCTION session_transitions_append_only() RETURNS trigger LANGUAGE plpgsql AS $$ BEGIN RAISE EXCEPTION 'session_transitions is append-only'; END $$`);
-	await q(`CREATE TRIGGER session_transitions_no_change BEFORE UPDATE OR DELETE ON session_transitions FOR EACH ROW EXECUTE FUNCTION session_transitions_append_only()`);
+	await q(
+		`CREATE FUNCTION session_transitions_append_only() RETURNS trigger LANGUAGE plpgsql AS $$ BEGIN RAISE EXCEPTION 'session_transitions is append-only'; END $$`
+	);
+	await q(
+		`CREATE TRIGGER session_transitions_no_change BEFORE UPDATE OR DELETE ON session_transitions FOR EACH ROW EXECUTE FUNCTION session_transitions_append_only()`
+	);
 
 	await qi.createTable('signature_codes', {
 		id: uuid,

@@ -6,6 +6,8 @@ import type { PageServerLoad } from './$types';
 export const load: PageServerLoad = (event) =>
 	edge(event, async () => {
 		const q = event.url.searchParams;
-		const imported = /^\d+$/.test(q.get('imported') ?? '') ? { count: Number(q.get('imported')), first: q.get('first') ?? '', last: q.get('last') ?? '' } : null;
+		const imported = /^\d+$/.test(q.get('imported') ?? '')
+			? { count: Number(q.get('imported')), first: q.get('first') ?? '', last: q.get('last') ?? '' }
+			: null;
 		return { ...(await listParticipants(...callerOf(event), event.params.id, parseListQuery(event.url))), added: q.get('added'), imported };
 	});

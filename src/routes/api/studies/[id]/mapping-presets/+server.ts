@@ -4,13 +4,15 @@ import { json } from '@sveltejs/kit';
 import { createPreset, listPresets, type PresetInput } from '$lib/server/trials/mapping-presets';
 import type { RequestHandler } from './$types';
 
-export const GET: RequestHandler = (event) => edge(event, async () => json({ presets: await listPresets(...callerOf(event), event.params.id) }));
+export const GET: RequestHandler = (event) =>
+	edge(event, async () => json({ presets: await listPresets(...callerOf(event), event.params.id) }));
 
 export const POST: RequestHandler = (event) =>
 	jsonEdge(event, async () => {
 		// JSON { name, mapping }, or a form with a name and the mapping as JSON text; read once access is checked
 		const preset = async (): Promise<PresetInput> => {
-			if ((event.request.headers.get('content-type') ?? '').includes('application/json')) return (await event.request.json()) as PresetInput;
+			if ((event.request.headers.get('content-type') ?? '').includes('application/json'))
+				return (await event.request.json()) as PresetInput;
 			const form = await event.request.formData();
 			const text = String(form.get('mapping') ?? '');
 			return { name: form.get('name'), mapping: text ? JSON.parse(text) : undefined };

@@ -23,7 +23,12 @@ export const load: PageServerLoad = (event) =>
 type Save = (actor: Actor | null, ctx: RequestContext, rawId: string, rawPid: string, values: FormFields) => Promise<unknown>;
 
 /** One of the page's forms: saved, back to the page (with `saved` when it says so); refused, its fields' messages. */
-async function save(event: RequestEvent<{ id: string; pid: string }>, service: Save, flags: { personal: boolean; research?: true }, saved?: string) {
+async function save(
+	event: RequestEvent<{ id: string; pid: string }>,
+	service: Save,
+	flags: { personal: boolean; research?: true },
+	saved?: string
+) {
 	const values = formValues(await event.request.formData());
 	return formEdge(
 		event,

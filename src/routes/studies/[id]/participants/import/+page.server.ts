@@ -21,8 +21,16 @@ export const actions: Actions = {
 		return formEdge(
 			event,
 			async () => {
-				const out = await runImport(...callerOf(event), event.params.id, { content: text('content'), sha256: text('sha256'), fileName: text('fileName'), firstNumber: Number(form.get('firstNumber')) });
-				redirect(303, `/studies/${event.params.id}/participants?${new URLSearchParams({ imported: String(out.count), first: out.firstCode, last: out.lastCode })}`);
+				const out = await runImport(...callerOf(event), event.params.id, {
+					content: text('content'),
+					sha256: text('sha256'),
+					fileName: text('fileName'),
+					firstNumber: Number(form.get('firstNumber'))
+				});
+				redirect(
+					303,
+					`/studies/${event.params.id}/participants?${new URLSearchParams({ imported: String(out.count), first: out.firstCode, last: out.lastCode })}`
+				);
 			},
 			{ extra: refused }
 		);

@@ -17,6 +17,11 @@ export const actions: Actions = {
 			const run = await retryRun(...callerOf(event), { studyId: event.params.id, runId: event.params.rid });
 			const form = await event.request.formData().catch(() => new FormData());
 			const sessionId = String(form.get('sessionId') ?? '');
-			redirect(303, /^[0-9a-f-]{36}$/i.test(sessionId) ? `/studies/${event.params.id}/sessions/${sessionId}#runs-${run.trialId}` : `/studies/${event.params.id}/runs/${run.id}`);
+			redirect(
+				303,
+				/^[0-9a-f-]{36}$/i.test(sessionId)
+					? `/studies/${event.params.id}/sessions/${sessionId}#runs-${run.trialId}`
+					: `/studies/${event.params.id}/runs/${run.id}`
+			);
 		})
 };

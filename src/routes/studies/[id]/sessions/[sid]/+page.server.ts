@@ -34,14 +34,21 @@ export const load: PageServerLoad = (event) =>
 
 // ---- review workflow: submit, approve (signed), return, reopen, and the e-mailed signing code
 /** A refused step comes back as { workflow: { step, errors, values } } (never a password or code). */
-const refused = (step: Transition, values: FieldErrors) => ({ extra: (p: { errors: FieldErrors }) => ({ workflow: { step, errors: p.errors, values } }) });
+const refused = (step: Transition, values: FieldErrors) => ({
+	extra: (p: { errors: FieldErrors }) => ({ workflow: { step, errors: p.errors, values } })
+});
 
 const step = (name: Transition) => async (event: RequestEvent) => {
 	const form = await event.request.formData();
 	return formEdge(
 		event,
 		async () => {
-			const { to } = await transition(...callerOf(event), { studyId: event.params.id, sessionId: event.params.sid, step: name, form: Object.fromEntries(form) });
+			const { to } = await transition(...callerOf(event), {
+				studyId: event.params.id,
+				sessionId: event.params.sid,
+				step: name,
+				form: Object.fromEntries(form)
+			});
 			redirect(303, `/studies/${event.params.id}/sessions/${event.params.sid}?moved=${to}#workflow`);
 		},
 		refused(name, formValues(form))

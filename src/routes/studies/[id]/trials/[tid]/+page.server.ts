@@ -6,7 +6,8 @@ import type { Actions, PageServerLoad, RequestEvent } from './$types';
 
 const trialRef = (event: RequestEvent | Parameters<PageServerLoad>[0]) => ({ studyId: event.params.id, trialId: event.params.tid });
 
-export const load: PageServerLoad = (event) => edge(event, () => loadTrialPage(...callerOf(event), { ...trialRef(event), query: event.url.searchParams }));
+export const load: PageServerLoad = (event) =>
+	edge(event, () => loadTrialPage(...callerOf(event), { ...trialRef(event), query: event.url.searchParams }));
 
 /** Back to the session page the trial belongs to, at the trial's runs (or to this page when asked). */
 async function back(event: RequestEvent, form: FormData): Promise<never> {

@@ -5,4 +5,9 @@ import { readRun } from '$lib/server/runs/runs';
 import type { RequestHandler } from './$types';
 
 export const GET: RequestHandler = (event) =>
-	edge(event, async () => json({ run: await readRun(...callerOf(event), { studyId: event.params.id, runId: event.params.rid }) }, { headers: { 'cache-control': 'no-store' } }));
+	edge(event, async () =>
+		json(
+			{ run: await readRun(...callerOf(event), { studyId: event.params.id, runId: event.params.rid }) },
+			{ headers: { 'cache-control': 'no-store' } }
+		)
+	);

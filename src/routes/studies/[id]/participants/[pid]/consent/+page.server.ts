@@ -35,7 +35,12 @@ export const actions: Actions = {
 		return formEdge(
 			event,
 			async () => {
-				await decideFlaggedRun(...callerOf(event), { studyId: event.params.id, runId, decision: String(form.get('decision') ?? ''), note: String(form.get('note') ?? '') });
+				await decideFlaggedRun(...callerOf(event), {
+					studyId: event.params.id,
+					runId,
+					decision: String(form.get('decision') ?? ''),
+					note: String(form.get('note') ?? '')
+				});
 				redirect(303, `/studies/${event.params.id}/participants/${event.params.pid}/consent?decided=1`);
 			},
 			{ extra: { mailProblem: null, runId } }

@@ -3,7 +3,8 @@ import { editSession, editSessionForm } from '$lib/server/sessions/sessions';
 import { sessionFormAction, sessionFormLoad } from '../../../session-form.server';
 import type { Actions, PageServerLoad } from './$types';
 
-export const load: PageServerLoad = (event) => sessionFormLoad(event, (actor, ctx) => editSessionForm(actor, ctx, { studyId: event.params.id, sessionId: event.params.sid }));
+export const load: PageServerLoad = (event) =>
+	sessionFormLoad(event, (actor, ctx) => editSessionForm(actor, ctx, { studyId: event.params.id, sessionId: event.params.sid }));
 
 export const actions: Actions = {
 	default: (event) =>

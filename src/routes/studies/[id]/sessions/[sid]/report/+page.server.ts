@@ -7,5 +7,9 @@ import type { PageServerLoad } from './$types';
 // peaks leave the edge zones out unless ?includeEdgeZones=1
 export const load: PageServerLoad = (event) =>
 	edge(event, () =>
-		sessionReport(...callerOf(event), { studyId: event.params.id, sessionId: event.params.sid, includeEdgeZones: includeEdgeZonesOf(event.url.searchParams) })
+		sessionReport(...callerOf(event), {
+			studyId: event.params.id,
+			sessionId: event.params.sid,
+			includeEdgeZones: includeEdgeZonesOf(event.url.searchParams)
+		})
 	);

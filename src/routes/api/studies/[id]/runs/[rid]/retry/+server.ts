@@ -4,4 +4,5 @@ import { callerOf, edge } from '$lib/server/http/edge';
 import { retryRun } from '$lib/server/runs/runs';
 import type { RequestHandler } from './$types';
 
-export const POST: RequestHandler = (event) => edge(event, async () => json({ run: await retryRun(...callerOf(event), { studyId: event.params.id, runId: event.params.rid }) }));
+export const POST: RequestHandler = (event) =>
+	edge(event, async () => json({ run: await retryRun(...callerOf(event), { studyId: event.params.id, runId: event.params.rid }) }));

@@ -5,4 +5,6 @@ import { loadSeries } from '$lib/server/runs/runs';
 import type { RequestHandler } from './$types';
 
 export const GET: RequestHandler = (event) =>
-	edge(event, async () => json(await loadSeries(...callerOf(event), { studyId: event.params.id, runId: event.params.rid, query: event.url.searchParams })));
+	edge(event, async () =>
+		json(await loadSeries(...callerOf(event), { studyId: event.params.id, runId: event.params.rid, query: event.url.searchParams }))
+	);

@@ -5,4 +5,6 @@ import { loadSummary } from '$lib/server/runs/runs';
 import type { RequestHandler } from './$types';
 
 export const GET: RequestHandler = (event) =>
-	edge(event, async () => json(await loadSummary(...callerOf(event), { studyId: event.params.id, runId: event.params.rid, query: event.url.searchParams })));
+	edge(event, async () =>
+		json(await loadSummary(...callerOf(event), { studyId: event.params.id, runId: event.params.rid, query: event.url.searchParams }))
+	);

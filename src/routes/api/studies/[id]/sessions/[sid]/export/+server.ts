@@ -22,6 +22,10 @@ export const GET: RequestHandler = (event) =>
 	edge(event, async () => {
 		const { fileName, archive } = await exportSession(...callerOf(event), { studyId: event.params.id, sessionId: event.params.sid });
 		return new Response(webStream(archive), {
-			headers: { 'content-type': 'application/zip', 'content-disposition': `attachment; filename="${fileName}"`, 'cache-control': 'no-store' }
+			headers: {
+				'content-type': 'application/zip',
+				'content-disposition': `attachment; filename="${fileName}"`,
+				'cache-control': 'no-store'
+			}
 		});
 	});

@@ -7,5 +7,8 @@ import type { RequestHandler } from './$types';
 
 export const GET: RequestHandler = (event) =>
 	edge(event, async () =>
-		json(await loadSessionReview(...callerOf(event), { studyId: event.params.id, sessionId: event.params.sid, query: event.url.searchParams }), { headers: { 'cache-control': 'no-store' } })
+		json(
+			await loadSessionReview(...callerOf(event), { studyId: event.params.id, sessionId: event.params.sid, query: event.url.searchParams }),
+			{ headers: { 'cache-control': 'no-store' } }
+		)
 	);

@@ -5,4 +5,6 @@ import { loadResiduals } from '$lib/server/runs/runs';
 import type { RequestHandler } from './$types';
 
 export const GET: RequestHandler = (event) =>
-	edge(event, async () => json(await loadResiduals(...callerOf(event), { studyId: event.params.id, trialId: event.params.tid, query: event.url.searchParams })));
+	edge(event, async () =>
+		json(await loadResiduals(...callerOf(event), { studyId: event.params.id, trialId: event.params.tid, query: event.url.searchParams }))
+	);

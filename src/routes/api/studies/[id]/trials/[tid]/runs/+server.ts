@@ -5,4 +5,11 @@ import { jsonBody, startRun } from '$lib/server/runs/runs';
 import type { RequestHandler } from './$types';
 
 export const POST: RequestHandler = (event) =>
-	jsonEdge(event, async () => json({ run: await startRun(...callerOf(event), { studyId: event.params.id, trialId: event.params.tid, options: jsonBody(event.request) }) }, { status: 201 }));
+	jsonEdge(event, async () =>
+		json(
+			{
+				run: await startRun(...callerOf(event), { studyId: event.params.id, trialId: event.params.tid, options: jsonBody(event.request) })
+			},
+			{ status: 201 }
+		)
+	);

@@ -3,7 +3,8 @@ import { createSession, newSessionForm } from '$lib/server/sessions/sessions';
 import { sessionFormAction, sessionFormLoad } from '../../../../session-form.server';
 import type { Actions, PageServerLoad } from './$types';
 
-export const load: PageServerLoad = (event) => sessionFormLoad(event, (actor, ctx) => newSessionForm(actor, ctx, { studyId: event.params.id, participantId: event.params.pid }));
+export const load: PageServerLoad = (event) =>
+	sessionFormLoad(event, (actor, ctx) => newSessionForm(actor, ctx, { studyId: event.params.id, participantId: event.params.pid }));
 
 export const actions: Actions = {
 	default: (event) =>
