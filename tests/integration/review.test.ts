@@ -1,4 +1,5 @@
 // The review data of a session, a run's cycle events (saved, validated, audited, refused once approved) and the
+/* eslint-disable @typescript-eslint/no-explicit-any -- JSON answers are read loosely here; their shapes are what the assertions check */
 // compare page (codes only; excluded runs left out).
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import fs from 'node:fs';

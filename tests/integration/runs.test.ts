@@ -1,4 +1,5 @@
 // Processing runs end to end over HTTP with the real worker process: known moments come back, a killed worker's run
+/* eslint-disable @typescript-eslint/no-explicit-any -- JSON answers are read loosely here; their shapes are what the assertions check */
 // is retried and stored once, consent is enforced at start and at processing time, reruns add runs, summaries match.
 //
 // Tolerance of the moment comparison, and why (the pipeline's own round trip, tests/unit/processing/round-trip.test.ts,

@@ -1,4 +1,5 @@
 // Sessions and the streamed trial upload against the built app: the malformed corpus refused with precise messages and
+/* eslint-disable @typescript-eslint/no-explicit-any -- JSON answers are read loosely here; their shapes are what the assertions check */
 // nothing stored, binary and empty files, the size limit, duplicates, byte-identical storage, mapping presets, consent.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import fs from 'node:fs';
