@@ -70,7 +70,7 @@ describe('npm run process --angle-unit', () => {
 		const cols = head.split(',');
 		const knee = cols.indexOf('right.knee.flexion.angle (deg)');
 		expect(knee).toBeGreaterThan(0);
-		// the angle comes back in degrees as written (45° at t = 0; the low-pass keeps the end sample within 0.5°)
+		// degrees come back as they were typed: 45° at the first sample, within 0.5° after the zero-lag filter
 		expect(Number(first.split(',')[knee])).toBeCloseTo(45, 0);
 		const moment = cols.indexOf('right.knee.flexion.moment (N·m)');
 		expect(Number.isFinite(Number(first.split(',')[moment]))).toBe(true);
