@@ -330,22 +330,26 @@ describe('mapping files from other systems', () => {
 		timeDigits: 0,
 		d: ';'
 	});
+	/** A mapping of `foreign` (time in ms, every column in degrees, the marker in mm, no flips); `changes` replace columns. */
+	const foreignMapping = (changes: ColumnMapping['columns'] = {}): ColumnMapping => ({
+		timeColumn: 'Time_ms',
+		timeUnit: 'ms',
+		columns: {
+			'R Hip Flex [deg]': { channel: 'right.hip.flexion', unit: 'deg', flip: false },
+			'R Knee Flex': { channel: 'right.knee.flexion', unit: 'deg', flip: false },
+			'R Ankle DF': { channel: 'right.ankle.dorsiflexion', unit: 'deg', flip: false },
+			'Marker X': { channel: null, unit: 'mm', flip: false },
+			...changes
+		}
+	});
 
 	test('headers outside our scheme ask for a mapping with suggestions a person confirms', async () => {
 		const r = await parseRecording(foreign, opts());
 		expect(r.ok).toBe(false);
 		if (r.ok) return;
 		expect(r.needsMapping?.headers).toEqual(['Time_ms', 'R Hip Flex [deg]', 'R Knee Flex', 'R Ankle DF', 'Marker X']);
-		expect(r.needsMapping?.suggested).toEqual({
-			timeColumn: 'Time_ms',
-			timeUnit: 'ms',
-			columns: {
-				'R Hip Flex [deg]': { channel: 'right.hip.flexion', unit: 'deg', flip: false },
-				'R Knee Flex': { channel: 'right.knee.flexion', unit: 'deg', flip: false },
-				'R Ankle DF': { channel: 'right.ankle.dorsiflexion', unit: 'deg', flip: false },
-				'Marker X': { channel: null, unit: 'deg', flip: false }
-			}
-		});
+		// an unknown column is suggested in degrees and left unmapped
+		expect(r.needsMapping?.suggested).toEqual(foreignMapping({ 'Marker X': { channel: null, unit: 'deg', flip: false } }));
 		expect(columnMappingSchema.safeParse(r.needsMapping?.suggested).success).toBe(true);
 		expect(codes(r)).toContain('no-time-column');
 	});
@@ -359,16 +363,10 @@ describe('mapping files from other systems', () => {
 	});
 
 	test('a mapping applies channel, unit, sign flip and time unit', async () => {
-		const mapping: ColumnMapping = {
-			timeColumn: 'Time_ms',
-			timeUnit: 'ms',
-			columns: {
-				'R Hip Flex [deg]': { channel: 'right.hip.flexion', unit: 'deg', flip: false },
-				'R Knee Flex': { channel: 'right.knee.flexion', unit: 'rad', flip: true },
-				'R Ankle DF': { channel: 'right.ankle.dorsiflexion', unit: 'deg', flip: true },
-				'Marker X': { channel: null, unit: 'mm', flip: false }
-			}
-		};
+		const mapping = foreignMapping({
+			'R Knee Flex': { channel: 'right.knee.flexion', unit: 'rad', flip: true },
+			'R Ankle DF': { channel: 'right.ankle.dorsiflexion', unit: 'deg', flip: true }
+		});
 		const rec = recording(await parseRecording(foreign, opts({ mapping })));
 		expect(rec.time[1]).toBe(0.01);
 		expect(rec.sampleHz).toBeCloseTo(100, 9);
@@ -378,17 +376,8 @@ describe('mapping files from other systems', () => {
 	});
 
 	test('mapping mistakes are named', async () => {
-		const base: ColumnMapping = {
-			timeColumn: 'Time_ms',
-			timeUnit: 'ms',
-			columns: {
-				'R Hip Flex [deg]': { channel: 'right.hip.flexion', unit: 'deg', flip: false },
-				'R Knee Flex': { channel: 'right.knee.flexion', unit: 'deg', flip: false },
-				'R Ankle DF': { channel: 'right.ankle.dorsiflexion', unit: 'deg', flip: false },
-				'Marker X': { channel: null, unit: 'mm', flip: false }
-			}
-		};
-		const withCol = (h: string, c: ColumnMapping['columns'][string]) => ({ ...base, columns: { ...base.columns, [h]: c } });
+		const base = foreignMapping();
+		const withCol = (h: string, c: ColumnMapping['columns'][string]) => foreignMapping({ [h]: c });
 		const run = async (m: unknown) => codes(await parseRecording(foreign, opts({ mapping: m as ColumnMapping })));
 		expect(await run(withCol('R Knee Flex', { channel: 'right.knee.flexion', unit: 'mm', flip: false }))).toEqual([
 			'mapping-unit-mismatch',
