@@ -34,16 +34,20 @@ beforeAll(() => {
 });
 afterAll(() => fs.rmSync(dir, { recursive: true, force: true }));
 
+/** The leg trial of the participant in p.json, written to `out`, with `more` options. */
+const processLeg = (out: string, ...more: string[]) =>
+	cli(['--participant', path.join(dir, 'p.json'), '--angles', path.join(dir, 'leg.csv'), '--out', out, ...more]);
+
 describe('npm run process --angle-unit', () => {
 	it('--help lists the option', async () => {
 		const r = await cli(['--help']);
 		expect(r.code).toBe(0);
 		expect(r.stdout).toMatch(/--angle-unit deg\|rad/);
-	});
+	}, 90_000);
 
 	it('without the option: refused with the unit message and how to choose it on the command line, nothing written', async () => {
 		const out = path.join(dir, 'none.csv');
-		const r = await cli(['--participant', path.join(dir, 'p.json'), '--angles', path.join(dir, 'leg.csv'), '--out', out]);
+		const r = await processLeg(out);
 		expect(r.code).toBe(1);
 		expect(r.stderr).toMatch(
 			/leg\.csv:1 \[right\.knee\.flexion\]: error: Column "right\.knee\.flexion" has no unit; choose degrees or radians/
@@ -54,16 +58,7 @@ describe('npm run process --angle-unit', () => {
 
 	it('with --angle-unit deg: moments printed and written; with rad the same cells are radians (45 rad is past the hard limit)', async () => {
 		const out = path.join(dir, 'deg.csv');
-		const r = await cli([
-			'--participant',
-			path.join(dir, 'p.json'),
-			'--angles',
-			path.join(dir, 'leg.csv'),
-			'--out',
-			out,
-			'--angle-unit',
-			'deg'
-		]);
+		const r = await processLeg(out, '--angle-unit', 'deg');
 		expect(r.code, r.stderr).toBe(0);
 		expect(r.stdout).toMatch(/right\.knee\.flexion\s+moment\s+-?\d/);
 		const [head, first] = fs.readFileSync(out, 'utf8').split('\n');
@@ -74,30 +69,12 @@ describe('npm run process --angle-unit', () => {
 		expect(Number(first.split(',')[knee])).toBeCloseTo(45, 0);
 		const moment = cols.indexOf('right.knee.flexion.moment (N·m)');
 		expect(Number.isFinite(Number(first.split(',')[moment]))).toBe(true);
-		const rad = await cli([
-			'--participant',
-			path.join(dir, 'p.json'),
-			'--angles',
-			path.join(dir, 'leg.csv'),
-			'--out',
-			path.join(dir, 'rad.csv'),
-			'--angle-unit',
-			'rad'
-		]);
+		const rad = await processLeg(path.join(dir, 'rad.csv'), '--angle-unit', 'rad');
 		expect(rad.code).toBe(1);
 		expect(rad.stderr).toMatch(
 			/leg\.csv:2 \[right\.knee\.flexion\]: error: Line 2, column 5 \("right\.knee\.flexion"\): "45\.000" \(rad\) is 2578°, beyond the hard limit of ±720°.*\(impossible-value\)/
 		);
-		const bad = await cli([
-			'--participant',
-			path.join(dir, 'p.json'),
-			'--angles',
-			path.join(dir, 'leg.csv'),
-			'--out',
-			out,
-			'--angle-unit',
-			'grad'
-		]);
+		const bad = await processLeg(out, '--angle-unit', 'grad');
 		expect(bad.code).toBe(1);
 		expect(bad.stderr).toMatch(/--angle-unit must be deg or rad \(got "grad"\)/);
 	}, 90_000);
