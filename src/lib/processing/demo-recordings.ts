@@ -1,7 +1,8 @@
 // The demo scenario's two simulated trials (a box lifted to a shelf; a seated knee extension with an ankle weight) as recording specs.
-import type { ParticipantBody } from '../anthropometry/scale';
+import type { ModelInput, Vec3 } from '../dynamics/model';
+import type { Limb, ParticipantBody } from '../anthropometry/scale';
 import type { SegmentTableId } from '../anthropometry/tables';
-import { buildSessionModel } from './session-model';
+import { buildSessionModel, type LoadSetup } from './session-model';
 import type { RecordingSpec, Waypoints } from './simulate-recording';
 
 /** The shape of seeds/demo/participants.json that the demo trials need. */
@@ -39,32 +40,60 @@ const deg = Math.PI / 180;
 /** Waypoints from [time s, angle deg] pairs. */
 const path = (...pts: [number, number][]): Waypoints => pts.map(([t, v]) => ({ t, value: v * deg }));
 
+/** One demo trial: a limb on a fixed base carrying one point mass, placed from the participant's scaled model. */
+interface DemoTrial {
+	name: string;
+	study: string;
+	code: string;
+	limb: Limb;
+	orientation: 'upright' | 'thigh-on-seat';
+	load: { segment: LoadSetup['segment']; massKg: number; label: string; at: (bodies: ModelInput['bodies']) => Vec3 };
+	duration: number;
+	targets: RecordingSpec['targets'];
+}
+
+/** A demo trial as a recording spec: 200 Hz, gravity 9.81 m/s² down, the load's point rounded to 0.1 mm. */
+function demoSpec(file: DemoParticipantsFile, trial: DemoTrial): RecordingSpec {
+	const { body, table } = demoParticipant(file, trial.study, trial.code);
+	const { limb, load } = trial;
+	const limbs = [limb];
+	const bodies = buildSessionModel(body, { table, limbs }).model.bodies;
+	return {
+		name: trial.name,
+		body,
+		setup: {
+			table,
+			limbs,
+			bases: { [limb]: { kind: 'fixed', orientation: trial.orientation } },
+			loads: [
+				{
+					limb,
+					segment: load.segment,
+					massKg: load.massKg,
+					pointM: load.at(bodies).map((v) => Number(v.toFixed(4))) as Vec3,
+					label: load.label
+				}
+			],
+			gravity: [0, -9.81, 0]
+		},
+		sampleHz: 200,
+		duration: trial.duration,
+		targets: trial.targets
+	};
+}
+
+const bodyNamed = (bodies: ModelInput['bodies'], name: string) => bodies.find((b) => b.name === name)!;
+
 /** ALD-001 lifts a 2 kg box from waist height to an overhead shelf and back, right arm, thorax upright. */
 export function shelfReachSpec(file: DemoParticipantsFile): RecordingSpec {
-	const { body, table } = demoParticipant(file, 'SHELF-REACH', 'ALD-001');
-	const limbs = ['right.arm' as const];
-	// the box is held at the hand's centre of mass (grip in the palm)
-	const hand = buildSessionModel(body, { table, limbs }).model.bodies.find((b) => b.name === 'right.hand')!;
-	const setup = {
-		table,
-		limbs,
-		bases: { 'right.arm': { kind: 'fixed' as const, orientation: 'upright' as const } },
-		loads: [
-			{
-				limb: 'right.arm' as const,
-				segment: 'hand' as const,
-				massKg: 2,
-				pointM: hand.com.map((v) => Number(v.toFixed(4))) as [number, number, number],
-				label: 'box'
-			}
-		],
-		gravity: [0, -9.81, 0] as [number, number, number]
-	};
-	return {
+	return demoSpec(file, {
 		name: 'ald-001-shelf-reach',
-		body,
-		setup,
-		sampleHz: 200,
+		study: 'SHELF-REACH',
+		code: 'ALD-001',
+		limb: 'right.arm',
+		orientation: 'upright',
+		// the box is held at the hand's centre of mass (grip in the palm)
+		load: { segment: 'hand', massKg: 2, label: 'box', at: (bodies) => bodyNamed(bodies, 'right.hand').com },
 		duration: 5,
 		targets: {
 			'right.shoulder.flexion': path([0.5, 20], [2.0, 130], [2.8, 130], [4.3, 20]),
@@ -75,36 +104,24 @@ export function shelfReachSpec(file: DemoParticipantsFile): RecordingSpec {
 			'right.wrist.flexion': path([0.5, 0], [2.0, -15], [2.8, -15], [4.3, 0]),
 			'right.wrist.ulnarDeviation': path([0.5, 0], [2.0, 8], [2.8, 8], [4.3, 0])
 		}
-	};
+	});
 }
 
 /** KNE-001, seated with the thigh on the seat, extends the right knee twice against a 1.5 kg ankle weight. */
 export function kneeExtensionSpec(file: DemoParticipantsFile): RecordingSpec {
-	const { body, table } = demoParticipant(file, 'KNEE-60', 'KNE-001');
-	const limbs = ['right.leg' as const];
-	// the cuff sits 5 cm above the ankle joint centre (the ankle link's anchor, at the shank's distal end)
-	const ankle = buildSessionModel(body, { table, limbs }).model.bodies.find((b) => b.name === 'right.ankle.dorsiflexion')!;
-	const shankLength = -ankle.anchor[1];
-	const setup = {
-		table,
-		limbs,
-		bases: { 'right.leg': { kind: 'fixed' as const, orientation: 'thigh-on-seat' as const } },
-		loads: [
-			{
-				limb: 'right.leg' as const,
-				segment: 'shank' as const,
-				massKg: 1.5,
-				pointM: [0, -Number((shankLength - 0.05).toFixed(4)), 0] as [number, number, number],
-				label: 'ankle weight'
-			}
-		],
-		gravity: [0, -9.81, 0] as [number, number, number]
-	};
-	return {
+	return demoSpec(file, {
 		name: 'kne-001-seated-knee-extension',
-		body,
-		setup,
-		sampleHz: 200,
+		study: 'KNEE-60',
+		code: 'KNE-001',
+		limb: 'right.leg',
+		orientation: 'thigh-on-seat',
+		// the cuff sits 5 cm above the ankle joint centre (the ankle link's anchor, at the shank's distal end)
+		load: {
+			segment: 'shank',
+			massKg: 1.5,
+			label: 'ankle weight',
+			at: (bodies) => [0, bodyNamed(bodies, 'right.ankle.dorsiflexion').anchor[1] + 0.05, 0]
+		},
 		duration: 9.5,
 		targets: {
 			'right.hip.flexion': path([0.5, 0], [2.0, 4], [3.0, 4], [4.5, 0], [5.0, 0], [6.5, 4], [7.5, 4], [9.0, 0]),
@@ -112,5 +129,5 @@ export function kneeExtensionSpec(file: DemoParticipantsFile): RecordingSpec {
 			'right.ankle.dorsiflexion': path([0.5, 0], [2.0, -15], [3.0, -15], [4.5, 0], [5.0, 0], [6.5, -12], [7.5, -12], [9.0, 0]),
 			'right.ankle.inversion': path([0.5, 0], [2.0, 5], [3.0, 5], [4.5, 0])
 		}
-	};
+	});
 }
