@@ -39,68 +39,45 @@ export function skewInertia(a: number, b: number, c: number, axis: Vec3, angle: 
 	return [0, 1, 2].map((i) => [0, 1, 2].map((j) => R[0][i] * D[0] * R[0][j] + R[1][i] * D[1] * R[1][j] + R[2][i] * D[2] * R[2][j])) as Mat3;
 }
 
+type ChainRow = [
+	name: string,
+	parent: number,
+	joint: BodyInput['joint']['type'],
+	axis: Vec3,
+	anchor: Vec3,
+	mass: number,
+	com: Vec3,
+	/** skewInertia's principal moments, axis and angle */
+	inertia: [a: number, b: number, c: number, axis: Vec3, angle: number]
+];
+
+const CHAIN: ChainRow[] = [
+	['b0', -1, 'revolute', [0.2, 0.9, 0.1], [0.05, 0.1, -0.02], 3.2, [0.02, -0.15, 0.03], [0.03, 0.035, 0.012, [1, 2, 3], 0.7]],
+	['b1', 0, 'revolute', [1, 0.3, -0.2], [0.01, -0.3, 0.02], 2.1, [0.01, -0.12, 0.04], [0.02, 0.022, 0.006, [2, -1, 1], 1.1]],
+	['b2', 1, 'prismatic', [0.1, -1, 0.2], [0.02, -0.25, 0], 1.4, [0.03, -0.05, 0.01], [0.004, 0.005, 0.002, [0, 1, 1], 0.3]],
+	['b3', 2, 'revolute', [0.3, 0.1, 1], [0, -0.1, 0.03], 0.8, [0.06, -0.02, 0.01], [0.001, 0.0015, 0.0012, [1, 1, 0], 0.9]],
+	['b4', 1, 'revolute', [-0.4, 0.2, 1], [-0.05, -0.1, 0.06], 1.9, [-0.08, -0.1, 0.02], [0.01, 0.012, 0.004, [1, -2, 0.5], 0.5]],
+	['b5', 4, 'revolute', [0, 1, 0.3], [-0.2, -0.15, 0], 0.6, [-0.04, -0.05, 0.02], [0.0008, 0.0009, 0.0003, [0.2, 0.3, 1], 1.3]]
+];
+/** The bodies with a fixed rotation in their parent: axisAngle's axis and angle. */
+const CHAIN_ROTATIONS: Record<string, [axis: Vec3, angle: number]> = { b1: [[0.3, -1, 0.5], 0.4], b4: [[1, 0.2, 0.1], -0.6] };
+
 /** A 3-D chain of six bodies with one branch, skew axes, offset COMs, full inertias, one prismatic joint. */
 export function branchedChain(): ModelInput {
 	return {
 		name: 'test chain',
-		bodies: [
+		bodies: CHAIN.map(([name, parent, type, axis, anchor, mass, com, [a, b, c, inertiaAxis, inertiaAngle]]) =>
 			body({
-				name: 'b0',
-				parent: -1,
-				joint: { type: 'revolute', axis: [0.2, 0.9, 0.1] },
-				anchor: [0.05, 0.1, -0.02],
-				mass: 3.2,
-				com: [0.02, -0.15, 0.03],
-				inertia: skewInertia(0.03, 0.035, 0.012, [1, 2, 3], 0.7)
-			}),
-			body({
-				name: 'b1',
-				parent: 0,
-				joint: { type: 'revolute', axis: [1, 0.3, -0.2] },
-				anchor: [0.01, -0.3, 0.02],
-				rotation: axisAngle([0.3, -1, 0.5], 0.4),
-				mass: 2.1,
-				com: [0.01, -0.12, 0.04],
-				inertia: skewInertia(0.02, 0.022, 0.006, [2, -1, 1], 1.1)
-			}),
-			body({
-				name: 'b2',
-				parent: 1,
-				joint: { type: 'prismatic', axis: [0.1, -1, 0.2] },
-				anchor: [0.02, -0.25, 0],
-				mass: 1.4,
-				com: [0.03, -0.05, 0.01],
-				inertia: skewInertia(0.004, 0.005, 0.002, [0, 1, 1], 0.3)
-			}),
-			body({
-				name: 'b3',
-				parent: 2,
-				joint: { type: 'revolute', axis: [0.3, 0.1, 1] },
-				anchor: [0, -0.1, 0.03],
-				mass: 0.8,
-				com: [0.06, -0.02, 0.01],
-				inertia: skewInertia(0.001, 0.0015, 0.0012, [1, 1, 0], 0.9)
-			}),
-			body({
-				name: 'b4',
-				parent: 1,
-				joint: { type: 'revolute', axis: [-0.4, 0.2, 1] },
-				anchor: [-0.05, -0.1, 0.06],
-				rotation: axisAngle([1, 0.2, 0.1], -0.6),
-				mass: 1.9,
-				com: [-0.08, -0.1, 0.02],
-				inertia: skewInertia(0.01, 0.012, 0.004, [1, -2, 0.5], 0.5)
-			}),
-			body({
-				name: 'b5',
-				parent: 4,
-				joint: { type: 'revolute', axis: [0, 1, 0.3] },
-				anchor: [-0.2, -0.15, 0],
-				mass: 0.6,
-				com: [-0.04, -0.05, 0.02],
-				inertia: skewInertia(0.0008, 0.0009, 0.0003, [0.2, 0.3, 1], 1.3)
+				name,
+				parent,
+				joint: { type, axis },
+				anchor,
+				...(CHAIN_ROTATIONS[name] && { rotation: axisAngle(...CHAIN_ROTATIONS[name]) }),
+				mass,
+				com,
+				inertia: skewInertia(a, b, c, inertiaAxis, inertiaAngle)
 			})
-		]
+		)
 	};
 }
 
