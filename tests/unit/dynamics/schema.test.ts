@@ -1,6 +1,6 @@
 // The model schema rejects every malformed model with a message naming the body and the field.
 import { describe, expect, it } from 'vitest';
-import { compileModel, modelProblems, ModelError, type ModelInput } from '../../../src/lib/dynamics';
+import { compileModel, modelProblems, ModelError, type Mat3, type ModelInput } from '../../../src/lib/dynamics';
 import { body, diag, branchedChain } from './fixtures';
 
 const base = (): ModelInput => ({
@@ -11,6 +11,7 @@ function problemsWith(edit: (m: ModelInput) => void): string[] {
 	edit(m);
 	return modelProblems(m);
 }
+const problemsWithLowerInertia = (inertia: Mat3) => problemsWith((m) => (m.bodies[1].inertia = inertia));
 
 describe('model schema', () => {
 	it('accepts a valid model', () => {
@@ -40,32 +41,26 @@ describe('model schema', () => {
 	});
 
 	it('rejects an asymmetric inertia tensor', () => {
-		const p = problemsWith(
-			(m) =>
-				(m.bodies[1].inertia = [
-					[0.02, 0.001, 0],
-					[0, 0.02, 0],
-					[0, 0, 0.02]
-				])
-		);
+		const p = problemsWithLowerInertia([
+			[0.02, 0.001, 0],
+			[0, 0.02, 0],
+			[0, 0, 0.02]
+		]);
 		expect(p).toEqual(['body 1 "lower": inertia: must be symmetric (largest difference between I[r][c] and I[c][r] is 0.00100 kg·m²)']);
 	});
 
 	it('rejects an inertia tensor that is not positive semi-definite', () => {
-		const p = problemsWith(
-			(m) =>
-				(m.bodies[1].inertia = [
-					[0.01, 0.02, 0],
-					[0.02, 0.01, 0],
-					[0, 0, 0.01]
-				])
-		);
+		const p = problemsWithLowerInertia([
+			[0.01, 0.02, 0],
+			[0.02, 0.01, 0],
+			[0, 0, 0.01]
+		]);
 		expect(p).toHaveLength(1);
 		expect(p[0]).toMatch(/^body 1 "lower": inertia: must be positive semi-definite \(smallest principal moment -0\.01000 kg·m²\)$/);
 	});
 
 	it('rejects principal moments that break the triangle inequality', () => {
-		const p = problemsWith((m) => (m.bodies[1].inertia = diag(0.01, 0.01, 0.05)));
+		const p = problemsWithLowerInertia(diag(0.01, 0.01, 0.05));
 		expect(p).toEqual([
 			'body 1 "lower": inertia: principal moments 0.01000, 0.01000, 0.05000 kg·m² break the triangle inequality (the largest must not exceed the sum of the other two)'
 		]);
