@@ -26,28 +26,24 @@ import { describe, expect, it } from 'vitest';
 import participants from '../../../seeds/demo/participants.json';
 import type { DemoParticipantsFile } from '../../../src/lib/processing/demo-recordings';
 import { momentErrors, movingArmSpec, movingLegSpec, withNoise } from '../../../src/lib/processing/edge-trials';
-import { recordingCsv, simulateRecording, type SimulatedRecording } from '../../../src/lib/processing/simulate-recording';
-import { parseRecording } from '../../../src/lib/processing/recording';
+import type { SimulatedRecording } from '../../../src/lib/processing/simulate-recording';
 import { runPipeline, type RunOptionsInput } from '../../../src/lib/processing/pipeline';
-import { inverseDynamicsBatch } from '../../../src/lib/dynamics';
+import { itClosesTheLoop, readBack, simulatedTrial } from './simulated-trial';
 
 const file = participants as unknown as DemoParticipantsFile;
 const NOISE_DEG = 0.15;
 const SEEDS = [1, 2, 3, 4, 5];
 
 async function run(sim: SimulatedRecording, options: RunOptionsInput) {
-	const parsed = await parseRecording(recordingCsv(sim), { fileName: `${sim.spec.name}.csv`, expected: sim.built.expected });
-	if (!parsed.ok) throw new Error(JSON.stringify(parsed.problems));
-	return runPipeline(sim.built, parsed.recording, options);
+	return runPipeline(sim.built, await readBack(sim), options);
 }
 
 describe.each([
 	['leg swinging from an upright pelvis (KNE-001)', movingLegSpec(file)],
 	['arm moving a 2 kg box (ALD-001)', movingArmSpec(file)]
 ])('%s, moving at both ends', (_label, spec) => {
-	const sim = simulateRecording(spec);
-	const n = sim.model.n,
-		F = sim.time.length;
+	const trial = simulatedTrial(spec);
+	const { sim, n, F } = trial;
 
 	it('is a 4 s, 200 Hz trial in motion at its first and last samples', () => {
 		expect(F).toBe(801);
@@ -63,13 +59,7 @@ describe.each([
 		}
 	});
 
-	it('the simulation is consistent: inverse dynamics of the simulated q, q̇, q̈ returns the driving Q', () => {
-		const Q = new Float64Array(F * n);
-		inverseDynamicsBatch(sim.model, F, sim.q, sim.qd, sim.qdd, { Q }, { gravity: sim.built.setup.gravity as [number, number, number] });
-		let peak = 0;
-		for (let i = 0; i < F * n; i++) peak = Math.max(peak, Math.abs(sim.Q[i]));
-		for (let i = 0; i < F * n; i++) expect(Math.abs(Q[i] - sim.Q[i])).toBeLessThan(1e-9 * peak);
-	});
+	itClosesTheLoop(trial);
 
 	it('noise-free, default options: the whole trial within 2 × the middle’s error; outside the edge zone the middle’s', async () => {
 		const r = await run(sim, {});

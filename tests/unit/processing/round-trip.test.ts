@@ -14,10 +14,9 @@
 import { describe, expect, it } from 'vitest';
 import participants from '../../../seeds/demo/participants.json';
 import { kneeExtensionSpec, shelfReachSpec, type DemoParticipantsFile } from '../../../src/lib/processing/demo-recordings';
-import { recordingCsv, simulateRecording, torquesCsv } from '../../../src/lib/processing/simulate-recording';
-import { parseRecording } from '../../../src/lib/processing/recording';
+import { torquesCsv } from '../../../src/lib/processing/simulate-recording';
 import { runPipeline } from '../../../src/lib/processing/pipeline';
-import { inverseDynamicsBatch } from '../../../src/lib/dynamics';
+import { itClosesTheLoop, readBack, simulatedTrial } from './simulated-trial';
 
 const file = participants as unknown as DemoParticipantsFile;
 
@@ -25,27 +24,18 @@ describe.each([
 	['arm reach with a box (ALD-001)', shelfReachSpec(file)],
 	['seated knee extension with an ankle weight (KNE-001)', kneeExtensionSpec(file)]
 ])('%s', (_label, spec) => {
-	const sim = simulateRecording(spec);
-	const n = sim.model.n,
-		F = sim.time.length;
-	let peak = 0;
-	for (let i = 0; i < F * n; i++) peak = Math.max(peak, Math.abs(sim.Q[i]));
+	const trial = simulatedTrial(spec);
+	const { sim, n, F, peak } = trial;
 
-	it('the simulation is consistent: inverse dynamics of the simulated q, q̇, q̈ returns the driving Q', () => {
-		const Q = new Float64Array(F * n);
-		inverseDynamicsBatch(sim.model, F, sim.q, sim.qd, sim.qdd, { Q }, { gravity: sim.built.setup.gravity as [number, number, number] });
-		for (let i = 0; i < F * n; i++) expect(Math.abs(Q[i] - sim.Q[i])).toBeLessThan(1e-9 * peak);
-	});
+	itClosesTheLoop(trial);
 
 	it.each([
 		[null, 0.0025],
 		[20, 0.006]
 	] as const)('cutoff %s Hz: moments equal the known torques within the stated share of the peak', async (cutoffHz, share) => {
-		const csv = recordingCsv(sim);
-		const parsed = await parseRecording(csv, { fileName: `${spec.name}.csv`, expected: sim.built.expected });
-		if (!parsed.ok) throw new Error(JSON.stringify(parsed.problems));
-		expect(parsed.recording.sampleHz).toBeCloseTo(200, 9);
-		const r = runPipeline(sim.built, parsed.recording, { cutoffHz });
+		const recording = await readBack(sim);
+		expect(recording.sampleHz).toBeCloseTo(200, 9);
+		const r = runPipeline(sim.built, recording, { cutoffHz });
 		expect(r.dofs.map((d) => d.name)).toEqual(sim.built.dofs.map((d) => d.name));
 		let worst = 0;
 		r.dofs.forEach((d, j) => {
