@@ -16,12 +16,6 @@ export const SIDES = ['right', 'left'] as const;
 export type Side = (typeof SIDES)[number];
 export const LIMBS = ['right.arm', 'left.arm', 'right.leg', 'left.leg'] as const;
 export type Limb = (typeof LIMBS)[number];
-/**
- * The limb trees. Each segment hangs from the joint centre that MODEL_ENDPOINTS (endpoints.ts) names as its proximal
- * endpoint and places the next joint centre (its distal endpoint) one segment length further on; the table loader
- * refuses rows measured between other endpoints unless the table file states why they may stand for these.
- */
-const LIMB_SEGMENTS: Record<'arm' | 'leg', SegmentName[]> = { arm: ['upperarm', 'forearm', 'hand'], leg: ['thigh', 'shank', 'foot'] };
 export const LENGTH_KEYS = SIDES.flatMap((s) =>
 	(['upperarm', 'forearm', 'hand', 'thigh', 'shank', 'foot'] as const).map((g) => `${s}.${g}` as const)
 );
@@ -245,6 +239,119 @@ const X: Vec3 = [1, 0, 0],
 const neg = (v: Vec3): Vec3 => [-v[0], -v[1], -v[2]];
 
 /**
+ * One joint of a limb, proximal to distal: its DOF, the axis on the right side (`mirrored` axes are negated on the left, so
+ * that positive is the same anatomical motion on both sides), and the sign rule. A joint with a `segment` moves that massive
+ * segment (along −Y, or +X for the foot); the others move massless links of a multi-DOF joint.
+ */
+interface LimbJoint {
+	joint: DofInfo['joint'];
+	motion: string;
+	axis: Vec3;
+	mirrored?: boolean;
+	segment?: SegmentName;
+	along?: 'forward';
+	positive: string;
+}
+
+/**
+ * The limb trees, rooted at the hip or shoulder joint centre (heights and widths from stature proportions). Each segment
+ * hangs from the joint centre that MODEL_ENDPOINTS (endpoints.ts) names as its proximal endpoint and places the next joint
+ * centre (its distal endpoint) one segment length further on; the table loader refuses rows measured between other
+ * endpoints unless the table file states why they may stand for these.
+ */
+const LIMB_CHAINS: Record<'arm' | 'leg', { height: string; width: string; joints: LimbJoint[] }> = {
+	leg: {
+		height: 'hipHeight',
+		width: 'hipWidth',
+		joints: [
+			{ joint: 'hip', motion: 'flexion', axis: Z, positive: 'flexion: thigh forward, about the pelvis’ medio-lateral axis' },
+			{
+				joint: 'hip',
+				motion: 'adduction',
+				axis: X,
+				mirrored: true,
+				positive: 'adduction: thigh toward the midline, about the floating antero-posterior axis'
+			},
+			{
+				joint: 'hip',
+				motion: 'internalRotation',
+				axis: Y,
+				mirrored: true,
+				segment: 'thigh',
+				positive: 'internal rotation: front of the thigh turns toward the midline, about its long axis'
+			},
+			{
+				joint: 'knee',
+				motion: 'flexion',
+				axis: neg(Z),
+				segment: 'shank',
+				positive: 'flexion: shank backward, about the thigh’s medio-lateral axis'
+			},
+			{ joint: 'ankle', motion: 'dorsiflexion', axis: Z, positive: 'dorsiflexion: toes up, about the shank’s medio-lateral axis' },
+			{
+				joint: 'ankle',
+				motion: 'inversion',
+				axis: X,
+				mirrored: true,
+				segment: 'foot',
+				along: 'forward',
+				positive: 'inversion: sole turns toward the midline, about the foot’s long axis'
+			}
+		]
+	},
+	arm: {
+		height: 'shoulderHeight',
+		width: 'shoulderWidth',
+		joints: [
+			{ joint: 'shoulder', motion: 'flexion', axis: Z, positive: 'flexion: arm forward, about the thorax’s medio-lateral axis' },
+			{
+				joint: 'shoulder',
+				motion: 'abduction',
+				axis: neg(X),
+				mirrored: true,
+				positive: 'abduction: arm away from the midline, about the floating antero-posterior axis'
+			},
+			{
+				joint: 'shoulder',
+				motion: 'internalRotation',
+				axis: Y,
+				mirrored: true,
+				segment: 'upperarm',
+				positive: 'internal rotation: front of the arm turns toward the midline, about its long axis'
+			},
+			{
+				joint: 'elbow',
+				motion: 'flexion',
+				axis: Z,
+				positive: 'flexion: forearm forward and up, about the upper arm’s medio-lateral axis'
+			},
+			{
+				joint: 'forearm',
+				motion: 'pronation',
+				axis: Y,
+				mirrored: true,
+				segment: 'forearm',
+				positive: 'pronation: palm turns from front to back, about the forearm’s long axis'
+			},
+			{
+				joint: 'wrist',
+				motion: 'flexion',
+				axis: Z,
+				positive: 'flexion: palm toward the front of the forearm, about the medio-lateral axis'
+			},
+			{
+				joint: 'wrist',
+				motion: 'ulnarDeviation',
+				axis: X,
+				mirrored: true,
+				segment: 'hand',
+				positive: 'ulnar deviation: hand toward the little-finger side, about the antero-posterior axis'
+			}
+		]
+	}
+};
+
+/**
  * Scales the chosen limbs. Frames follow ISB (X anterior, Y superior, Z right) in the anatomical posture at
  * q = 0 (limbs hanging, feet flat); each limb's root is fixed to the ground at its proximal joint centre.
  */
@@ -358,74 +465,19 @@ export function scaleLimbs(input: ParticipantBody, tableId: SegmentTableId, limb
 
 	for (const limb of limbs) {
 		const [side, kind] = limb.split('.') as [Side, 'arm' | 'leg'];
+		const chain = LIMB_CHAINS[kind];
 		const lateral = side === 'right' ? 1 : -1;
-		// Axes whose positive rotation is the same anatomical motion on both sides are mirrored for the left.
-		const mirror = (v: Vec3) => (side === 'right' ? v : neg(v));
-		const [s1, s2, s3] = LIMB_SEGMENTS[kind].map((g) => segmentFor(side, g));
-		const dof = (joint: DofInfo['joint'], motion: string, positive: string): DofInfo => ({
-			name: `${side}.${joint}.${motion}`,
-			side,
-			joint,
-			motion,
-			unit: 'rad',
-			positive
-		});
-		if (kind === 'leg') {
-			const root: Vec3 = [0, dr.hipHeight.fraction.value * H, (lateral * dr.hipWidth.fraction.value * H) / 2];
-			const h1 = add(
-				link(`${side}.hip.flexion`, -1, Z, root),
-				dof('hip', 'flexion', 'flexion: thigh forward, about the pelvis’ medio-lateral axis')
-			);
-			const h2 = add(
-				link(`${side}.hip.adduction`, h1, mirror(X), [0, 0, 0]),
-				dof('hip', 'adduction', 'adduction: thigh toward the midline, about the floating antero-posterior axis')
-			);
-			const thigh = add(
-				massive(`${side}.thigh`, h2, mirror(Y), [0, 0, 0], s1, 'down'),
-				dof('hip', 'internalRotation', 'internal rotation: front of the thigh turns toward the midline, about its long axis')
-			);
-			const shank = add(
-				massive(`${side}.shank`, thigh, neg(Z), [0, -s1.length.value, 0], s2, 'down'),
-				dof('knee', 'flexion', 'flexion: shank backward, about the thigh’s medio-lateral axis')
-			);
-			const a1 = add(
-				link(`${side}.ankle.dorsiflexion`, shank, Z, [0, -s2.length.value, 0]),
-				dof('ankle', 'dorsiflexion', 'dorsiflexion: toes up, about the shank’s medio-lateral axis')
-			);
-			add(
-				massive(`${side}.foot`, a1, mirror(X), [0, 0, 0], s3, 'forward'),
-				dof('ankle', 'inversion', 'inversion: sole turns toward the midline, about the foot’s long axis')
-			);
-		} else {
-			const root: Vec3 = [0, dr.shoulderHeight.fraction.value * H, (lateral * dr.shoulderWidth.fraction.value * H) / 2];
-			const sh1 = add(
-				link(`${side}.shoulder.flexion`, -1, Z, root),
-				dof('shoulder', 'flexion', 'flexion: arm forward, about the thorax’s medio-lateral axis')
-			);
-			const sh2 = add(
-				link(`${side}.shoulder.abduction`, sh1, mirror(neg(X)), [0, 0, 0]),
-				dof('shoulder', 'abduction', 'abduction: arm away from the midline, about the floating antero-posterior axis')
-			);
-			const upper = add(
-				massive(`${side}.upperarm`, sh2, mirror(Y), [0, 0, 0], s1, 'down'),
-				dof('shoulder', 'internalRotation', 'internal rotation: front of the arm turns toward the midline, about its long axis')
-			);
-			const e1 = add(
-				link(`${side}.elbow.flexion`, upper, Z, [0, -s1.length.value, 0]),
-				dof('elbow', 'flexion', 'flexion: forearm forward and up, about the upper arm’s medio-lateral axis')
-			);
-			const fore = add(
-				massive(`${side}.forearm`, e1, mirror(Y), [0, 0, 0], s2, 'down'),
-				dof('forearm', 'pronation', 'pronation: palm turns from front to back, about the forearm’s long axis')
-			);
-			const w1 = add(
-				link(`${side}.wrist.flexion`, fore, Z, [0, -s2.length.value, 0]),
-				dof('wrist', 'flexion', 'flexion: palm toward the front of the forearm, about the medio-lateral axis')
-			);
-			add(
-				massive(`${side}.hand`, w1, mirror(X), [0, 0, 0], s3, 'down'),
-				dof('wrist', 'ulnarDeviation', 'ulnar deviation: hand toward the little-finger side, about the antero-posterior axis')
-			);
+		const scaled = new Map(chain.joints.flatMap((j) => (j.segment ? [[j.segment, segmentFor(side, j.segment)] as const] : [])));
+		let parent = -1;
+		let anchor: Vec3 = [0, dr[chain.height].fraction.value * H, (lateral * dr[chain.width].fraction.value * H) / 2];
+		for (const j of chain.joints) {
+			const axis = j.mirrored && side === 'left' ? neg(j.axis) : j.axis;
+			const seg = j.segment && scaled.get(j.segment);
+			const name = `${side}.${j.joint}.${j.motion}`;
+			const body = seg ? massive(`${side}.${j.segment}`, parent, axis, anchor, seg, j.along ?? 'down') : link(name, parent, axis, anchor);
+			parent = add(body, { name, side, joint: j.joint, motion: j.motion, unit: 'rad', positive: j.positive });
+			// the next joint sits at this segment's distal end, or (after a link) at the same point
+			anchor = seg ? [0, -seg.length.value, 0] : [0, 0, 0];
 		}
 	}
 	if (tableId === 'dempster-winter-2009') {
