@@ -23,6 +23,8 @@ const sexParams = z.object({
 });
 
 const citation = z.string().min(20, 'needs the full citation');
+/** The fields every table file opens with; `kind` tells the three layouts apart. */
+const tableHeader = <K extends string>(kind: K) => ({ id: z.string().min(1), kind: z.literal(kind), title: z.string().min(1), citation });
 
 const landmark = z.enum(LANDMARK_NAMES, {
 	error: (i) => `unknown landmark ${JSON.stringify(i.input)}: name one of those listed in src/lib/anthropometry/endpoints.ts`
@@ -49,10 +51,7 @@ const fractionsSegment = fractionsRow.extend({
 });
 
 export const fractionsTableSchema = z.object({
-	id: z.string().min(1),
-	kind: z.literal('segment-fractions'),
-	title: z.string().min(1),
-	citation,
+	...tableHeader('segment-fractions'),
 	population: z.string().min(1),
 	/** How the recalled values were checked. */
 	verification: z.string().min(20).optional(),
@@ -67,10 +66,7 @@ export const fractionsTableSchema = z.object({
 });
 
 export const statureTableSchema = z.object({
-	id: z.string().min(1),
-	kind: z.literal('stature-fractions'),
-	title: z.string().min(1),
-	citation,
+	...tableHeader('stature-fractions'),
 	columns: z.record(z.string(), z.string().min(1)),
 	/** Segment lengths (keyed by segment, with endpoints) and other body dimensions (keyed by name). */
 	lengths: z.record(
@@ -87,10 +83,7 @@ export const statureTableSchema = z.object({
 });
 
 export const regressionTableSchema = z.object({
-	id: z.string().min(1),
-	kind: z.literal('mass-regression'),
-	title: z.string().min(1),
-	citation,
+	...tableHeader('mass-regression'),
 	population: z.string().min(1),
 	referenceSubject: z.object({ bodyMass: sourced(positive), stature: sourced(positive) }),
 	sexes: z.array(z.enum(['female', 'male'])).min(1),
