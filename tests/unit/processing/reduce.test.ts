@@ -3,21 +3,12 @@
 import { describe, expect, it } from 'vitest';
 import { LTTB, LTTBIndexesForBuckets } from 'downsample/methods/LTTB.js';
 import { reduceForPlot, type ReducedSeries } from '../../../src/lib/processing/reduce';
-
-/** Small seeded generator (mulberry32) so the noisy signals are the same on every run. */
-function seeded(seed: number): () => number {
-	let a = seed >>> 0;
-	return () => {
-		a = (a + 0x6d2b79f5) >>> 0;
-		let x = Math.imul(a ^ (a >>> 15), 1 | a);
-		x = (x + Math.imul(x ^ (x >>> 7), 61 | x)) ^ x;
-		return ((x ^ (x >>> 14)) >>> 0) / 4294967296;
-	};
-}
+// seeded (mulberry32) so the noisy signals are the same on every run
+import { seededUniform } from '../../../src/lib/processing/edges';
 
 /** A slow sine plus noise plus rare large spikes (both signs), sampled at 1 kHz. */
 function noisySignal(n: number, seed: number): { time: Float64Array; values: Float64Array } {
-	const rnd = seeded(seed);
+	const rnd = seededUniform(seed);
 	const time = new Float64Array(n);
 	const values = new Float64Array(n);
 	for (let i = 0; i < n; i++) {
@@ -195,14 +186,7 @@ describe('LTTB (downsample package) on a tiny example', () => {
 	//    P = (3,2): |(−3)(−1) − (−1)(−2)| / 2 = |1| / 2 = 0.5
 	//    P = (4,0): |(−3)(−3) − (−2)(−2)| / 2 = |5| / 2 = 2.5   → picks (4,0), index 4
 	//  First and last points are always kept → indices [0, 2, 4, 5].
-	const pts: [number, number][] = [
-		[0, 0],
-		[1, 1],
-		[2, 3],
-		[3, 2],
-		[4, 0],
-		[5, 1]
-	];
+	const pts = [0, 1, 3, 2, 0, 1].map((y, x): [number, number] => [x, y]);
 
 	it('picks the largest triangle in each bucket (hand-computed)', () => {
 		expect(LTTBIndexesForBuckets([[pts[0]], [pts[1], pts[2]], [pts[3], pts[4]], [pts[5]]])).toEqual([0, 2, 4, 5]);
