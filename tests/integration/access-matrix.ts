@@ -18,7 +18,10 @@ export interface MatrixEntry {
 	expect: Record<Persona, number>;
 }
 
-const everyone = (status: number): Record<Persona, number> => ({
+type Expect = Record<Persona, number>;
+type Params = Record<string, ParamRef>;
+
+const everyone = (status: number): Expect => ({
 	anonymous: status,
 	admin: status,
 	piA: status,
@@ -26,582 +29,206 @@ const everyone = (status: number): Record<Persona, number> => ({
 	technicianA: status,
 	memberB: status
 });
-const signedIn = (status: number, anonymous = 303): Record<Persona, number> => ({ ...everyone(status), anonymous });
+const signedIn = (status: number, anonymous = 303): Expect => ({ ...everyone(status), anonymous });
+/** Lab administrators only: the others signed in get 403. */
+const adminOnly = (status: number): Expect => ({ ...signedIn(403), admin: status });
+/** The answer of the JSON API to someone signed out (pages send them to sign in with 303). */
+const API = 401;
+/**
+ * A page of study A: its PI, researcher and technician get the given statuses; administrators (who hold no role)
+ * and study B's member get 404.
+ */
+const teamA = (pi: number, researcher: number, technician: number, anonymous = 303): Expect => ({
+	anonymous,
+	admin: 404,
+	piA: pi,
+	researcherA: researcher,
+	technicianA: technician,
+	memberB: 404
+});
+/** A page of study B: its member and piA (on both teams) get `status`, everyone else signed in 404. */
+const teamB = (status: number): Expect => ({ ...signedIn(404), piA: status, memberB: status });
+/** A record of study A asked for under study B's URL: it does not exist there, even for someone on both teams. */
+const notThere = (anonymous = 303): Expect => signedIn(404, anonymous);
+
+/** A page or GET endpoint. */
+const get = (route: string, expect: Expect, params?: Params): MatrixEntry => ({ route, method: 'GET', params, expect });
+/** A POST to an endpoint (+server.ts). */
+const post = (route: string, expect: Expect, params?: Params, form?: Record<string, string>): MatrixEntry => ({
+	route,
+	method: 'POST',
+	params,
+	form,
+	expect
+});
+/** A form action ("default" for an unnamed one). */
+const act = (route: string, action: string, expect: Expect, params?: Params, form?: Record<string, string>): MatrixEntry => ({
+	...post(route, expect, params, form),
+	action
+});
+
+export const studyA: Params = { id: 'studyA' };
+const studyB: Params = { id: 'studyB' };
+const participantA: Params = { ...studyA, pid: 'participantA' };
+export const sessionA: Params = { ...studyA, sid: 'sessionA' };
+export const trialA: Params = { ...studyA, tid: 'trialA' };
+export const runA: Params = { ...studyA, rid: 'runA' };
+/** Study A's records under study B's URL. */
+const participantInB: Params = { ...participantA, ...studyB };
+const sessionInB: Params = { ...sessionA, ...studyB };
+const trialInB: Params = { ...trialA, ...studyB };
+const runInB: Params = { ...runA, ...studyB };
+/** A study's id where a person or a single-use token is wanted: it stands for no such thing. */
+const noPerson: Params = { id: 'studyA' };
+const noToken: Params = { token: 'studyA' };
+const invalidResearchFields = { sex: 'female', bodyMassKg: '5', statureM: '1.7' };
 
 export const MATRIX: MatrixEntry[] = [
-	{ route: '/', method: 'GET', expect: everyone(200) },
-	{ route: '/status', method: 'GET', expect: everyone(200) },
-	{ route: '/research-use', method: 'GET', expect: everyone(200) },
-	{ route: '/api/health', method: 'GET', expect: everyone(200) },
+	get('/', everyone(200)),
+	get('/status', everyone(200)),
+	get('/research-use', everyone(200)),
+	get('/api/health', everyone(200)),
 	// signed-in people are sent on from the sign-in page
-	{ route: '/signin', method: 'GET', expect: { ...signedIn(303), anonymous: 200 } },
+	get('/signin', signedIn(303, 200)),
 	// an empty form is refused before anything is looked up (signed-in people are sent on by the page load)
-	{ route: '/signin', method: 'POST', action: 'link', expect: { ...signedIn(303), anonymous: 400 } },
-	{ route: '/signin', method: 'POST', action: 'password', expect: { ...signedIn(303), anonymous: 400 } },
-	{ route: '/signin/check-email', method: 'GET', expect: everyone(200) },
-	{ route: '/signout', method: 'GET', expect: everyone(303) },
+	act('/signin', 'link', signedIn(303, 400)),
+	act('/signin', 'password', signedIn(303, 400)),
+	get('/signin/check-email', everyone(200)),
+	get('/signout', everyone(303)),
 	// POST /signout is exercised by its own tests (it ends the persona's session)
 
 	// studies: the list shows one's own studies (administrators: all); a study page is for its team only.
 	// Administrators who hold no role get 404 like any non-member (decision in src/lib/server/studies/studies.ts, readStudy).
-	{ route: '/studies', method: 'GET', expect: signedIn(200) },
-	{
-		route: '/studies/[id]',
-		method: 'GET',
-		params: { id: 'studyA' },
-		expect: { anonymous: 303, admin: 404, piA: 200, researcherA: 200, technicianA: 200, memberB: 404 }
-	},
-	{
-		route: '/studies/[id]',
-		method: 'GET',
-		params: { id: 'studyB' },
-		expect: { anonymous: 303, admin: 404, piA: 200, researcherA: 404, technicianA: 404, memberB: 200 }
-	},
+	get('/studies', signedIn(200)),
+	get('/studies/[id]', teamA(200, 200, 200), studyA),
+	get('/studies/[id]', teamB(200), studyB),
 	// a study's settings: its PI only (others on the team 403, everyone else 404); an invalid form is refused with 400
-	{
-		route: '/studies/[id]/settings',
-		method: 'GET',
-		params: { id: 'studyA' },
-		expect: { anonymous: 303, admin: 404, piA: 200, researcherA: 403, technicianA: 403, memberB: 404 }
-	},
-	{
-		route: '/studies/[id]/settings',
-		method: 'POST',
-		action: 'default',
-		params: { id: 'studyA' },
-		form: { defaultTable: 'none' },
-		expect: { anonymous: 303, admin: 404, piA: 400, researcherA: 403, technicianA: 403, memberB: 404 }
-	},
+	get('/studies/[id]/settings', teamA(200, 403, 403), studyA),
+	act('/studies/[id]/settings', 'default', teamA(400, 403, 403), studyA, { defaultTable: 'none' }),
 	// consent form versions: the team reads them, the PI publishes (an empty form is refused with 400)
-	{
-		route: '/studies/[id]/consent-forms',
-		method: 'GET',
-		params: { id: 'studyA' },
-		expect: { anonymous: 303, admin: 404, piA: 200, researcherA: 200, technicianA: 200, memberB: 404 }
-	},
-	{
-		route: '/studies/[id]/consent-forms',
-		method: 'POST',
-		action: 'publish',
-		params: { id: 'studyA' },
-		expect: { anonymous: 303, admin: 404, piA: 400, researcherA: 403, technicianA: 403, memberB: 404 }
-	},
+	get('/studies/[id]/consent-forms', teamA(200, 200, 200), studyA),
+	act('/studies/[id]/consent-forms', 'publish', teamA(400, 403, 403), studyA),
 	// participants: the team sees the list and each participant (personal data by role, checked in participants.test.ts)
-	{
-		route: '/studies/[id]/participants',
-		method: 'GET',
-		params: { id: 'studyA' },
-		expect: { anonymous: 303, admin: 404, piA: 200, researcherA: 200, technicianA: 200, memberB: 404 }
-	},
-	{
-		route: '/studies/[id]/participants',
-		method: 'GET',
-		params: { id: 'studyB' },
-		expect: { anonymous: 303, admin: 404, piA: 200, researcherA: 404, technicianA: 404, memberB: 200 }
-	},
-	{
-		route: '/studies/[id]/participants/new',
-		method: 'GET',
-		params: { id: 'studyA' },
-		expect: { anonymous: 303, admin: 404, piA: 200, researcherA: 403, technicianA: 200, memberB: 404 }
-	},
-	{
-		route: '/studies/[id]/participants/new',
-		method: 'POST',
-		action: 'default',
-		params: { id: 'studyA' },
-		form: { sex: 'female', bodyMassKg: '5', statureM: '1.7' },
-		expect: { anonymous: 303, admin: 404, piA: 400, researcherA: 403, technicianA: 400, memberB: 404 }
-	},
-	{
-		route: '/studies/[id]/participants/[pid]',
-		method: 'GET',
-		params: { id: 'studyA', pid: 'participantA' },
-		expect: { anonymous: 303, admin: 404, piA: 200, researcherA: 200, technicianA: 200, memberB: 404 }
-	},
+	get('/studies/[id]/participants', teamA(200, 200, 200), studyA),
+	get('/studies/[id]/participants', teamB(200), studyB),
+	get('/studies/[id]/participants/new', teamA(200, 403, 200), studyA),
+	act('/studies/[id]/participants/new', 'default', teamA(400, 403, 400), studyA, invalidResearchFields),
+	get('/studies/[id]/participants/[pid]', teamA(200, 200, 200), participantA),
 	// a participant asked for under another study's URL does not exist there, even for someone on both teams
-	{
-		route: '/studies/[id]/participants/[pid]/model',
-		method: 'GET',
-		params: { id: 'studyA', pid: 'participantA' },
-		expect: { anonymous: 303, admin: 404, piA: 200, researcherA: 200, technicianA: 200, memberB: 404 }
-	},
-	{
-		route: '/studies/[id]/participants/[pid]/model',
-		method: 'GET',
-		params: { id: 'studyB', pid: 'participantA' },
-		expect: { anonymous: 303, admin: 404, piA: 404, researcherA: 404, technicianA: 404, memberB: 404 }
-	},
-	{
-		route: '/studies/[id]/participants/[pid]',
-		method: 'GET',
-		params: { id: 'studyB', pid: 'participantA' },
-		expect: { anonymous: 303, admin: 404, piA: 404, researcherA: 404, technicianA: 404, memberB: 404 }
-	},
-	{
-		route: '/studies/[id]/participants/[pid]',
-		method: 'POST',
-		action: 'length',
-		params: { id: 'studyA', pid: 'participantA' },
-		form: { segment: 'right.thigh', lengthM: '41' },
-		expect: { anonymous: 303, admin: 404, piA: 400, researcherA: 403, technicianA: 400, memberB: 404 }
-	},
-	{
-		route: '/studies/[id]/participants/[pid]',
-		method: 'POST',
-		action: 'personal',
-		params: { id: 'studyA', pid: 'participantA' },
-		form: { email: 'not-an-address' },
-		expect: { anonymous: 303, admin: 404, piA: 400, researcherA: 403, technicianA: 400, memberB: 404 }
-	},
+	get('/studies/[id]/participants/[pid]/model', teamA(200, 200, 200), participantA),
+	get('/studies/[id]/participants/[pid]/model', notThere(), participantInB),
+	get('/studies/[id]/participants/[pid]', notThere(), participantInB),
+	act('/studies/[id]/participants/[pid]', 'length', teamA(400, 403, 400), participantA, { segment: 'right.thigh', lengthM: '41' }),
+	act('/studies/[id]/participants/[pid]', 'personal', teamA(400, 403, 400), participantA, { email: 'not-an-address' }),
 	// correcting research fields: PI and technicians (an out-of-range body mass is refused with 400)
-	{
-		route: '/studies/[id]/participants/[pid]',
-		method: 'POST',
-		action: 'research',
-		params: { id: 'studyA', pid: 'participantA' },
-		form: { sex: 'female', bodyMassKg: '5', statureM: '1.7' },
-		expect: { anonymous: 303, admin: 404, piA: 400, researcherA: 403, technicianA: 400, memberB: 404 }
-	},
+	act('/studies/[id]/participants/[pid]', 'research', teamA(400, 403, 400), participantA, invalidResearchFields),
 	// CSV import: PI and technicians; a check without a file and an import without a checked file are refused with 400
-	{
-		route: '/studies/[id]/participants/import',
-		method: 'GET',
-		params: { id: 'studyA' },
-		expect: { anonymous: 303, admin: 404, piA: 200, researcherA: 403, technicianA: 200, memberB: 404 }
-	},
-	{
-		route: '/studies/[id]/participants/import',
-		method: 'POST',
-		action: 'check',
-		params: { id: 'studyA' },
-		expect: { anonymous: 303, admin: 404, piA: 400, researcherA: 403, technicianA: 400, memberB: 404 }
-	},
-	{
-		route: '/studies/[id]/participants/import',
-		method: 'POST',
-		action: 'import',
-		params: { id: 'studyA' },
-		expect: { anonymous: 303, admin: 404, piA: 400, researcherA: 403, technicianA: 400, memberB: 404 }
-	},
+	get('/studies/[id]/participants/import', teamA(200, 403, 200), studyA),
+	act('/studies/[id]/participants/import', 'check', teamA(400, 403, 400), studyA),
+	act('/studies/[id]/participants/import', 'import', teamA(400, 403, 400), studyA),
 	// the audit log and its export: administrators only
-	{ route: '/audit', method: 'GET', expect: { ...signedIn(403), admin: 200 } },
-	{ route: '/audit/export.csv', method: 'GET', expect: { ...signedIn(403), admin: 200 } },
+	get('/audit', adminOnly(200)),
+	get('/audit/export.csv', adminOnly(200)),
 	// one's own account; an empty password form is refused before any password is checked
-	{ route: '/account', method: 'GET', expect: signedIn(200) },
-	{ route: '/account', method: 'POST', action: 'password', expect: signedIn(400) },
+	get('/account', signedIn(200)),
+	act('/account', 'password', signedIn(400)),
 	// the note after a password change is for the signed-out person; someone signed in is sent to the account page
-	{ route: '/account/password-changed', method: 'GET', expect: { ...signedIn(303), anonymous: 200 } },
+	get('/account/password-changed', signedIn(303, 200)),
 
 	// people: lab administrators only. The matrix has no person to point [id] at, so it gets a study's id, which is
 	// no person: administrators get 404 (the real pages are exercised in tests/integration/people.test.ts)
-	{ route: '/people', method: 'GET', expect: { ...signedIn(403), admin: 200 } },
-	{ route: '/people/invite', method: 'GET', expect: { ...signedIn(403), admin: 200 } },
-	{
-		route: '/people/invite',
-		method: 'POST',
-		action: 'default',
-		form: { email: 'not-an-address' },
-		expect: { ...signedIn(403), admin: 400 }
-	},
-	{ route: '/people/[id]', method: 'GET', params: { id: 'studyA' }, expect: { ...signedIn(403), admin: 404 } },
-	{
-		route: '/people/[id]',
-		method: 'POST',
-		action: 'role',
-		params: { id: 'studyA' },
-		form: { studyId: 'none', role: 'pi' },
-		expect: { ...signedIn(403), admin: 404 }
-	},
-	{
-		route: '/people/[id]',
-		method: 'POST',
-		action: 'admin',
-		params: { id: 'studyA' },
-		form: { isAdmin: 'maybe' },
-		expect: { ...signedIn(403), admin: 404 }
-	},
-	{ route: '/people/[id]', method: 'POST', action: 'deactivate', params: { id: 'studyA' }, expect: { ...signedIn(403), admin: 404 } },
-	{ route: '/people/[id]', method: 'POST', action: 'reactivate', params: { id: 'studyA' }, expect: { ...signedIn(403), admin: 404 } },
+	get('/people', adminOnly(200)),
+	get('/people/invite', adminOnly(200)),
+	act('/people/invite', 'default', adminOnly(400), undefined, { email: 'not-an-address' }),
+	get('/people/[id]', adminOnly(404), noPerson),
+	act('/people/[id]', 'role', adminOnly(404), noPerson, { studyId: 'none', role: 'pi' }),
+	act('/people/[id]', 'admin', adminOnly(404), noPerson, { isAdmin: 'maybe' }),
+	act('/people/[id]', 'deactivate', adminOnly(404), noPerson),
+	act('/people/[id]', 'reactivate', adminOnly(404), noPerson),
 	// single-use links need no sign-in; a study's id is no token, so everyone gets the calm "cannot be used" page,
 	// and a form sent to it is refused as gone before its fields matter
-	{ route: '/invitation/[token]', method: 'GET', params: { token: 'studyA' }, expect: everyone(200) },
-	{
-		route: '/invitation/[token]',
-		method: 'POST',
-		action: 'default',
-		params: { token: 'studyA' },
-		form: { name: 'Test Person' },
-		expect: everyone(410)
-	},
-	{ route: '/reset-password/[token]', method: 'GET', params: { token: 'studyA' }, expect: everyone(200) },
-	{
-		route: '/reset-password/[token]',
-		method: 'POST',
-		action: 'default',
-		params: { token: 'studyA' },
-		form: { password: 'too short' },
-		expect: everyone(410)
-	},
+	get('/invitation/[token]', everyone(200), noToken),
+	act('/invitation/[token]', 'default', everyone(410), noToken, { name: 'Test Person' }),
+	get('/reset-password/[token]', everyone(200), noToken),
+	act('/reset-password/[token]', 'default', everyone(410), noToken, { password: 'too short' }),
 	// e-mailed consent (tests/integration/consent.test.ts): the team reads a participant's consent state and history;
 	// PI and technicians send links (ALD-001 has consented, so each send is refused with 409 and nothing is mailed);
 	// the PI decides on flagged runs (an empty form is refused with 400)
-	{
-		route: '/studies/[id]/participants/[pid]/consent',
-		method: 'GET',
-		params: { id: 'studyA', pid: 'participantA' },
-		expect: { anonymous: 303, admin: 404, piA: 200, researcherA: 200, technicianA: 200, memberB: 404 }
-	},
-	{
-		route: '/studies/[id]/participants/[pid]/consent',
-		method: 'GET',
-		params: { id: 'studyB', pid: 'participantA' },
-		expect: { anonymous: 303, admin: 404, piA: 404, researcherA: 404, technicianA: 404, memberB: 404 }
-	},
-	{
-		route: '/studies/[id]/participants/[pid]/consent',
-		method: 'POST',
-		action: 'invite',
-		params: { id: 'studyA', pid: 'participantA' },
-		expect: { anonymous: 303, admin: 404, piA: 409, researcherA: 403, technicianA: 409, memberB: 404 }
-	},
-	{
-		route: '/studies/[id]/participants/[pid]/consent',
-		method: 'POST',
-		action: 'resend',
-		params: { id: 'studyA', pid: 'participantA' },
-		expect: { anonymous: 303, admin: 404, piA: 409, researcherA: 403, technicianA: 409, memberB: 404 }
-	},
-	{
-		route: '/studies/[id]/participants/[pid]/consent',
-		method: 'POST',
-		action: 'remind',
-		params: { id: 'studyA', pid: 'participantA' },
-		expect: { anonymous: 303, admin: 404, piA: 409, researcherA: 403, technicianA: 409, memberB: 404 }
-	},
-	{
-		route: '/studies/[id]/participants/[pid]/consent',
-		method: 'POST',
-		action: 'decide',
-		params: { id: 'studyA', pid: 'participantA' },
-		expect: { anonymous: 303, admin: 404, piA: 400, researcherA: 403, technicianA: 403, memberB: 404 }
-	},
+	get('/studies/[id]/participants/[pid]/consent', teamA(200, 200, 200), participantA),
+	get('/studies/[id]/participants/[pid]/consent', notThere(), participantInB),
+	act('/studies/[id]/participants/[pid]/consent', 'invite', teamA(409, 403, 409), participantA),
+	act('/studies/[id]/participants/[pid]/consent', 'resend', teamA(409, 403, 409), participantA),
+	act('/studies/[id]/participants/[pid]/consent', 'remind', teamA(409, 403, 409), participantA),
+	act('/studies/[id]/participants/[pid]/consent', 'decide', teamA(400, 403, 403), participantA),
 	// the participant's consent and withdrawal pages need no sign-in; a study's id is no token: the calm page, and 410 for a form
-	{ route: '/consent/[token]', method: 'GET', params: { token: 'studyA' }, expect: everyone(200) },
-	{
-		route: '/consent/[token]',
-		method: 'POST',
-		action: 'consent',
-		params: { token: 'studyA' },
-		form: { fullName: 'Test Person' },
-		expect: everyone(410)
-	},
-	{ route: '/consent/[token]', method: 'POST', action: 'decline', params: { token: 'studyA' }, expect: everyone(410) },
-	{ route: '/consent/withdraw/[token]', method: 'GET', params: { token: 'studyA' }, expect: everyone(200) },
-	{ route: '/consent/withdraw/[token]', method: 'POST', action: 'default', params: { token: 'studyA' }, expect: everyone(410) },
+	get('/consent/[token]', everyone(200), noToken),
+	act('/consent/[token]', 'consent', everyone(410), noToken, { fullName: 'Test Person' }),
+	act('/consent/[token]', 'decline', everyone(410), noToken),
+	get('/consent/withdraw/[token]', everyone(200), noToken),
+	act('/consent/withdraw/[token]', 'default', everyone(410), noToken),
 	// asking for a reset link: an address that is no address is refused before anything is looked up
-	{ route: '/signin/forgot', method: 'GET', expect: everyone(200) },
-	{ route: '/signin/forgot', method: 'POST', action: 'default', form: { email: 'not-an-address' }, expect: everyone(400) },
+	get('/signin/forgot', everyone(200)),
+	act('/signin/forgot', 'default', everyone(400), undefined, { email: 'not-an-address' }),
 	// sessions: PI and technicians create and edit them (an invalid form is refused with 400), the team reads them;
 	// a session asked for under another study's URL does not exist there
-	{
-		route: '/studies/[id]/participants/[pid]/sessions/new',
-		method: 'GET',
-		params: { id: 'studyA', pid: 'participantA' },
-		expect: { anonymous: 303, admin: 404, piA: 200, researcherA: 403, technicianA: 200, memberB: 404 }
-	},
-	{
-		route: '/studies/[id]/participants/[pid]/sessions/new',
-		method: 'POST',
-		action: 'default',
-		params: { id: 'studyA', pid: 'participantA' },
-		form: { operator: '', limbs: 'right.arm' },
-		expect: { anonymous: 303, admin: 404, piA: 400, researcherA: 403, technicianA: 400, memberB: 404 }
-	},
-	{
-		route: '/studies/[id]/sessions/[sid]',
-		method: 'GET',
-		params: { id: 'studyA', sid: 'sessionA' },
-		expect: { anonymous: 303, admin: 404, piA: 200, researcherA: 200, technicianA: 200, memberB: 404 }
-	},
-	{
-		route: '/studies/[id]/sessions/[sid]',
-		method: 'GET',
-		params: { id: 'studyB', sid: 'sessionA' },
-		expect: { anonymous: 303, admin: 404, piA: 404, researcherA: 404, technicianA: 404, memberB: 404 }
-	},
+	get('/studies/[id]/participants/[pid]/sessions/new', teamA(200, 403, 200), participantA),
+	act('/studies/[id]/participants/[pid]/sessions/new', 'default', teamA(400, 403, 400), participantA, { operator: '', limbs: 'right.arm' }),
+	get('/studies/[id]/sessions/[sid]', teamA(200, 200, 200), sessionA),
+	get('/studies/[id]/sessions/[sid]', notThere(), sessionInB),
 	// review workflow (tests/integration/workflow.test.ts): researchers and the PI submit, the PI approves, returns, reopens and asks
 	// for a signing code. The seeded session is a draft: an empty submit is refused with 400 (no summary); the PI's other steps
 	// are refused with 409 (wrong state) before any field is read; technicians 403
-	{
-		route: '/studies/[id]/sessions/[sid]',
-		method: 'POST',
-		action: 'submit',
-		params: { id: 'studyA', sid: 'sessionA' },
-		expect: { anonymous: 303, admin: 404, piA: 400, researcherA: 400, technicianA: 403, memberB: 404 }
-	},
-	{
-		route: '/studies/[id]/sessions/[sid]',
-		method: 'POST',
-		action: 'submit',
-		params: { id: 'studyB', sid: 'sessionA' },
-		expect: { anonymous: 303, admin: 404, piA: 404, researcherA: 404, technicianA: 404, memberB: 404 }
-	},
-	{
-		route: '/studies/[id]/sessions/[sid]',
-		method: 'POST',
-		action: 'approve',
-		params: { id: 'studyA', sid: 'sessionA' },
-		expect: { anonymous: 303, admin: 404, piA: 409, researcherA: 403, technicianA: 403, memberB: 404 }
-	},
-	{
-		route: '/studies/[id]/sessions/[sid]',
-		method: 'POST',
-		action: 'return',
-		params: { id: 'studyA', sid: 'sessionA' },
-		expect: { anonymous: 303, admin: 404, piA: 409, researcherA: 403, technicianA: 403, memberB: 404 }
-	},
-	{
-		route: '/studies/[id]/sessions/[sid]',
-		method: 'POST',
-		action: 'reopen',
-		params: { id: 'studyA', sid: 'sessionA' },
-		expect: { anonymous: 303, admin: 404, piA: 409, researcherA: 403, technicianA: 403, memberB: 404 }
-	},
-	{
-		route: '/studies/[id]/sessions/[sid]',
-		method: 'POST',
-		action: 'code',
-		params: { id: 'studyA', sid: 'sessionA' },
-		expect: { anonymous: 303, admin: 404, piA: 409, researcherA: 403, technicianA: 403, memberB: 404 }
-	},
-	{
-		route: '/studies/[id]/sessions/[sid]/edit',
-		method: 'GET',
-		params: { id: 'studyA', sid: 'sessionA' },
-		expect: { anonymous: 303, admin: 404, piA: 200, researcherA: 403, technicianA: 200, memberB: 404 }
-	},
-	{
-		route: '/studies/[id]/sessions/[sid]/edit',
-		method: 'POST',
-		action: 'default',
-		params: { id: 'studyA', sid: 'sessionA' },
-		form: { operator: '' },
-		expect: { anonymous: 303, admin: 404, piA: 400, researcherA: 403, technicianA: 400, memberB: 404 }
-	},
+	act('/studies/[id]/sessions/[sid]', 'submit', teamA(400, 400, 403), sessionA),
+	act('/studies/[id]/sessions/[sid]', 'submit', notThere(), sessionInB),
+	act('/studies/[id]/sessions/[sid]', 'approve', teamA(409, 403, 403), sessionA),
+	act('/studies/[id]/sessions/[sid]', 'return', teamA(409, 403, 403), sessionA),
+	act('/studies/[id]/sessions/[sid]', 'reopen', teamA(409, 403, 403), sessionA),
+	act('/studies/[id]/sessions/[sid]', 'code', teamA(409, 403, 403), sessionA),
+	get('/studies/[id]/sessions/[sid]/edit', teamA(200, 403, 200), sessionA),
+	act('/studies/[id]/sessions/[sid]/edit', 'default', teamA(400, 403, 400), sessionA, { operator: '' }),
 	// the streamed trial upload (API: 401 when signed out); a body that is not multipart is refused with 415 before
 	// anything is read (the uploads themselves are exercised in tests/integration/uploads.test.ts); study B's
 	// researcher is refused by role (403) before the session is looked up
-	{
-		route: '/api/studies/[id]/sessions/[sid]/trials',
-		method: 'POST',
-		params: { id: 'studyA', sid: 'sessionA' },
-		expect: { anonymous: 401, admin: 404, piA: 415, researcherA: 403, technicianA: 415, memberB: 404 }
-	},
-	{
-		route: '/api/studies/[id]/sessions/[sid]/trials',
-		method: 'POST',
-		params: { id: 'studyB', sid: 'sessionA' },
-		expect: { anonymous: 401, admin: 404, piA: 404, researcherA: 404, technicianA: 404, memberB: 403 }
-	},
+	post('/api/studies/[id]/sessions/[sid]/trials', teamA(415, 403, 415, API), sessionA),
+	post('/api/studies/[id]/sessions/[sid]/trials', { ...notThere(API), memberB: 403 }, sessionInB),
 	// runs (tests/integration/runs.test.ts): the team reads trials, runs and results, and every role of the team may start
 	// and retry runs (run.start); an empty "New run" form is refused with 400, the JSON API wants JSON (415 for a form),
 	// and the seeded run is done, so a retry is refused with 409. A trial or run under another study's URL is not there.
-	{
-		route: '/studies/[id]/trials/[tid]',
-		method: 'GET',
-		params: { id: 'studyA', tid: 'trialA' },
-		expect: { anonymous: 303, admin: 404, piA: 200, researcherA: 200, technicianA: 200, memberB: 404 }
-	},
-	{
-		route: '/studies/[id]/trials/[tid]',
-		method: 'GET',
-		params: { id: 'studyB', tid: 'trialA' },
-		expect: { anonymous: 303, admin: 404, piA: 404, researcherA: 404, technicianA: 404, memberB: 404 }
-	},
-	{
-		route: '/studies/[id]/trials/[tid]',
-		method: 'POST',
-		action: 'start',
-		params: { id: 'studyA', tid: 'trialA' },
-		expect: { anonymous: 303, admin: 404, piA: 400, researcherA: 400, technicianA: 400, memberB: 404 }
-	},
-	{
-		route: '/studies/[id]/trials/[tid]',
-		method: 'POST',
-		action: 'start',
-		params: { id: 'studyB', tid: 'trialA' },
-		form: { filter: 'none' },
-		expect: { anonymous: 303, admin: 404, piA: 404, researcherA: 404, technicianA: 404, memberB: 404 }
-	},
-	{
-		route: '/studies/[id]/runs/[rid]',
-		method: 'GET',
-		params: { id: 'studyA', rid: 'runA' },
-		expect: { anonymous: 303, admin: 404, piA: 200, researcherA: 200, technicianA: 200, memberB: 404 }
-	},
-	{
-		route: '/studies/[id]/runs/[rid]',
-		method: 'GET',
-		params: { id: 'studyB', rid: 'runA' },
-		expect: { anonymous: 303, admin: 404, piA: 404, researcherA: 404, technicianA: 404, memberB: 404 }
-	},
-	{
-		route: '/studies/[id]/runs/[rid]',
-		method: 'POST',
-		action: 'retry',
-		params: { id: 'studyA', rid: 'runA' },
-		expect: { anonymous: 303, admin: 404, piA: 409, researcherA: 409, technicianA: 409, memberB: 404 }
-	},
-	{
-		route: '/api/studies/[id]/trials/[tid]/runs',
-		method: 'POST',
-		params: { id: 'studyA', tid: 'trialA' },
-		expect: { anonymous: 401, admin: 404, piA: 415, researcherA: 415, technicianA: 415, memberB: 404 }
-	},
-	{
-		route: '/api/studies/[id]/trials/[tid]/runs',
-		method: 'POST',
-		params: { id: 'studyB', tid: 'trialA' },
-		expect: { anonymous: 401, admin: 404, piA: 404, researcherA: 404, technicianA: 404, memberB: 404 }
-	},
-	{
-		route: '/api/studies/[id]/trials/[tid]/residuals',
-		method: 'GET',
-		params: { id: 'studyA', tid: 'trialA' },
-		expect: { anonymous: 401, admin: 404, piA: 200, researcherA: 200, technicianA: 200, memberB: 404 }
-	},
-	{
-		route: '/api/studies/[id]/trials/[tid]/residuals',
-		method: 'GET',
-		params: { id: 'studyB', tid: 'trialA' },
-		expect: { anonymous: 401, admin: 404, piA: 404, researcherA: 404, technicianA: 404, memberB: 404 }
-	},
-	{
-		route: '/api/studies/[id]/runs/[rid]',
-		method: 'GET',
-		params: { id: 'studyA', rid: 'runA' },
-		expect: { anonymous: 401, admin: 404, piA: 200, researcherA: 200, technicianA: 200, memberB: 404 }
-	},
-	{
-		route: '/api/studies/[id]/runs/[rid]',
-		method: 'GET',
-		params: { id: 'studyB', rid: 'runA' },
-		expect: { anonymous: 401, admin: 404, piA: 404, researcherA: 404, technicianA: 404, memberB: 404 }
-	},
-	{
-		route: '/api/studies/[id]/runs/[rid]/series',
-		method: 'GET',
-		params: { id: 'studyA', rid: 'runA' },
-		expect: { anonymous: 401, admin: 404, piA: 200, researcherA: 200, technicianA: 200, memberB: 404 }
-	},
-	{
-		route: '/api/studies/[id]/runs/[rid]/series',
-		method: 'GET',
-		params: { id: 'studyB', rid: 'runA' },
-		expect: { anonymous: 401, admin: 404, piA: 404, researcherA: 404, technicianA: 404, memberB: 404 }
-	},
-	{
-		route: '/api/studies/[id]/runs/[rid]/summary',
-		method: 'GET',
-		params: { id: 'studyA', rid: 'runA' },
-		expect: { anonymous: 401, admin: 404, piA: 200, researcherA: 200, technicianA: 200, memberB: 404 }
-	},
-	{
-		route: '/api/studies/[id]/runs/[rid]/retry',
-		method: 'POST',
-		params: { id: 'studyA', rid: 'runA' },
-		expect: { anonymous: 401, admin: 404, piA: 409, researcherA: 409, technicianA: 409, memberB: 404 }
-	},
-	{
-		route: '/api/studies/[id]/runs/[rid]/retry',
-		method: 'POST',
-		params: { id: 'studyB', rid: 'runA' },
-		expect: { anonymous: 401, admin: 404, piA: 404, researcherA: 404, technicianA: 404, memberB: 404 }
-	},
+	get('/studies/[id]/trials/[tid]', teamA(200, 200, 200), trialA),
+	get('/studies/[id]/trials/[tid]', notThere(), trialInB),
+	act('/studies/[id]/trials/[tid]', 'start', teamA(400, 400, 400), trialA),
+	act('/studies/[id]/trials/[tid]', 'start', notThere(), trialInB, { filter: 'none' }),
+	get('/studies/[id]/runs/[rid]', teamA(200, 200, 200), runA),
+	get('/studies/[id]/runs/[rid]', notThere(), runInB),
+	act('/studies/[id]/runs/[rid]', 'retry', teamA(409, 409, 409), runA),
+	post('/api/studies/[id]/trials/[tid]/runs', teamA(415, 415, 415, API), trialA),
+	post('/api/studies/[id]/trials/[tid]/runs', notThere(API), trialInB),
+	get('/api/studies/[id]/trials/[tid]/residuals', teamA(200, 200, 200, API), trialA),
+	get('/api/studies/[id]/trials/[tid]/residuals', notThere(API), trialInB),
+	get('/api/studies/[id]/runs/[rid]', teamA(200, 200, 200, API), runA),
+	get('/api/studies/[id]/runs/[rid]', notThere(API), runInB),
+	get('/api/studies/[id]/runs/[rid]/series', teamA(200, 200, 200, API), runA),
+	get('/api/studies/[id]/runs/[rid]/series', notThere(API), runInB),
+	get('/api/studies/[id]/runs/[rid]/summary', teamA(200, 200, 200, API), runA),
+	post('/api/studies/[id]/runs/[rid]/retry', teamA(409, 409, 409, API), runA),
+	post('/api/studies/[id]/runs/[rid]/retry', notThere(API), runInB),
 	// export of an approved session (pi, researcher; the seeded session is a draft: 409) and the printable report (the team)
-	{
-		route: '/api/studies/[id]/sessions/[sid]/export',
-		method: 'GET',
-		params: { id: 'studyA', sid: 'sessionA' },
-		expect: { anonymous: 401, admin: 404, piA: 409, researcherA: 409, technicianA: 403, memberB: 404 }
-	},
-	{
-		route: '/api/studies/[id]/sessions/[sid]/export',
-		method: 'GET',
-		params: { id: 'studyB', sid: 'sessionA' },
-		expect: { anonymous: 401, admin: 404, piA: 404, researcherA: 404, technicianA: 404, memberB: 404 }
-	},
-	{
-		route: '/studies/[id]/sessions/[sid]/report',
-		method: 'GET',
-		params: { id: 'studyA', sid: 'sessionA' },
-		expect: { anonymous: 303, admin: 404, piA: 200, researcherA: 200, technicianA: 200, memberB: 404 }
-	},
-	{
-		route: '/studies/[id]/sessions/[sid]/report',
-		method: 'GET',
-		params: { id: 'studyB', sid: 'sessionA' },
-		expect: { anonymous: 303, admin: 404, piA: 404, researcherA: 404, technicianA: 404, memberB: 404 }
-	},
+	get('/api/studies/[id]/sessions/[sid]/export', teamA(409, 409, 403, API), sessionA),
+	get('/api/studies/[id]/sessions/[sid]/export', notThere(API), sessionInB),
+	get('/studies/[id]/sessions/[sid]/report', teamA(200, 200, 200), sessionA),
+	get('/studies/[id]/sessions/[sid]/report', notThere(), sessionInB),
 	// review: plot data of a session, a run's cycle events (marking them: those who may start runs; an empty list is
 	// refused with 400), and the compare page (the team)
-	{
-		route: '/api/studies/[id]/sessions/[sid]/review',
-		method: 'GET',
-		params: { id: 'studyA', sid: 'sessionA' },
-		expect: { anonymous: 401, admin: 404, piA: 200, researcherA: 200, technicianA: 200, memberB: 404 }
-	},
-	{
-		route: '/api/studies/[id]/sessions/[sid]/review',
-		method: 'GET',
-		params: { id: 'studyB', sid: 'sessionA' },
-		expect: { anonymous: 401, admin: 404, piA: 404, researcherA: 404, technicianA: 404, memberB: 404 }
-	},
-	{
-		route: '/api/studies/[id]/runs/[rid]/events',
-		method: 'GET',
-		params: { id: 'studyA', rid: 'runA' },
-		expect: { anonymous: 401, admin: 404, piA: 200, researcherA: 200, technicianA: 200, memberB: 404 }
-	},
-	{
-		route: '/api/studies/[id]/runs/[rid]/events',
-		method: 'GET',
-		params: { id: 'studyB', rid: 'runA' },
-		expect: { anonymous: 401, admin: 404, piA: 404, researcherA: 404, technicianA: 404, memberB: 404 }
-	},
-	{
-		route: '/api/studies/[id]/runs/[rid]/events',
-		method: 'POST',
-		params: { id: 'studyA', rid: 'runA' },
-		form: { times: '' },
-		expect: { anonymous: 401, admin: 404, piA: 400, researcherA: 400, technicianA: 400, memberB: 404 }
-	},
-	{
-		route: '/studies/[id]/compare',
-		method: 'GET',
-		params: { id: 'studyA' },
-		expect: { anonymous: 303, admin: 404, piA: 200, researcherA: 200, technicianA: 200, memberB: 404 }
-	},
-	{
-		route: '/studies/[id]/compare',
-		method: 'GET',
-		params: { id: 'studyB' },
-		expect: { anonymous: 303, admin: 404, piA: 200, researcherA: 404, technicianA: 404, memberB: 200 }
-	},
+	get('/api/studies/[id]/sessions/[sid]/review', teamA(200, 200, 200, API), sessionA),
+	get('/api/studies/[id]/sessions/[sid]/review', notThere(API), sessionInB),
+	get('/api/studies/[id]/runs/[rid]/events', teamA(200, 200, 200, API), runA),
+	get('/api/studies/[id]/runs/[rid]/events', notThere(API), runInB),
+	post('/api/studies/[id]/runs/[rid]/events', teamA(400, 400, 400, API), runA, { times: '' }),
+	get('/studies/[id]/compare', teamA(200, 200, 200), studyA),
+	get('/studies/[id]/compare', teamB(200), studyB),
 	// column-mapping presets: the team lists them, PI and technicians save them (an empty one is refused with 400)
-	{
-		route: '/api/studies/[id]/mapping-presets',
-		method: 'GET',
-		params: { id: 'studyA' },
-		expect: { anonymous: 401, admin: 404, piA: 200, researcherA: 200, technicianA: 200, memberB: 404 }
-	},
-	{
-		route: '/api/studies/[id]/mapping-presets',
-		method: 'POST',
-		params: { id: 'studyA' },
-		expect: { anonymous: 401, admin: 404, piA: 400, researcherA: 403, technicianA: 400, memberB: 404 }
-	}
+	get('/api/studies/[id]/mapping-presets', teamA(200, 200, 200, API), studyA),
+	post('/api/studies/[id]/mapping-presets', teamA(400, 403, 400, API), studyA)
 ];
 
 /** Routes whose form actions are deliberately left out of the generic run, with the reason. */

@@ -1,7 +1,7 @@
 // Every mutating handler in src/routes (POST/PUT/PATCH/DELETE endpoints, every form action) and what it does when
 // its session is approved: refused with the lock's message, refused because of the session's state, or exempt
 // with the reason. tests/integration/lock.test.ts fails for a mutating handler that has no entry here.
-import type { ParamRef } from './access-matrix';
+import { runA, sessionA, trialA, type ParamRef } from './access-matrix';
 import type { Persona } from './app-under-test';
 
 export interface LockEntry {
@@ -19,99 +19,54 @@ export interface LockEntry {
 	exempt?: string;
 }
 
-const A = { id: 'studyA' } as const;
+type Body = LockEntry['body'];
+
+/** A POST to an endpoint (+server.ts) of the approved session, refused with the lock's message. */
+const lockedPost = (route: string, params: Record<string, ParamRef>, as: Persona, body?: Body): LockEntry => ({
+	route,
+	method: 'POST',
+	params,
+	as,
+	body,
+	refuses: 'locked'
+});
+/** A form action ("default" for an unnamed one) on the approved session, refused with the lock's message. */
+const lockedAction = (route: string, action: string, params: Record<string, ParamRef>, as: Persona, body?: Body): LockEntry => ({
+	...lockedPost(route, params, as, body),
+	action
+});
+/** Form actions of one route left out, for one reason. */
+const exempt = (reason: string, route: string, ...actions: string[]): LockEntry[] =>
+	actions.map((action) => ({ route, method: 'POST', action, exempt: reason }));
+
 const notSession = 'acts on no session, trial or run';
+const reopening = 'the one way out of the lock: the PI reopens an approved session, giving a reason (workflow.test.ts)';
+const newDraft = 'creates a new draft session; an approved session of the same participant is not touched';
+const exclusion = 'after a withdrawal the PI must be able to exclude results, locked or not (the ethics rule comes first)';
 
 export const LOCK_MATRIX: LockEntry[] = [
 	// the session, its trials and runs: refused once approved
-	{
-		route: '/api/studies/[id]/sessions/[sid]/trials',
-		method: 'POST',
-		params: { ...A, sid: 'sessionA' },
-		as: 'technicianA',
-		body: { upload: true },
-		refuses: 'locked'
-	},
-	{
-		route: '/api/studies/[id]/trials/[tid]/runs',
-		method: 'POST',
-		params: { ...A, tid: 'trialA' },
-		as: 'researcherA',
-		body: { json: { cutoffHz: 6 } },
-		refuses: 'locked'
-	},
-	{ route: '/api/studies/[id]/runs/[rid]/retry', method: 'POST', params: { ...A, rid: 'runA' }, as: 'technicianA', refuses: 'locked' },
-	{
-		route: '/studies/[id]/trials/[tid]',
-		method: 'POST',
-		action: 'start',
-		params: { ...A, tid: 'trialA' },
-		as: 'technicianA',
-		body: { form: { filter: 'lowpass', cutoffHz: '6' } },
-		refuses: 'locked'
-	},
-	{ route: '/studies/[id]/runs/[rid]', method: 'POST', action: 'retry', params: { ...A, rid: 'runA' }, as: 'piA', refuses: 'locked' },
-	{
-		route: '/studies/[id]/sessions/[sid]/edit',
-		method: 'POST',
-		action: 'default',
-		params: { ...A, sid: 'sessionA' },
-		as: 'technicianA',
-		body: { form: { operator: 'x', task: 'y' } },
-		refuses: 'locked'
-	},
+	lockedPost('/api/studies/[id]/sessions/[sid]/trials', sessionA, 'technicianA', { upload: true }),
+	lockedPost('/api/studies/[id]/trials/[tid]/runs', trialA, 'researcherA', { json: { cutoffHz: 6 } }),
+	lockedPost('/api/studies/[id]/runs/[rid]/retry', runA, 'technicianA'),
+	lockedAction('/studies/[id]/trials/[tid]', 'start', trialA, 'technicianA', { form: { filter: 'lowpass', cutoffHz: '6' } }),
+	lockedAction('/studies/[id]/runs/[rid]', 'retry', runA, 'piA'),
+	lockedAction('/studies/[id]/sessions/[sid]/edit', 'default', sessionA, 'technicianA', { form: { operator: 'x', task: 'y' } }),
 	// review data: a run's cycle events
-	{
-		route: '/api/studies/[id]/runs/[rid]/events',
-		method: 'POST',
-		params: { ...A, rid: 'runA' },
-		as: 'researcherA',
-		body: { json: { times: [0.5, 1] } },
-		refuses: 'locked'
-	},
+	lockedPost('/api/studies/[id]/runs/[rid]/events', runA, 'researcherA', { json: { times: [0.5, 1] } }),
 
 	// the review workflow: on an approved session every step but reopening answers with the lock's message
-	{
-		route: '/studies/[id]/sessions/[sid]',
-		method: 'POST',
-		action: 'submit',
-		params: { ...A, sid: 'sessionA' },
-		as: 'researcherA',
-		body: { form: { note: 'Submitting an approved session again', confirm: 'yes' } },
-		refuses: 'locked'
-	},
-	{
-		route: '/studies/[id]/sessions/[sid]',
-		method: 'POST',
-		action: 'approve',
-		params: { ...A, sid: 'sessionA' },
-		as: 'piA',
-		body: { form: { meaning: 'approved for analysis', password: 'momentry-demo-2026' } },
-		refuses: 'locked'
-	},
-	{
-		route: '/studies/[id]/sessions/[sid]',
-		method: 'POST',
-		action: 'return',
-		params: { ...A, sid: 'sessionA' },
-		as: 'piA',
-		body: { form: { comment: 'Returning an approved session', confirm: 'yes' } },
-		refuses: 'locked'
-	},
-	{
-		route: '/studies/[id]/sessions/[sid]',
-		method: 'POST',
-		action: 'code',
-		params: { ...A, sid: 'sessionA' },
-		as: 'piA',
-		refuses: 'locked'
-	},
-	{
-		route: '/studies/[id]/sessions/[sid]',
-		method: 'POST',
-		action: 'reopen',
-		exempt: 'the one way out of the lock: the PI reopens an approved session, giving a reason (workflow.test.ts)'
-	},
+	lockedAction('/studies/[id]/sessions/[sid]', 'submit', sessionA, 'researcherA', {
+		form: { note: 'Submitting an approved session again', confirm: 'yes' }
+	}),
+	lockedAction('/studies/[id]/sessions/[sid]', 'approve', sessionA, 'piA', {
+		form: { meaning: 'approved for analysis', password: 'momentry-demo-2026' }
+	}),
+	lockedAction('/studies/[id]/sessions/[sid]', 'return', sessionA, 'piA', {
+		form: { comment: 'Returning an approved session', confirm: 'yes' }
+	}),
+	lockedAction('/studies/[id]/sessions/[sid]', 'code', sessionA, 'piA'),
+	...exempt(reopening, '/studies/[id]/sessions/[sid]', 'reopen'),
 
 	// study-level records: no session is changed
 	{
@@ -119,55 +74,26 @@ export const LOCK_MATRIX: LockEntry[] = [
 		method: 'POST',
 		exempt: 'a column-mapping preset belongs to the study; saving one changes no session, trial or run'
 	},
-	{ route: '/studies/[id]/consent-forms', method: 'POST', action: 'publish', exempt: notSession },
-	{ route: '/studies/[id]/settings', method: 'POST', action: 'default', exempt: notSession },
-	{ route: '/studies/[id]/participants/new', method: 'POST', action: 'default', exempt: notSession },
-	{ route: '/studies/[id]/participants/import', method: 'POST', action: 'check', exempt: notSession },
-	{ route: '/studies/[id]/participants/import', method: 'POST', action: 'import', exempt: notSession },
-	{
-		route: '/studies/[id]/participants/[pid]/sessions/new',
-		method: 'POST',
-		action: 'default',
-		exempt: 'creates a new draft session; an approved session of the same participant is not touched'
-	},
+	...exempt(notSession, '/studies/[id]/consent-forms', 'publish'),
+	...exempt(notSession, '/studies/[id]/settings', 'default'),
+	...exempt(notSession, '/studies/[id]/participants/new', 'default'),
+	...exempt(notSession, '/studies/[id]/participants/import', 'check', 'import'),
+	...exempt(newDraft, '/studies/[id]/participants/[pid]/sessions/new', 'default'),
 	// the participant's record: approved runs keep the scaled model they recorded, so a correction changes none of them
-	{
-		route: '/studies/[id]/participants/[pid]',
-		method: 'POST',
-		action: 'length',
-		exempt: 'participant record; approved runs keep the model they recorded'
-	},
-	{
-		route: '/studies/[id]/participants/[pid]',
-		method: 'POST',
-		action: 'research',
-		exempt: 'participant record; approved runs keep the model they recorded'
-	},
-	{ route: '/studies/[id]/participants/[pid]', method: 'POST', action: 'personal', exempt: 'personal data, apart from all results' },
+	...exempt('participant record; approved runs keep the model they recorded', '/studies/[id]/participants/[pid]', 'length', 'research'),
+	...exempt('personal data, apart from all results', '/studies/[id]/participants/[pid]', 'personal'),
 	// consent: a withdrawal must always be possible, and the PI's keep/exclude decision on flagged results with it
-	{ route: '/studies/[id]/participants/[pid]/consent', method: 'POST', action: 'invite', exempt: 'consent invitation; no results change' },
-	{ route: '/studies/[id]/participants/[pid]/consent', method: 'POST', action: 'resend', exempt: 'consent invitation; no results change' },
-	{ route: '/studies/[id]/participants/[pid]/consent', method: 'POST', action: 'remind', exempt: 'consent invitation; no results change' },
-	{
-		route: '/studies/[id]/participants/[pid]/consent',
-		method: 'POST',
-		action: 'decide',
-		exempt: 'after a withdrawal the PI must be able to exclude results, locked or not (the ethics rule comes first)'
-	},
-	{ route: '/consent/[token]', method: 'POST', action: 'consent', exempt: "the participant's own consent" },
-	{ route: '/consent/[token]', method: 'POST', action: 'decline', exempt: "the participant's own consent" },
-	{ route: '/consent/withdraw/[token]', method: 'POST', action: 'default', exempt: 'a withdrawal is always possible' },
+	...exempt('consent invitation; no results change', '/studies/[id]/participants/[pid]/consent', 'invite', 'resend', 'remind'),
+	...exempt(exclusion, '/studies/[id]/participants/[pid]/consent', 'decide'),
+	...exempt("the participant's own consent", '/consent/[token]', 'consent', 'decline'),
+	...exempt('a withdrawal is always possible', '/consent/withdraw/[token]', 'default'),
 	// accounts and people
-	{ route: '/account', method: 'POST', action: 'password', exempt: notSession },
-	{ route: '/invitation/[token]', method: 'POST', action: 'default', exempt: notSession },
-	{ route: '/people/[id]', method: 'POST', action: 'role', exempt: notSession },
-	{ route: '/people/[id]', method: 'POST', action: 'admin', exempt: notSession },
-	{ route: '/people/[id]', method: 'POST', action: 'deactivate', exempt: notSession },
-	{ route: '/people/[id]', method: 'POST', action: 'reactivate', exempt: notSession },
-	{ route: '/people/invite', method: 'POST', action: 'default', exempt: notSession },
-	{ route: '/reset-password/[token]', method: 'POST', action: 'default', exempt: notSession },
-	{ route: '/signin', method: 'POST', action: 'link', exempt: notSession },
-	{ route: '/signin', method: 'POST', action: 'password', exempt: notSession },
-	{ route: '/signin/forgot', method: 'POST', action: 'default', exempt: notSession },
-	{ route: '/signout', method: 'POST', action: 'default', exempt: notSession }
+	...exempt(notSession, '/account', 'password'),
+	...exempt(notSession, '/invitation/[token]', 'default'),
+	...exempt(notSession, '/people/[id]', 'role', 'admin', 'deactivate', 'reactivate'),
+	...exempt(notSession, '/people/invite', 'default'),
+	...exempt(notSession, '/reset-password/[token]', 'default'),
+	...exempt(notSession, '/signin', 'link', 'password'),
+	...exempt(notSession, '/signin/forgot', 'default'),
+	...exempt(notSession, '/signout', 'default')
 ];
