@@ -7,7 +7,8 @@ import { spawnSync } from 'node:child_process';
 import pg from 'pg';
 import { startCluster, type Cluster } from './lib/postgres';
 import { prepareDatabase } from './lib/prepare-db';
-import { freePort, start, stop, waitForPort, type Child } from './lib/proc';
+import { freePort, stop, type Child } from './lib/proc';
+import { sessionCookie, startBuiltApp } from './lib/built-app';
 
 const FILE_BYTES = Number(process.env.BENCH_UPLOAD_BYTES ?? 100_000_000);
 const log = (m: string) => console.log(`[bench:upload] ${m}`);
@@ -75,22 +76,6 @@ function multipart(file: ReadableStream<Uint8Array>, name: string, boundary: str
 			c.close();
 		}
 	});
-}
-
-async function signIn(base: string, email: string, password: string): Promise<string> {
-	const res = await fetch(`${base}/signin?/password`, {
-		method: 'POST',
-		body: new URLSearchParams({ providerId: 'password', email, password, redirectTo: '/' }),
-		redirect: 'manual',
-		headers: { origin: base, 'content-type': 'application/x-www-form-urlencoded', accept: 'text/html' }
-	});
-	const cookie = res.headers
-		.getSetCookie()
-		.map((c) => c.split(';')[0])
-		.filter((c) => c.includes('session-token') && !c.endsWith('='))
-		.join('; ');
-	if (!cookie) throw new Error(`could not sign in as ${email} (status ${res.status})`);
-	return cookie;
 }
 
 interface Measured {
@@ -161,23 +146,15 @@ async function main(): Promise<number> {
 		const b = spawnSync(process.execPath, ['node_modules/vite/bin/vite.js', 'build', '--logLevel', 'error'], { env, stdio: 'inherit' });
 		if (b.status !== 0) throw new Error('the build failed');
 		await prepareDatabase(cluster.url, { seed: true, log: () => {} });
-		const port = await freePort();
-		const base = `http://127.0.0.1:${port}`;
-		app = start('app', process.execPath, [path.join(runDir, 'build', 'index.js')], {
-			quiet: true,
-			env: {
-				...env,
-				DATABASE_URL: cluster.url,
-				HOST: '127.0.0.1',
-				PORT: String(port),
-				ORIGIN: base,
-				BODY_SIZE_LIMIT: 'Infinity',
-				AUTH_SECRET: randomBytes(32).toString('base64url'),
-				SMTP_URL: 'smtp://127.0.0.1:9'
-			}
+		const started = await startBuiltApp(path.join(runDir, 'build', 'index.js'), {
+			...env,
+			DATABASE_URL: cluster.url,
+			AUTH_SECRET: randomBytes(32).toString('base64url'),
+			SMTP_URL: 'smtp://127.0.0.1:9'
 		});
-		await waitForPort(port, '127.0.0.1', 30_000, app);
-		const cookie = await signIn(base, 'technician@alder-creek.example', 'momentry-demo-2026');
+		app = started.app;
+		const base = started.base;
+		const cookie = await sessionCookie(base, 'technician@alder-creek.example', 'momentry-demo-2026');
 
 		const sql = new pg.Client({ connectionString: cluster.url });
 		await sql.connect();

@@ -1,9 +1,11 @@
 // Starts the built app against a fresh, migrated and seeded database, and signs demo personas in over HTTP.
 import fs from 'node:fs';
 import pg from 'pg';
+import { afterAll, beforeAll } from 'vitest';
 import { freshDatabase } from './helpers';
-import { freePort, start, stop, waitForPort, type Child } from '../../src/cli/lib/proc';
+import { stop, type Child } from '../../src/cli/lib/proc';
 import { prepareDatabase } from '../../src/cli/lib/prepare-db';
+import { passwordSignIn, sessionCookie, startBuiltApp } from '../../src/cli/lib/built-app';
 
 export const DEMO_PASSWORD = 'momentry-demo-2026';
 export const PERSONAS = {
@@ -38,41 +40,15 @@ export interface AppUnderTest {
 	close(): Promise<void>;
 }
 
-/** Signs in with the password form; returns the session cookie header. */
-export async function signInAs(
-	base: string,
-	email: string,
-	password = DEMO_PASSWORD
-): Promise<{ status: number; cookie: string; location: string | null }> {
-	const body = new URLSearchParams({ providerId: 'password', email, password, redirectTo: '/' });
-	const res = await fetch(`${base}/signin?/password`, {
-		method: 'POST',
-		body,
-		redirect: 'manual',
-		// accept: text/html makes it a browser-like form post (SvelteKit answers other clients with JSON)
-		headers: { origin: base, 'content-type': 'application/x-www-form-urlencoded', accept: 'text/html' }
-	});
-	const cookie = res.headers
-		.getSetCookie()
-		.map((c) => c.split(';')[0])
-		.filter((c) => c.includes('session-token') && !c.endsWith('='))
-		.join('; ');
-	return { status: res.status, cookie, location: res.headers.get('location') };
-}
+/** Signs in with the password form; returns the session cookie header ('' when refused). */
+export const signInAs = (base: string, email: string, password = DEMO_PASSWORD) => passwordSignIn(base, email, password);
 
 export async function startApp(label: string): Promise<AppUnderTest> {
 	const entry = `${process.env.MOMENTRY_BUILD_DIR ?? 'build'}/index.js`;
 	if (!fs.existsSync(entry)) throw new Error(`${entry} is missing: \`npm test\` builds the app first`);
 	const fresh = await freshDatabase(label);
 	await prepareDatabase(fresh.url, { seed: true, log: () => {} });
-	const port = await freePort();
-	const base = `http://127.0.0.1:${port}`;
-	const app = start('app', process.execPath, [entry], {
-		quiet: true,
-		// BODY_SIZE_LIMIT: the trial upload enforces its own per-file limit while streaming (UPLOAD_LIMIT_BYTES)
-		env: { ...process.env, DATABASE_URL: fresh.url, HOST: '127.0.0.1', PORT: String(port), ORIGIN: base, BODY_SIZE_LIMIT: 'Infinity' }
-	});
-	await waitForPort(port, '127.0.0.1', 30_000, app);
+	const { app, base } = await startBuiltApp(entry, { ...process.env, DATABASE_URL: fresh.url });
 	const sql = new pg.Client({ connectionString: fresh.url });
 	await sql.connect();
 	const studies = (await sql.query<{ id: string; code: string }>(`SELECT id, code FROM studies`)).rows;
@@ -92,10 +68,7 @@ export async function startApp(label: string): Promise<AppUnderTest> {
 		'';
 	const cookies = { anonymous: '' } as Record<Persona, string>;
 	for (const [persona, email] of Object.entries(PERSONAS)) {
-		if (!email) continue;
-		const r = await signInAs(base, email);
-		if (!r.cookie) throw new Error(`could not sign in as ${email} (status ${r.status}, location ${r.location})`);
-		cookies[persona as Persona] = r.cookie;
+		if (email) cookies[persona as Persona] = await sessionCookie(base, email, DEMO_PASSWORD);
 	}
 	return {
 		base,
@@ -109,5 +82,35 @@ export async function startApp(label: string): Promise<AppUnderTest> {
 			await stop(app);
 			await fresh.drop();
 		}
+	};
+}
+
+/**
+ * Starts the app before the tests of the file (or describe block) it is called in and closes it after them. The object
+ * is filled in place when the app is up, so the file may keep it in a constant and use it in its helpers.
+ */
+export function useApp(label: string): AppUnderTest {
+	const app = {} as AppUnderTest;
+	beforeAll(async () => {
+		Object.assign(app, await startApp(label));
+	});
+	afterAll(async () => {
+		await app.close?.();
+	});
+	return app;
+}
+
+/** Requests as a browser makes them, without following redirects: a GET (a page unless `accept` says otherwise) and a form post. */
+export function browserRequests(app: AppUnderTest) {
+	return {
+		get: (path: string, cookie: string, accept = 'text/html') =>
+			fetch(app.base + path, { headers: { cookie, accept }, redirect: 'manual' }),
+		post: (path: string, cookie: string, form: Record<string, string>) =>
+			fetch(app.base + path, {
+				method: 'POST',
+				body: new URLSearchParams(form),
+				redirect: 'manual',
+				headers: { cookie, origin: app.base, accept: 'text/html', 'content-type': 'application/x-www-form-urlencoded' }
+			})
 	};
 }
