@@ -1,37 +1,16 @@
 // Studies by id across study boundaries, the audit log's filters, paging and CSV export, password change and
 // "sign out everywhere", against the built app on a fresh seeded database.
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { describe, expect, it } from 'vitest';
 import { randomUUID } from 'node:crypto';
-import pg from 'pg';
-import { DEMO_PASSWORD, PERSONAS, signInAs, startApp, type AppUnderTest } from './app-under-test';
+import { browserRequests, DEMO_PASSWORD, PERSONAS, signInAs, useApp } from './app-under-test';
 import { CSV_COLUMNS, csvField, parseAuditQuery } from '../../src/lib/server/audit/log';
 
-let app: AppUnderTest;
-let dbc: pg.Client;
-let studyA: string;
-let studyB: string;
-
-beforeAll(async () => {
-	app = await startApp('audit_studies');
-	dbc = app.sql;
-	({ studyA, studyB } = app.ids);
-});
-afterAll(async () => {
-	await app?.close();
-});
-
-const get = (path: string, cookie: string) => fetch(app.base + path, { headers: { cookie, accept: 'text/html' }, redirect: 'manual' });
-const post = (path: string, cookie: string, form: Record<string, string>) =>
-	fetch(app.base + path, {
-		method: 'POST',
-		body: new URLSearchParams(form),
-		redirect: 'manual',
-		headers: { cookie, origin: app.base, accept: 'text/html', 'content-type': 'application/x-www-form-urlencoded' }
-	});
+const app = useApp('audit_studies');
+const { get, post } = browserRequests(app);
 
 /** access.denied rows a person caused on one path. */
 async function denials(email: string, path: string) {
-	const { rows } = await dbc.query<{ study_id: string | null; details: Record<string, unknown> }>(
+	const { rows } = await app.sql.query<{ study_id: string | null; details: Record<string, unknown> }>(
 		`SELECT study_id, details FROM audit_events WHERE action = 'access.denied' AND actor_label = $1 AND details->>'path' = $2`,
 		[email, path]
 	);
@@ -86,7 +65,7 @@ function parseCsv(text: string): string[][] {
 
 describe('studies by id, across study boundaries', () => {
 	it('a member of another study, an unknown id and a malformed id all get 404, each audited; a member gets the study', async () => {
-		const pathA = `/studies/${studyA}`;
+		const pathA = `/studies/${app.ids.studyA}`;
 		const asB = await get(pathA, app.cookies.memberB);
 		expect(asB.status).toBe(404);
 		const bodyB = await asB.text();
@@ -95,7 +74,7 @@ describe('studies by id, across study boundaries', () => {
 		expect(bodyB).not.toContain('Overhead shelving');
 		const deniedB = await denials(PERSONAS.memberB, pathA);
 		expect(deniedB).toHaveLength(1);
-		expect(deniedB[0].study_id).toBe(studyA);
+		expect(deniedB[0].study_id).toBe(app.ids.studyA);
 		expect(deniedB[0].details).toMatchObject({ attempted: 'study.read', answered: 404, method: 'GET' });
 
 		const asResearcher = await get(pathA, app.cookies.researcherA);
@@ -113,7 +92,7 @@ describe('studies by id, across study boundaries', () => {
 		expect(await denials(PERSONAS.researcherA, unknown)).toHaveLength(1);
 
 		// malformed: checked before any query; the row keeps the path but no study id
-		const malformed = `/studies/${studyA.slice(0, 30)}-or-1=1`;
+		const malformed = `/studies/${app.ids.studyA.slice(0, 30)}-or-1=1`;
 		expect((await get(malformed, app.cookies.researcherA)).status).toBe(404);
 		const rows = await denials(PERSONAS.researcherA, malformed);
 		expect(rows).toHaveLength(1);
@@ -129,7 +108,7 @@ describe('studies by id, across study boundaries', () => {
 		const b = await (await get('/studies', app.cookies.memberB)).text();
 		expect(b).toContain('KNEE-60');
 		expect(b).not.toContain('SHELF-REACH');
-		expect(b).toContain(`/studies/${studyB}`);
+		expect(b).toContain(`/studies/${app.ids.studyB}`);
 		const pi = await (await get('/studies', app.cookies.piA)).text();
 		expect(pi).toContain('SHELF-REACH');
 		expect(pi).toContain('KNEE-60');
@@ -137,7 +116,7 @@ describe('studies by id, across study boundaries', () => {
 		expect(admin).toContain('SHELF-REACH');
 		expect(admin).toContain('KNEE-60');
 		// no link to a study page the administrator could not open
-		expect(admin).not.toContain(`/studies/${studyA}`);
+		expect(admin).not.toContain(`/studies/${app.ids.studyA}`);
 	});
 });
 
@@ -158,7 +137,7 @@ describe('the audit log', () => {
 		const deniedRes = await get('/audit?outcome=denied', app.cookies.admin);
 		expect(deniedRes.status).toBe(200);
 		const denied = auditRows(await deniedRes.text());
-		const { rows } = await dbc.query<{ n: string }>(`SELECT count(*) AS n FROM audit_events WHERE outcome = 'denied'`);
+		const { rows } = await app.sql.query<{ n: string }>(`SELECT count(*) AS n FROM audit_events WHERE outcome = 'denied'`);
 		expect(denied.length).toBe(Math.min(50, Number(rows[0].n)));
 		expect(denied.length).toBeGreaterThan(0);
 		expect(denied.every((r) => r.outcome === 'denied')).toBe(true);
@@ -195,7 +174,7 @@ describe('the audit log', () => {
 		for (let i = 0; i < 55; i++) await get('/audit', app.cookies.researcherA);
 		const q = `/audit?actor=${encodeURIComponent(PERSONAS.researcherA)}&action=access.denied`;
 		// "contains": knee.researcher@… matches too
-		const { rows } = await dbc.query<{ n: string }>(
+		const { rows } = await app.sql.query<{ n: string }>(
 			`SELECT count(*) AS n FROM audit_events WHERE position($1 in actor_label) > 0 AND action LIKE 'access.denied%'`,
 			[PERSONAS.researcherA]
 		);
@@ -218,7 +197,7 @@ describe('the audit log', () => {
 		expect(res.headers.get('content-disposition')).toMatch(/^attachment; filename="momentry-audit-[\d-]+\.csv"$/);
 		const table = parseCsv(await res.text());
 		expect(table[0]).toEqual([...CSV_COLUMNS]);
-		const { rows } = await dbc.query<{ n: string }>(`SELECT count(*) AS n FROM audit_events WHERE outcome = 'denied'`);
+		const { rows } = await app.sql.query<{ n: string }>(`SELECT count(*) AS n FROM audit_events WHERE outcome = 'denied'`);
 		const body = table.slice(1);
 		expect(body.length).toBe(Number(rows[0].n));
 		expect(body.length).toBeGreaterThan(50); // more than one page: the export is not limited to a page
@@ -228,9 +207,10 @@ describe('the audit log', () => {
 		expect(details).toHaveProperty('path');
 
 		// the export itself is audited
-		const { rows: exported } = await dbc.query(`SELECT details FROM audit_events WHERE action = 'audit.exported' AND actor_label = $1`, [
-			PERSONAS.admin
-		]);
+		const { rows: exported } = await app.sql.query(
+			`SELECT details FROM audit_events WHERE action = 'audit.exported' AND actor_label = $1`,
+			[PERSONAS.admin]
+		);
 		expect(exported.length).toBeGreaterThan(0);
 		expect(exported.at(-1).details).toMatchObject({ filter: { outcome: 'denied' } });
 
@@ -284,7 +264,7 @@ describe('sessions of one account', () => {
 		expect(fresh.cookie).not.toBe('');
 		expect((await get('/account', fresh.cookie)).status).toBe(200);
 
-		const { rows } = await dbc.query<{ outcome: string; details: Record<string, unknown> }>(
+		const { rows } = await app.sql.query<{ outcome: string; details: Record<string, unknown> }>(
 			`SELECT outcome, details FROM audit_events WHERE action = 'auth.password-changed' AND actor_label = $1 ORDER BY id`,
 			[email]
 		);
@@ -307,7 +287,7 @@ describe('sessions of one account', () => {
 		expect(res.status).toBe(303);
 		expect(res.headers.get('location')).toMatch(/^\/signin\?next=%2Fstudies/);
 		expect((await get('/studies', newer)).status).toBe(303);
-		const { rows } = await dbc.query(`SELECT 1 FROM audit_events WHERE action = 'auth.sign-out-everywhere' AND actor_label = $1`, [
+		const { rows } = await app.sql.query(`SELECT 1 FROM audit_events WHERE action = 'auth.sign-out-everywhere' AND actor_label = $1`, [
 			PERSONAS.piA
 		]);
 		expect(rows).toHaveLength(1);

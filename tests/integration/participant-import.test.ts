@@ -1,27 +1,14 @@
 // Participant CSV import against the built app on a fresh seeded database: the dry run's preview and row-level
 // problems, consecutive codes, all-or-nothing import (also when only the database sees the problem), and roles.
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { describe, expect, it } from 'vitest';
 import fs from 'node:fs';
-import pg from 'pg';
-import { startApp, type AppUnderTest } from './app-under-test';
+import { useApp } from './app-under-test';
 import { checkImportText, describeProblem, IMPORT_CHUNK, IMPORT_MAX_ROWS } from '../../src/lib/server/participants/import';
 
 const SAMPLE = 'tests/fixtures/participants/import-sample.csv';
-let app: AppUnderTest;
-let dbc: pg.Client;
-let studyA: string;
-let studyB: string;
+const app = useApp('participant_import');
 
-beforeAll(async () => {
-	app = await startApp('participant_import');
-	dbc = app.sql;
-	({ studyA, studyB } = app.ids);
-});
-afterAll(async () => {
-	await app?.close();
-});
-
-const page = () => `/studies/${studyA}/participants/import`;
+const page = () => `/studies/${app.ids.studyA}/participants/import`;
 const headers = (cookie: string) => ({ cookie, origin: app.base, accept: 'text/html' });
 
 /** Sends a file to "Check file" as a browser does (multipart form). */
@@ -59,8 +46,8 @@ function decode(html: string): string {
 }
 
 const counter = async () =>
-	(await dbc.query(`SELECT next_participant_number AS n FROM studies WHERE id = $1`, [studyA])).rows[0].n as number;
-const count = async () => (await dbc.query(`SELECT count(*)::int AS n FROM participants`)).rows[0].n as number;
+	(await app.sql.query(`SELECT next_participant_number AS n FROM studies WHERE id = $1`, [app.ids.studyA])).rows[0].n as number;
+const count = async () => (await app.sql.query(`SELECT count(*)::int AS n FROM participants`)).rows[0].n as number;
 const code = (n: number) => `ALD-${String(n).padStart(3, '0')}`;
 
 describe('importing a good file', () => {
@@ -82,12 +69,12 @@ describe('importing a good file', () => {
 
 		const done = await runImport(importForm(checked));
 		expect(done.status).toBe(303);
-		expect(done.location).toBe(`/studies/${studyA}/participants?imported=5&first=${code(first)}&last=${code(first + 4)}`);
+		expect(done.location).toBe(`/studies/${app.ids.studyA}/participants?imported=5&first=${code(first)}&last=${code(first + 4)}`);
 		const rows = (
-			await dbc.query(
+			await app.sql.query(
 				`SELECT p.code, p.sex, p.birth_year, p.body_mass_kg, p.stature_m, p.dominant_side, p.notes, pp.full_name, pp.email, pp.phone
 				 FROM participants p JOIN participant_personal pp ON pp.participant_id = p.id WHERE p.study_id = $1 AND p.code >= $2 ORDER BY p.code`,
-				[studyA, code(first)]
+				[app.ids.studyA, code(first)]
 			)
 		).rows;
 		expect(rows.map((r) => r.code)).toEqual([0, 1, 2, 3, 4].map((i) => code(first + i)));
@@ -110,9 +97,9 @@ describe('importing a good file', () => {
 		expect(await counter()).toBe(first + 5);
 
 		const audit = (
-			await dbc.query(
+			await app.sql.query(
 				`SELECT action, details FROM audit_events WHERE action IN ('participant.created', 'participants.imported') AND study_id = $1 ORDER BY id`,
-				[studyA]
+				[app.ids.studyA]
 			)
 		).rows;
 		const created = audit.filter((a) => a.action === 'participant.created' && a.details.via === 'import');
@@ -139,8 +126,8 @@ describe('importing a good file', () => {
 		]);
 		expect((await runImport(importForm(checked))).status).toBe(303);
 		const rows = (
-			await dbc.query(`SELECT code, sex, body_mass_kg, notes FROM participants WHERE study_id = $1 AND code >= $2 ORDER BY code`, [
-				studyA,
+			await app.sql.query(`SELECT code, sex, body_mass_kg, notes FROM participants WHERE study_id = $1 AND code >= $2 ORDER BY code`, [
+				app.ids.studyA,
 				code(first)
 			])
 		).rows;
@@ -170,7 +157,7 @@ describe('a file with bad rows', () => {
 	it('reports every problem by row and column and imports nothing; the counter stays', async () => {
 		const first = await counter();
 		const before = await count();
-		const audits = (await dbc.query(`SELECT count(*)::int AS n FROM audit_events`)).rows[0].n;
+		const audits = (await app.sql.query(`SELECT count(*)::int AS n FROM audit_events`)).rows[0].n;
 		const checked = await check(bad);
 		expect(checked.status).toBe(400);
 		const problems = [...checked.html.matchAll(/<li>(row [^<]*)<\/li>/g)].map((m) => m[1]);
@@ -201,7 +188,7 @@ describe('a file with bad rows', () => {
 		expect(await count()).toBe(before);
 		expect(await counter()).toBe(first);
 		// neither the dry run nor the refused import leaves a trace in the audit log
-		expect((await dbc.query(`SELECT count(*)::int AS n FROM audit_events`)).rows[0].n).toBe(audits);
+		expect((await app.sql.query(`SELECT count(*)::int AS n FROM audit_events`)).rows[0].n).toBe(audits);
 	});
 
 	it('names the column as the header writes it', async () => {
@@ -291,11 +278,12 @@ describe('all or nothing', () => {
 		// a participant of another study already holds the code row 122 would get: only the unique index sees it, after
 		// the first IMPORT_CHUNK rows have been written inside the transaction
 		const blocked = code(first + 120);
-		await dbc.query(
+		await app.sql.query(
 			`INSERT INTO participants (id, study_id, code, sex, body_mass_kg, stature_m) VALUES (gen_random_uuid(), $1, $2, 'male', 75, 1.75)`,
-			[studyB, blocked]
+			[app.ids.studyB, blocked]
 		);
-		const createdBefore = (await dbc.query(`SELECT count(*)::int AS n FROM audit_events WHERE action = 'participant.created'`)).rows[0].n;
+		const createdBefore = (await app.sql.query(`SELECT count(*)::int AS n FROM audit_events WHERE action = 'participant.created'`)).rows[0]
+			.n;
 		const named = [
 			'female,60,1.6,Wilhelmina Corse',
 			'male,70,1.7,Tobiah Quennell',
@@ -314,25 +302,28 @@ describe('all or nothing', () => {
 		expect(res.html).not.toContain('action="?/import"');
 		expect(await count()).toBe(before + 1);
 		const codes = Array.from({ length: 150 }, (_, i) => code(first + i)).filter((c) => c !== blocked);
-		expect((await dbc.query(`SELECT count(*)::int AS n FROM participants WHERE code = ANY($1)`, [codes])).rows[0].n).toBe(0);
+		expect((await app.sql.query(`SELECT count(*)::int AS n FROM participants WHERE code = ANY($1)`, [codes])).rows[0].n).toBe(0);
 		expect(
-			(await dbc.query(`SELECT count(*)::int AS n FROM participant_personal WHERE full_name IN ('Wilhelmina Corse', 'Tobiah Quennell')`))
-				.rows[0].n
+			(
+				await app.sql.query(
+					`SELECT count(*)::int AS n FROM participant_personal WHERE full_name IN ('Wilhelmina Corse', 'Tobiah Quennell')`
+				)
+			).rows[0].n
 		).toBe(0);
-		expect((await dbc.query(`SELECT count(*)::int AS n FROM audit_events WHERE action = 'participant.created'`)).rows[0].n).toBe(
+		expect((await app.sql.query(`SELECT count(*)::int AS n FROM audit_events WHERE action = 'participant.created'`)).rows[0].n).toBe(
 			createdBefore
 		);
 		expect(await counter()).toBe(first);
-		const failed = (await dbc.query(`SELECT outcome, details FROM audit_events WHERE action = 'participants.import.failed'`)).rows;
+		const failed = (await app.sql.query(`SELECT outcome, details FROM audit_events WHERE action = 'participants.import.failed'`)).rows;
 		expect(failed).toEqual([{ outcome: 'failed', details: expect.objectContaining({ reason: `code ${blocked} is already in use` }) }]);
 		expect(JSON.stringify(failed)).not.toContain('Wilhelmina');
-		await dbc.query(`DELETE FROM participants WHERE code = $1`, [blocked]);
+		await app.sql.query(`DELETE FROM participants WHERE code = $1`, [blocked]);
 	});
 
 	it('imports nothing when participants were added after the check, and shows the new codes', async () => {
 		const checked = await check('sex,body_mass_kg,stature_m\nmale,70,1.7\nfemale,60,1.6\n');
 		const first = await counter();
-		const added = await fetch(`${app.base}/studies/${studyA}/participants/new`, {
+		const added = await fetch(`${app.base}/studies/${app.ids.studyA}/participants/new`, {
 			method: 'POST',
 			body: new URLSearchParams({
 				sex: 'male',
@@ -376,7 +367,7 @@ describe('all or nothing', () => {
 		expect(res.status).toBe(303);
 		console.log(`imported ${IMPORT_MAX_ROWS} participants in ${ms.toFixed(0)} ms`);
 		expect(await counter()).toBe(first + IMPORT_MAX_ROWS);
-		const last = (await dbc.query(`SELECT code, notes FROM participants WHERE code = $1`, [code(first + IMPORT_MAX_ROWS - 1)])).rows[0];
+		const last = (await app.sql.query(`SELECT code, notes FROM participants WHERE code = $1`, [code(first + IMPORT_MAX_ROWS - 1)])).rows[0];
 		expect(last).toEqual({ code: code(first + IMPORT_MAX_ROWS - 1), notes: `batch ${IMPORT_MAX_ROWS - 1}` });
 	});
 });
@@ -391,19 +382,23 @@ describe('who may import', () => {
 		expect((await check(fs.readFileSync(SAMPLE, 'utf8'), app.cookies.memberB)).status).toBe(404);
 		expect(await count()).toBe(before);
 		const denied = (
-			await dbc.query(`SELECT details FROM audit_events WHERE action = 'access.denied' AND details->>'attempted' = 'participant.import'`)
+			await app.sql.query(
+				`SELECT details FROM audit_events WHERE action = 'access.denied' AND details->>'attempted' = 'participant.import'`
+			)
 		).rows;
 		expect(denied.length).toBeGreaterThanOrEqual(3);
 	});
 
 	it('the participant list links to the import for PI and technicians only', async () => {
-		const link = `href="/studies/${studyA}/participants/import"`;
+		const link = `href="/studies/${app.ids.studyA}/participants/import"`;
 		for (const [persona, shown] of [
 			['piA', true],
 			['technicianA', true],
 			['researcherA', false]
 		] as const) {
-			const html = await (await fetch(`${app.base}/studies/${studyA}/participants`, { headers: headers(app.cookies[persona]) })).text();
+			const html = await (
+				await fetch(`${app.base}/studies/${app.ids.studyA}/participants`, { headers: headers(app.cookies[persona]) })
+			).text();
 			expect(html.includes(link), persona).toBe(shown);
 		}
 	});

@@ -1,9 +1,8 @@
 // Participants, consent forms and study settings against the built app on a fresh seeded database: personal data
 // by role (pages and JSON), study boundaries, sequential codes with field messages, immutable consent versions.
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { describe, expect, it } from 'vitest';
 import fs from 'node:fs';
-import pg from 'pg';
-import { startApp, type AppUnderTest } from './app-under-test';
+import { browserRequests, useApp } from './app-under-test';
 
 const seed = JSON.parse(fs.readFileSync('seeds/demo/participants.json', 'utf8')) as {
 	studies: Record<string, { participants: { fullName: string; email: string; phone: string | null }[] }>;
@@ -13,36 +12,13 @@ const personalStrings = Object.values(seed.studies).flatMap((s) =>
 	s.participants.flatMap((p) => [p.fullName, p.email, ...(p.phone ? [p.phone] : [])])
 );
 
-let app: AppUnderTest;
-let dbc: pg.Client;
-let studyA: string;
-let studyB: string;
-let ald001: string;
-
-beforeAll(async () => {
-	app = await startApp('participants');
-	dbc = app.sql;
-	({ studyA, studyB } = app.ids);
-	ald001 = app.ids.participantA;
-});
-afterAll(async () => {
-	await app?.close();
-});
-
-const get = (path: string, cookie: string, accept = 'text/html') =>
-	fetch(app.base + path, { headers: { cookie, accept }, redirect: 'manual' });
-const post = (path: string, cookie: string, form: Record<string, string>) =>
-	fetch(app.base + path, {
-		method: 'POST',
-		body: new URLSearchParams(form),
-		redirect: 'manual',
-		headers: { cookie, origin: app.base, accept: 'text/html', 'content-type': 'application/x-www-form-urlencoded' }
-	});
+const app = useApp('participants');
+const { get, post } = browserRequests(app);
 /** The page's data as SvelteKit serves it to client-side navigation. */
 const dataJson = (path: string, cookie: string) => get(`${path.replace(/\/$/, '')}/__data.json`, cookie, '*/*');
 
 describe('personal data by role', () => {
-	const pages = () => [`/studies/${studyA}/participants`, `/studies/${studyA}/participants/${ald001}`];
+	const pages = () => [`/studies/${app.ids.studyA}/participants`, `/studies/${app.ids.studyA}/participants/${app.ids.participantA}`];
 
 	it('researchers see codes but no names, e-mail addresses or phone numbers, in pages and in JSON', async () => {
 		for (const path of pages()) {
@@ -58,38 +34,38 @@ describe('personal data by role', () => {
 
 	it('technicians and the PI see them', async () => {
 		for (const persona of ['technicianA', 'piA'] as const) {
-			const list = await (await get(`/studies/${studyA}/participants`, app.cookies[persona])).text();
+			const list = await (await get(`/studies/${app.ids.studyA}/participants`, app.cookies[persona])).text();
 			for (const p of shelfPeople) {
 				expect(list).toContain(p.fullName);
 				expect(list).toContain(p.email);
 			}
-			const one = await (await get(`/studies/${studyA}/participants/${ald001}`, app.cookies[persona])).text();
+			const one = await (await get(`/studies/${app.ids.studyA}/participants/${app.ids.participantA}`, app.cookies[persona])).text();
 			expect(one).toContain(shelfPeople[0].fullName);
 			expect(one).toContain(shelfPeople[0].phone!);
 		}
 	});
 
 	it('members of another study get 404 for the list and for a participant', async () => {
-		expect((await get(`/studies/${studyA}/participants`, app.cookies.memberB)).status).toBe(404);
-		expect((await get(`/studies/${studyA}/participants/${ald001}`, app.cookies.memberB)).status).toBe(404);
-		expect(await (await dataJson(`/studies/${studyA}/participants/${ald001}`, app.cookies.memberB)).text()).not.toContain(
-			shelfPeople[0].fullName
-		);
+		expect((await get(`/studies/${app.ids.studyA}/participants`, app.cookies.memberB)).status).toBe(404);
+		expect((await get(`/studies/${app.ids.studyA}/participants/${app.ids.participantA}`, app.cookies.memberB)).status).toBe(404);
+		expect(
+			await (await dataJson(`/studies/${app.ids.studyA}/participants/${app.ids.participantA}`, app.cookies.memberB)).text()
+		).not.toContain(shelfPeople[0].fullName);
 		// a participant of study A under study B's URL does not exist there, even for the PI of both
-		expect((await get(`/studies/${studyB}/participants/${ald001}`, app.cookies.piA)).status).toBe(404);
+		expect((await get(`/studies/${app.ids.studyB}/participants/${app.ids.participantA}`, app.cookies.piA)).status).toBe(404);
 	});
 });
 
 describe('the participant list', () => {
 	it('searches by code on the server', async () => {
-		const html = await (await get(`/studies/${studyA}/participants?q=003`, app.cookies.researcherA)).text();
+		const html = await (await get(`/studies/${app.ids.studyA}/participants?q=003`, app.cookies.researcherA)).text();
 		expect(html).toContain('ALD-003');
 		expect(html).not.toContain('ALD-001');
 		// LIKE wildcards are taken literally
-		expect(await (await get(`/studies/${studyA}/participants?q=%25`, app.cookies.researcherA)).text()).not.toContain('ALD-001');
+		expect(await (await get(`/studies/${app.ids.studyA}/participants?q=%25`, app.cookies.researcherA)).text()).not.toContain('ALD-001');
 	});
 	it('sorts by body mass', async () => {
-		const html = await (await get(`/studies/${studyA}/participants?sort=mass&dir=desc`, app.cookies.researcherA)).text();
+		const html = await (await get(`/studies/${app.ids.studyA}/participants?sort=mass&dir=desc`, app.cookies.researcherA)).text();
 		const codes = [...html.matchAll(/>(ALD-\d{3})</g)].map((m) => m[1]);
 		// seeded masses: 002 82.5, 001 64.2, 003 58.9, 004 91.0, 005 70.4
 		expect(codes).toEqual(['ALD-004', 'ALD-002', 'ALD-005', 'ALD-001', 'ALD-003']);
@@ -112,12 +88,12 @@ describe('adding participants', () => {
 	it('issues sequential codes from the study prefix, and keeps personal data apart', async () => {
 		const made: string[] = [];
 		for (const persona of ['technicianA', 'piA'] as const) {
-			const res = await post(`/studies/${studyA}/participants/new`, app.cookies[persona], valid);
+			const res = await post(`/studies/${app.ids.studyA}/participants/new`, app.cookies[persona], valid);
 			expect(res.status).toBe(303);
 			made.push(decodeURIComponent(res.headers.get('location')!.split('added=')[1]));
 		}
 		expect(made).toEqual(['ALD-006', 'ALD-007']);
-		const { rows } = await dbc.query(
+		const { rows } = await app.sql.query(
 			`SELECT p.code, p.body_mass_kg, pp.full_name, pp.email FROM participants p JOIN participant_personal pp ON pp.participant_id = p.id WHERE p.code = 'ALD-006'`
 		);
 		expect(rows[0]).toMatchObject({
@@ -126,15 +102,15 @@ describe('adding participants', () => {
 			full_name: 'Ysolde Brackenridge',
 			email: 'ysolde.brackenridge@example.org'
 		});
-		const audit = await dbc.query(`SELECT details FROM audit_events WHERE action = 'participant.created' ORDER BY id`);
+		const audit = await app.sql.query(`SELECT details FROM audit_events WHERE action = 'participant.created' ORDER BY id`);
 		expect(audit.rows.map((r) => r.details.code)).toEqual(['ALD-006', 'ALD-007']);
 		// the audit row names the personal fields entered, never their values
 		expect(JSON.stringify(audit.rows)).not.toContain('Ysolde');
 	});
 
 	it('answers an invalid form with a message at each field and saves nothing', async () => {
-		const before = (await dbc.query(`SELECT count(*)::int AS n FROM participants`)).rows[0].n;
-		const res = await post(`/studies/${studyA}/participants/new`, app.cookies.technicianA, {
+		const before = (await app.sql.query(`SELECT count(*)::int AS n FROM participants`)).rows[0].n;
+		const res = await post(`/studies/${app.ids.studyA}/participants/new`, app.cookies.technicianA, {
 			...valid,
 			sex: 'unknown',
 			bodyMassKg: '12',
@@ -147,15 +123,15 @@ describe('adding participants', () => {
 		expect(html).toMatch(/data-testid="error-bodyMassKg"[^>]*>body mass must be between 20 and 300 kg \(got 12 kg\)/);
 		expect(html).toMatch(/data-testid="error-statureM"[^>]*>stature must be/);
 		expect(html).toMatch(/data-testid="error-email"[^>]*>Enter an e-mail address/);
-		expect((await dbc.query(`SELECT count(*)::int AS n FROM participants`)).rows[0].n).toBe(before);
+		expect((await app.sql.query(`SELECT count(*)::int AS n FROM participants`)).rows[0].n).toBe(before);
 	});
 
 	it('refuses researchers', async () => {
-		expect((await post(`/studies/${studyA}/participants/new`, app.cookies.researcherA, valid)).status).toBe(403);
+		expect((await post(`/studies/${app.ids.studyA}/participants/new`, app.cookies.researcherA, valid)).status).toBe(403);
 	});
 
 	it('keeps the history of segment lengths; the latest is used', async () => {
-		const path = `/studies/${studyA}/participants/${ald001}?/length`;
+		const path = `/studies/${app.ids.studyA}/participants/${app.ids.participantA}?/length`;
 		expect(
 			(await post(path, app.cookies.technicianA, { segment: 'right.forearm', lengthM: '0.262', measuredOn: '2026-10-01' })).status
 		).toBe(303);
@@ -165,7 +141,7 @@ describe('adding participants', () => {
 		const bad = await post(path, app.cookies.technicianA, { segment: 'right.forearm', lengthM: '26.5', measuredOn: '2026-11-01' });
 		expect(bad.status).toBe(400);
 		expect(await bad.text()).toContain('between 0.02 and 1.2 m');
-		const html = await (await get(`/studies/${studyA}/participants/${ald001}`, app.cookies.researcherA)).text();
+		const html = await (await get(`/studies/${app.ids.studyA}/participants/${app.ids.participantA}`, app.cookies.researcherA)).text();
 		expect(html).toMatch(/0\.265<\/td>\s*<td[^>]*>2026-11-01<\/td>\s*<td[^>]*>✓ latest/);
 		expect(html).toMatch(/0\.262<\/td>\s*<td[^>]*>2026-10-01<\/td>\s*<td[^>]*>earlier/);
 	});
@@ -173,13 +149,17 @@ describe('adding participants', () => {
 
 describe('correcting personal data', () => {
 	it('technicians correct it; the audit names the fields, not the values; researchers are refused', async () => {
-		const path = `/studies/${studyA}/participants/${ald001}?/personal`;
+		const path = `/studies/${app.ids.studyA}/participants/${app.ids.participantA}?/personal`;
 		const res = await post(path, app.cookies.technicianA, { fullName: shelfPeople[0].fullName, email: 'lena.v@example.org', phone: '' });
 		expect(res.status).toBe(303);
-		const row = (await dbc.query(`SELECT full_name, email, phone FROM participant_personal WHERE participant_id = $1`, [ald001])).rows[0];
+		const row = (
+			await app.sql.query(`SELECT full_name, email, phone FROM participant_personal WHERE participant_id = $1`, [app.ids.participantA])
+		).rows[0];
 		expect(row).toEqual({ full_name: shelfPeople[0].fullName, email: 'lena.v@example.org', phone: null });
 		const audit = (
-			await dbc.query(`SELECT details FROM audit_events WHERE action = 'participant.personal.changed' AND record_id = $1`, [ald001])
+			await app.sql.query(`SELECT details FROM audit_events WHERE action = 'participant.personal.changed' AND record_id = $1`, [
+				app.ids.participantA
+			])
 		).rows;
 		expect(audit.map((a) => a.details.changed)).toEqual([['email', 'phone']]);
 		expect(JSON.stringify(audit)).not.toContain('lena.v@');
@@ -191,22 +171,22 @@ describe('correcting personal data', () => {
 });
 
 describe('consent form versions', () => {
-	const path = () => `/studies/${studyA}/consent-forms?/publish`;
+	const path = () => `/studies/${app.ids.studyA}/consent-forms?/publish`;
 
 	it('publishes a new version without changing the earlier one, and shows HTML in the source as text', async () => {
-		const v1 = (await dbc.query(`SELECT * FROM consent_form_versions WHERE study_id = $1 AND version = 1`, [studyA])).rows[0];
+		const v1 = (await app.sql.query(`SELECT * FROM consent_form_versions WHERE study_id = $1 AND version = 1`, [app.ids.studyA])).rows[0];
 		const res = await post(path(), app.cookies.piA, {
 			bodyMarkdown: '# Version two\n\nNew wording. <script>alert("consent")</script>',
 			confirmations: 'I have read it.\n\n  I agree.  \n'
 		});
 		expect(res.status).toBe(303);
 		expect(res.headers.get('location')).toContain('published=2');
-		const rows = (await dbc.query(`SELECT * FROM consent_form_versions WHERE study_id = $1 ORDER BY version`, [studyA])).rows;
+		const rows = (await app.sql.query(`SELECT * FROM consent_form_versions WHERE study_id = $1 ORDER BY version`, [app.ids.studyA])).rows;
 		expect(rows.map((r) => r.version)).toEqual([1, 2]);
 		expect(rows[0]).toEqual(v1);
 		expect(rows[1].confirmations).toEqual(['I have read it.', 'I agree.']);
 
-		const html = await (await get(`/studies/${studyA}/consent-forms`, app.cookies.researcherA)).text();
+		const html = await (await get(`/studies/${app.ids.studyA}/consent-forms`, app.cookies.researcherA)).text();
 		expect(html).toContain('<h1>Version two</h1>');
 		expect(html).toContain('&lt;script&gt;alert(');
 		expect(html).not.toContain('<script>alert("consent")');
@@ -226,30 +206,32 @@ describe('consent form versions', () => {
 describe('study settings', () => {
 	it('the PI changes ethics reference, expiry and default table; the change is audited and the banner follows', async () => {
 		const soon = new Date(Date.now() + 10 * 86_400_000).toISOString().slice(0, 10);
-		const res = await post(`/studies/${studyA}/settings`, app.cookies.piA, {
+		const res = await post(`/studies/${app.ids.studyA}/settings`, app.cookies.piA, {
 			ethicsReference: 'ACU-HREC-2026-041a',
 			ethicsExpiresOn: soon,
 			defaultTable: 'zatsiorsky-regression-2002'
 		});
 		expect(res.status).toBe(303);
-		const html = await (await get(`/studies/${studyA}`, app.cookies.researcherA)).text();
+		const html = await (await get(`/studies/${app.ids.studyA}`, app.cookies.researcherA)).text();
 		expect(html).toContain('ACU-HREC-2026-041a');
 		expect(html).toContain('data-state="expiring"');
 		expect(html).toContain('zatsiorsky-regression-2002');
-		const audit = await dbc.query(`SELECT details FROM audit_events WHERE action = 'study.settings.changed' AND study_id = $1`, [studyA]);
+		const audit = await app.sql.query(`SELECT details FROM audit_events WHERE action = 'study.settings.changed' AND study_id = $1`, [
+			app.ids.studyA
+		]);
 		expect(audit.rows[0].details.before.ethicsReference).toBe('ACU-HREC-2026-041');
 
 		const past = new Date(Date.now() - 2 * 86_400_000).toISOString().slice(0, 10);
-		await post(`/studies/${studyA}/settings`, app.cookies.piA, {
+		await post(`/studies/${app.ids.studyA}/settings`, app.cookies.piA, {
 			ethicsReference: 'ACU-HREC-2026-041a',
 			ethicsExpiresOn: past,
 			defaultTable: 'de-leva-1996'
 		});
-		expect(await (await get(`/studies/${studyA}`, app.cookies.piA)).text()).toContain('Ethics approval expired');
+		expect(await (await get(`/studies/${app.ids.studyA}`, app.cookies.piA)).text()).toContain('Ethics approval expired');
 	});
 
 	it('answers invalid values with field messages', async () => {
-		const res = await post(`/studies/${studyA}/settings`, app.cookies.piA, {
+		const res = await post(`/studies/${app.ids.studyA}/settings`, app.cookies.piA, {
 			ethicsReference: 'x',
 			ethicsExpiresOn: '31.12.2027',
 			defaultTable: 'my-table'
@@ -263,9 +245,12 @@ describe('study settings', () => {
 
 describe('segment model page', () => {
 	it('scales the participant with the chosen table, uses measured lengths, and shows no personal data', async () => {
-		const res = await fetch(`${app.base}/studies/${studyA}/participants/${ald001}/model?table=dempster-winter-2009&limb=right.leg`, {
-			headers: { cookie: app.cookies.researcherA }
-		});
+		const res = await fetch(
+			`${app.base}/studies/${app.ids.studyA}/participants/${app.ids.participantA}/model?table=dempster-winter-2009&limb=right.leg`,
+			{
+				headers: { cookie: app.cookies.researcherA }
+			}
+		);
 		expect(res.status).toBe(200);
 		const html = await res.text();
 		expect(html).toContain('Dempster (1955), as tabulated by Winter (2009)');
