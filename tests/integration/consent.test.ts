@@ -82,6 +82,12 @@ const consentPath = (pid: string) => `/studies/${studyA}/participants/${pid}/con
 async function invite(pid: string, action: 'invite' | 'resend' | 'remind' = 'invite', cookie = app.cookies.technicianA) {
 	return post(`${consentPath(pid)}?/${action}`, {}, cookie);
 }
+/** A new participant with an e-mail address, invited: the participant and the token of the consent link mailed to them. */
+async function invitedParticipant(address: string) {
+	const p = await newParticipant(address);
+	await invite(p.id);
+	return { p, token: linkIn(await nthMail(address, 1), 'consent') };
+}
 async function formVersionIds(): Promise<{ id: string; version: number }[]> {
 	return (await app.sql.query(`SELECT id, version FROM consent_form_versions WHERE study_id = $1 ORDER BY version`, [studyA])).rows;
 }
@@ -204,9 +210,7 @@ describe('invitations', () => {
 describe('the consent link', () => {
 	it('shows the study, its ethics reference, whom to contact, the current form and its confirmations, without an account', async () => {
 		const address = 'reader@example.org';
-		const p = await newParticipant(address);
-		await invite(p.id);
-		const token = linkIn(await nthMail(address, 1), 'consent');
+		const { p, token } = await invitedParticipant(address);
 		const res = await get(`/consent/${token}`);
 		expect(res.status).toBe(200);
 		expect(res.headers.get('cache-control')).toBe('no-store');
@@ -223,10 +227,8 @@ describe('the consent link', () => {
 
 	it('records consent once: a reused link is refused, a wrong participant is refused, missing answers are refused with field messages', async () => {
 		const address = 'giver@example.org';
-		const p = await newParticipant(address);
+		const { p, token } = await invitedParticipant(address);
 		const other = await newParticipant('someone.else@example.org');
-		await invite(p.id);
-		const token = linkIn(await nthMail(address, 1), 'consent');
 		const [v1] = await formVersionIds();
 
 		// the form carries the participant it was shown for: another participant's id is refused, nothing recorded
@@ -279,9 +281,7 @@ describe('the consent link', () => {
 
 	it('refuses an expired link calmly, with the study contact, and shows the participant as "expired"', async () => {
 		const address = 'late@example.org';
-		const p = await newParticipant(address);
-		await invite(p.id);
-		const token = linkIn(await nthMail(address, 1), 'consent');
+		const { p, token } = await invitedParticipant(address);
 		const [v1] = await formVersionIds();
 		// 14 days pass
 		await app.sql.query(
@@ -306,9 +306,7 @@ describe('the consent link', () => {
 
 	it('records the version that was shown: a version published after the page was shown is refused, asking to read again', async () => {
 		const address = 'version.reader@example.org';
-		const p = await newParticipant(address);
-		await invite(p.id);
-		const token = linkIn(await nthMail(address, 1), 'consent');
+		const { p, token } = await invitedParticipant(address);
 		const shown = await (await get(`/consent/${token}`)).text();
 		const [v1] = await formVersionIds();
 		expect(shown).toContain(`value="${v1.id}"`);
@@ -350,9 +348,7 @@ describe('the consent link', () => {
 
 	it('lets the participant decline from the same page; the decision is kept and confirmed by e-mail', async () => {
 		const address = 'decliner@example.org';
-		const p = await newParticipant(address);
-		await invite(p.id);
-		const token = linkIn(await nthMail(address, 1), 'consent');
+		const { p, token } = await invitedParticipant(address);
 		const current = (await formVersionIds()).at(-1)!;
 		const res = await post(`/consent/${token}?/decline`, { participantId: p.id, formVersionId: current.id });
 		expect(res.status).toBe(200);
@@ -366,9 +362,7 @@ describe('the consent link', () => {
 describe('withdrawal', () => {
 	it('stops new work at once, flags existing runs for the PI (never deleted), and the PI decides per run', async () => {
 		const address = 'withdrawer@example.org';
-		const p = await newParticipant(address);
-		await invite(p.id);
-		const token = linkIn(await nthMail(address, 1), 'consent');
+		const { p, token } = await invitedParticipant(address);
 		const current = (await formVersionIds()).at(-1)!;
 		const { requireValidConsent } = await import('../../src/lib/server/consent/check');
 		// before consent: refused with a message naming the participant and the state
