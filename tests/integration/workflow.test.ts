@@ -32,6 +32,13 @@ const transitions = async (sid = app.ids.sessionA) =>
 		)
 	).rows;
 
+/** The step went through (303): the session is now in `to`, and the last history row says so, with `row`'s fields. */
+async function expectMoved(r: { status: number; text: string }, from: string, to: string, row: Record<string, unknown> = {}) {
+	expect(r.status, r.text.slice(0, 300)).toBe(303);
+	expect(await state()).toBe(to);
+	expect((await transitions()).at(-1)).toMatchObject({ from_state: from, to_state: to, ...row });
+}
+
 /** How the history names a person: their name, else their e-mail. */
 const labelOf = async (p: 'piA' | 'researcherA') =>
 	(
@@ -127,15 +134,7 @@ describe('the review workflow', () => {
 
 	it('submit: the researcher submits; the PI is e-mailed a link', async () => {
 		const r = await post('researcherA', 'submit', NOTE);
-		expect(r.status, r.text.slice(0, 300)).toBe(303);
-		expect(await state()).toBe('in_review');
-		expect((await transitions()).at(-1)).toMatchObject({
-			from_state: 'draft',
-			to_state: 'in_review',
-			note: NOTE.note,
-			signature_meaning: null,
-			actor_label: await labelOf('researcherA')
-		});
+		await expectMoved(r, 'draft', 'in_review', { note: NOTE.note, signature_meaning: null, actor_label: await labelOf('researcherA') });
 		const mail = await nextMail(PERSONAS.piA, /For your approval/);
 		expect(mail.text).toContain(`${app.base}${pagePath()}`);
 		expect(mail.text).toContain('ALD-001');
@@ -192,11 +191,7 @@ describe('the review workflow', () => {
 		expect(await state()).toBe('in_review');
 
 		const ok = await post('piA', 'approve', SIGN);
-		expect(ok.status, ok.text.slice(0, 300)).toBe(303);
-		expect(await state()).toBe('approved');
-		expect((await transitions()).at(-1)).toMatchObject({
-			from_state: 'in_review',
-			to_state: 'approved',
+		await expectMoved(ok, 'in_review', 'approved', {
 			signature_meaning: 'approved for analysis',
 			signature_method: 'password',
 			actor_label: await labelOf('piA')
@@ -219,9 +214,7 @@ describe('the review workflow', () => {
 		expect((await post('piA', 'reopen', { confirm: 'yes' })).status).toBe(400);
 		expect(await state()).toBe('approved');
 		const r = await post('piA', 'reopen', REASON);
-		expect(r.status).toBe(303);
-		expect(await state()).toBe('returned');
-		expect((await transitions()).at(-1)).toMatchObject({ from_state: 'approved', to_state: 'returned', note: REASON.reason });
+		await expectMoved(r, 'approved', 'returned', { note: REASON.reason });
 	});
 });
 
