@@ -1,4 +1,4 @@
-// Shared steps for the end-to-end tests: the demo password, reading maildev's inbox, the password form.
+// Shared steps for the end-to-end tests: the demo password, reading maildev's inbox, the two sign-in forms.
 import { expect, type Page } from '@playwright/test';
 
 export const PASSWORD = 'momentry-demo-2026';
@@ -39,6 +39,15 @@ export async function passwordSignIn(page: Page, email: string, password: string
 	await form.getByLabel('E-mail address').fill(email);
 	await form.getByLabel('Password').fill(password);
 	await form.getByRole('button', { name: 'Sign in' }).click();
+}
+
+/** Asks for an e-mailed sign-in link on /signin and waits for the "Check your e-mail" page. */
+export async function askForSignInLink(page: Page, email: string): Promise<void> {
+	await page.goto('/signin');
+	const form = page.locator('form', { has: page.getByRole('heading', { name: 'E-mail me a sign-in link' }) });
+	await form.getByLabel('E-mail address').fill(email);
+	await form.getByRole('button', { name: 'Send link' }).click();
+	await expect(page.getByRole('heading', { name: 'Check your e-mail' })).toBeVisible();
 }
 
 /** The demo technician signs in and opens the participants of the shelving-reach study. */

@@ -1,6 +1,6 @@
 // Signing in and out in Chromium: password, e-mailed link read from maildev's HTTP API, and the failure messages.
 import { test, expect } from '@playwright/test';
-import { PASSWORD, mailTo, passwordSignIn } from './helpers';
+import { PASSWORD, askForSignInLink, mailTo, passwordSignIn } from './helpers';
 
 test('sign in with a password, then sign out', async ({ page }) => {
 	await passwordSignIn(page, 'pi@alder-creek.example', PASSWORD);
@@ -24,11 +24,7 @@ test('a wrong password is refused without saying whether the account exists', as
 
 test('sign in through the e-mailed link, which works only once', async ({ page, browser }) => {
 	const since = Date.now();
-	await page.goto('/signin');
-	const form = page.locator('form', { has: page.getByRole('heading', { name: 'E-mail me a sign-in link' }) });
-	await form.getByLabel('E-mail address').fill('researcher@alder-creek.example');
-	await form.getByRole('button', { name: 'Send link' }).click();
-	await expect(page.getByRole('heading', { name: 'Check your e-mail' })).toBeVisible();
+	await askForSignInLink(page, 'researcher@alder-creek.example');
 	const mail = await mailTo('researcher@alder-creek.example', since);
 	expect(mail).not.toBeNull();
 	const link = mail!.text.match(/https?:\/\/\S+/)![0];
@@ -46,10 +42,6 @@ test('sign in through the e-mailed link, which works only once', async ({ page, 
 
 test('asking a link for an unknown address looks the same and sends nothing', async ({ page }) => {
 	const since = Date.now();
-	await page.goto('/signin');
-	const form = page.locator('form', { has: page.getByRole('heading', { name: 'E-mail me a sign-in link' }) });
-	await form.getByLabel('E-mail address').fill('stranger@alder-creek.example');
-	await form.getByRole('button', { name: 'Send link' }).click();
-	await expect(page.getByRole('heading', { name: 'Check your e-mail' })).toBeVisible();
+	await askForSignInLink(page, 'stranger@alder-creek.example');
 	expect(await mailTo('stranger@alder-creek.example', since, 2_000)).toBeNull();
 });
