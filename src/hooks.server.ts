@@ -67,7 +67,7 @@ export function gzipLargeJson(request: Request, response: Response, threshold = 
 	headers.delete('content-length');
 	headers.set('content-encoding', 'gzip');
 	headers.append('vary', 'accept-encoding');
-	const body = response.body.pipeThrough(new CompressionStream('gzip') as unknown as ReadableWritablePair<Uint8Array, Uint8Array>);
+	const body = response.body.pipeThrough(new CompressionStream('gzip'));
 	return new Response(body, { status: response.status, statusText: response.statusText, headers });
 }
 

@@ -8,7 +8,7 @@ import { runOptionsSchema, runPipeline } from '../lib/processing/pipeline';
 import type { Recording } from '../lib/processing/recording';
 import { simulateRecording, type SimulatedRecording } from '../lib/processing/simulate-recording';
 
-const file = participants as unknown as DemoParticipantsFile;
+const file: DemoParticipantsFile = participants;
 const NOISE_DEG = 0.15;
 const SEEDS = [1, 2, 3, 4, 5];
 const defaultCutoff = runOptionsSchema.parse({}).cutoffHz;
