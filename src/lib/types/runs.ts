@@ -4,6 +4,9 @@ import type { EdgeZoneView } from '../processing/zone-exclusion';
 
 export type RunState = 'queued' | 'running' | 'done' | 'failed';
 
+/** A run's options as stored: runs made before end treatments existed name none (they used the 9-sample reflection). */
+export type StoredRunOptions = Omit<RunOptions, 'endTreatment'> & Partial<Pick<RunOptions, 'endTreatment'>>;
+
 /** One run as the API and the pages show it. */
 export interface RunView {
 	id: string;
@@ -13,7 +16,7 @@ export interface RunView {
 	state: RunState;
 	progress: number;
 	stage: string | null;
-	options: RunOptions;
+	options: StoredRunOptions;
 	error: string | null;
 	attempts: number;
 	createdAt: string;

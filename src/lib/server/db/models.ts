@@ -1,20 +1,48 @@
-// Model registry: every Sequelize model of the app, registered on one connection by initModels().
+// Model registry: every Sequelize model of the app, registered on one connection by initModels(). A model is its class
+// (the typed attributes) and its columns (below the classes, in the words of the column helpers); JSON columns are
+// read back through their zod schemas, so services get typed values.
 import {
 	DataTypes,
 	Model,
+	type Attributes,
 	type CreationOptional,
+	type DataType,
 	type InferAttributes,
 	type InferCreationAttributes,
+	type ModelAttributeColumnOptions,
+	type ModelAttributes,
+	type ModelStatic,
 	type NonAttribute,
 	type Sequelize
 } from 'sequelize';
+import { z } from 'zod';
 import type { StudyRole } from '../../types/studies';
-import type { RunOptions, SummaryRow } from '../../processing/pipeline';
+import type { RunState, StoredRunOptions } from '../../types/runs';
+import type { SessionState } from '../../types/sessions';
+import type { EventSet } from '../../types/review';
+import type { EdgeZone } from '../../processing/pipeline';
 import { sessionSetupSchema, type SessionSetup } from '../../processing/session-model';
 import { columnMappingSchema, type ColumnMapping } from '../../processing/recording';
+import {
+	modelFieldsSchema,
+	storedEdgeZoneSchema,
+	storedOptionsSchema,
+	storedSummarySchema,
+	type RunModelFields,
+	type StoredSummaryRow
+} from './run-json';
+
+/** A model typed by the attributes its class declares (Sequelize's InferAttributes pattern, written once). */
+abstract class Typed<M extends Model> extends Model<InferAttributes<M>, InferCreationAttributes<M>> {}
+
+/** A row with the key most tables have (a UUID made with the row) and the time it was made. */
+abstract class Keyed<M extends Model> extends Typed<M> {
+	declare id: CreationOptional<string>;
+	declare createdAt: CreationOptional<Date>;
+}
 
 /** The laboratory that runs this installation (one row per lab). */
-export class Lab extends Model<InferAttributes<Lab>, InferCreationAttributes<Lab>> {
+export class Lab extends Typed<Lab> {
 	declare id: CreationOptional<number>;
 	declare slug: string;
 	declare name: string;
@@ -23,7 +51,7 @@ export class Lab extends Model<InferAttributes<Lab>, InferCreationAttributes<Lab
 }
 
 /** One append-only line of the audit log; the database refuses updates and deletes. */
-export class AuditEvent extends Model<InferAttributes<AuditEvent>, InferCreationAttributes<AuditEvent>> {
+export class AuditEvent extends Typed<AuditEvent> {
 	declare id: CreationOptional<string>;
 	declare occurredAt: CreationOptional<Date>;
 	declare actorUserId: string | null;
@@ -37,43 +65,10 @@ export class AuditEvent extends Model<InferAttributes<AuditEvent>, InferCreation
 	declare details: CreationOptional<Record<string, unknown>>;
 }
 
-export function initModels(sequelize: Sequelize): void {
-	Lab.init(
-		{
-			id: { type: DataTypes.INTEGER, primaryKey: true, autoIncrement: true },
-			slug: { type: DataTypes.TEXT, allowNull: false, unique: true },
-			name: { type: DataTypes.TEXT, allowNull: false },
-			institution: { type: DataTypes.TEXT, allowNull: false },
-			createdAt: { type: DataTypes.DATE, allowNull: false, defaultValue: DataTypes.NOW }
-		},
-		{ sequelize, tableName: 'labs', modelName: 'Lab' }
-	);
-
-	AuditEvent.init(
-		{
-			id: { type: DataTypes.BIGINT, primaryKey: true, autoIncrement: true },
-			occurredAt: { type: DataTypes.DATE, allowNull: false, defaultValue: DataTypes.NOW },
-			actorUserId: { type: DataTypes.TEXT, allowNull: true },
-			actorLabel: { type: DataTypes.TEXT, allowNull: false },
-			action: { type: DataTypes.TEXT, allowNull: false },
-			outcome: { type: DataTypes.TEXT, allowNull: false, defaultValue: 'ok' },
-			studyId: { type: DataTypes.TEXT, allowNull: true },
-			recordType: { type: DataTypes.TEXT, allowNull: true },
-			recordId: { type: DataTypes.TEXT, allowNull: true },
-			ipAddress: { type: DataTypes.TEXT, allowNull: true },
-			details: { type: DataTypes.JSONB, allowNull: false, defaultValue: {} }
-		},
-		{ sequelize, tableName: 'audit_events', modelName: 'AuditEvent' }
-	);
-	initPeopleModels(sequelize);
-	initSessionModels(sequelize);
-}
-
-export type { StudyRole };
+export type { RunState, SessionState, StudyRole };
 
 /** A person who signs in (never a participant). Columns beyond Auth.js' are ours. */
-export class User extends Model<InferAttributes<User>, InferCreationAttributes<User>> {
-	declare id: CreationOptional<string>;
+export class User extends Keyed<User> {
 	declare name: string | null;
 	declare email: string;
 	declare emailVerified: Date | null;
@@ -82,13 +77,11 @@ export class User extends Model<InferAttributes<User>, InferCreationAttributes<U
 	declare isAdmin: CreationOptional<boolean>;
 	declare deactivatedAt: CreationOptional<Date | null>;
 	declare sessionVersion: CreationOptional<number>;
-	declare createdAt: CreationOptional<Date>;
 	/** Present when a query includes StudyMember. */
 	declare StudyMembers?: NonAttribute<StudyMember[]>;
 }
 
-export class Study extends Model<InferAttributes<Study>, InferCreationAttributes<Study>> {
-	declare id: CreationOptional<string>;
+export class Study extends Keyed<Study> {
 	declare code: string;
 	declare title: string;
 	declare ethicsReference: CreationOptional<string | null>;
@@ -97,13 +90,12 @@ export class Study extends Model<InferAttributes<Study>, InferCreationAttributes
 	declare defaultTable: CreationOptional<'dempster-winter-2009' | 'de-leva-1996' | 'zatsiorsky-regression-2002'>;
 	declare participantPrefix: CreationOptional<string | null>;
 	declare nextParticipantNumber: CreationOptional<number>;
-	declare createdAt: CreationOptional<Date>;
 	/** Present when a query includes StudyMember. */
 	declare StudyMembers?: NonAttribute<StudyMember[]>;
 }
 
 /** One published consent form of a study; never changed after publishing (a change is a new version). */
-export class ConsentFormVersion extends Model<InferAttributes<ConsentFormVersion>, InferCreationAttributes<ConsentFormVersion>> {
+export class ConsentFormVersion extends Typed<ConsentFormVersion> {
 	declare id: CreationOptional<string>;
 	declare studyId: string;
 	declare version: number;
@@ -116,8 +108,7 @@ export class ConsentFormVersion extends Model<InferAttributes<ConsentFormVersion
 export type Sex = 'female' | 'male' | 'not reported';
 
 /** A participant's research record: pseudonymous code and body data (no personal data here). */
-export class Participant extends Model<InferAttributes<Participant>, InferCreationAttributes<Participant>> {
-	declare id: CreationOptional<string>;
+export class Participant extends Keyed<Participant> {
 	declare studyId: string;
 	declare code: string;
 	declare sex: Sex;
@@ -126,11 +117,10 @@ export class Participant extends Model<InferAttributes<Participant>, InferCreati
 	declare statureM: number;
 	declare dominantSide: 'left' | 'right' | null;
 	declare notes: string | null;
-	declare createdAt: CreationOptional<Date>;
 }
 
 /** A participant's personal data, kept apart so that research reads never touch it. */
-export class ParticipantPersonal extends Model<InferAttributes<ParticipantPersonal>, InferCreationAttributes<ParticipantPersonal>> {
+export class ParticipantPersonal extends Typed<ParticipantPersonal> {
 	declare participantId: string;
 	declare fullName: string | null;
 	declare email: string | null;
@@ -138,17 +128,15 @@ export class ParticipantPersonal extends Model<InferAttributes<ParticipantPerson
 }
 
 /** One measurement of one segment's length; the history is kept, the latest per segment is used. */
-export class ParticipantLength extends Model<InferAttributes<ParticipantLength>, InferCreationAttributes<ParticipantLength>> {
-	declare id: CreationOptional<string>;
+export class ParticipantLength extends Keyed<ParticipantLength> {
 	declare participantId: string;
 	declare segment: string;
 	declare lengthM: number;
 	/** ISO date (YYYY-MM-DD). */
 	declare measuredOn: string;
-	declare createdAt: CreationOptional<Date>;
 }
 
-export class StudyMember extends Model<InferAttributes<StudyMember>, InferCreationAttributes<StudyMember>> {
+export class StudyMember extends Typed<StudyMember> {
 	declare studyId: string;
 	declare userId: string;
 	declare role: StudyRole;
@@ -158,143 +146,25 @@ export class StudyMember extends Model<InferAttributes<StudyMember>, InferCreati
 	declare Study?: NonAttribute<Study>;
 }
 
-export class OneTimeToken extends Model<InferAttributes<OneTimeToken>, InferCreationAttributes<OneTimeToken>> {
-	declare id: CreationOptional<string>;
+export class OneTimeToken extends Keyed<OneTimeToken> {
 	declare purpose: 'invitation' | 'password-reset';
 	declare tokenHash: string;
 	declare userId: string;
 	declare expiresAt: Date;
 	declare usedAt: CreationOptional<Date | null>;
-	declare createdAt: CreationOptional<Date>;
 }
 
-export class SignInFailure extends Model<InferAttributes<SignInFailure>, InferCreationAttributes<SignInFailure>> {
+export class SignInFailure extends Typed<SignInFailure> {
 	declare id: CreationOptional<string>;
 	declare email: string | null;
 	declare ipAddress: string | null;
 	declare occurredAt: CreationOptional<Date>;
 }
 
-export function initPeopleModels(sequelize: Sequelize): void {
-	User.init(
-		{
-			id: { type: DataTypes.UUID, primaryKey: true, defaultValue: DataTypes.UUIDV4 },
-			name: { type: DataTypes.TEXT, allowNull: true },
-			email: { type: DataTypes.TEXT, allowNull: false, unique: true },
-			emailVerified: { type: DataTypes.DATE, allowNull: true },
-			image: { type: DataTypes.TEXT, allowNull: true },
-			passwordHash: { type: DataTypes.TEXT, allowNull: true },
-			isAdmin: { type: DataTypes.BOOLEAN, allowNull: false, defaultValue: false },
-			deactivatedAt: { type: DataTypes.DATE, allowNull: true },
-			sessionVersion: { type: DataTypes.INTEGER, allowNull: false, defaultValue: 0 },
-			createdAt: { type: DataTypes.DATE, allowNull: false, defaultValue: DataTypes.NOW }
-		},
-		{ sequelize, tableName: 'users', modelName: 'user' }
-	);
-	Study.init(
-		{
-			id: { type: DataTypes.UUID, primaryKey: true, defaultValue: DataTypes.UUIDV4 },
-			code: { type: DataTypes.TEXT, allowNull: false, unique: true },
-			title: { type: DataTypes.TEXT, allowNull: false },
-			ethicsReference: { type: DataTypes.TEXT, allowNull: true },
-			ethicsExpiresOn: { type: DataTypes.DATEONLY, allowNull: true },
-			defaultTable: { type: DataTypes.TEXT, allowNull: false, defaultValue: 'de-leva-1996' },
-			participantPrefix: { type: DataTypes.TEXT, allowNull: true },
-			nextParticipantNumber: { type: DataTypes.INTEGER, allowNull: false, defaultValue: 1 },
-			createdAt: { type: DataTypes.DATE, allowNull: false, defaultValue: DataTypes.NOW }
-		},
-		{ sequelize, tableName: 'studies', modelName: 'Study' }
-	);
-	ConsentFormVersion.init(
-		{
-			id: { type: DataTypes.UUID, primaryKey: true, defaultValue: DataTypes.UUIDV4 },
-			studyId: { type: DataTypes.UUID, allowNull: false },
-			version: { type: DataTypes.INTEGER, allowNull: false },
-			bodyMarkdown: { type: DataTypes.TEXT, allowNull: false },
-			confirmations: { type: DataTypes.JSONB, allowNull: false, defaultValue: [] },
-			publishedAt: { type: DataTypes.DATE, allowNull: false, defaultValue: DataTypes.NOW },
-			publishedBy: { type: DataTypes.UUID, allowNull: true }
-		},
-		{ sequelize, tableName: 'consent_form_versions', modelName: 'ConsentFormVersion' }
-	);
-	Participant.init(
-		{
-			id: { type: DataTypes.UUID, primaryKey: true, defaultValue: DataTypes.UUIDV4 },
-			studyId: { type: DataTypes.UUID, allowNull: false },
-			code: { type: DataTypes.TEXT, allowNull: false, unique: true },
-			sex: { type: DataTypes.TEXT, allowNull: false },
-			birthYear: { type: DataTypes.INTEGER, allowNull: true },
-			bodyMassKg: { type: DataTypes.DOUBLE, allowNull: false },
-			statureM: { type: DataTypes.DOUBLE, allowNull: false },
-			dominantSide: { type: DataTypes.TEXT, allowNull: true },
-			notes: { type: DataTypes.TEXT, allowNull: true },
-			createdAt: { type: DataTypes.DATE, allowNull: false, defaultValue: DataTypes.NOW }
-		},
-		{ sequelize, tableName: 'participants', modelName: 'Participant' }
-	);
-	ParticipantPersonal.init(
-		{
-			participantId: { type: DataTypes.UUID, primaryKey: true },
-			fullName: { type: DataTypes.TEXT, allowNull: true },
-			email: { type: DataTypes.TEXT, allowNull: true },
-			phone: { type: DataTypes.TEXT, allowNull: true }
-		},
-		{ sequelize, tableName: 'participant_personal', modelName: 'ParticipantPersonal' }
-	);
-	ParticipantLength.init(
-		{
-			id: { type: DataTypes.UUID, primaryKey: true, defaultValue: DataTypes.UUIDV4 },
-			participantId: { type: DataTypes.UUID, allowNull: false },
-			segment: { type: DataTypes.TEXT, allowNull: false },
-			lengthM: { type: DataTypes.DOUBLE, allowNull: false },
-			measuredOn: { type: DataTypes.DATEONLY, allowNull: false },
-			createdAt: { type: DataTypes.DATE, allowNull: false, defaultValue: DataTypes.NOW }
-		},
-		{ sequelize, tableName: 'participant_lengths', modelName: 'ParticipantLength' }
-	);
-	StudyMember.init(
-		{
-			studyId: { type: DataTypes.UUID, primaryKey: true },
-			userId: { type: DataTypes.UUID, primaryKey: true },
-			role: { type: DataTypes.TEXT, allowNull: false },
-			createdAt: { type: DataTypes.DATE, allowNull: false, defaultValue: DataTypes.NOW }
-		},
-		{ sequelize, tableName: 'study_members', modelName: 'StudyMember' }
-	);
-	OneTimeToken.init(
-		{
-			id: { type: DataTypes.UUID, primaryKey: true, defaultValue: DataTypes.UUIDV4 },
-			purpose: { type: DataTypes.TEXT, allowNull: false },
-			tokenHash: { type: DataTypes.TEXT, allowNull: false, unique: true },
-			userId: { type: DataTypes.UUID, allowNull: false },
-			expiresAt: { type: DataTypes.DATE, allowNull: false },
-			usedAt: { type: DataTypes.DATE, allowNull: true },
-			createdAt: { type: DataTypes.DATE, allowNull: false, defaultValue: DataTypes.NOW }
-		},
-		{ sequelize, tableName: 'one_time_tokens', modelName: 'OneTimeToken' }
-	);
-	SignInFailure.init(
-		{
-			id: { type: DataTypes.BIGINT, primaryKey: true, autoIncrement: true },
-			email: { type: DataTypes.TEXT, allowNull: true },
-			ipAddress: { type: DataTypes.TEXT, allowNull: true },
-			occurredAt: { type: DataTypes.DATE, allowNull: false, defaultValue: DataTypes.NOW }
-		},
-		{ sequelize, tableName: 'sign_in_failures', modelName: 'SignInFailure' }
-	);
-	StudyMember.belongsTo(User, { foreignKey: 'userId' });
-	StudyMember.belongsTo(Study, { foreignKey: 'studyId' });
-	User.hasMany(StudyMember, { foreignKey: 'userId' });
-	Study.hasMany(StudyMember, { foreignKey: 'studyId' });
-}
-
 // ---- sessions, raw uploads, trials, mapping presets, runs (migration 0005) ----
 
-export type SessionState = 'draft' | 'in_review' | 'returned' | 'approved';
-
 /** One visit of a participant: date, operator, task, conditions and the model set-up (a SessionSetup). */
-export class Session extends Model<InferAttributes<Session>, InferCreationAttributes<Session>> {
-	declare id: CreationOptional<string>;
+export class Session extends Keyed<Session> {
 	declare studyId: string;
 	declare participantId: string;
 	/** ISO date (YYYY-MM-DD). */
@@ -306,12 +176,11 @@ export class Session extends Model<InferAttributes<Session>, InferCreationAttrib
 	declare setup: SessionSetup;
 	declare state: CreationOptional<SessionState>;
 	declare createdBy: string | null;
-	declare createdAt: CreationOptional<Date>;
 	declare updatedAt: CreationOptional<Date>;
 }
 
 /** The bytes of one uploaded file as received; the chunks live in raw_upload_chunks. */
-export class RawUpload extends Model<InferAttributes<RawUpload>, InferCreationAttributes<RawUpload>> {
+export class RawUpload extends Typed<RawUpload> {
 	declare id: CreationOptional<string>;
 	declare sha256: string;
 	/** BIGINT: pg hands it back as a string. */
@@ -322,15 +191,14 @@ export class RawUpload extends Model<InferAttributes<RawUpload>, InferCreationAt
 	declare uploadedAt: CreationOptional<Date>;
 }
 
-export class RawUploadChunk extends Model<InferAttributes<RawUploadChunk>, InferCreationAttributes<RawUploadChunk>> {
+export class RawUploadChunk extends Typed<RawUploadChunk> {
 	declare uploadId: string;
 	declare seq: number;
 	declare bytes: Buffer;
 }
 
 /** One uploaded recording of a session, with what parsing found in it. */
-export class Trial extends Model<InferAttributes<Trial>, InferCreationAttributes<Trial>> {
-	declare id: CreationOptional<string>;
+export class Trial extends Keyed<Trial> {
 	declare sessionId: string;
 	declare rawUploadId: string;
 	declare fileName: string;
@@ -343,54 +211,53 @@ export class Trial extends Model<InferAttributes<Trial>, InferCreationAttributes
 	declare channels: string[];
 	declare warnings: CreationOptional<unknown[]>;
 	declare createdBy: string | null;
-	declare createdAt: CreationOptional<Date>;
 }
 
 /** A saved column mapping a study reuses for files from another system. */
-export class MappingPreset extends Model<InferAttributes<MappingPreset>, InferCreationAttributes<MappingPreset>> {
-	declare id: CreationOptional<string>;
+export class MappingPreset extends Keyed<MappingPreset> {
 	declare studyId: string;
 	declare name: string;
 	/** Parsed with the column mapping's schema when it is read (recording.ts). */
 	declare mapping: ColumnMapping;
 	declare createdBy: string | null;
-	declare createdAt: CreationOptional<Date>;
 }
 
-export type RunState = 'queued' | 'running' | 'done' | 'failed';
-
 /** One processing of a trial with stated options; reruns add runs. */
-export class Run extends Model<InferAttributes<Run>, InferCreationAttributes<Run>> {
-	declare id: CreationOptional<string>;
+export class Run extends Keyed<Run> {
 	declare trialId: string;
 	declare state: CreationOptional<RunState>;
 	declare progress: CreationOptional<number>;
 	declare stage: CreationOptional<string | null>;
-	/** The run's options as validated when it was started (read back through storedRunOptions for processing). */
-	declare options: CreationOptional<RunOptions>;
+	/** The run's options as validated when it was started (processing reads them back through storedRunOptions). */
+	declare options: CreationOptional<StoredRunOptions>;
+	/** What the run used (the model record of compute.ts), kept and shown as stored; `modelFields` reads it. */
 	declare model: CreationOptional<Record<string, unknown> | null>;
 	declare rawSha256: string;
 	declare softwareVersion: string;
 	declare error: CreationOptional<string | null>;
 	declare attempts: CreationOptional<number>;
 	declare createdBy: string | null;
-	declare createdAt: CreationOptional<Date>;
 	declare startedAt: CreationOptional<Date | null>;
 	declare finishedAt: CreationOptional<Date | null>;
-	/** Peaks, range and mean per DOF (SummaryRow of the pipeline; read through summaryRows, which tolerates older shapes). */
-	declare summary: CreationOptional<SummaryRow[] | null>;
+	/** Peaks, range and mean per DOF (SummaryRow of the pipeline, read leniently: older runs lack some figures). */
+	declare summary: CreationOptional<StoredSummaryRow[] | null>;
 	/** Where results are not reliable near the trial's ends (EdgeZone of the pipeline); null for runs made before edge zones. */
-	declare edgeZone: CreationOptional<Record<string, unknown> | null>;
+	declare edgeZone: CreationOptional<EdgeZone | null>;
 	declare flaggedReason: CreationOptional<string | null>;
 	declare flagDecision: CreationOptional<string | null>;
 	declare flagDecidedBy: CreationOptional<string | null>;
 	declare flagDecidedAt: CreationOptional<Date | null>;
 	/** The queue job processing the run now (null before job ids were kept: the first job's id is the run's id). */
 	declare jobId: CreationOptional<string | null>;
+
+	/** The parts of the stored model record that results read (DOF order and sign rules, body mass, table, gravity, segments). */
+	get modelFields(): NonAttribute<RunModelFields> {
+		return modelFieldsSchema.parse(this.model);
+	}
 }
 
 /** One result vector of a run (Float64 little-endian, `components` values per sample, interleaved). */
-export class RunSeries extends Model<InferAttributes<RunSeries>, InferCreationAttributes<RunSeries>> {
+export class RunSeries extends Typed<RunSeries> {
 	declare runId: string;
 	declare name: string;
 	declare quantity: 'time' | 'angle' | 'velocity' | 'acceleration' | 'moment' | 'moment_per_kg' | 'power' | 'reaction_force';
@@ -399,130 +266,260 @@ export class RunSeries extends Model<InferAttributes<RunSeries>, InferCreationAt
 	declare data: Buffer;
 }
 
-export function initSessionModels(sequelize: Sequelize): void {
-	const uuidPk = { type: DataTypes.UUID, primaryKey: true, defaultValue: DataTypes.UUIDV4 };
-	const createdAt = { type: DataTypes.DATE, allowNull: false, defaultValue: DataTypes.NOW };
-	Session.init(
-		{
-			id: uuidPk,
-			studyId: { type: DataTypes.UUID, allowNull: false },
-			participantId: { type: DataTypes.UUID, allowNull: false },
-			sessionOn: { type: DataTypes.DATEONLY, allowNull: false },
-			operator: { type: DataTypes.TEXT, allowNull: false },
-			task: { type: DataTypes.TEXT, allowNull: false },
-			conditions: { type: DataTypes.TEXT, allowNull: true },
-			setup: {
-				type: DataTypes.JSONB,
-				allowNull: false,
-				get(this: Session): SessionSetup {
-					return sessionSetupSchema.parse(this.getDataValue('setup'));
-				}
-			},
-			state: { type: DataTypes.TEXT, allowNull: false, defaultValue: 'draft' },
-			createdBy: { type: DataTypes.UUID, allowNull: true },
-			createdAt,
-			updatedAt: { type: DataTypes.DATE, allowNull: false, defaultValue: DataTypes.NOW }
-		},
-		{ sequelize, tableName: 'sessions', modelName: 'Session' }
-	);
-	RawUpload.init(
-		{
-			id: uuidPk,
-			sha256: { type: DataTypes.TEXT, allowNull: false },
-			byteSize: { type: DataTypes.BIGINT, allowNull: false },
-			fileName: { type: DataTypes.TEXT, allowNull: false },
-			contentType: { type: DataTypes.TEXT, allowNull: true },
-			uploadedBy: { type: DataTypes.UUID, allowNull: true },
-			uploadedAt: { type: DataTypes.DATE, allowNull: false, defaultValue: DataTypes.NOW }
-		},
-		{ sequelize, tableName: 'raw_uploads', modelName: 'RawUpload' }
-	);
-	RawUploadChunk.init(
-		{
-			uploadId: { type: DataTypes.UUID, primaryKey: true },
-			seq: { type: DataTypes.INTEGER, primaryKey: true },
-			bytes: { type: DataTypes.BLOB, allowNull: false }
-		},
-		{ sequelize, tableName: 'raw_upload_chunks', modelName: 'RawUploadChunk' }
-	);
-	Trial.init(
-		{
-			id: uuidPk,
-			sessionId: { type: DataTypes.UUID, allowNull: false },
-			rawUploadId: { type: DataTypes.UUID, allowNull: false },
-			fileName: { type: DataTypes.TEXT, allowNull: false },
-			sha256: { type: DataTypes.TEXT, allowNull: false },
-			mapping: {
-				type: DataTypes.JSONB,
-				allowNull: true,
-				get(this: Trial): ColumnMapping | null {
-					const v: unknown = this.getDataValue('mapping');
-					return v == null ? null : columnMappingSchema.parse(v);
-				}
-			},
-			sampleHz: { type: DataTypes.DOUBLE, allowNull: false },
-			frameCount: { type: DataTypes.INTEGER, allowNull: false },
-			durationS: { type: DataTypes.DOUBLE, allowNull: false },
-			channels: { type: DataTypes.ARRAY(DataTypes.TEXT), allowNull: false, defaultValue: [] },
-			warnings: { type: DataTypes.JSONB, allowNull: false, defaultValue: [] },
-			createdBy: { type: DataTypes.UUID, allowNull: true },
-			createdAt
-		},
-		{ sequelize, tableName: 'trials', modelName: 'Trial' }
-	);
-	MappingPreset.init(
-		{
-			id: uuidPk,
-			studyId: { type: DataTypes.UUID, allowNull: false },
-			name: { type: DataTypes.TEXT, allowNull: false },
-			mapping: {
-				type: DataTypes.JSONB,
-				allowNull: false,
-				get(this: MappingPreset): ColumnMapping {
-					return columnMappingSchema.parse(this.getDataValue('mapping'));
-				}
-			},
-			createdBy: { type: DataTypes.UUID, allowNull: true },
-			createdAt
-		},
-		{ sequelize, tableName: 'mapping_presets', modelName: 'MappingPreset' }
-	);
-	Run.init(
-		{
-			id: uuidPk,
-			trialId: { type: DataTypes.UUID, allowNull: false },
-			state: { type: DataTypes.TEXT, allowNull: false, defaultValue: 'queued' },
-			progress: { type: DataTypes.REAL, allowNull: false, defaultValue: 0 },
-			stage: { type: DataTypes.TEXT, allowNull: true },
-			options: { type: DataTypes.JSONB, allowNull: false, defaultValue: {} },
-			model: { type: DataTypes.JSONB, allowNull: true },
-			rawSha256: { type: DataTypes.TEXT, allowNull: false },
-			softwareVersion: { type: DataTypes.TEXT, allowNull: false },
-			error: { type: DataTypes.TEXT, allowNull: true },
-			attempts: { type: DataTypes.INTEGER, allowNull: false, defaultValue: 0 },
-			createdBy: { type: DataTypes.UUID, allowNull: true },
-			createdAt,
-			startedAt: { type: DataTypes.DATE, allowNull: true },
-			finishedAt: { type: DataTypes.DATE, allowNull: true },
-			summary: { type: DataTypes.JSONB, allowNull: true },
-			edgeZone: { type: DataTypes.JSONB, allowNull: true },
-			flaggedReason: { type: DataTypes.TEXT, allowNull: true },
-			flagDecision: { type: DataTypes.TEXT, allowNull: true },
-			flagDecidedBy: { type: DataTypes.UUID, allowNull: true },
-			flagDecidedAt: { type: DataTypes.DATE, allowNull: true },
-			jobId: { type: DataTypes.UUID, allowNull: true }
-		},
-		{ sequelize, tableName: 'runs', modelName: 'Run' }
-	);
-	RunSeries.init(
-		{
-			runId: { type: DataTypes.UUID, primaryKey: true },
-			name: { type: DataTypes.TEXT, primaryKey: true },
-			quantity: { type: DataTypes.TEXT, primaryKey: true },
-			unit: { type: DataTypes.TEXT, allowNull: false },
-			components: { type: DataTypes.INTEGER, allowNull: false, defaultValue: 1 },
-			data: { type: DataTypes.BLOB, allowNull: false }
-		},
-		{ sequelize, tableName: 'run_series', modelName: 'RunSeries' }
-	);
+/** A run's cycle events: one current set of times (s) per run that cuts it into repetitions (migration 0007). */
+export class CycleEvent extends Keyed<CycleEvent> {
+	declare runId: string;
+	/** Seconds on the run's time axis, strictly increasing, at least two (one cycle). */
+	declare times: number[];
+	declare source: EventSet['source'];
+	/** The detection rule accepted (DOF, kind, threshold …), null for manual marks. */
+	declare rule: Record<string, unknown> | null;
+	declare createdBy: string | null;
+	declare updatedAt: CreationOptional<Date>;
+}
+
+// ---- columns -----------------------------------------------------------------------------------------------------
+
+const { BIGINT, BLOB, BOOLEAN, DATE, DATEONLY, DOUBLE, INTEGER, JSONB, REAL, TEXT, UUID } = DataTypes;
+type Column = ModelAttributeColumnOptions;
+
+/** NOT NULL, with the column's default when it has one. */
+const required = (type: DataType, defaultValue?: unknown): Column =>
+	defaultValue === undefined ? { type, allowNull: false } : { type, allowNull: false, defaultValue };
+/** May hold NULL. */
+const nullable = (type: DataType): Column => ({ type, allowNull: true });
+/** NOT NULL and UNIQUE. */
+const unique = (type: DataType): Column => ({ type, allowNull: false, unique: true });
+/** The key of most tables: a UUID made with the row. */
+const uuidKey = (): Column => ({ type: UUID, primaryKey: true, defaultValue: DataTypes.UUIDV4 });
+/** A key the database counts up. */
+const serialKey = (type: DataType): Column => ({ type, primaryKey: true, autoIncrement: true });
+/** (Part of) a key given by the row itself, e.g. of a table that belongs to another row. */
+const keyPart = (type: DataType): Column => ({ type, primaryKey: true });
+/** When the row was made (or last changed): now, unless given. */
+const now = (): Column => required(DATE, DataTypes.NOW);
+
+/** A JSONB column read back through `schema` (NULL stays null where the column allows it), so the model hands out typed values. */
+function json(key: string, schema: z.ZodType, options: { allowNull: boolean; defaultValue?: unknown }): Column {
+	return {
+		type: JSONB,
+		...options,
+		get(this: Model) {
+			const v: unknown = this.getDataValue(key);
+			return options.allowNull && v == null ? null : schema.parse(v);
+		}
+	};
+}
+
+/** Registers every model on the connection, with its table, its columns and the associations queries include. */
+export function initModels(sequelize: Sequelize): void {
+	// `columns` names every attribute of the class (TypeScript checks it); the model name is what associations use
+	const register = <M extends Model>(
+		model: ModelStatic<M>,
+		tableName: string,
+		modelName: string,
+		columns: ModelAttributes<M, Attributes<M>>
+	) => model.init(columns, { sequelize, tableName, modelName });
+
+	register(Lab, 'labs', 'Lab', {
+		id: serialKey(INTEGER),
+		slug: unique(TEXT),
+		name: required(TEXT),
+		institution: required(TEXT),
+		createdAt: now()
+	});
+	register(AuditEvent, 'audit_events', 'AuditEvent', {
+		id: serialKey(BIGINT),
+		occurredAt: now(),
+		actorUserId: nullable(TEXT),
+		actorLabel: required(TEXT),
+		action: required(TEXT),
+		outcome: required(TEXT, 'ok'),
+		studyId: nullable(TEXT),
+		recordType: nullable(TEXT),
+		recordId: nullable(TEXT),
+		ipAddress: nullable(TEXT),
+		details: required(JSONB, {})
+	});
+
+	// ---- people, studies, participants (migrations 0002–0004)
+	// Auth.js' adapter finds the people under the model name 'user'
+	register(User, 'users', 'user', {
+		id: uuidKey(),
+		name: nullable(TEXT),
+		email: unique(TEXT),
+		emailVerified: nullable(DATE),
+		image: nullable(TEXT),
+		passwordHash: nullable(TEXT),
+		isAdmin: required(BOOLEAN, false),
+		deactivatedAt: nullable(DATE),
+		sessionVersion: required(INTEGER, 0),
+		createdAt: now()
+	});
+	register(Study, 'studies', 'Study', {
+		id: uuidKey(),
+		code: unique(TEXT),
+		title: required(TEXT),
+		ethicsReference: nullable(TEXT),
+		ethicsExpiresOn: nullable(DATEONLY),
+		defaultTable: required(TEXT, 'de-leva-1996'),
+		participantPrefix: nullable(TEXT),
+		nextParticipantNumber: required(INTEGER, 1),
+		createdAt: now()
+	});
+	register(ConsentFormVersion, 'consent_form_versions', 'ConsentFormVersion', {
+		id: uuidKey(),
+		studyId: required(UUID),
+		version: required(INTEGER),
+		bodyMarkdown: required(TEXT),
+		confirmations: required(JSONB, []),
+		publishedAt: now(),
+		publishedBy: nullable(UUID)
+	});
+	register(Participant, 'participants', 'Participant', {
+		id: uuidKey(),
+		studyId: required(UUID),
+		code: unique(TEXT),
+		sex: required(TEXT),
+		birthYear: nullable(INTEGER),
+		bodyMassKg: required(DOUBLE),
+		statureM: required(DOUBLE),
+		dominantSide: nullable(TEXT),
+		notes: nullable(TEXT),
+		createdAt: now()
+	});
+	register(ParticipantPersonal, 'participant_personal', 'ParticipantPersonal', {
+		participantId: keyPart(UUID),
+		fullName: nullable(TEXT),
+		email: nullable(TEXT),
+		phone: nullable(TEXT)
+	});
+	register(ParticipantLength, 'participant_lengths', 'ParticipantLength', {
+		id: uuidKey(),
+		participantId: required(UUID),
+		segment: required(TEXT),
+		lengthM: required(DOUBLE),
+		measuredOn: required(DATEONLY),
+		createdAt: now()
+	});
+	register(StudyMember, 'study_members', 'StudyMember', {
+		studyId: keyPart(UUID),
+		userId: keyPart(UUID),
+		role: required(TEXT),
+		createdAt: now()
+	});
+	register(OneTimeToken, 'one_time_tokens', 'OneTimeToken', {
+		id: uuidKey(),
+		purpose: required(TEXT),
+		tokenHash: unique(TEXT),
+		userId: required(UUID),
+		expiresAt: required(DATE),
+		usedAt: nullable(DATE),
+		createdAt: now()
+	});
+	register(SignInFailure, 'sign_in_failures', 'SignInFailure', {
+		id: serialKey(BIGINT),
+		email: nullable(TEXT),
+		ipAddress: nullable(TEXT),
+		occurredAt: now()
+	});
+	StudyMember.belongsTo(User, { foreignKey: 'userId' });
+	StudyMember.belongsTo(Study, { foreignKey: 'studyId' });
+	User.hasMany(StudyMember, { foreignKey: 'userId' });
+	Study.hasMany(StudyMember, { foreignKey: 'studyId' });
+
+	// ---- sessions, raw uploads, trials, mapping presets, runs (migrations 0005–0009)
+	register(Session, 'sessions', 'Session', {
+		id: uuidKey(),
+		studyId: required(UUID),
+		participantId: required(UUID),
+		sessionOn: required(DATEONLY),
+		operator: required(TEXT),
+		task: required(TEXT),
+		conditions: nullable(TEXT),
+		setup: json('setup', sessionSetupSchema, { allowNull: false }),
+		state: required(TEXT, 'draft'),
+		createdBy: nullable(UUID),
+		createdAt: now(),
+		updatedAt: now()
+	});
+	register(RawUpload, 'raw_uploads', 'RawUpload', {
+		id: uuidKey(),
+		sha256: required(TEXT),
+		byteSize: required(BIGINT),
+		fileName: required(TEXT),
+		contentType: nullable(TEXT),
+		uploadedBy: nullable(UUID),
+		uploadedAt: now()
+	});
+	register(RawUploadChunk, 'raw_upload_chunks', 'RawUploadChunk', {
+		uploadId: keyPart(UUID),
+		seq: keyPart(INTEGER),
+		bytes: required(BLOB)
+	});
+	register(Trial, 'trials', 'Trial', {
+		id: uuidKey(),
+		sessionId: required(UUID),
+		rawUploadId: required(UUID),
+		fileName: required(TEXT),
+		sha256: required(TEXT),
+		mapping: json('mapping', columnMappingSchema, { allowNull: true }),
+		sampleHz: required(DOUBLE),
+		frameCount: required(INTEGER),
+		durationS: required(DOUBLE),
+		channels: required(DataTypes.ARRAY(TEXT), []),
+		warnings: required(JSONB, []),
+		createdBy: nullable(UUID),
+		createdAt: now()
+	});
+	register(MappingPreset, 'mapping_presets', 'MappingPreset', {
+		id: uuidKey(),
+		studyId: required(UUID),
+		name: required(TEXT),
+		mapping: json('mapping', columnMappingSchema, { allowNull: false }),
+		createdBy: nullable(UUID),
+		createdAt: now()
+	});
+	register(Run, 'runs', 'Run', {
+		id: uuidKey(),
+		trialId: required(UUID),
+		state: required(TEXT, 'queued'),
+		progress: required(REAL, 0),
+		stage: nullable(TEXT),
+		options: json('options', storedOptionsSchema, { allowNull: false, defaultValue: {} }),
+		model: nullable(JSONB),
+		rawSha256: required(TEXT),
+		softwareVersion: required(TEXT),
+		error: nullable(TEXT),
+		attempts: required(INTEGER, 0),
+		createdBy: nullable(UUID),
+		createdAt: now(),
+		startedAt: nullable(DATE),
+		finishedAt: nullable(DATE),
+		summary: json('summary', storedSummarySchema, { allowNull: true }),
+		edgeZone: json('edgeZone', storedEdgeZoneSchema, { allowNull: true }),
+		flaggedReason: nullable(TEXT),
+		flagDecision: nullable(TEXT),
+		flagDecidedBy: nullable(UUID),
+		flagDecidedAt: nullable(DATE),
+		jobId: nullable(UUID)
+	});
+	register(RunSeries, 'run_series', 'RunSeries', {
+		runId: keyPart(UUID),
+		name: keyPart(TEXT),
+		quantity: keyPart(TEXT),
+		unit: required(TEXT),
+		components: required(INTEGER, 1),
+		data: required(BLOB)
+	});
+	register(CycleEvent, 'cycle_events', 'CycleEvent', {
+		id: uuidKey(),
+		runId: unique(UUID),
+		times: required(DataTypes.ARRAY(DOUBLE)),
+		source: required(TEXT),
+		rule: json('rule', z.record(z.string(), z.unknown()), { allowNull: true }),
+		createdBy: nullable(UUID),
+		createdAt: now(),
+		updatedAt: now()
+	});
 }

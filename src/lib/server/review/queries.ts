@@ -1,8 +1,7 @@
 // The review domain's SQL: done runs with their number and whether each is the newest of its trial (correlated
-// subqueries), a run's cycle events (an array column, upserted), and the compare page's pick lists with counts.
-import { QueryTypes, type Transaction } from 'sequelize';
+// subqueries), and the compare page's pick lists with counts. Cycle events go through the CycleEvent model.
+import { QueryTypes } from 'sequelize';
 import { db } from '../db/index';
-import type { EventSet } from '../../types/review';
 
 export interface DoneRunRow {
 	id: string;
@@ -40,40 +39,6 @@ export const doneRunsOfSession = (sessionId: string) => doneRuns('s.id = :sid', 
 /** The participant's done runs (not excluded) in the study, oldest first. */
 export const doneRunsOfParticipant = (participantId: string, studyId: string) =>
 	doneRuns('p.id = :pid AND s.study_id = :studyId', { pid: participantId, studyId });
-
-/** The run's cycle events, or null when none are set. */
-export async function eventSetOfRun(runId: string, transaction?: Transaction): Promise<EventSet | null> {
-	const rows = await db().query<{ times: number[]; source: EventSet['source']; rule: Record<string, unknown> | null; updated_at: Date }>(
-		`SELECT times, source, rule, updated_at FROM cycle_events WHERE run_id = :runId`,
-		{ replacements: { runId }, type: QueryTypes.SELECT, transaction }
-	);
-	const r = rows[0];
-	return r ? { times: r.times.map(Number), source: r.source, rule: r.rule, updatedAt: new Date(r.updated_at).toISOString() } : null;
-}
-
-/** Replaces the run's events (one row per run); the time they were saved. */
-export async function upsertEvents(
-	e: { runId: string; times: number[]; source: EventSet['source']; rule: Record<string, unknown> | null; actorId: string },
-	transaction: Transaction
-): Promise<Date> {
-	const rows = await db().query<{ updated_at: Date }>(
-		`INSERT INTO cycle_events (run_id, times, source, rule, created_by) VALUES (:runId, ARRAY[:times]::double precision[], :source, CAST(:rule AS jsonb), :actor)
-		 ON CONFLICT (run_id) DO UPDATE SET times = EXCLUDED.times, source = EXCLUDED.source, rule = EXCLUDED.rule, created_by = EXCLUDED.created_by, updated_at = now()
-		 RETURNING updated_at`,
-		{
-			replacements: {
-				runId: e.runId,
-				times: e.times,
-				source: e.source,
-				rule: e.rule === null ? null : JSON.stringify(e.rule),
-				actor: e.actorId
-			},
-			type: QueryTypes.SELECT,
-			transaction
-		}
-	);
-	return rows[0].updated_at;
-}
 
 /** The study's participants (codes only) with their number of done, not excluded runs. */
 export function participantsWithDoneRuns(studyId: string): Promise<{ id: string; code: string; done: string | number }[]> {

@@ -2,23 +2,17 @@
 // cycle events of a run (read, saved under the session lock, audited) and comparisons across sessions or
 // participants of a study (codes only; done runs only, never excluded ones). Services take (actor, ctx, input) and
 // throw domain errors; no SvelteKit here.
+import type { Transaction } from 'sequelize';
 import { z } from 'zod';
 import { db } from '../db/index';
-import { Session } from '../db/models';
+import { CycleEvent, Session } from '../db/models';
 import { DomainError, FormProblem, conflict } from '../errors';
 import { assertSessionUnlocked } from '../sessions/lock';
 import { isUuid, may, studyFor, type Actor } from '../access/guard';
 import type { RequestContext } from '../access/context';
 import { includeEdgeZonesOf, recordRunAction, runIn, storedSeries, timeOfRun } from '../runs/runs';
 import { sessionIn } from '../sessions/sessions';
-import {
-	doneRunsOfParticipant,
-	doneRunsOfSession,
-	eventSetOfRun,
-	participantsWithDoneRuns,
-	upsertEvents,
-	type DoneRunRow
-} from './queries';
+import { doneRunsOfParticipant, doneRunsOfSession, participantsWithDoneRuns, type DoneRunRow } from './queries';
 import { reduceForPlot } from '../../processing/reduce';
 import { cyclePeaks, eventProblems, meanSd, meanSdOf, normaliseCycles } from '../../processing/cycles';
 import { reliableSpan, repetitionsInEdgeZone } from '../../processing/zone-exclusion';
@@ -120,6 +114,14 @@ export async function loadSessionReview(
 
 // ---------------------------------------------------------------------------------------------- cycle events
 
+const eventSetOf = (e: CycleEvent): EventSet => ({ times: e.times, source: e.source, rule: e.rule, updatedAt: e.updatedAt.toISOString() });
+
+/** The run's cycle events, or null when none are set. */
+async function eventSetOfRun(runId: string, transaction?: Transaction): Promise<EventSet | null> {
+	const row = await CycleEvent.findOne({ where: { runId }, transaction });
+	return row && eventSetOf(row);
+}
+
 /** The run's current event times (s), or null when none are set. */
 export async function eventsOfRun(runId: string): Promise<number[] | null> {
 	return (await eventSetOfRun(runId))?.times ?? null;
@@ -204,14 +206,18 @@ export async function saveRunEvents(actor: Actor | null, ctx: RequestContext, in
 	return db().transaction(async (t) => {
 		await assertSessionUnlocked(trial.sessionId, t);
 		const before = await eventSetOfRun(run.id, t);
-		const updatedAt = await upsertEvents({ runId: run.id, times, source, rule, actorId: a.id }, t);
+		// one set per run: a save replaces the run's row (unique run id, the conflict target) but keeps its id and creation time
+		const [saved] = await CycleEvent.upsert(
+			{ runId: run.id, times, source, rule, createdBy: a.id, updatedAt: new Date() },
+			{ fields: ['runId', 'times', 'source', 'rule', 'createdBy', 'updatedAt'], returning: true, transaction: t }
+		);
 		await recordRunAction(
 			a,
 			ctx,
 			{ action: 'run.events.save', studyId: study.id, runId: run.id, details: { source, rule, times, previous: before?.times ?? null } },
 			t
 		);
-		return { times, source, rule, updatedAt: new Date(updatedAt).toISOString() };
+		return eventSetOf(saved);
 	});
 }
 

@@ -3,6 +3,7 @@
 // attempt, and flags set across a participant's trials. Typed results; every other access goes through the models.
 import { QueryTypes, type Transaction } from 'sequelize';
 import { db } from '../db/index';
+import { storedOptionsSchema } from '../db/run-json';
 import type { FlagDecision, RunView } from '../../types/runs';
 import type { SeriesRow } from './compute';
 
@@ -14,28 +15,30 @@ export type RunRow = Omit<RunView, 'number' | 'createdAt' | 'startedAt' | 'finis
 	finishedAt: Date | null;
 };
 
+/** A run row as pg returns it, its options still JSON; readRunRow reads them with the Run model's schema for them. */
+type StoredRunRow = Omit<RunRow, 'options'> & { options: unknown };
+const readRunRow = (row: StoredRunRow): RunRow => ({ ...row, options: storedOptionsSchema.parse(row.options) });
+
 const RUN_COLUMNS = `r.id, r.trial_id AS "trialId", r.state, r.progress, r.stage, r.options, r.error, r.attempts, r.created_at AS "createdAt", r.started_at AS "startedAt",
 	r.finished_at AS "finishedAt", r.raw_sha256 AS "rawSha256", r.software_version AS "softwareVersion", r.flagged_reason AS "flaggedReason", r.flag_decision AS "flagDecision",
 	(SELECT count(*) FROM runs o WHERE o.trial_id = r.trial_id AND (o.created_at, o.id) <= (r.created_at, r.id)) AS number`;
 
 /** Every run of the session's trials, oldest first. */
-export function runRowsOfSession(sessionId: string): Promise<RunRow[]> {
-	return db().query<RunRow>(
+export async function runRowsOfSession(sessionId: string): Promise<RunRow[]> {
+	const rows = await db().query<StoredRunRow>(
 		`SELECT ${RUN_COLUMNS} FROM runs r JOIN trials t ON t.id = r.trial_id WHERE t.session_id = :sessionId ORDER BY r.created_at, r.id`,
-		{
-			replacements: { sessionId },
-			type: QueryTypes.SELECT
-		}
+		{ replacements: { sessionId }, type: QueryTypes.SELECT }
 	);
+	return rows.map(readRunRow);
 }
 
 export async function runRowById(runId: string, transaction?: Transaction): Promise<RunRow | null> {
-	const rows = await db().query<RunRow>(`SELECT ${RUN_COLUMNS} FROM runs r WHERE r.id = :runId`, {
+	const rows = await db().query<StoredRunRow>(`SELECT ${RUN_COLUMNS} FROM runs r WHERE r.id = :runId`, {
 		replacements: { runId },
 		type: QueryTypes.SELECT,
 		transaction
 	});
-	return rows[0] ?? null;
+	return rows.length ? readRunRow(rows[0]) : null;
 }
 
 /** What processing and the pages need of a trial: its session, study, participant, raw file, mapping and set-up. */

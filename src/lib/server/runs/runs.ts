@@ -30,7 +30,8 @@ import {
 } from './queries';
 import { reduceForPlot } from '../../processing/reduce';
 import { buildSessionModel, sessionSetupSchema } from '../../processing/session-model';
-import { runOptionsSchema, type RunOptions, type SummaryRow, type SummaryStats } from '../../processing/pipeline';
+import type { StoredSummaryRow } from '../db/run-json';
+import { runOptionsSchema, type RunOptions } from '../../processing/pipeline';
 import { edgeZoneView, type EdgeZoneView } from '../../processing/zone-exclusion';
 import type { Recording } from '../../processing/recording';
 import { residualAnalysis } from '../../processing/signal';
@@ -342,24 +343,16 @@ function requireDone(run: RunView): void {
 	if (run.state !== 'done') throw conflict(`Run ${run.number} has no results yet (state: ${run.state}).`);
 }
 
-/** What the results read of a run's stored model record (the rest is shown as stored). */
-const storedModelSchema = z
-	.object({
-		dofs: z
-			.array(z.looseObject({ name: z.string(), positive: z.string().nullish() }))
-			.optional()
-			.catch(undefined),
-		bodyMassKg: z.number().optional().catch(undefined)
-	})
-	.catch({});
-
-/** A done run's stored summary, model and edge zone, parsed once. */
-async function storedResultsOf(runId: string) {
-	const row = await Run.findByPk(runId, { attributes: ['summary', 'model', 'edgeZone'] });
+/**
+ * A run's stored summary, model record (as stored, and the fields results read) and edge zone, as the Run model reads
+ * them back; for no run (null), or a run without results, an empty summary and an edge zone not computed.
+ */
+export async function storedResultsOf(runId: string | null) {
+	const row = runId ? await Run.findByPk(runId, { attributes: ['summary', 'model', 'edgeZone'] }) : null;
 	return {
-		summary: row?.summary,
+		summary: row?.summary ?? null,
 		model: row?.model ?? null,
-		parsedModel: storedModelSchema.parse(row?.model ?? {}),
+		modelFields: row?.modelFields ?? {},
 		edgeZone: edgeZoneView(row?.edgeZone)
 	};
 }
@@ -385,7 +378,7 @@ export async function storedSeries(
 		where: { runId, quantity: ['time', q.quantity], ...(q.dof ? { name: ['time', q.dof] } : {}) },
 		order: [['name', 'ASC']]
 	});
-	const { parsedModel: model, edgeZone } = await storedResultsOf(runId);
+	const { modelFields: model, edgeZone } = await storedResultsOf(runId);
 	const positive = new Map((model.dofs ?? []).map((d) => [d.name, d.positive]));
 	const order = new Map((model.dofs ?? []).map((d, i) => [d.name, i]));
 	const timeRow = rows.find((r) => r.quantity === 'time');
@@ -469,29 +462,24 @@ function includeEdgeZonesStrict(sp: URLSearchParams): boolean {
 	);
 }
 
-type StoredSummaryRow = Partial<Record<keyof SummaryStats, number | null>> &
-	Pick<SummaryRow, 'dof' | 'quantity' | 'unit'> & { wholeTrial?: Partial<Record<keyof SummaryStats, number | null>> };
-
 /**
  * The stored summary rows in the chosen scope: outside the edge zones (the rows' own figures, the default) or the
  * whole trial (`wholeTrial`). Runs stored before edge zones have one set of figures, over every sample: both scopes.
  */
-export function summaryRows(stored: unknown, includeEdgeZones: boolean): SummaryView[] {
-	if (!Array.isArray(stored)) return [];
-	return (stored as StoredSummaryRow[]).map((r) => {
+export function summaryRows(stored: StoredSummaryRow[] | null, includeEdgeZones: boolean): SummaryView[] {
+	return (stored ?? []).map((r) => {
 		const f = includeEdgeZones && r.wholeTrial ? r.wholeTrial : r;
-		const n = (x: number | null | undefined) => (typeof x === 'number' && Number.isFinite(x) ? x : null);
 		return {
 			dof: r.dof,
 			quantity: r.quantity,
 			unit: r.unit,
-			peakPositive: n(f.peakPositive),
-			peakPositiveTime: n(f.peakPositiveTime),
-			peakNegative: n(f.peakNegative),
-			peakNegativeTime: n(f.peakNegativeTime),
-			range: n(f.range),
-			mean: n(f.mean),
-			samples: n(f.samples)
+			peakPositive: f.peakPositive ?? null,
+			peakPositiveTime: f.peakPositiveTime ?? null,
+			peakNegative: f.peakNegative ?? null,
+			peakNegativeTime: f.peakNegativeTime ?? null,
+			range: f.range ?? null,
+			mean: f.mean ?? null,
+			samples: f.samples ?? null
 		};
 	});
 }
@@ -517,7 +505,7 @@ export async function loadSummary(
 	return {
 		runId: run.id,
 		convention: 'Internal joint moments: the moment the proximal segment exerts on the distal one; positive in the DOF’s positive sense.',
-		bodyMassKg: stored.parsedModel.bodyMassKg ?? null,
+		bodyMassKg: stored.modelFields.bodyMassKg ?? null,
 		edgeZone: stored.edgeZone,
 		edgeZonesIncluded: include,
 		scope: summaryScope(stored.edgeZone, include),

@@ -3,20 +3,20 @@
 // edge zones), README.txt and the raw uploads byte for byte. Never any participant's personal data.
 import { Readable } from 'node:stream';
 import { ZipArchive } from 'archiver';
-import { Participant, Run, RunSeries } from '../db/models';
+import { Participant, RunSeries } from '../db/models';
 import { conflict } from '../errors';
 import type { Actor } from '../access/guard';
 import type { RequestContext } from '../access/context';
 import { readRaw } from '../trials/raw-store';
 import { recordSession, studySession, type SessionRef } from './sessions';
 import { exportTrialRows, type ExportTrialRow } from './queries';
-import { listRunsForSession, softwareVersion, summaryRows, type RunView } from '../runs/runs';
+import { listRunsForSession, softwareVersion, storedResultsOf, summaryRows, type RunView } from '../runs/runs';
 import { component, decodeFloat64 } from '../runs/results-codec';
 import { SEGMENT_TABLES, type SegmentTableId } from '../../anthropometry/tables';
 import { approvalOf } from './workflow';
 import { eventsOfRun } from '../review/review';
 import { normaliseCycles } from '../../processing/cycles';
-import { EDGE_ZONE_NOT_COMPUTED, edgeZoneView, inEdgeZone, reliableSpan, timeInEdgeZone } from '../../processing/zone-exclusion';
+import { EDGE_ZONE_NOT_COMPUTED, inEdgeZone, reliableSpan, timeInEdgeZone, type EdgeZoneView } from '../../processing/zone-exclusion';
 
 /** Column names of results.csv, in order (documented in README.txt and the project README). */
 export const RESULT_COLUMNS = [
@@ -120,12 +120,11 @@ async function* resultsCsv(participantCode: string, trials: ExportTrial[]): Asyn
 		const saved = await eventsOfRun(run.id);
 		// events outside this run's time span (never saved that way, but the run could be re-made) are left out
 		const events = saved && saved.length >= 2 && saved[0] >= time[0] && saved[saved.length - 1] <= time[time.length - 1] ? saved : null;
-		const stored = await Run.findByPk(run.id, { attributes: ['model', 'edgeZone'] });
-		const model = (stored?.model ?? {}) as { dofs?: { name: string }[] };
+		const stored = await storedResultsOf(run.id);
 		// a run made before edge zones has none: every row is outside it
-		const zone = edgeZoneView(stored?.edgeZone);
+		const zone = stored.edgeZone;
 		const span = reliableSpan(time, zone);
-		const order = new Map((model.dofs ?? []).map((d, i) => [d.name, i]));
+		const order = new Map((stored.modelFields.dofs ?? []).map((d, i) => [d.name, i]));
 		meta.sort(
 			(a, b) =>
 				(order.get(a.name) ?? 1e9) - (order.get(b.name) ?? 1e9) ||
@@ -221,9 +220,8 @@ const filterOf = (o: RunView['options']) =>
 			};
 
 /** A run's edge zone for provenance.json, with the end treatment from the run's options (null where none was recorded). */
-function edgeZoneOf(run: RunView, stored: unknown) {
-	const zone = edgeZoneView(stored);
-	const endTreatment = (run.options as { endTreatment?: unknown }).endTreatment ?? null;
+function edgeZoneOf(run: RunView, zone: EdgeZoneView) {
+	const endTreatment = run.options.endTreatment ?? null;
 	return { ...zone, endTreatment, ...(zone.computed ? {} : { note: EDGE_ZONE_NOT_COMPUTED }) };
 }
 
@@ -242,10 +240,7 @@ export async function exportSession(actor: Actor | null, ctx: RequestContext, re
 	await refuseNonFinite(trials);
 	const approval = await approvalOf(s.id);
 	const exportedAt = new Date();
-	const stored = await Promise.all(
-		trials.map(async (t) => (t.run ? await Run.findByPk(t.run.id, { attributes: ['model', 'summary', 'edgeZone'] }) : null))
-	);
-	const runs = stored.map((r) => r?.model ?? null);
+	const stored = await Promise.all(trials.map((t) => storedResultsOf(t.run?.id ?? null)));
 	const provenance = {
 		format: 'momentry-session-export/1',
 		software: { name: 'Momentry', version: softwareVersion() },
@@ -256,8 +251,8 @@ export async function exportSession(actor: Actor | null, ctx: RequestContext, re
 		approval,
 		resultsColumns: RESULT_COLUMNS,
 		trials: trials.map((t, i) => {
-			const model = runs[i] as (Record<string, unknown> & { table?: string; gravity?: unknown }) | null;
-			const tableId = (model?.table ?? s.setup.table) as SegmentTableId;
+			const { model, modelFields, edgeZone, summary } = stored[i];
+			const tableId = (modelFields.table ?? s.setup.table) as SegmentTableId;
 			return {
 				fileName: t.trial.file_name,
 				archivePath: t.archivePath,
@@ -271,18 +266,18 @@ export async function exportSession(actor: Actor | null, ctx: RequestContext, re
 					number: t.run.number,
 					options: t.run.options,
 					filter: filterOf(t.run.options),
-					gravity: model?.gravity ?? null,
+					gravity: modelFields.gravity ?? null,
 					rawSha256: t.run.rawSha256,
 					softwareVersion: t.run.softwareVersion,
 					finishedAt: t.run.finishedAt,
 					flagDecision: t.run.flagDecision,
-					edgeZone: edgeZoneOf(t.run, stored[i]?.edgeZone),
+					edgeZone: edgeZoneOf(t.run, edgeZone),
 					peaks: {
-						scope: edgeZoneView(stored[i]?.edgeZone).computed
+						scope: edgeZone.computed
 							? 'outsideEdgeZone (the default): over the samples outside the edge zone; wholeTrial: over every sample, edge zones included'
 							: `over every sample in both (edge zone ${EDGE_ZONE_NOT_COMPUTED})`,
-						outsideEdgeZone: summaryRows(stored[i]?.summary, false),
-						wholeTrial: summaryRows(stored[i]?.summary, true)
+						outsideEdgeZone: summaryRows(summary, false),
+						wholeTrial: summaryRows(summary, true)
 					},
 					anthropometricTable: { id: tableId, ...(SEGMENT_TABLES[tableId] ?? {}) },
 					model

@@ -1,27 +1,12 @@
 // The printable report of a session (any state; marked as a draft unless approved): per trial the exported run,
 // its scaled segments, peaks (edge zones left out unless asked for) and joint moments.
-import { Participant, Run } from '../db/models';
+import { Participant } from '../db/models';
 import type { Actor } from '../access/guard';
 import type { RequestContext } from '../access/context';
-import { seriesOfRun, summaryRows, summaryScope } from '../runs/runs';
-import { edgeZoneView } from '../../processing/zone-exclusion';
+import { seriesOfRun, storedResultsOf, summaryRows, summaryScope } from '../runs/runs';
 import { exportTrials } from './export';
 import { studySession, type SessionRef } from './sessions';
 import { approvalOf } from './workflow';
-
-/** A scaled segment as a run's model stores it. */
-interface ReportSegment {
-	key: string;
-	length: { value: number };
-	mass: { value: number };
-	comDistance: { value: number };
-	inertia: { flexion: { value: number }; abduction: { value: number }; longitudinal: { value: number } };
-}
-
-/** The part of a run's stored model the report shows. */
-interface ReportModel {
-	parameters?: { segments?: ReportSegment[]; table?: { id: string; title: string; citation: string } };
-}
 
 export async function sessionReport(actor: Actor | null, ctx: RequestContext, input: SessionRef & { includeEdgeZones: boolean }) {
 	const { study, session: s } = await studySession(actor, ctx, 'study.read', input);
@@ -29,20 +14,19 @@ export async function sessionReport(actor: Actor | null, ctx: RequestContext, in
 	const p = (await Participant.findByPk(s.participantId, { attributes: ['id', 'code'] }))!;
 	const trials = await Promise.all(
 		(await exportTrials(s.id)).map(async (t) => {
-			const row = t.run ? await Run.findByPk(t.run.id, { attributes: ['summary', 'model', 'edgeZone'] }) : null;
-			const edgeZone = edgeZoneView(row?.edgeZone);
-			const model = (row?.model ?? null) as ReportModel | null;
+			const stored = await storedResultsOf(t.run?.id ?? null);
+			const { parameters } = stored.modelFields;
 			return {
 				fileName: t.trial.file_name,
 				sampleHz: t.trial.sample_hz,
 				frames: t.trial.frame_count,
 				sha256: t.trial.sha256,
 				run: t.run && { number: t.run.number, options: t.run.options, finishedAt: t.run.finishedAt, flagDecision: t.run.flagDecision },
-				segments: model?.parameters?.segments ?? [],
-				table: model?.parameters?.table ?? null,
-				summary: summaryRows(row?.summary, include),
-				summaryScope: summaryScope(edgeZone, include),
-				edgeZone: t.run ? edgeZone : null,
+				segments: parameters?.segments ?? [],
+				table: parameters?.table ?? null,
+				summary: summaryRows(stored.summary, include),
+				summaryScope: summaryScope(stored.edgeZone, include),
+				edgeZone: t.run ? stored.edgeZone : null,
 				moments: t.run ? await seriesOfRun(t.run.id, { quantity: 'moment', points: 600 }) : null
 			};
 		})
