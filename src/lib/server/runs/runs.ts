@@ -560,17 +560,8 @@ export async function trialResiduals(trial: TrialContext, fillGaps: boolean): Pr
 	} catch (err) {
 		throw new DomainError('unprocessable', (err as Error).message);
 	}
+	// readRecording fails on any gap it does not fill (the recording checks), so every channel has a value at every sample
 	const channels = rec.channels.map((c): ChannelResidual => {
-		if (c.values.some((v) => Number.isNaN(v))) {
-			return {
-				channel: c.name,
-				cutoffs: [],
-				residuals: [],
-				suggestedHz: null,
-				noiseLine: null,
-				problem: 'This channel has gaps; tick “fill short gaps” to analyse it.'
-			};
-		}
 		try {
 			const r = residualAnalysis(c.values, rec.sampleHz);
 			return { channel: c.name, ...r, problem: null };
