@@ -6,9 +6,9 @@ import { z } from 'zod';
 import { db } from '../db/index';
 import { ConsentFormVersion, Participant, ParticipantPersonal } from '../db/models';
 import { record } from '../audit/record';
-import { may, studyFor, type Actor } from '../access/guard';
+import { may, type Actor } from '../access/guard';
 import { linkBase, type RequestContext } from '../access/context';
-import { isUuid } from '../studies/studies';
+import { participantFor } from '../participants/records';
 import { renderMarkdown } from './markdown';
 import { currentLab } from '../studies/lab';
 import { sendMail } from '../mail/index';
@@ -179,17 +179,9 @@ function invitationMail(
 
 // ---------------------------------------------------------------- staff: the participant's consent page
 
-/** One participant of the study in the URL (another study's participant is not-found). */
-async function participantOfStudy(studyId: string, rawPid: string): Promise<{ id: string; code: string }> {
-	const p = isUuid(rawPid) ? await Participant.findOne({ where: { id: rawPid.toLowerCase(), studyId }, attributes: ['id', 'code'] }) : null;
-	if (!p) throw notFound();
-	return { id: p.id, code: p.code };
-}
-
 /** Everything the staff consent page shows: state, history, links sent; never a name, address or typed signature. */
 export async function consentOverview(actor: Actor | null, ctx: RequestContext, rawId: string, rawPid: string) {
-	const { actor: a, study } = await studyFor(actor, ctx, 'study.read', rawId);
-	const target = await participantOfStudy(study.id, rawPid);
+	const { actor: a, study, participant: target } = await participantFor(actor, ctx, 'study.read', rawId, rawPid);
 	const p = await db().transaction(async (t) => settleExpiry(t, await lockParticipant(t, target.id)));
 	const [events, links, form, version] = await Promise.all([
 		q.historyOf(p.id),
@@ -268,8 +260,7 @@ export async function sendConsentLink(
 	rawPid: string,
 	kind: SendKind
 ): Promise<void> {
-	const { actor: a, study } = await studyFor(actor, ctx, 'consent.invite', rawId);
-	const target = await participantOfStudy(study.id, rawPid);
+	const { actor: a, study, participant: target } = await participantFor(actor, ctx, 'consent.invite', rawId, rawPid);
 	const ip = ctx.ipAddress;
 	const prepared = await db().transaction(async (t) => {
 		const p = await settleExpiry(t, await lockParticipant(t, target.id));
@@ -303,26 +294,12 @@ export async function sendConsentLink(
 		const superseded = await revokeOpenConsentLinks(t, p.id);
 		const consentLink = await issueLink(t, { participantId: p.id, purpose: 'consent', kind, formVersionId: form.id, sentBy: a.id });
 		const withdrawLink = await issueLink(t, { participantId: p.id, purpose: 'withdraw', kind, formVersionId: form.id, sentBy: a.id });
-		if (p.stored_state !== 'invited' || p.state !== 'invited') {
-			await changeState(t, {
-				participant: p,
-				to: 'invited',
-				actorUserId: a.id,
-				actorLabel: a.email,
-				formVersionId: form.id,
-				note: `Invitation sent (form version ${form.version}).`
-			});
-		} else {
-			// not a change of state, but part of the story the history tells
-			await changeState(t, {
-				participant: p,
-				to: 'invited',
-				actorUserId: a.id,
-				actorLabel: a.email,
-				formVersionId: form.id,
-				note: `${kind === 'reminder' ? 'Reminder' : 'New link'} sent (form version ${form.version}); earlier links no longer work.`
-			});
-		}
+		// a resend or a reminder is not a change of state, but part of the story the history tells
+		const note =
+			p.stored_state !== 'invited' || p.state !== 'invited'
+				? `Invitation sent (form version ${form.version}).`
+				: `${kind === 'reminder' ? 'Reminder' : 'New link'} sent (form version ${form.version}); earlier links no longer work.`;
+		await changeState(t, { participant: p, to: 'invited', actorUserId: a.id, actorLabel: a.email, formVersionId: form.id, note });
 		await record(
 			{
 				action: SEND_ACTION[kind],
@@ -548,6 +525,26 @@ async function mailParticipant(
 }
 
 /**
+ * After a link's transaction: a refusal is answered (and audited); otherwise the participant gets the e-mail
+ * `compose` writes (greeted by name when known), if they gave an address. A failed e-mail is recorded, not thrown.
+ */
+async function confirmByMail<T extends { p: ParticipantRow }>(
+	step: LinkStep<T>,
+	ip: string | null,
+	refusedAction: string,
+	kind: 'confirmation' | 'withdrawal',
+	compose: (done: T, contact: StudyContact, hello: string) => { subject: string; text: string; linkIds?: string[] }
+): Promise<{ done: T; contact: StudyContact; mailed: boolean }> {
+	if ('refused' in step) return refuseLink(step.refused, ip, refusedAction);
+	const done = step.done;
+	const contact = await studyContact(done.p.study_id);
+	const personal = await personalOf(done.p.id);
+	if (!personal.email) return { done, contact, mailed: false };
+	const { linkIds, ...mail } = compose(done, contact, personal.fullName ? `Dear ${personal.fullName},` : 'Hello,');
+	return { done, contact, mailed: await mailParticipant(done.p, { to: personal.email, ...mail }, kind, linkIds) };
+}
+
+/**
  * Records the participant's decision from a consent link. The form carries the participant and the form version it
  * was shown for: another participant is refused; a version published since is refused with a request to read again
  * (so the version recorded is always the one the person read). The link is used up in the decision's transaction.
@@ -626,27 +623,15 @@ export async function decide(
 			'forbidden'
 		);
 	}
-	if ('refused' in step) return refuseLink(step.refused, ip, 'consent.link.refused');
-	const done = step.done;
-
-	const contact = await studyContact(done.p.study_id);
-	const personal = await personalOf(done.p.id);
-	let mailed = false;
-	if (personal.email) {
-		const base = linkBase(ctx);
-		const text =
-			done.answers && done.withdrawLink
-				? consentCopy(contact, done.current, done.answers, `${base}/consent/withdraw/${done.withdrawLink.token}`)
-				: `${personal.fullName ? `Dear ${personal.fullName},` : 'Hello,'}\n\nWe have recorded that you do not wish to take part in the study ${studyLine(contact)}. ` +
-					`Thank you for letting us know; we will not contact you again about it.\n\nQuestions: ${contactLine(contact)}.`;
-		const subject = `${done.answers ? 'Your consent' : 'Your decision'}: study ${contact.studyCode}`.slice(0, 200);
-		mailed = await mailParticipant(
-			done.p,
-			{ to: personal.email, subject, text },
-			'confirmation',
-			done.withdrawLink ? [done.withdrawLink.id] : []
-		);
-	}
+	const { done, contact, mailed } = await confirmByMail(step, ip, 'consent.link.refused', 'confirmation', (d, c, hello) => ({
+		subject: `${d.answers ? 'Your consent' : 'Your decision'}: study ${c.studyCode}`.slice(0, 200),
+		text:
+			d.answers && d.withdrawLink
+				? consentCopy(c, d.current, d.answers, `${linkBase(ctx)}/consent/withdraw/${d.withdrawLink.token}`)
+				: `${hello}\n\nWe have recorded that you do not wish to take part in the study ${studyLine(c)}. ` +
+					`Thank you for letting us know; we will not contact you again about it.\n\nQuestions: ${contactLine(c)}.`,
+		linkIds: d.withdrawLink ? [d.withdrawLink.id] : []
+	}));
 	return { decision, mailed, contact, formVersion: done.current.version };
 }
 
@@ -725,29 +710,15 @@ export async function withdraw(ctx: RequestContext, token: string): Promise<With
 		});
 		return { done: { p, effect, flagged } };
 	});
-	if ('refused' in step) return refuseLink(step.refused, ip, 'consent.withdraw-link.refused');
-	const done = step.done;
-	const contact = await studyContact(done.p.study_id);
-	const personal = await personalOf(done.p.id);
-	let mailed = false;
-	if (personal.email) {
-		const hello = personal.fullName ? `Dear ${personal.fullName},` : 'Hello,';
-		const text =
-			done.effect === 'withdraw'
-				? `${hello}\n\nWe have recorded on ${fmtDate(new Date())} that you withdraw your consent to the study ${studyLine(contact)}.\n\n` +
+	const { done, contact, mailed } = await confirmByMail(step, ip, 'consent.withdraw-link.refused', 'withdrawal', (d, c, hello) => ({
+		subject: `${d.effect === 'withdraw' ? 'Your withdrawal' : 'Your decision'}: study ${c.studyCode}`,
+		text:
+			d.effect === 'withdraw'
+				? `${hello}\n\nWe have recorded on ${fmtDate(new Date())} that you withdraw your consent to the study ${studyLine(c)}.\n\n` +
 					`No new recordings or analyses of your data will be made. Results computed before today are set aside; the principal investigator decides, ` +
 					`under the rules the ethics board approved for this study, whether they are kept or excluded. Nothing is deleted without that decision.\n\n` +
-					`Questions, or if you wish your data to be erased: ${contactLine(contact)}.`
-				: `${hello}\n\nWe have recorded that you do not wish to take part in the study ${studyLine(contact)}. We will not contact you again about it.\n\nQuestions: ${contactLine(contact)}.`;
-		mailed = await mailParticipant(
-			done.p,
-			{
-				to: personal.email,
-				subject: `${done.effect === 'withdraw' ? 'Your withdrawal' : 'Your decision'}: study ${contact.studyCode}`,
-				text
-			},
-			'withdrawal'
-		);
-	}
+					`Questions, or if you wish your data to be erased: ${contactLine(c)}.`
+				: `${hello}\n\nWe have recorded that you do not wish to take part in the study ${studyLine(c)}. We will not contact you again about it.\n\nQuestions: ${contactLine(c)}.`
+	}));
 	return { effect: done.effect, mailed, contact, flaggedRuns: done.flagged.length };
 }

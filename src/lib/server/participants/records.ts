@@ -5,7 +5,7 @@ import { Op, type Transaction, type WhereOptions } from 'sequelize';
 import { z } from 'zod';
 import { db } from '../db/index';
 import { Participant, ParticipantLength, ParticipantPersonal, Study } from '../db/models';
-import { may, studyFor, type Actor } from '../access/guard';
+import { may, studyFor, type Actor, type StudyAction } from '../access/guard';
 import type { RequestContext } from '../access/context';
 import { record } from '../audit/record';
 import { isUuid } from '../studies/studies';
@@ -31,16 +31,18 @@ const personalOf = (p: ParticipantPersonal | null | undefined): Personal => ({
 	phone: p?.phone ?? null
 });
 
+/** The research fields the list and the participant's page show. */
+const researchOf = (p: Participant) => ({
+	id: p.id,
+	code: p.code,
+	sex: p.sex,
+	birthYear: p.birthYear,
+	bodyMassKg: p.bodyMassKg,
+	statureM: p.statureM
+});
+
 function rowOf(p: Participant, personal: ParticipantPersonal | null | undefined, seesPersonal: boolean): ParticipantRow {
-	const row: ParticipantRow = {
-		id: p.id,
-		code: p.code,
-		sex: p.sex,
-		birthYear: p.birthYear,
-		bodyMassKg: p.bodyMassKg,
-		statureM: p.statureM,
-		createdOn: p.createdAt.toISOString().slice(0, 10)
-	};
+	const row: ParticipantRow = { ...researchOf(p), createdOn: p.createdAt.toISOString().slice(0, 10) };
 	if (seesPersonal) row.personal = personalOf(personal);
 	return row;
 }
@@ -174,23 +176,53 @@ function audit(
 	);
 }
 
-/**
- * Corrects a participant's research fields. The audit row keeps before and after of each changed field, except
- * the notes, whose text stays out of the append-only log (a name typed there by mistake must be removable).
- */
-export async function updateResearchFields(
+/** A service behind one of the participant page's forms: (actor, ctx, study id, participant id, the form's values). */
+export type ParticipantForm<R> = (
 	actor: Actor | null,
 	ctx: RequestContext,
 	rawId: string,
 	rawPid: string,
 	values: FormFields
-): Promise<{ changed: ResearchField[] }> {
-	const { actor: a, study } = await studyFor(actor, ctx, 'participant.edit', rawId);
-	const p = await participantIn(study.id, rawPid);
-	const data = parseWith(researchSchema, values, RESEARCH_FIELDS);
-	return db().transaction(async (transaction) => {
+) => Promise<R>;
+
+/** What saving a participant form works with, inside its transaction; `audit` writes the change's row in it. */
+interface FormSave<T> {
+	p: Participant;
+	data: T;
+	transaction: Transaction;
+	audit: (action: string, details: Record<string, unknown>) => Promise<unknown>;
+}
+
+/**
+ * A participant form's service: the action guarded on the study, the participant found in it, the values checked
+ * against `schema` (field by field), then `save` in one transaction.
+ */
+function participantForm<S extends z.ZodType, R>(
+	action: StudyAction,
+	schema: S,
+	fields: readonly string[],
+	save: (c: FormSave<z.infer<S>>) => Promise<R>
+): ParticipantForm<R> {
+	return async (actor, ctx, rawId, rawPid, values) => {
+		const { actor: a, study, participant: p } = await participantFor(actor, ctx, action, rawId, rawPid);
+		const data = parseWith(schema, values, fields);
+		return db().transaction((transaction) =>
+			save({ p, data, transaction, audit: (what, details) => audit(a, ctx, study, p, what, details, transaction) })
+		);
+	};
+}
+
+/**
+ * Corrects a participant's research fields. The audit row keeps before and after of each changed field, except
+ * the notes, whose text stays out of the append-only log (a name typed there by mistake must be removable).
+ */
+export const updateResearchFields = participantForm(
+	'participant.edit',
+	researchSchema,
+	RESEARCH_FIELDS,
+	async ({ p, data, transaction, audit }) => {
 		const row = (await Participant.findByPk(p.id, { transaction, lock: transaction.LOCK.UPDATE }))!;
-		const changed = RESEARCH_FIELDS.filter((k) => row[k] !== data[k]);
+		const changed: ResearchField[] = RESEARCH_FIELDS.filter((k) => row[k] !== data[k]);
 		if (changed.length === 0) return { changed };
 		const before: Record<string, unknown> = {};
 		const after: Record<string, unknown> = {};
@@ -200,23 +232,17 @@ export async function updateResearchFields(
 			after[k] = data[k];
 		}
 		await row.update(data, { transaction });
-		await audit(a, ctx, study, p, 'participant.research.changed', { code: p.code, changed, before, after }, transaction);
+		await audit('participant.research.changed', { code: p.code, changed, before, after });
 		return { changed };
-	});
-}
+	}
+);
 
 /** Corrects a participant's personal data; the audit row names the fields that changed, never their values. */
-export async function savePersonal(
-	actor: Actor | null,
-	ctx: RequestContext,
-	rawId: string,
-	rawPid: string,
-	values: FormFields
-): Promise<void> {
-	const { actor: a, study } = await studyFor(actor, ctx, 'participant.personal.edit', rawId);
-	const p = await participantIn(study.id, rawPid);
-	const data = parseWith(personalSchema, values, PERSONAL_FIELDS);
-	await db().transaction(async (transaction) => {
+export const savePersonal = participantForm(
+	'participant.personal.edit',
+	personalSchema,
+	PERSONAL_FIELDS,
+	async ({ p, data, transaction, audit }) => {
 		const [row] = await ParticipantPersonal.findOrCreate({
 			where: { participantId: p.id },
 			defaults: { participantId: p.id, fullName: null, email: null, phone: null },
@@ -225,9 +251,9 @@ export async function savePersonal(
 		const changed = PERSONAL_FIELDS.filter((k) => row[k] !== data[k]);
 		if (changed.length === 0) return;
 		await row.update(data, { transaction });
-		await audit(a, ctx, study, p, 'participant.personal.changed', { code: p.code, changed }, transaction);
-	});
-}
+		await audit('participant.personal.changed', { code: p.code, changed });
+	}
+);
 
 export function parseParticipant(values: FormFields): ParticipantInput {
 	return parseWith(participantSchema, values, FIELDS);
@@ -302,17 +328,22 @@ async function lengthHistory(participantId: string): Promise<LengthView[]> {
 	});
 }
 
-/** One participant of the study in the URL (another study's participant answers 404). */
-async function participantIn(studyId: string, rawPid: string): Promise<Participant> {
-	const p = isUuid(rawPid) ? await Participant.findOne({ where: { id: rawPid.toLowerCase(), studyId } }) : null;
+/** One participant of the study in the URL (another study's participant, or a malformed id, is not-found, as an unknown one). */
+export async function participantIn(studyId: string, rawPid: string, transaction?: Transaction): Promise<Participant> {
+	const p = isUuid(rawPid) ? await Participant.findOne({ where: { id: rawPid.toLowerCase(), studyId }, transaction }) : null;
 	if (!p) throw notFound();
 	return p;
 }
 
+/** Guards the action on the study and finds the participant in it (for a participant's pages and forms). */
+export async function participantFor(actor: Actor | null, ctx: RequestContext, action: StudyAction, rawId: string, rawPid: string) {
+	const { actor: a, study } = await studyFor(actor, ctx, action, rawId);
+	return { actor: a, study, participant: await participantIn(study.id, rawPid) };
+}
+
 /** The participant's page: research fields, length history and, for roles allowed, personal data (reading it is audited). */
 export async function readParticipant(actor: Actor | null, ctx: RequestContext, rawId: string, rawPid: string) {
-	const { actor: a, study } = await studyFor(actor, ctx, 'study.read', rawId);
-	const p = await participantIn(study.id, rawPid);
+	const { actor: a, study, participant: p } = await participantFor(actor, ctx, 'study.read', rawId, rawPid);
 	const seesPersonal = may(a, 'participant.personal.read', study.id);
 	const history = await lengthHistory(p.id);
 	let personal: Personal | undefined;
@@ -323,17 +354,7 @@ export async function readParticipant(actor: Actor | null, ctx: RequestContext, 
 	}
 	return {
 		study: { id: study.id, code: study.code, title: study.title },
-		participant: {
-			id: p.id,
-			code: p.code,
-			sex: p.sex,
-			birthYear: p.birthYear,
-			bodyMassKg: p.bodyMassKg,
-			statureM: p.statureM,
-			dominantSide: p.dominantSide,
-			notes: p.notes,
-			createdAt: p.createdAt.toISOString()
-		},
+		participant: { ...researchOf(p), dominantSide: p.dominantSide, notes: p.notes, createdAt: p.createdAt.toISOString() },
 		lengths: history,
 		segments: LENGTH_KEYS as readonly string[],
 		seesPersonal,
@@ -359,34 +380,19 @@ const lengthSchema = z.object({
 });
 
 /** Adds one measurement to the history (earlier ones stay). */
-export async function addLength(
-	actor: Actor | null,
-	ctx: RequestContext,
-	rawId: string,
-	rawPid: string,
-	values: FormFields
-): Promise<void> {
-	const { actor: a, study } = await studyFor(actor, ctx, 'participant.edit', rawId);
-	const p = await participantIn(study.id, rawPid);
-	const data = parseWith(lengthSchema, values, ['segment', 'lengthM', 'measuredOn']);
-	await db().transaction(async (transaction) => {
+export const addLength = participantForm(
+	'participant.edit',
+	lengthSchema,
+	['segment', 'lengthM', 'measuredOn'],
+	async ({ p, data, transaction, audit }): Promise<void> => {
 		const l = await ParticipantLength.create({ participantId: p.id, ...data }, { transaction });
-		await audit(
-			a,
-			ctx,
-			study,
-			p,
-			'participant.length.added',
-			{ lengthId: l.id, segment: l.segment, lengthM: l.lengthM, measuredOn: l.measuredOn },
-			transaction
-		);
-	});
-}
+		await audit('participant.length.added', { lengthId: l.id, segment: l.segment, lengthM: l.lengthM, measuredOn: l.measuredOn });
+	}
+);
 
 /** What the segment-model page needs: the participant's research fields and latest measured lengths (no personal data). */
 export async function segmentModelInput(actor: Actor | null, ctx: RequestContext, rawId: string, rawPid: string) {
-	const { study } = await studyFor(actor, ctx, 'study.read', rawId);
-	const p = await participantIn(study.id, rawPid);
+	const { study, participant: p } = await participantFor(actor, ctx, 'study.read', rawId, rawPid);
 	const measured: Record<string, number> = {};
 	const measuredOn: Record<string, string> = {};
 	for (const l of await lengthHistory(p.id)) {

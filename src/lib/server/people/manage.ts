@@ -63,17 +63,6 @@ const minutes = (ms: number) => Math.round(ms / 60_000);
 
 // ---------------------------------------------------------------------------------------------- list and read
 
-export {
-	PEOPLE_PER_PAGE,
-	PEOPLE_SORTS,
-	type PeoplePage,
-	type PeopleQuery,
-	type PeopleSort,
-	type PersonSummary,
-	type RoleHeld,
-	type StudyChoice
-} from '../../types/people';
-
 /** Reads ?q=&sort=&dir=&page= leniently: anything unknown falls back to the default. */
 export function parsePeopleQuery(params: URLSearchParams): PeopleQuery {
 	const q = (params.get('q') ?? '').trim().slice(0, 200);

@@ -320,6 +320,8 @@ export async function retryRun(actor: Actor | null, ctx: RequestContext, input: 
 // ---------------------------------------------------------------------------------------------- reading results
 
 type RunRef = { studyId: string; runId: string };
+/** A run in the URL with the request's query parameters. */
+type RunQuery = RunRef & { query: URLSearchParams };
 
 /** GET …/runs/[rid]: one run's state and progress. */
 export async function readRun(actor: Actor | null, ctx: RequestContext, input: RunRef): Promise<RunView> {
@@ -423,11 +425,7 @@ export async function seriesOfRun(runId: string, q: { quantity: ResultQuantity; 
 }
 
 /** GET …/series: query parameters validated (invalid, naming the parameter), run in study, run done. */
-export async function loadSeries(
-	actor: Actor | null,
-	ctx: RequestContext,
-	input: RunRef & { query: URLSearchParams }
-): Promise<SeriesAnswer> {
+export async function loadSeries(actor: Actor | null, ctx: RequestContext, input: RunQuery): Promise<SeriesAnswer> {
 	const { run } = await guardedRun(actor, ctx, 'study.read', input);
 	const sp = input.query;
 	const parsed = seriesQuery.safeParse({
@@ -493,11 +491,7 @@ export function summaryScope(edgeZone: EdgeZoneView, includeEdgeZones: boolean):
 }
 
 /** GET …/runs/[rid]/summary[?includeEdgeZones=1]: peaks, range and mean per DOF, without the edge zones unless asked. */
-export async function loadSummary(
-	actor: Actor | null,
-	ctx: RequestContext,
-	input: RunRef & { query: URLSearchParams }
-): Promise<SummaryAnswer> {
+export async function loadSummary(actor: Actor | null, ctx: RequestContext, input: RunQuery): Promise<SummaryAnswer> {
 	const { run } = await guardedRun(actor, ctx, 'study.read', input);
 	const include = includeEdgeZonesStrict(input.query);
 	requireDone(run);
@@ -513,21 +507,24 @@ export async function loadSummary(
 	};
 }
 
+/** How the run and trial pages name a trial: its file, session, participant and sampling rate. */
+const trialHeading = (t: TrialContext) => ({
+	id: t.trialId,
+	fileName: t.fileName,
+	sessionId: t.sessionId,
+	participantCode: t.participantCode,
+	sampleHz: t.sampleHz
+});
+
 /** Everything the results page shows: the run, its trial, provenance, summary and the moment curves. */
-export async function loadRunPage(actor: Actor | null, ctx: RequestContext, input: RunRef & { query: URLSearchParams }) {
+export async function loadRunPage(actor: Actor | null, ctx: RequestContext, input: RunQuery) {
 	const { actor: a, study, run, trial } = await guardedRun(actor, ctx, 'study.read', input);
 	const stored = await storedResultsOf(run.id);
 	const done = run.state === 'done';
 	const include = includeEdgeZonesOf(input.query);
 	return {
 		study: { id: study.id, code: study.code, title: study.title },
-		trial: {
-			id: trial.trialId,
-			fileName: trial.fileName,
-			sessionId: trial.sessionId,
-			participantCode: trial.participantCode,
-			sampleHz: trial.sampleHz
-		},
+		trial: trialHeading(trial),
 		run,
 		canStart: may(a, 'run.start', study.id),
 		summary: done ? summaryRows(stored.summary, include) : [],
@@ -572,25 +569,18 @@ export async function trialResiduals(trial: TrialContext, fillGaps: boolean): Pr
 	return { sampleHz: rec.sampleHz, channels };
 }
 
-type TrialRef = { studyId: string; trialId: string };
+/** A trial in the URL with the request's query parameters. */
+type TrialQuery = { studyId: string; trialId: string; query: URLSearchParams };
 
 /** The trial page: trial, its runs, and (when asked) residual analysis per channel. */
-export async function loadTrialPage(actor: Actor | null, ctx: RequestContext, input: TrialRef & { query: URLSearchParams }) {
+export async function loadTrialPage(actor: Actor | null, ctx: RequestContext, input: TrialQuery) {
 	const { actor: a, study, trial } = await guardedTrial(actor, ctx, 'study.read', input);
 	const runs = (await listRunsForSession(trial.sessionId)).filter((r) => r.trialId === trial.trialId);
 	const wantResiduals = input.query.get('residuals') === '1';
 	const fillGaps = input.query.get('fillGaps') === 'on';
 	return {
 		study: { id: study.id, code: study.code, title: study.title },
-		trial: {
-			id: trial.trialId,
-			fileName: trial.fileName,
-			sessionId: trial.sessionId,
-			participantCode: trial.participantCode,
-			sampleHz: trial.sampleHz,
-			channels: trial.channels,
-			sessionState: trial.sessionState
-		},
+		trial: { ...trialHeading(trial), channels: trial.channels, sessionState: trial.sessionState },
 		runs,
 		canStart: may(a, 'run.start', study.id),
 		residuals: wantResiduals ? await trialResiduals(trial, fillGaps) : null,
@@ -602,7 +592,7 @@ export async function loadTrialPage(actor: Actor | null, ctx: RequestContext, in
 export async function loadResiduals(
 	actor: Actor | null,
 	ctx: RequestContext,
-	input: TrialRef & { query: URLSearchParams }
+	input: TrialQuery
 ): Promise<TrialResiduals & { trialId: string }> {
 	const { trial } = await guardedTrial(actor, ctx, 'study.read', input);
 	return { trialId: trial.trialId, ...(await trialResiduals(trial, input.query.get('fillGaps') === 'on')) };

@@ -11,6 +11,7 @@ import type { RequestContext } from '../access/context';
 import { record } from '../audit/record';
 import { isUuid } from '../studies/studies';
 import { consentStateOf, requireValidConsent, CONSENT_STATE_LABEL } from '../consent/check';
+import { participantIn } from '../participants/records';
 import type {
 	PresetView,
 	SessionFormChoices,
@@ -205,13 +206,6 @@ export function formChoices(): SessionFormChoices {
 		loadSegments: LOAD_SEGMENTS as readonly string[],
 		loadRows: LOAD_ROWS
 	};
-}
-
-/** A participant of the study (another study's participant is not-found, as an unknown one). */
-async function participantIn(studyId: string, rawPid: string, transaction?: Transaction): Promise<Participant> {
-	const p = isUuid(rawPid) ? await Participant.findOne({ where: { id: rawPid.toLowerCase(), studyId }, transaction }) : null;
-	if (!p) throw notFound();
-	return p;
 }
 
 /** A session of the study in the URL (another study's session is not-found, as an unknown one). */
