@@ -1,6 +1,10 @@
 // Integration-test helpers: a fresh database per test file on the run's PostgreSQL cluster, and maildev's inbox.
 import pg from 'pg';
 import { randomBytes } from 'node:crypto';
+import { afterAll, beforeAll } from 'vitest';
+import type { Sequelize } from 'sequelize';
+import { closeDb, db } from '../../src/lib/server/db/index';
+import { migrateUp } from '../../src/lib/server/db/migrate';
 
 function adminUrl(): string {
 	const url = process.env.TEST_PG_ADMIN_URL;
@@ -23,6 +27,29 @@ export async function freshDatabase(label: string): Promise<{ url: string; drop:
 			await c.query(`DROP DATABASE IF EXISTS ${name} WITH (FORCE)`);
 			await c.end();
 		}
+	};
+}
+
+/**
+ * A fresh database for this test file, migrated to the latest schema and opened as the app's connection before the
+ * file's tests, closed and dropped after them. Returns a getter: the connection exists only once beforeAll has run.
+ */
+export function useMigratedDatabase(label: string): () => Sequelize {
+	let sequelize: Sequelize | undefined;
+	let drop: () => Promise<void> = async () => {};
+	beforeAll(async () => {
+		const fresh = await freshDatabase(label);
+		drop = fresh.drop;
+		sequelize = db(fresh.url);
+		await migrateUp(sequelize);
+	});
+	afterAll(async () => {
+		await closeDb();
+		await drop();
+	});
+	return () => {
+		if (!sequelize) throw new Error('the database is opened in beforeAll');
+		return sequelize;
 	};
 }
 

@@ -1,28 +1,15 @@
 // The models against the schema the migrations make (on real PostgreSQL): every attribute of every model is a
 // column of its table, NULL where the model allows it and only there. The models are the typed access path to the
 // tables, and the migrations, once landed, never change: a model that drifts from them fails here, not in a query.
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { QueryTypes, type Sequelize } from 'sequelize';
-import { db, closeDb } from '../../src/lib/server/db/index';
-import { migrateUp } from '../../src/lib/server/db/migrate';
-import { freshDatabase } from './helpers';
+import { describe, expect, it } from 'vitest';
+import { QueryTypes } from 'sequelize';
+import { useMigratedDatabase } from './helpers';
 
-let sequelize: Sequelize;
-let drop: () => Promise<void>;
-
-beforeAll(async () => {
-	const fresh = await freshDatabase('models');
-	drop = fresh.drop;
-	sequelize = db(fresh.url);
-	await migrateUp(sequelize);
-});
-afterAll(async () => {
-	await closeDb();
-	await drop();
-});
+const database = useMigratedDatabase('models');
 
 describe('the models', () => {
 	it('name only columns the migrations made, NULL where the schema allows it', async () => {
+		const sequelize = database();
 		const columns = await sequelize.query<{ table_name: string; column_name: string; is_nullable: 'YES' | 'NO' }>(
 			`SELECT table_name, column_name, is_nullable FROM information_schema.columns WHERE table_schema = 'public'`,
 			{ type: QueryTypes.SELECT }

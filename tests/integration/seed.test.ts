@@ -1,8 +1,5 @@
 // The demo seed loader: run twice, it leaves exactly one copy of the demo data and changes nothing the second time.
-import { afterAll, beforeAll, expect, it } from 'vitest';
-import type { Sequelize } from 'sequelize';
-import { db, closeDb } from '../../src/lib/server/db/index';
-import { migrateUp } from '../../src/lib/server/db/migrate';
+import { expect, it } from 'vitest';
 import {
 	Lab,
 	AuditEvent,
@@ -15,31 +12,19 @@ import {
 	ConsentFormVersion
 } from '../../src/lib/server/db/models';
 import { databaseIsEmpty, loadDemoSeed } from '../../seeds/index';
-import { freshDatabase } from './helpers';
+import { useMigratedDatabase } from './helpers';
 
-let sequelize: Sequelize;
-let drop: () => Promise<void>;
-
-beforeAll(async () => {
-	const fresh = await freshDatabase('seed');
-	drop = fresh.drop;
-	sequelize = db(fresh.url);
-	await migrateUp(sequelize);
-});
-afterAll(async () => {
-	await closeDb();
-	await drop();
-});
+const database = useMigratedDatabase('seed');
 
 it('loads the demo once, however often it runs', async () => {
-	expect(await databaseIsEmpty(sequelize)).toBe(true);
-	const first = await loadDemoSeed(sequelize);
+	expect(await databaseIsEmpty(database())).toBe(true);
+	const first = await loadDemoSeed(database());
 	expect(first.created).toContain('lab alder-creek');
 	expect(first.created).toContain('study SHELF-REACH');
 	expect(first.created).toContain('role KNEE-60:researcher for knee.researcher@alder-creek.example');
-	expect(await databaseIsEmpty(sequelize)).toBe(false);
+	expect(await databaseIsEmpty(database())).toBe(false);
 
-	const second = await loadDemoSeed(sequelize);
+	const second = await loadDemoSeed(database());
 	expect(second.created).toEqual([]);
 	expect(await Lab.count()).toBe(1);
 	expect(await User.count()).toBe(5);
@@ -58,6 +43,6 @@ it('loads the demo once, however often it runs', async () => {
 
 it('never overwrites a lab a user has edited', async () => {
 	await Lab.update({ name: 'Renamed by the lab' }, { where: { slug: 'alder-creek' } });
-	await loadDemoSeed(sequelize);
+	await loadDemoSeed(database());
 	expect((await Lab.findOne({ where: { slug: 'alder-creek' } }))?.name).toBe('Renamed by the lab');
 });
