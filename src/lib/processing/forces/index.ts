@@ -2,3 +2,4 @@
 // rate, and contacts. Pure TypeScript, no I/O. docs/processing.md ("Force plates") has the formulas and sign rules.
 export * from './plate';
 export * from './cop';
+export * from './resample';
