@@ -3,3 +3,4 @@
 export * from './plate';
 export * from './cop';
 export * from './resample';
+export * from './contacts';

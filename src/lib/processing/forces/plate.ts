@@ -241,7 +241,8 @@ export function plateRect(plate: ForcePlate): PlateRect {
 
 /**
  * How far (m) the point lies outside the plate's outline, measured in the plate's surface after projecting along
- * its normal (a top view for a plate in the floor): 0 inside, the distance to the nearest edge (or corner) outside.
+ * its normal (a top view for a plate in the floor): 0 inside, the distance to the nearest edge (or corner) outside,
+ * NaN for a missing point.
  * `x`, `y`, `z` are the point's lab coordinates (scalars, so a per-sample loop allocates nothing).
  */
 export function outsideDistance(rect: PlateRect, x: number, y: number, z: number): number {
@@ -250,6 +251,7 @@ export function outsideDistance(rect: PlateRect, x: number, y: number, z: number
 		pz = z - rect.o[2];
 	const s = px * rect.u[0] + py * rect.u[1] + pz * rect.u[2];
 	const t = px * rect.v[0] + py * rect.v[1] + pz * rect.v[2];
+	if (Number.isNaN(s) || Number.isNaN(t)) return NaN;
 	const ds = s < 0 ? -s : s > rect.lu ? s - rect.lu : 0;
 	const dt = t < 0 ? -t : t > rect.lv ? t - rect.lv : 0;
 	return ds === 0 ? dt : dt === 0 ? ds : Math.hypot(ds, dt);

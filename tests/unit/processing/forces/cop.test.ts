@@ -8,6 +8,7 @@ import {
 	ForceError,
 	labToPlate,
 	loadedMask,
+	plateCentre,
 	plateToLab,
 	type ForcePlate,
 	type Mat3,
@@ -180,7 +181,7 @@ describe('round trip labToPlate → plateToLab (seeded random loads)', () => {
 				const x = plate.axes.map((r) => r[0]),
 					y = plate.axes.map((r) => r[1]),
 					z = plate.axes.map((r) => r[2]);
-				const c = plate.corners.reduce((s, p) => s.map((v, i) => v + p[i] / 4), [0, 0, 0]);
+				const c = plateCentre(plate);
 				for (let i = 0; i < n; i++) {
 					const fx = 200 * (rnd() - 0.5),
 						fy = 200 * (rnd() - 0.5),

@@ -255,6 +255,7 @@ describe('plate geometry', () => {
 		// 6 mm past a corner in X and Z: √(0.006² + 0.006²) = 8.5 mm outside
 		expect(plateContains(good, [1.306, 0, 0.706], 0.008)).toBe(false);
 		expect(plateContains(good, [1.306, 0, 0.706], 0.009)).toBe(true);
+		expect(plateContains(good, [NaN, 0, 0.5], 1)).toBe(false);
 		// a negative margin shrinks the outline
 		expect(plateContains(good, [1.29, 0, 0.5], -0.02)).toBe(false);
 		expect(plateContains(good, [1.27, 0, 0.5], -0.02)).toBe(true);
