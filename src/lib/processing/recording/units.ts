@@ -72,6 +72,14 @@ export function conversion(unit: string, si: string): Conversion {
 /** The conversion of a unit of `quantity` to that quantity's SI unit. */
 export const toSIOf = (quantity: Quantity, unit: string): Conversion => conversion(unit, SI_UNIT[quantity]);
 
+/**
+ * Makes the conversions of every accepted unit (UNITS) now, so that later look-ups need no mathjs work. A parse calls
+ * it before it reads its first row (see parseRecording for why).
+ */
+export function prepareConversions(): void {
+	for (const quantity of Object.keys(UNITS) as Quantity[]) for (const unit of UNITS[quantity]) toSIOf(quantity, unit);
+}
+
 /** A value given in `from` expressed in `to` (same quantity); unchanged when the units are the same. */
 export function convert(v: number, from: string, to: string, quantity: Quantity): number {
 	return from === to ? v : fromSI(toSI(v, toSIOf(quantity, from)), toSIOf(quantity, to));
