@@ -6,6 +6,7 @@ import type { Sequelize } from 'sequelize';
 import { z } from 'zod';
 import {
 	ConsentFormVersion,
+	ForcePlate,
 	Lab,
 	Participant,
 	ParticipantLength,
@@ -15,6 +16,7 @@ import {
 	User
 } from '../src/lib/server/db/models';
 import { record } from '../src/lib/server/audit/record';
+import { forcePlateSchema } from '../src/lib/processing/forces/plate';
 import { hashPassword } from '../src/lib/server/auth/password';
 import { seedConsent } from './consent';
 import { seedSessionsAndRuns } from './runs';
@@ -22,7 +24,9 @@ import { seedSessionsAndRuns } from './runs';
 const here = path.dirname(fileURLToPath(import.meta.url));
 
 const labFile = z.object({
-	lab: z.object({ slug: z.string().min(1), name: z.string().min(1), institution: z.string().min(1) })
+	lab: z.object({ slug: z.string().min(1), name: z.string().min(1), institution: z.string().min(1) }),
+	/** the lab's force plates, checked with the one plate schema */
+	forcePlates: z.array(forcePlateSchema).default([])
 });
 
 const peopleFile = z.object({
@@ -92,15 +96,24 @@ export interface SeedReport {
 
 /** Inserts every demo record that is not there yet; existing rows are never changed. */
 export async function loadDemoSeed(sequelize: Sequelize): Promise<SeedReport> {
-	const { lab } = readJson('lab.json', labFile);
+	const { lab, forcePlates } = readJson('lab.json', labFile);
 	const demo = readJson('people.json', peopleFile);
 	const records = readJson('participants.json', participantsFile);
 	// hash outside the transaction: argon2 is deliberately slow
 	const passwordHash = await hashPassword(demo.password);
 	const created: string[] = [];
 	await sequelize.transaction(async (transaction) => {
-		const [, isNew] = await Lab.findOrCreate({ where: { slug: lab.slug }, defaults: lab, transaction });
+		const [labRow, isNew] = await Lab.findOrCreate({ where: { slug: lab.slug }, defaults: lab, transaction });
 		if (isNew) created.push(`lab ${lab.slug}`);
+		// a plate of that name, in use or archived, means the lab has it already: it is never changed or set up again
+		for (const plate of forcePlates) {
+			const [, made] = await ForcePlate.findOrCreate({
+				where: { labId: labRow.id, name: plate.name },
+				defaults: { labId: labRow.id, ...plate },
+				transaction
+			});
+			if (made) created.push(`force plate ${plate.name}`);
+		}
 		const studyIds = new Map<string, string>();
 		for (const st of demo.studies) {
 			const [study, made] = await Study.findOrCreate({ where: { code: st.code }, defaults: st, transaction });

@@ -9,7 +9,8 @@ import {
 	Participant,
 	ParticipantPersonal,
 	ParticipantLength,
-	ConsentFormVersion
+	ConsentFormVersion,
+	ForcePlate
 } from '../../src/lib/server/db/models';
 import { databaseIsEmpty, loadDemoSeed } from '../../seeds/index';
 import { useMigratedDatabase } from './helpers';
@@ -22,6 +23,7 @@ it('loads the demo once, however often it runs', async () => {
 	expect(first.created).toContain('lab alder-creek');
 	expect(first.created).toContain('study SHELF-REACH');
 	expect(first.created).toContain('role KNEE-60:researcher for knee.researcher@alder-creek.example');
+	expect(first.created).toEqual(expect.arrayContaining(['force plate plate1', 'force plate plate2']));
 	expect(await databaseIsEmpty(database())).toBe(false);
 
 	const second = await loadDemoSeed(database());
@@ -34,6 +36,12 @@ it('loads the demo once, however often it runs', async () => {
 	expect(await ParticipantPersonal.count()).toBe(8);
 	expect(await ParticipantLength.count()).toBe(2);
 	expect(await ConsentFormVersion.count()).toBe(2);
+	// two plates side by side along the walkway (seeds/demo/lab.json), read back through the model's plate schema
+	const plates = await ForcePlate.findAll({ order: [['name', 'ASC']] });
+	expect(plates.map((p) => [p.name, p.corners[0][0], p.corners[2][0], p.archivedAt])).toEqual([
+		['plate1', 1.0, 1.6, null],
+		['plate2', 1.6, 2.2, null]
+	]);
 	const shelf = await Study.findOne({ where: { code: 'SHELF-REACH' } });
 	expect(shelf?.participantPrefix).toBe('ALD');
 	expect(shelf?.nextParticipantNumber).toBe(6);
@@ -45,4 +53,12 @@ it('never overwrites a lab a user has edited', async () => {
 	await Lab.update({ name: 'Renamed by the lab' }, { where: { slug: 'alder-creek' } });
 	await loadDemoSeed(database());
 	expect((await Lab.findOne({ where: { slug: 'alder-creek' } }))?.name).toBe('Renamed by the lab');
+});
+
+it('neither changes nor sets up again a plate the lab has edited or archived', async () => {
+	await (await ForcePlate.findOne({ where: { name: 'plate1' } }))!.update({ originDepthM: 0.05 });
+	await (await ForcePlate.findOne({ where: { name: 'plate2' } }))!.update({ archivedAt: new Date() });
+	expect((await loadDemoSeed(database())).created).toEqual([]);
+	expect(await ForcePlate.count()).toBe(2);
+	expect((await ForcePlate.findOne({ where: { name: 'plate1' } }))?.originDepthM).toBe(0.05);
 });

@@ -23,6 +23,7 @@ import type { EventSet } from '../../types/review';
 import type { EdgeZone } from '../../processing/pipeline';
 import { sessionSetupSchema, type SessionSetup } from '../../processing/session-model';
 import { columnMappingSchema, type ColumnMapping } from '../../processing/recording';
+import { forcePlateSchema, type ForcePlate as PlateGeometry, type PlateOutput } from '../../processing/forces/plate';
 import {
 	modelFieldsSchema,
 	storedEdgeZoneSchema,
@@ -278,6 +279,29 @@ export class CycleEvent extends Keyed<CycleEvent> {
 	declare updatedAt: CreationOptional<Date>;
 }
 
+/**
+ * A force plate of the lab (migration 0010): its top-surface corners and axes in lab axes, measuring-origin depth and
+ * output kind; archived (never deleted) when it goes out of use. `plate` hands out the pure ForcePlate.
+ */
+export class ForcePlate extends Keyed<ForcePlate> {
+	declare labId: number;
+	/** The column prefix of its channels in recordings; unique among the lab's plates in use. */
+	declare name: string;
+	/** Parsed with the plate schema's corner tuples when it is read (processing/forces/plate.ts). */
+	declare corners: PlateGeometry['corners'];
+	/** R_plate→lab, row-major; parsed with the plate schema's 3×3 when it is read. */
+	declare axes: PlateGeometry['axes'];
+	declare originDepthM: number;
+	declare output: PlateOutput;
+	declare updatedAt: CreationOptional<Date>;
+	declare archivedAt: CreationOptional<Date | null>;
+
+	/** The plate as the processing code takes it. */
+	get plate(): NonAttribute<PlateGeometry> {
+		return { name: this.name, corners: this.corners, axes: this.axes, originDepthM: this.originDepthM, output: this.output };
+	}
+}
+
 // ---- columns -----------------------------------------------------------------------------------------------------
 
 const { BIGINT, BLOB, BOOLEAN, DATE, DATEONLY, DOUBLE, INTEGER, JSONB, REAL, TEXT, UUID } = DataTypes;
@@ -521,5 +545,19 @@ export function initModels(sequelize: Sequelize): void {
 		createdBy: nullable(UUID),
 		createdAt: now(),
 		updatedAt: now()
+	});
+
+	// ---- lab equipment (migration 0010)
+	register(ForcePlate, 'force_plates', 'ForcePlate', {
+		id: uuidKey(),
+		labId: required(INTEGER),
+		name: required(TEXT),
+		corners: json('corners', forcePlateSchema.shape.corners, { allowNull: false }),
+		axes: json('axes', forcePlateSchema.shape.axes, { allowNull: false }),
+		originDepthM: required(DOUBLE),
+		output: required(TEXT),
+		createdAt: now(),
+		updatedAt: now(),
+		archivedAt: nullable(DATE)
 	});
 }

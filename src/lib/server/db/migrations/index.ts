@@ -9,6 +9,7 @@ import * as m0006 from './0006-session-review';
 import * as m0007 from './0007-cycle-events';
 import * as m0008 from './0008-run-edge-zones';
 import * as m0009 from './0009-run-job-id';
+import * as m0010 from './0010-force-plates';
 
 export const migrations: { name: string; up: Migration; down: Migration }[] = [
 	{ name: '0001-lab-foundation', ...m0001 },
@@ -19,5 +20,6 @@ export const migrations: { name: string; up: Migration; down: Migration }[] = [
 	{ name: '0006-session-review', ...m0006 },
 	{ name: '0007-cycle-events', ...m0007 },
 	{ name: '0008-run-edge-zones', ...m0008 },
-	{ name: '0009-run-job-id', ...m0009 }
+	{ name: '0009-run-job-id', ...m0009 },
+	{ name: '0010-force-plates', ...m0010 }
 ];
