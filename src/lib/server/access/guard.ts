@@ -14,7 +14,8 @@ export interface Actor {
 }
 
 /** Lab-wide actions (no study) and the per-study actions with the roles allowed to do them. */
-export const LAB_ACTIONS = ['people.manage', 'audit.read', 'studies.manage'] as const;
+// equipment.manage: setting up, changing and archiving the lab's force plates (every signed-in person reads them)
+export const LAB_ACTIONS = ['people.manage', 'audit.read', 'studies.manage', 'equipment.manage'] as const;
 export const STUDY_ACTIONS = {
 	'study.read': ['pi', 'researcher', 'technician'],
 	'participant.personal.read': ['pi', 'technician'],
