@@ -126,6 +126,12 @@ export const MATRIX: MatrixEntry[] = [
 	get('/studies/[id]/participants/import', teamA(200, 403, 200), studyA),
 	act('/studies/[id]/participants/import', 'check', teamA(400, 403, 400), studyA),
 	act('/studies/[id]/participants/import', 'import', teamA(400, 403, 400), studyA),
+	// the lab's force plates: every signed-in person reads them, lab administrators change them (an empty form is refused
+	// with 400: no orientation chosen; archiving without confirming is refused with 400); tests/integration/force-plates.test.ts
+	get('/lab/force-plates', signedIn(200)),
+	act('/lab/force-plates', 'create', adminOnly(400), undefined, { name: '' }),
+	act('/lab/force-plates', 'update', adminOnly(400), undefined, { id: 'none' }),
+	act('/lab/force-plates', 'archive', adminOnly(400), undefined, { id: 'none' }),
 	// the audit log and its export: administrators only
 	get('/audit', adminOnly(200)),
 	get('/audit/export.csv', adminOnly(200)),
