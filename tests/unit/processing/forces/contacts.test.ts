@@ -7,26 +7,9 @@ import {
 	DEFAULT_OFF_PLATE_MARGIN_M,
 	findContacts,
 	plateToLab,
-	labToPlate,
-	type ForcePlate
+	labToPlate
 } from '../../../../src/lib/processing/forces';
-
-const plate: ForcePlate = {
-	name: 'plate1',
-	corners: [
-		[0.7, 0, 0.3],
-		[1.3, 0, 0.3],
-		[1.3, 0, 0.7],
-		[0.7, 0, 0.7]
-	],
-	axes: [
-		[1, 0, 0],
-		[0, 0, -1],
-		[0, 1, 0]
-	],
-	originDepthM: 0.04,
-	output: 'forces-moments'
-};
+import { plate1 as plate } from './plates';
 
 const fs = 1000;
 const n = 3000;

@@ -15,24 +15,7 @@ import {
 	type Vec3
 } from '../../../../src/lib/processing/forces';
 import { seededUniform } from '../../../../src/lib/processing/edges';
-
-/** 0.6 m along lab X × 0.4 m along lab Z, centre (1, 0, 0.5); plate x = lab X, y = lab Z, z = −lab Y (down); d = 0.04 m. */
-const plate1: ForcePlate = {
-	name: 'plate1',
-	corners: [
-		[0.7, 0, 0.3],
-		[1.3, 0, 0.3],
-		[1.3, 0, 0.7],
-		[0.7, 0, 0.7]
-	],
-	axes: [
-		[1, 0, 0],
-		[0, 0, -1],
-		[0, 1, 0]
-	],
-	originDepthM: 0.04,
-	output: 'forces-moments'
-};
+import { plate1 } from './plates';
 
 /**
  * plate1 turned 90° about lab Y and moved: plate x = lab −Z, y = lab X, z = −lab Y (x × y = z: right-handed);

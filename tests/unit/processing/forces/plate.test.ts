@@ -8,26 +8,9 @@ import {
 	plateNormal,
 	plateOrigin,
 	plateOutline,
-	type ForcePlate,
 	type Vec3
 } from '../../../../src/lib/processing/forces';
-
-const good: ForcePlate = {
-	name: 'plate1',
-	corners: [
-		[0.7, 0, 0.3],
-		[1.3, 0, 0.3],
-		[1.3, 0, 0.7],
-		[0.7, 0, 0.7]
-	],
-	axes: [
-		[1, 0, 0],
-		[0, 0, -1],
-		[0, 1, 0]
-	],
-	originDepthM: 0.04,
-	output: 'forces-moments'
-};
+import { plate1 as good } from './plates';
 
 /** The schema's issues as "path: message". */
 function issues(input: unknown): string[] {

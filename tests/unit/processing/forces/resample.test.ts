@@ -18,6 +18,7 @@ import {
 } from '../../../../src/lib/processing/forces';
 import { SignalError } from '../../../../src/lib/processing/signal';
 import { loadReference } from '../../../reference/fixture';
+import { plate1 as plate } from './plates';
 
 interface Fixture {
 	source: string;
@@ -46,23 +47,6 @@ function relErr(got: ArrayLike<number>, want: ArrayLike<number>): number {
 	}
 	return d / s;
 }
-
-const plate: ForcePlate = {
-	name: 'plate1',
-	corners: [
-		[0.7, 0, 0.3],
-		[1.3, 0, 0.3],
-		[1.3, 0, 0.7],
-		[0.7, 0, 0.7]
-	],
-	axes: [
-		[1, 0, 0],
-		[0, 0, -1],
-		[0, 1, 0]
-	],
-	originDepthM: 0.04,
-	output: 'forces-moments'
-};
 
 describe(`resampling against scipy.signal (${regenerated ? 'regenerated now' : 'committed fixture'}: ${fixture.source})`, () => {
 	it.runIf(regenerated)('the committed fixture is what the script writes now (else rerun the script with --out ' + committed + ')', () => {
