@@ -157,9 +157,21 @@ export interface BatchOutput {
 	torque?: Float64Array;
 }
 
+/** Options of inverseDynamicsBatch: those of one state, reactions' axes, and loads that change from frame to frame. */
+export interface BatchOptions extends DynamicsOptions {
+	reactionFrame?: 'body' | 'world';
+	/**
+	 * The external loads of frame k (0-based within this call), in addition to `loads` (which apply to every frame);
+	 * null or [] for none. Called once per frame: return arrays and loads kept by the caller and refilled in place
+	 * (e.g. a world point that moves), so that nothing is allocated per frame.
+	 */
+	loadsAt?: (frame: number) => readonly ExternalLoad[] | null;
+}
+
 /**
  * Inverse dynamics over a whole recording. q, qd, qdd are frames × n, row per frame (Float64Array).
- * Allocates nothing per frame; pass `ws` to reuse a workspace across calls. Loads, if any, apply to every frame.
+ * Allocates nothing per frame; pass `ws` to reuse a workspace across calls. `loads` apply to every frame,
+ * `loadsAt(k)` to frame k alone.
  */
 export function inverseDynamicsBatch(
 	m: Model,
@@ -168,7 +180,7 @@ export function inverseDynamicsBatch(
 	qd: Float64Array,
 	qdd: Float64Array,
 	out: BatchOutput,
-	opts: DynamicsOptions & { reactionFrame?: 'body' | 'world' } = {},
+	opts: BatchOptions = {},
 	ws: Workspace = createWorkspace(m)
 ): BatchOutput {
 	const n = m.n;
@@ -181,10 +193,24 @@ export function inverseDynamicsBatch(
 		if (arr.length < frames * n) throw new RangeError(`${name} holds ${arr.length} values; ${frames} frames × ${n} DOF need ${frames * n}`);
 	}
 	const g = opts.gravity ?? STANDARD_GRAVITY;
-	const loads = opts.loads && opts.loads.length ? opts.loads : null;
+	const fixed = opts.loads && opts.loads.length ? opts.loads : null;
+	const loadsAt = opts.loadsAt;
+	// a frame with both kinds joins them in this one array, refilled per frame (its capacity is kept: no allocation)
+	const joined: ExternalLoad[] = fixed ? [...fixed] : [];
 	const world = opts.reactionFrame === 'world';
 	for (let k = 0; k < frames; k++) {
 		const o = k * n;
+		let loads = fixed;
+		if (loadsAt) {
+			const own = loadsAt(k);
+			if (own && own.length) {
+				if (fixed) {
+					joined.length = fixed.length;
+					for (let j = 0; j < own.length; j++) joined.push(own[j]);
+					loads = joined;
+				} else loads = own;
+			}
+		}
 		rneaFrameFast(m, ws, q, qd, qdd, o, g, loads, out.Q, o, world);
 		if (out.force || out.torque) {
 			if (world) {

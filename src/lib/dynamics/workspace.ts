@@ -2,16 +2,20 @@
 import type { Model, Vec3 } from './model';
 
 /**
- * An external load on a body: a force through a body-fixed point plus a free torque.
+ * An external load on a body: a force through a point plus a free torque.
  * `frame` says in which axes `force` and `torque` are given: the ground's ('world', default) or the body's.
+ * `pointFrame` says what `point` is: body-frame coordinates relative to the body's joint point ('body', default), or
+ * ground coordinates of a point in the lab ('world'; e.g. a centre of pressure), taken as the body's point that lies
+ * there at this frame.
  */
 export interface ExternalLoad {
 	body: number;
-	/** Point of application, body-frame coordinates relative to the body's joint point (m). */
+	/** Point of application (m): body-frame coordinates from the body's joint point, or ground coordinates (pointFrame 'world'). */
 	point: Vec3;
 	force: Vec3;
 	torque?: Vec3;
 	frame?: 'world' | 'body';
+	pointFrame?: 'body' | 'world';
 }
 
 export interface Workspace {
