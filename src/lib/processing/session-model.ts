@@ -153,8 +153,8 @@ export interface LoadApplied {
 export interface SessionModel {
 	model: ModelInput;
 	dofs: SessionDof[];
-	/** The channels a recording must contain, in model order. */
-	expected: ExpectedChannel[];
+	/** The channels a recording must contain, in model order (angles and base positions; plate channels come from the trial's plates). */
+	expected: (ExpectedChannel & { kind: 'angle' | 'position' })[];
 	/** The scaled parameters used (limb bodies after loads), for provenance. */
 	parameters: ScaledModel;
 	loadsApplied: LoadApplied[];
@@ -377,7 +377,7 @@ export function buildSessionModel(body: ParticipantBody, setupInput: SessionSetu
 		model: { name: scaled.model.name, bodies: limbBodies },
 		notes: [...scaled.notes, ...baseNotes, ...loadNotes]
 	};
-	const expected: ExpectedChannel[] = dofs.map((d) => ({ name: d.name, kind: d.kind }));
+	const expected: SessionModel['expected'] = dofs.map((d) => ({ name: d.name, kind: d.kind }));
 	return { model, dofs, expected, parameters, loadsApplied, setup, bodyMass: scaled.bodyMass };
 }
 

@@ -21,7 +21,22 @@ export const RANGE_MARGIN_DEG = 20;
  * beyond ±100 m from the lab origin is a corrupt cell, a wrong column or a unit error, never a movement. Compared
  * in the column's own unit after conversion (a column in mm against 100 m, a column in rad against 720°).
  */
-export const HARD_LIMITS = { angleDeg: 720, positionM: 100 } as const;
+export const HARD_LIMITS = { angleDeg: 720, positionM: 100, forceN: 100_000, momentNm: 20_000, copM: 100 } as const;
+// The force-plate limits are our guards, not a plate's measuring range: a force beyond ±100 kN (about 145 times
+// the weight of a 70 kg person, 687 N; landings reach roughly 10 times body weight, from memory), a moment beyond ±20 kN·m (100 kN
+// at 0.2 m) or a centre of pressure beyond ±100 m from the plate's origin is a corrupt cell or a unit error.
+
+/** Force-plate quantities: never gap-filled, so an empty or NaN cell is refused (see parse.ts). */
+export const isPlateKind = (kind: ExpectedChannel['kind']) => kind === 'force' || kind === 'moment' || kind === 'length';
+
+/** A kind's hard limit of |value| in SI, its SI unit and how the limit reads in a message. */
+const LIMIT_OF = {
+	angle: { si: 'rad', text: `±${HARD_LIMITS.angleDeg}° (two full turns)` },
+	position: { si: 'm', text: `±${HARD_LIMITS.positionM} m from the lab origin` },
+	force: { si: 'N', text: `±${HARD_LIMITS.forceN / 1000} kN (our guard for a force on a plate)` },
+	moment: { si: 'N·m', text: `±${HARD_LIMITS.momentNm / 1000} kN·m (our guard for a moment on a plate)` },
+	length: { si: 'm', text: `±${HARD_LIMITS.copM} m from the plate's origin (our guard for a centre of pressure)` }
+} as const;
 /**
  * The smallest positive normal IEEE 754 double, 2^−1022 (IEEE 754-2008, binary64: emin = −1022). A non-zero cell
  * that parses below it has lost its digits (a subnormal) or become 0 (e.g. 1e-400): refused as an underflow.
@@ -53,9 +68,18 @@ export function numberFault(text: string, v: number): 'overflow' | 'underflow' |
 
 /** A column's hard limit of |value| in its own unit: HARD_LIMITS by the unit rule (720° = 4π rad, 100 m = 100 000 mm). */
 export function hardLimitOf(col: CheckedColumn): number {
-	return col.channel.kind === 'angle'
-		? convert(HARD_LIMITS.angleDeg, 'deg', col.unit, 'angle')
-		: convert(HARD_LIMITS.positionM, 'm', col.unit, 'position');
+	switch (col.channel.kind) {
+		case 'angle':
+			return convert(HARD_LIMITS.angleDeg, 'deg', col.unit, 'angle');
+		case 'position':
+			return convert(HARD_LIMITS.positionM, 'm', col.unit, 'position');
+		case 'force':
+			return convert(HARD_LIMITS.forceN, 'N', col.unit, 'force');
+		case 'moment':
+			return convert(HARD_LIMITS.momentNm, 'N·m', col.unit, 'moment');
+		case 'length':
+			return convert(HARD_LIMITS.copM, 'm', col.unit, 'length');
+	}
 }
 
 export function impossibleMessage(
@@ -69,14 +93,20 @@ export function impossibleMessage(
 ): string {
 	const where = `Line ${line}, column ${index + 1} ("${header}")`;
 	const cell = `"${preview(text)}"`;
-	const fix = 'Correct the cell in the exported file (or leave it empty to mark a gap), or re-export the recording.';
+	const fix =
+		col && isPlateKind(col.channel.kind)
+			? 'Correct the cell in the exported file, or re-export the recording (force-plate columns take no gaps).'
+			: 'Correct the cell in the exported file (or leave it empty to mark a gap), or re-export the recording.';
 	if (fault === 'overflow')
 		return `${where}: ${cell} is too large to be held as a number at all (it overflows to infinity); no recording of a person contains it. ${fix}`;
 	if (fault === 'underflow')
 		return `${where}: ${cell} is not zero but is smaller than the smallest number held at full precision (about 2.2e-308), so it would be read as 0 or lose its digits (an underflow); no recording of a person contains it. ${fix}`;
-	const angle = col!.channel.kind === 'angle';
-	const shown = angle ? `${fmt(convert(v, col!.unit, 'deg', 'angle'))}°` : `${fmt(convert(v, col!.unit, 'm', 'position'))} m`;
-	const limit = angle ? `±${HARD_LIMITS.angleDeg}° (two full turns)` : `±${HARD_LIMITS.positionM} m from the lab origin`;
+	const kind = col!.channel.kind;
+	const shown =
+		kind === 'angle'
+			? `${fmt(convert(v, col!.unit, 'deg', 'angle'))}°`
+			: `${fmt(convert(v, col!.unit, LIMIT_OF[kind].si, kind), isPlateKind(kind) ? 7 : 4)} ${LIMIT_OF[kind].si}`;
+	const limit = LIMIT_OF[kind].text;
 	return `${where}: ${cell} (${col!.unit}) is ${shown}, beyond the hard limit of ${limit} that no recording of a person can exceed: the cell is corrupt, or the column or its unit is wrong. ${fix}`;
 }
 
@@ -160,15 +190,18 @@ export class ChannelChecks {
 	/** sign × the conversion to SI; exact for the angle units that have a band (their div is 1). */
 	private readonly scale: number;
 	private readonly banded: boolean;
+	/** False for force-plate channels, whose empty cells parse.ts refuses (or accepts while unloaded) line by line. */
+	private readonly tracksGaps: boolean;
 	constructor(col: CheckedColumn, conv: Conversion, sign: 1 | -1) {
 		const band = rangeBand(col);
+		this.tracksGaps = !isPlateKind(col.channel.kind);
 		this.banded = band !== null;
 		this.lo = band ? band.lo : -Infinity;
 		this.hi = band ? band.hi : Infinity;
 		this.scale = (sign * conv.mul) / conv.div;
 	}
 	push(v: number): void {
-		const blank = v !== v;
+		const blank = v !== v && this.tracksGaps;
 		this.gaps.step(this.n, blank);
 		if (this.banded && !blank && v !== Infinity) {
 			const x = v * this.scale;

@@ -4,7 +4,7 @@
 import { z } from 'zod';
 import { BASE_RE, DOF_RE } from './layout';
 import type { ExpectedChannel } from './types';
-import { CHANNEL_UNITS, UNITS, type AngleUnit, type ChannelUnit } from './units';
+import { CHANNEL_UNITS, UNITS, type AngleUnit, type ChannelKind, type ChannelUnit } from './units';
 
 const mappedColumnSchema = z.object({
 	channel: z.string().min(1).nullable(),
@@ -100,9 +100,12 @@ export function suggestChannel(header: string, expected: readonly ExpectedChanne
 	return best?.name ?? null;
 }
 
-function guessUnit(header: string, kind: 'angle' | 'position' | undefined, fallback: AngleUnit): ChannelUnit {
+function guessUnit(header: string, kind: ChannelKind | undefined, fallback: AngleUnit): ChannelUnit {
 	const t = tokens(header);
 	if (kind === 'position') return t.includes('mm') ? 'mm' : 'm';
+	if (kind === 'length') return t.includes('mm') ? 'mm' : t.includes('cm') ? 'cm' : 'm';
+	if (kind === 'force') return t.includes('kn') ? 'kN' : 'N';
+	if (kind === 'moment') return t.includes('nmm') || (t.includes('n') && t.includes('mm')) ? 'N·mm' : 'N·m';
 	if (t.some((w) => w.startsWith('rad'))) return 'rad';
 	if (t.some((w) => w.startsWith('deg'))) return 'deg';
 	return fallback;

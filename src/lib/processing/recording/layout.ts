@@ -35,12 +35,33 @@ export function usualRange(name: string): { min: number; max: number } | undefin
 	return m ? PHYSIOLOGICAL_RANGES[`${m[2]}.${m[3]}`] : undefined;
 }
 
-/** Whether a name belongs to our column scheme (a known DOF or a base column), whatever the session expects. */
-export function isSchemeName(name: string): boolean {
-	return usualRange(name) !== undefined || BASE_RE.test(name);
+/**
+ * Force-plate channels, all in the plate's own axes: `<plate>.force.x|y|z` (N), `<plate>.moment.x|y|z` (N·m, about
+ * the measuring origin), `<plate>.cop.x|y|z` (m) and `<plate>.freemoment` (N·m), where `<plate>` is the plate's name
+ * (ForcePlate.name, e.g. plate1; its pattern is PLATE_NAME_PATTERN of forces/plate.ts). Case-sensitive. Groups: 1 plate, 2 quantity (force, moment, cop, freemoment), 3 axis or undefined.
+ */
+export const PLATE_CHANNEL_RE = /^([A-Za-z][A-Za-z0-9_-]{0,31})\.(?:(force|moment|cop)\.([xyz])|(freemoment))$/;
+
+/** The parts of a force-plate channel name, or undefined when the name is not one. */
+export function plateChannelParts(name: string): { plate: string; quantity: 'force' | 'moment' | 'cop' | 'freemoment'; axis?: 'x' | 'y' | 'z' } | undefined {
+	const m = PLATE_CHANNEL_RE.exec(name);
+	if (!m) return undefined;
+	return m[4]
+		? { plate: m[1], quantity: 'freemoment' }
+		: { plate: m[1], quantity: m[2] as 'force' | 'moment' | 'cop', axis: m[3] as 'x' | 'y' | 'z' };
 }
 
-/** The channel kind our scheme gives a name (base px/py/pz are positions, everything else an angle). */
-export function schemeKind(name: string): 'angle' | 'position' {
+/** Whether a name belongs to our column scheme (a known DOF, a base column or a plate channel), whatever the session expects. */
+export function isSchemeName(name: string): boolean {
+	return usualRange(name) !== undefined || BASE_RE.test(name) || plateChannelParts(name) !== undefined;
+}
+
+/**
+ * The channel kind our scheme gives a name: base px/py/pz are positions; a plate's force a force, its moments and
+ * free moment moments, its CoP a length; everything else an angle.
+ */
+export function schemeKind(name: string): 'angle' | 'position' | 'force' | 'moment' | 'length' {
+	const plate = plateChannelParts(name);
+	if (plate) return plate.quantity === 'force' ? 'force' : plate.quantity === 'cop' ? 'length' : 'moment';
 	return /\.base\.p[xyz]$/.test(name) ? 'position' : 'angle';
 }

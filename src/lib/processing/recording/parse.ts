@@ -9,6 +9,7 @@ import {
 	DEFAULT_SAMPLING_TOLERANCE,
 	hardLimitOf,
 	impossibleMessage,
+	isPlateKind,
 	numberFault
 } from './checks';
 import { splitHeader, suggestMapping, type ColumnMapping, type HeaderColumn } from './header';
@@ -29,6 +30,10 @@ interface Target extends PlannedColumn {
 	limit: number;
 	checks: ChannelChecks;
 	values: Column | null;
+	/** A force-plate column: an empty or NaN cell is refused line by line (blankCellProblem), never a gap. */
+	plate: boolean;
+	/** For a column the plate leaves empty while unloaded: the target index of the normal force, and the threshold (N). */
+	unloaded: { by: number; thresholdN: number } | null;
 }
 
 /**
@@ -59,15 +64,36 @@ function nonNumeric(text: string, line: number, delimiter: string): string {
 }
 
 /** A planned column armed for reading: conversion and hard limit from the unit rule, checks, and storage if values are kept. */
-function target(c: PlannedColumn, keepValues: boolean): Target {
+function target(c: PlannedColumn, keepValues: boolean, all: PlannedColumn[]): Target {
 	const conv = toSIOf(c.channel.kind, c.unit);
+	const blank = c.channel.blankWhenUnloaded;
+	const by = blank ? all.findIndex((o) => o.channel.name === blank.channel) : -1;
 	return {
 		...c,
 		conv,
 		limit: hardLimitOf(c),
 		checks: new ChannelChecks(c, conv, c.flip ? -1 : 1),
-		values: keepValues ? new Column() : null
+		values: keepValues ? new Column() : null,
+		plate: isPlateKind(c.channel.kind),
+		unloaded: blank && by >= 0 ? { by, thresholdN: blank.thresholdN } : null
 	};
+}
+
+/**
+ * The problem of an empty or NaN cell in a force-plate column, or null where it is accepted (a column the plate
+ * leaves empty while unloaded, on a line where the normal force is below the threshold). `row` holds the line's
+ * numbers of every target in their own units (NaN blank, REPORTED a cell with its own problem).
+ */
+function blankCellProblem(tg: Target, targets: Target[], row: Float64Array, line: number): string | null {
+	const never = 'force-plate columns are never gap-filled: a plate gives every sample, and a value filled in during a contact would change the joint moments';
+	const where = `Line ${line}, column ${tg.index + 1} ("${tg.header}")`;
+	if (!tg.unloaded) return `${where} is empty or NaN: ${never}. Re-export the force data with every sample.`;
+	const ref = targets[tg.unloaded.by];
+	const fz = row[tg.unloaded.by];
+	if (fz !== fz || fz === REPORTED) return null; // the normal force's own cell is already reported
+	const fzN = Math.abs(toSI(fz, ref.conv));
+	if (fzN < tg.unloaded.thresholdN) return null;
+	return `${where} is empty or NaN while the plate is loaded (${ref.channel.name} is ${fmt(fzN)} N, at or above the ${fmt(tg.unloaded.thresholdN)} N contact threshold): it may be empty only while the plate is unloaded, and ${never}. Re-export the force data with every sample.`;
 }
 
 /**
@@ -93,7 +119,7 @@ export async function parseRecording(
 	});
 	let delimiter = ',' as '\t' | ';' | ',';
 	let header: HeaderColumn[] | null = null;
-	let plan: { timeIndex: number; time: Conversion; targets: Target[] } | null = null;
+	let plan: { timeIndex: number; time: Conversion; targets: Target[]; plates: boolean; row: Float64Array } | null = null;
 	const time = new Column();
 	const lines = new LineNumbers();
 	let timeDecimals = 0;
@@ -169,10 +195,13 @@ export async function parseRecording(
 						const headers = header.map((h) => h.text);
 						return fail(p.needsMapping ? { headers, suggested: suggestMapping(headers, opts.expected, opts.defaultAngleUnit) } : undefined);
 					}
+					const targets = p.columns.map((c) => target(c, opts.keepValues !== false, p.columns));
 					plan = {
 						timeIndex: p.timeIndex,
 						time: toSIOf('time', p.timeUnit),
-						targets: p.columns.map((c) => target(c, opts.keepValues !== false))
+						targets,
+						plates: targets.some((tg) => tg.plate),
+						row: new Float64Array(targets.length)
 					};
 					continue;
 				}
@@ -237,8 +266,11 @@ export async function parseRecording(
 				}
 				time.push(tv);
 				lines.push(row.line);
-				for (const target of pl.targets) {
+				const vals = pl.row;
+				for (let k = 0; k < pl.targets.length; k++) {
+					const target = pl.targets[k];
 					const text = cells[target.index];
+					vals[k] = REPORTED;
 					if (text === undefined) {
 						push(target, REPORTED);
 						continue;
@@ -255,12 +287,22 @@ export async function parseRecording(
 								code: 'impossible-value',
 								message: impossibleMessage(text, row.line, target.index, target.header, fault, target, v)
 							});
-						} else push(target, v);
+						} else {
+							vals[k] = v;
+							push(target, v);
+						}
 					} else {
 						push(target, REPORTED);
 						problems.add({ row: row.line, column: target.header, code: 'non-numeric', message: nonNumeric(text, row.line, delimiter) });
 					}
 				}
+				// force-plate columns take no gaps: each empty cell is refused here, with its line and column
+				if (pl.plates)
+					for (let k = 0; k < pl.targets.length; k++) {
+						if (!pl.targets[k].plate || vals[k] === vals[k]) continue;
+						const message = blankCellProblem(pl.targets[k], pl.targets, vals, row.line);
+						if (message) problems.add({ row: row.line, column: pl.targets[k].header, code: 'force-blank', message });
+					}
 			}
 	} catch (e) {
 		if (e instanceof NotText) {

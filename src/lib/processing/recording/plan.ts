@@ -2,10 +2,40 @@
 // which expected channel, in which unit, with or without a sign flip — from our layout, or from a mapping.
 import type { CheckedColumn } from './checks';
 import { columnMappingSchema, isTimeName, type ColumnMapping, type HeaderColumn } from './header';
-import { isSchemeName } from './layout';
+import { isSchemeName, plateChannelParts } from './layout';
 import type { ProblemList } from './problems';
-import type { ParseOptions } from './types';
-import { unitOf, type TimeUnit } from './units';
+import type { ExpectedChannel, ParseOptions } from './types';
+import { quantitiesOf, SI_UNIT, unitOf, UNITS, type ChannelKind, type TimeUnit } from './units';
+
+/** What a channel kind is called in messages. */
+const KIND_NAME: Record<ChannelKind, string> = {
+	angle: 'an angle',
+	position: 'a position',
+	force: 'a force',
+	moment: 'a moment',
+	length: 'a length (centre of pressure)'
+};
+/** The units a kind takes, as a message lists them: " (N)" or " (kN)". */
+const takes = (kind: ChannelKind) => {
+	const u = UNITS[kind].map((x) => `" (${x})"`);
+	return `${u.slice(0, -1).join(', ')} or ${u.at(-1)}`;
+};
+/** The header suffix we suggest for a channel: degrees for angles, else the SI unit. */
+const suffixOf = (e: ExpectedChannel) => ` (${e.kind === 'angle' ? 'deg' : SI_UNIT[e.kind]})`;
+/** Position and length are one dimension (m and mm are both); a unit of another dimension is refused as such. */
+const dimension = (k: ChannelKind) => (k === 'position' ? 'length' : k);
+
+/** The message for a unit a channel's kind does not take: of another dimension, or not one we accept. */
+function unitMessage(header: string, unit: string, channel: ExpectedChannel): { code: string; message: string } {
+	const other = quantitiesOf(unit).filter((q) => dimension(q) !== dimension(channel.kind));
+	if (other.length > 0 && !quantitiesOf(unit).some((q) => dimension(q) === dimension(channel.kind))) {
+		return {
+			code: 'unit-unsupported',
+			message: `Column "${header}" is ${KIND_NAME[channel.kind]} (${channel.name}), but its unit ${unit} measures ${KIND_NAME[other[0]]}; ${channel.kind} columns take ${takes(channel.kind)}. Check the column and its unit.`
+		};
+	}
+	return { code: 'unit-unsupported', message: `Unknown unit "${unit}" in "${header}"; ${channel.kind} columns take ${takes(channel.kind)}.` };
+}
 
 /** One channel column of the plan. */
 export interface PlannedColumn extends CheckedColumn {
@@ -55,9 +85,14 @@ export function planFromScheme(header: HeaderColumn[], opts: ParseOptions, probl
 		if (isTimeName(h.name)) return;
 		const channel = expected.get(h.name);
 		if (!channel) {
-			const hint = isSchemeName(h.name)
-				? `it is one of our channel names, but this session's model does not use it (expected: ${opts.expected.map((e) => e.name).join(', ')}); remove the column or map it to "ignore"`
-				: `it is not a channel name of our layout (<side>.<joint>.<motion>, e.g. right.knee.flexion); rename it or match it to a channel in the mapping step`;
+			const plate = plateChannelParts(h.name);
+			const plates = [...new Set(opts.expected.map((e) => plateChannelParts(e.name)?.plate).filter((p) => p !== undefined))];
+			const hint =
+				plate && !plates.includes(plate.plate)
+					? `it is a channel of force plate "${plate.plate}", which this trial does not use (${plates.length ? `its plates: ${plates.join(', ')}` : 'it uses no force plate'}); remove the column, map it to "ignore", or set the plate up for the trial`
+					: isSchemeName(h.name)
+						? `it is one of our channel names, but this session's model does not use it (expected: ${opts.expected.map((e) => e.name).join(', ')}); remove the column or map it to "ignore"`
+						: `it is not a channel name of our layout (<side>.<joint>.<motion>, e.g. right.knee.flexion, or <plate>.force.x, e.g. plate1.force.x); rename it or match it to a channel in the mapping step`;
 			problems.add({ row: 1, column: h.text, code: 'unknown-column', message: `Column "${h.text}" maps to no channel: ${hint}.` });
 			needsMapping = true;
 			return;
@@ -65,13 +100,7 @@ export function planFromScheme(header: HeaderColumn[], opts: ParseOptions, probl
 		// the suffix, if it is one we accept; without a suffix, angles take the file's chosen unit
 		const unit = h.unit === undefined ? (channel.kind === 'angle' ? opts.defaultAngleUnit : undefined) : unitOf(channel.kind, h.unit);
 		if (!unit && h.unit !== undefined) {
-			const takes = channel.kind === 'angle' ? '" (deg)" or " (rad)"' : '" (m)" or " (mm)"';
-			problems.add({
-				row: 1,
-				column: h.text,
-				code: 'unit-unsupported',
-				message: `Unknown unit "${h.unit}" in "${h.text}"; ${channel.kind} columns take ${takes}.`
-			});
+			problems.add({ row: 1, column: h.text, ...unitMessage(h.text, h.unit, channel) });
 		} else if (!unit) {
 			problems.add({
 				row: 1,
@@ -80,7 +109,7 @@ export function planFromScheme(header: HeaderColumn[], opts: ParseOptions, probl
 				message:
 					channel.kind === 'angle'
 						? `Column "${h.text}" has no unit; choose degrees or radians for the file, or name the column "${h.name} (deg)" or "${h.name} (rad)".`
-						: `Column "${h.text}" has no unit; name it "${h.name} (m)" or "${h.name} (mm)", or give the unit in the mapping step.`
+						: `Column "${h.text}" has no unit; name it "${h.name}${suffixOf(channel)}" (${channel.kind} columns take ${takes(channel.kind)}), or give the unit in the mapping step.`
 			});
 		}
 		if (unit) targets.push({ index: i, header: h.text, channel, unit, flip: false });
@@ -108,7 +137,7 @@ function missingChannels(
 			code: 'missing-channel',
 			message: fromMapping
 				? `Channel ${e.name} is missing: the mapping takes it from column "${fromMapping[0]}", which this file does not have.`
-				: `Channel ${e.name} is missing: this session's model needs it. Add a column "${e.name}${e.kind === 'angle' ? ' (deg)' : ' (m)'}"${header.length ? ' or match an existing column to it in the mapping step' : ''}.`
+				: `${e.need ? e.name : `Channel ${e.name}`} is missing: ${e.need ?? "this session's model needs it"}. Add a column "${e.name}${suffixOf(e)}"${header.length ? ' or match an existing column to it in the mapping step' : ''}.`
 		});
 	}
 }
@@ -178,7 +207,7 @@ export function planFromMapping(header: HeaderColumn[], raw: unknown, opts: Pars
 				row: 1,
 				column: h.text,
 				code: 'mapping-unit-mismatch',
-				message: `Column "${h.text}" is mapped to ${channel.name}, an ${channel.kind === 'angle' ? 'angle (deg or rad)' : 'position (m or mm)'}, but its unit is set to ${c.unit}.`
+				message: `Column "${h.text}" is mapped to ${channel.name}, ${KIND_NAME[channel.kind]} (${UNITS[channel.kind].join(', ')}), but its unit is set to ${c.unit}.`
 			});
 			return;
 		}

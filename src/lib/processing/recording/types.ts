@@ -1,6 +1,6 @@
 // The shapes a parse takes and gives: options, the recording, and the problems found on the way.
 import type { ColumnMapping } from './header';
-import type { AngleUnit } from './units';
+import type { AngleUnit, ChannelKind } from './units';
 
 export interface Problem {
 	file: string;
@@ -16,7 +16,19 @@ export interface Problem {
 
 export interface ExpectedChannel {
 	name: string;
-	kind: 'angle' | 'position';
+	/**
+	 * angle (rad), position (m), or a force-plate quantity: force (N), moment (N·m) or length (m, a centre of
+	 * pressure). Force-plate channels are never gap-filled: an empty or NaN cell is refused with its line and column.
+	 */
+	kind: ChannelKind;
+	/**
+	 * Only for a force-plate channel that a plate leaves empty while unloaded (a forces-cop plate's CoP and free
+	 * moment): an empty or NaN cell is accepted on a line where |`channel`| (the plate's normal force, N) is below
+	 * `thresholdN`, kept as NaN, and refused on any other line.
+	 */
+	blankWhenUnloaded?: { channel: string; thresholdN: number };
+	/** Why the channel is needed, shown when its column is missing ("a forces-moments plate needs …"). */
+	need?: string;
 }
 
 export interface ParseOptions {
@@ -42,7 +54,7 @@ export interface ParseOptions {
 export interface Recording {
 	time: Float64Array;
 	sampleHz: number;
-	/** In opts.expected order, SI units (rad, m), sign flips applied. */
+	/** In opts.expected order, SI units (rad, m, N, N·m), sign flips applied. */
 	channels: { name: string; values: Float64Array }[];
 	warnings: Problem[];
 	header: string[];

@@ -9,30 +9,75 @@ import { create, unitDependencies, type Unit } from 'mathjs';
 export type AngleUnit = 'deg' | 'rad';
 export type PositionUnit = 'm' | 'mm';
 export type TimeUnit = 's' | 'ms';
-export type ChannelUnit = AngleUnit | PositionUnit;
-export type Quantity = 'angle' | 'position' | 'time';
+export type ForceUnit = (typeof UNITS.force)[number];
+export type MomentUnit = (typeof UNITS.moment)[number];
+export type LengthUnit = (typeof UNITS.length)[number];
+export type ChannelUnit = AngleUnit | PositionUnit | ForceUnit | MomentUnit | LengthUnit;
+/**
+ * What a column measures: joint and base angles, base positions, time, and the force-plate quantities — force
+ * (N), moment (N·m: a plate's moments and its free moment) and length (m: the centre of pressure).
+ */
+export type Quantity = 'angle' | 'position' | 'time' | 'force' | 'moment' | 'length';
+/** The quantities a channel (not the time column) may have: ExpectedChannel.kind. */
+export type ChannelKind = Exclude<Quantity, 'time'>;
 
 /**
- * The spellings accepted per quantity, as a header suffix ("right.knee.flexion (deg)") or in a mapping. Only
- * these: mathjs knows many more (grad, min, cm, …), and a unit we do not list is refused (`unit-unsupported`).
+ * The spellings accepted per quantity, as a header suffix ("right.knee.flexion (deg)", "plate1.moment.x (N·m)") or
+ * in a mapping. Only these: mathjs knows many more (grad, min, lbf, …), and a unit we do not list is refused
+ * (`unit-unsupported`). A moment may be written with a middle dot, a star, a point or nothing between N and m.
  */
-export const UNITS = { angle: ['deg', 'rad'], position: ['m', 'mm'], time: ['s', 'ms'] } as const satisfies Record<
-	Quantity,
-	readonly string[]
->;
+export const UNITS = {
+	angle: ['deg', 'rad'],
+	position: ['m', 'mm'],
+	time: ['s', 'ms'],
+	force: ['N', 'kN'],
+	moment: ['N·m', 'N*m', 'Nm', 'N.m', 'N·mm', 'N*mm', 'Nmm', 'N.mm', 'kN·m'],
+	length: ['m', 'mm', 'cm']
+} as const satisfies Record<Quantity, readonly string[]>;
 /** The unit every channel is stored in. */
-export const SI_UNIT = { angle: 'rad', position: 'm', time: 's' } as const satisfies Record<Quantity, string>;
-/** The units a mapping may give a channel column (columnMappingSchema). */
-export const CHANNEL_UNITS = [...UNITS.angle, ...UNITS.position] as const;
+export const SI_UNIT = { angle: 'rad', position: 'm', time: 's', force: 'N', moment: 'N·m', length: 'm' } as const satisfies Record<
+	Quantity,
+	string
+>;
+/** The units a mapping may give a channel column (columnMappingSchema): every channel quantity's, each once. */
+export const CHANNEL_UNITS = [
+	'deg',
+	'rad',
+	'm',
+	'mm',
+	'cm',
+	'N',
+	'kN',
+	'N·m',
+	'N*m',
+	'Nm',
+	'N.m',
+	'N·mm',
+	'N*mm',
+	'Nmm',
+	'N.mm',
+	'kN·m'
+] as const satisfies readonly ChannelUnit[];
+
+/** The channel quantities whose accepted spellings include `unit` (m and mm are both a position and a length). */
+export function quantitiesOf(unit: string): ChannelKind[] {
+	return (['angle', 'position', 'force', 'moment', 'length'] as const).filter((q) => (UNITS[q] as readonly string[]).includes(unit));
+}
 
 /** The accepted spelling `text` of a unit of `quantity`, or undefined when it is none of UNITS[quantity]. */
 export function unitOf<Q extends Quantity>(quantity: Q, text: string | undefined): (typeof UNITS)[Q][number] | undefined {
 	return (UNITS[quantity] as readonly string[]).includes(text as string) ? (text as (typeof UNITS)[Q][number]) : undefined;
 }
 
-/** Our spellings that mathjs writes differently: the degree sign, and the middle dot of a product (N·m → "N m"). */
+/**
+ * Our spellings that mathjs writes differently: the degree sign, and the product of a moment written with a middle
+ * dot, a star, a point or nothing (N·m, N*m, N.m, Nm → "N m"; N·mm → "N mm").
+ */
 export function mathjsName(unit: string): string {
-	return unit.replace(/°/g, 'deg').replace(/·/g, ' ');
+	return unit
+		.replace(/°/g, 'deg')
+		.replace(/^(k?N)[·.*]?(mm|m)$/, '$1 $2')
+		.replace(/·/g, ' ');
 }
 
 /** value in SI = value × mul / div (one of mul, div is 1). */
