@@ -29,6 +29,8 @@ export interface TrialView {
 	warnings: { code: string; message: string; row?: number; column?: string }[];
 	mapped: boolean;
 	createdAt: string;
+	/** The force file uploaded with it (its own raw file; the plates whose columns it holds), null without one. */
+	force: { fileName: string; sha256: string; sampleHz: number; plates: string[] } | null;
 }
 
 /** A saved column mapping of a study. */
@@ -140,6 +142,8 @@ export interface UploadOutcome {
 	presetSaved?: { id: string; name: string };
 	byteSize?: number;
 	sha256?: string;
+	/** For a force file: the angle file it was paired with (stored or refused together); for an angle file: its force file. */
+	pairedWith?: { role: 'angle' | 'force'; fileName: string };
 }
 
 /** What the session page shows of one file's outcome after a plain form post. */

@@ -212,6 +212,15 @@ export class Trial extends Keyed<Trial> {
 	declare channels: string[];
 	declare warnings: CreationOptional<unknown[]>;
 	declare createdBy: string | null;
+	/** The force file uploaded with the angle file (migration 0011): its raw bytes, name, SHA-256, rate and plates; all null without one. */
+	declare forceRawUploadId: CreationOptional<string | null>;
+	declare forceFileName: CreationOptional<string | null>;
+	declare forceSha256: CreationOptional<string | null>;
+	declare forceSampleHz: CreationOptional<number | null>;
+	/** The plates (names) whose columns the force file holds. */
+	declare forcePlates: CreationOptional<string[] | null>;
+	/** The column mapping the force file needed (parsed with its schema when read). */
+	declare forceMapping: CreationOptional<ColumnMapping | null>;
 }
 
 /** A saved column mapping a study reuses for files from another system. */
@@ -261,7 +270,18 @@ export class Run extends Keyed<Run> {
 export class RunSeries extends Typed<RunSeries> {
 	declare runId: string;
 	declare name: string;
-	declare quantity: 'time' | 'angle' | 'velocity' | 'acceleration' | 'moment' | 'moment_per_kg' | 'power' | 'reaction_force';
+	declare quantity:
+		| 'time'
+		| 'angle'
+		| 'velocity'
+		| 'acceleration'
+		| 'moment'
+		| 'moment_per_kg'
+		| 'power'
+		| 'reaction_force'
+		| 'grf'
+		| 'cop'
+		| 'free_moment';
 	declare unit: string;
 	declare components: CreationOptional<number>;
 	declare data: Buffer;
@@ -277,6 +297,21 @@ export class CycleEvent extends Keyed<CycleEvent> {
 	declare rule: Record<string, unknown> | null;
 	declare createdBy: string | null;
 	declare updatedAt: CreationOptional<Date>;
+}
+
+/**
+ * A gait run's results besides its series (migration 0011): how the forces were brought to the angle rate, the
+ * contacts, gait events, cycles and spatiotemporal parameters, as the worker computed them (runs/gait-results.ts
+ * writes and reads them; shapes in StoredGait there).
+ */
+export class RunGait extends Typed<RunGait> {
+	declare runId: string;
+	declare forces: Record<string, unknown>;
+	declare contacts: unknown[];
+	declare events: unknown[];
+	declare cycles: unknown[];
+	declare spatiotemporal: Record<string, unknown>;
+	declare createdAt: CreationOptional<Date>;
 }
 
 /**
@@ -494,7 +529,13 @@ export function initModels(sequelize: Sequelize): void {
 		channels: required(DataTypes.ARRAY(TEXT), []),
 		warnings: required(JSONB, []),
 		createdBy: nullable(UUID),
-		createdAt: now()
+		createdAt: now(),
+		forceRawUploadId: nullable(UUID),
+		forceFileName: nullable(TEXT),
+		forceSha256: nullable(TEXT),
+		forceSampleHz: nullable(DOUBLE),
+		forcePlates: nullable(DataTypes.ARRAY(TEXT)),
+		forceMapping: json('forceMapping', columnMappingSchema, { allowNull: true })
 	});
 	register(MappingPreset, 'mapping_presets', 'MappingPreset', {
 		id: uuidKey(),
@@ -545,6 +586,16 @@ export function initModels(sequelize: Sequelize): void {
 		createdBy: nullable(UUID),
 		createdAt: now(),
 		updatedAt: now()
+	});
+
+	register(RunGait, 'run_gait', 'RunGait', {
+		runId: keyPart(UUID),
+		forces: required(JSONB),
+		contacts: required(JSONB),
+		events: required(JSONB),
+		cycles: required(JSONB),
+		spatiotemporal: required(JSONB),
+		createdAt: now()
 	});
 
 	// ---- lab equipment (migration 0010)

@@ -412,7 +412,11 @@ export const trialView = (t: Trial): TrialView => ({
 	channels: t.channels,
 	warnings: (t.warnings ?? []) as TrialView['warnings'],
 	mapped: t.mapping !== null,
-	createdAt: t.createdAt.toISOString()
+	createdAt: t.createdAt.toISOString(),
+	force:
+		t.forceRawUploadId && t.forceFileName && t.forceSha256 && t.forceSampleHz
+			? { fileName: t.forceFileName, sha256: t.forceSha256, sampleHz: t.forceSampleHz, plates: t.forcePlates ?? [] }
+			: null
 });
 
 export const presetView = (m: MappingPreset): PresetView => ({

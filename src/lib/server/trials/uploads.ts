@@ -19,6 +19,9 @@ import { RAW_CHUNK_BYTES, writeRawChunk } from './raw-store';
 import { recordPreset } from './mapping-presets';
 import { assertSessionUnlocked, refuseIfLocked } from '../sessions/lock';
 import { buildSessionModel } from '../../processing/session-model';
+import { platesInUse } from '../equipment/plates';
+import { angleFileFor, checkForceFile, type BufferedForce } from './force-files';
+import type { ForcePlate } from '../../processing/forces';
 import { columnMappingSchema, parseRecording, type ColumnMapping, type ExpectedChannel, type Problem } from '../../processing/recording';
 import type { UploadOutcome } from '../../types/sessions';
 
@@ -190,10 +193,30 @@ interface FileContext {
 	expected: ExpectedChannel[];
 	fields: Fields;
 	limit: number;
+	/** The force file of this angle file when one came before it or comes right after it, else null. */
+	forceFor: (angleFile: string, next: Promise<NextPart>) => Promise<BufferedForce | null>;
+	/** The lab's plates in use (read once per request, when a force file needs them). */
+	plates: () => Promise<ForcePlate[]>;
 }
 
-/** Receives one file of the multipart body; resolves once the whole file part has been read. */
-async function receiveFile(ctx: FileContext, file: Readable, info: busboy.FileInfo): Promise<UploadOutcome> {
+/** What followed a file part in the body: a force file (and the angle file it names), another file, or the end. */
+type NextPart = { angleFile: string; force: Promise<BufferedForce> } | null;
+
+/** Reads a force file whole (bounded by the upload limit; beyond it the rest is drained and the file marked truncated). */
+async function bufferForce(file: Readable, info: busboy.FileInfo, angleFile: string): Promise<BufferedForce> {
+	const fileName = basename((info.filename ?? '').replace(/\\/g, '/')).slice(0, 255) || 'unnamed file';
+	let truncated = false;
+	file.on('limit', () => (truncated = true));
+	const parts: Buffer[] = [];
+	for await (const piece of file) if (!truncated) parts.push(piece as Buffer);
+	return { fileName, bytes: Buffer.concat(parts), contentType: info.mimeType || null, truncated, angleFile };
+}
+
+/**
+ * Receives one angle file of the multipart body (and the force file paired with it); resolves once the whole file
+ * part has been read. The outcomes: the angle file's, then its force file's when it has one.
+ */
+async function receiveFile(ctx: FileContext, file: Readable, info: busboy.FileInfo, next: Promise<NextPart>): Promise<UploadOutcome[]> {
 	const fileName = basename((info.filename ?? '').replace(/\\/g, '/')).slice(0, 255) || 'unnamed file';
 	let truncated = false;
 	file.on('limit', () => (truncated = true));
@@ -207,6 +230,8 @@ async function receiveFile(ctx: FileContext, file: Readable, info: busboy.FileIn
 		() => truncated
 	);
 	let outcome: UploadOutcome;
+	let force: BufferedForce | null = null;
+	let forceOutcome: UploadOutcome | null = null;
 	try {
 		// inside the file's transaction too: an approval signed while the file was arriving wins
 		await assertSessionUnlocked(ctx.session.id, t);
@@ -295,76 +320,175 @@ async function receiveFile(ctx: FileContext, file: Readable, info: busboy.FileIn
 				problems: parsed.problems,
 				...(parsed.needsMapping ? { needsMapping: parsed.needsMapping } : {})
 			};
+		} else if ((force = await ctx.forceFor(fileName, next)) && force.truncated) {
+			outcome = {
+				...base,
+				status: 413,
+				message: `${fileName}: its force file ${force.fileName} is larger than the ${mb(ctx.limit)} limit; neither file was stored.`
+			};
 		} else {
 			const rec = parsed.recording;
 			const frames = rec.time.length;
-			await RawUpload.create(
-				{ id: uploadId, sha256, byteSize, fileName, contentType: info.mimeType || null, uploadedBy: ctx.actor.id },
-				{ transaction: t }
-			);
-			const trial = await Trial.create(
-				{
-					sessionId: ctx.session.id,
-					rawUploadId: uploadId,
-					fileName,
-					sha256,
-					mapping: mapping ?? null,
-					sampleHz: rec.sampleHz,
-					frameCount: frames,
-					durationS: frames > 1 ? rec.time[frames - 1] - rec.time[0] : 0,
-					channels: rec.channels.map((c) => c.name),
-					warnings: rec.warnings,
-					createdBy: ctx.actor.id
-				},
-				{ transaction: t }
-			);
-			let presetSaved: UploadOutcome['presetSaved'];
-			const presetName = ctx.fields.get('presetName')?.trim().slice(0, 100);
-			let presetNote = '';
-			if (mapping && !presetId && presetName) {
-				if (!may(ctx.actor, 'mapping.preset', ctx.studyId))
-					presetNote = ' The mapping was not saved as a preset: your role may not save presets.';
-				else if (await MappingPreset.findOne({ where: { studyId: ctx.studyId, name: presetName }, transaction: t }))
-					presetNote = ` The mapping was not saved as a preset: the study already has a preset named “${presetName}”.`;
+			let forceStored: { uploadId: string; sha256: string; sampleHz: number; plates: string[]; mapping: ColumnMapping | null } | null =
+				null;
+			let forceProblems: Problem[] | null = null;
+			if (force) {
+				const fm = await resolveMapping(
+					new Map([
+						['mapping', ctx.fields.get('forceMapping') ?? ''],
+						['presetId', ctx.fields.get('forcePresetId') ?? '']
+					]),
+					ctx.studyId
+				);
+				if (fm.problem)
+					forceProblems = [
+						{
+							file: force.fileName,
+							...fm.problem,
+							field: fm.problem.field?.replace(/^mapping|^presetId/, (f) => (f === 'mapping' ? 'forceMapping' : 'forcePresetId'))
+						}
+					];
 				else {
-					const p = await MappingPreset.create(
-						{ studyId: ctx.studyId, name: presetName, mapping, createdBy: ctx.actor.id },
-						{ transaction: t }
-					);
-					presetSaved = { id: p.id, name: p.name };
-					await recordPreset(ctx.actor, ctx.requestContext, ctx.studyId, p, t);
+					const checked = await checkForceFile(force, { fileName, recording: rec }, await ctx.plates(), { mapping: fm.mapping });
+					if (!checked.ok) forceProblems = checked.problems;
+					else {
+						const forceId = randomUUID();
+						const forceSha = createHash('sha256').update(force.bytes).digest('hex');
+						await RawUpload.create(
+							{
+								id: forceId,
+								sha256: forceSha,
+								byteSize: force.bytes.length,
+								fileName: force.fileName,
+								contentType: force.contentType,
+								uploadedBy: ctx.actor.id
+							},
+							{ transaction: t }
+						);
+						for (let seq = 0, at = 0; at < force.bytes.length; seq++, at += RAW_CHUNK_BYTES)
+							await writeRawChunk(forceId, seq, force.bytes.subarray(at, at + RAW_CHUNK_BYTES), t);
+						forceStored = {
+							uploadId: forceId,
+							sha256: forceSha,
+							sampleHz: checked.recording.sampleHz,
+							plates: checked.plates.map((p) => p.name),
+							mapping: fm.mapping ?? null
+						};
+					}
 				}
 			}
-			await record(
-				{
-					action: 'trial.uploaded',
-					actorUserId: ctx.actor.id,
-					actorLabel: ctx.actor.email,
-					studyId: ctx.studyId,
-					recordType: 'trial',
-					recordId: trial.id,
-					ipAddress: ctx.requestContext.ipAddress,
-					details: {
+			if (force && forceProblems) {
+				const n = forceProblems.filter((p) => p.severity === 'error').length || forceProblems.length;
+				outcome = {
+					...base,
+					status: 422,
+					message: `${fileName} was not stored: its force file ${force.fileName} was rejected (${n} problem${n === 1 ? '' : 's'}); nothing was stored.`,
+					problems: forceProblems,
+					pairedWith: { role: 'force', fileName: force.fileName }
+				};
+			} else {
+				await RawUpload.create(
+					{ id: uploadId, sha256, byteSize, fileName, contentType: info.mimeType || null, uploadedBy: ctx.actor.id },
+					{ transaction: t }
+				);
+				const trial = await Trial.create(
+					{
 						sessionId: ctx.session.id,
-						participant: ctx.participantCode,
+						rawUploadId: uploadId,
 						fileName,
-						byteSize,
 						sha256,
-						frames,
+						mapping: mapping ?? null,
 						sampleHz: rec.sampleHz,
-						mapped: !!mapping,
-						presetId: presetId ?? null,
-						warnings: rec.warnings.length
+						frameCount: frames,
+						durationS: frames > 1 ? rec.time[frames - 1] - rec.time[0] : 0,
+						channels: rec.channels.map((c) => c.name),
+						warnings: rec.warnings,
+						createdBy: ctx.actor.id,
+						...(forceStored && force
+							? {
+									forceRawUploadId: forceStored.uploadId,
+									forceFileName: force.fileName,
+									forceSha256: forceStored.sha256,
+									forceSampleHz: forceStored.sampleHz,
+									forcePlates: forceStored.plates,
+									forceMapping: forceStored.mapping
+								}
+							: {})
+					},
+					{ transaction: t }
+				);
+				let presetSaved: UploadOutcome['presetSaved'];
+				const presetName = ctx.fields.get('presetName')?.trim().slice(0, 100);
+				let presetNote = '';
+				if (mapping && !presetId && presetName) {
+					if (!may(ctx.actor, 'mapping.preset', ctx.studyId))
+						presetNote = ' The mapping was not saved as a preset: your role may not save presets.';
+					else if (await MappingPreset.findOne({ where: { studyId: ctx.studyId, name: presetName }, transaction: t }))
+						presetNote = ` The mapping was not saved as a preset: the study already has a preset named “${presetName}”.`;
+					else {
+						const p = await MappingPreset.create(
+							{ studyId: ctx.studyId, name: presetName, mapping, createdBy: ctx.actor.id },
+							{ transaction: t }
+						);
+						presetSaved = { id: p.id, name: p.name };
+						await recordPreset(ctx.actor, ctx.requestContext, ctx.studyId, p, t);
 					}
-				},
-				t
-			);
-			outcome = {
-				...base,
-				status: 201,
-				message: `${fileName} stored as a trial: ${frames} samples at ${Math.round(rec.sampleHz * 100) / 100} Hz${rec.warnings.length ? `, ${rec.warnings.length} warning${rec.warnings.length === 1 ? '' : 's'}` : ''}.${presetNote}`,
-				trial: trialView(trial),
-				...(presetSaved ? { presetSaved } : {})
+				}
+				await record(
+					{
+						action: 'trial.uploaded',
+						actorUserId: ctx.actor.id,
+						actorLabel: ctx.actor.email,
+						studyId: ctx.studyId,
+						recordType: 'trial',
+						recordId: trial.id,
+						ipAddress: ctx.requestContext.ipAddress,
+						details: {
+							sessionId: ctx.session.id,
+							participant: ctx.participantCode,
+							fileName,
+							byteSize,
+							sha256,
+							frames,
+							sampleHz: rec.sampleHz,
+							mapped: !!mapping,
+							presetId: presetId ?? null,
+							warnings: rec.warnings.length,
+							...(forceStored && force
+								? {
+										forceFile: {
+											fileName: force.fileName,
+											sha256: forceStored.sha256,
+											sampleHz: forceStored.sampleHz,
+											plates: forceStored.plates
+										}
+									}
+								: {})
+						}
+					},
+					t
+				);
+				outcome = {
+					...base,
+					status: 201,
+					message: `${fileName} stored as a trial: ${frames} samples at ${Math.round(rec.sampleHz * 100) / 100} Hz${rec.warnings.length ? `, ${rec.warnings.length} warning${rec.warnings.length === 1 ? '' : 's'}` : ''}.${presetNote}`,
+					trial: trialView(trial),
+					...(presetSaved ? { presetSaved } : {}),
+					...(force ? { pairedWith: { role: 'force' as const, fileName: force.fileName } } : {})
+				};
+			}
+		}
+		if (force) {
+			forceOutcome = {
+				fileName: force.fileName,
+				status: outcome.status,
+				message:
+					outcome.status === 201
+						? `${force.fileName} stored with ${fileName} as its force recording (plates ${(outcome.trial?.force?.plates ?? []).join(', ')}, ${Math.round((outcome.trial?.force?.sampleHz ?? 0) * 100) / 100} Hz).`
+						: `${force.fileName} was not stored: ${outcome.message}`,
+				byteSize: force.bytes.length,
+				pairedWith: { role: 'angle', fileName },
+				...(outcome.status !== 201 && outcome.problems ? { problems: outcome.problems } : {})
 			};
 		}
 		if (outcome.status === 201) await t.commit();
@@ -387,9 +511,21 @@ async function receiveFile(ctx: FileContext, file: Readable, info: busboy.FileIn
 		} else if (isDomainError(err) && err.kind === 'conflict') {
 			outcome = { fileName, status: 409, message: err.message };
 		} else throw err;
+		if (force)
+			forceOutcome = { fileName: force.fileName, status: outcome.status, message: `${force.fileName} was not stored: ${outcome.message}` };
 	}
-	if (outcome.status !== 201) {
-		// outside the rolled-back transaction: the refusal itself is the one thing kept
+	if (outcome.status !== 201) await auditRefusal(ctx, outcome, force?.fileName ?? null);
+	return forceOutcome ? [outcome, forceOutcome] : [outcome];
+}
+
+/** A refused file: its refusal is recorded outside the rolled-back transaction (the one thing kept). */
+async function auditRefusal(
+	ctx: Pick<FileContext, 'actor' | 'studyId' | 'session' | 'requestContext' | 'participantCode'>,
+	outcome: UploadOutcome,
+	forceFile: string | null = null
+) {
+	const fileName = outcome.fileName;
+	{
 		await record({
 			action: 'trial.rejected',
 			actorUserId: ctx.actor.id,
@@ -406,11 +542,11 @@ async function receiveFile(ctx: FileContext, file: Readable, info: busboy.FileIn
 				sha256: outcome.sha256 ?? null,
 				status: outcome.status,
 				problems: [...new Set((outcome.problems ?? []).filter((p) => p.severity === 'error').map((p) => p.code))],
-				...(outcome.duplicateOf ? { duplicateOf: outcome.duplicateOf.trialId } : {})
+				...(outcome.duplicateOf ? { duplicateOf: outcome.duplicateOf.trialId } : {}),
+				...(forceFile ? { forceFile } : {})
 			}
 		});
 	}
-	return outcome;
 }
 
 const invalid = (message: string) => new DomainError('invalid', message);
@@ -461,8 +597,40 @@ export async function receiveTrials(
 			throw invalid(`The upload is not a well-formed multipart form (${(err as Error).message}).`);
 		}
 		const fields: Fields = new Map();
-		const ctx: FileContext = { requestContext: reqCtx, actor: a, studyId: study.id, session, participantCode, expected, fields, limit };
+		// force files: those that came before their angle file wait here (by angle file name) until it comes
+		const waiting = new Map<string, BufferedForce>();
+		const claimed = new Set<BufferedForce>();
+		const angleStatus = new Map<string, number>();
+		let plates: Promise<ForcePlate[]> | null = null;
+		const ctx: FileContext = {
+			requestContext: reqCtx,
+			actor: a,
+			studyId: study.id,
+			session,
+			participantCode,
+			expected,
+			fields,
+			limit,
+			plates: () =>
+				(plates ??= platesInUse().then((views) =>
+					views.map((v) => ({ name: v.name, corners: v.corners, axes: v.axes, originDepthM: v.originDepthM, output: v.output }))
+				)),
+			forceFor: async (angleFile, next) => {
+				const early = waiting.get(angleFile);
+				if (early) {
+					waiting.delete(angleFile);
+					claimed.add(early);
+					return early;
+				}
+				const part = await next;
+				if (!part || part.angleFile !== angleFile) return null;
+				const f = await part.force;
+				claimed.add(f);
+				return f;
+			}
+		};
 		const outcomes: UploadOutcome[] = [];
+		let resolveNext: (p: NextPart) => void = () => {};
 		let tooMany = false;
 		let chain: Promise<void> = Promise.resolve();
 		let chainError: unknown = null;
@@ -472,10 +640,47 @@ export async function receiveTrials(
 				// a broken body destroys the file stream with an error, possibly before its turn in the chain has come;
 				// the reader sees that error when it starts, and without a listener here it would end the process
 				file.on('error', () => {});
+				const previous = resolveNext;
+				const next = new Promise<NextPart>((r) => (resolveNext = r));
+				const fileName = basename((info.filename ?? '').replace(/\\/g, '/')).slice(0, 255) || 'unnamed file';
+				const angleFile = angleFileFor(fileName, fields);
+				if (angleFile) {
+					// a force file: read whole now (the angle file before it may be waiting for it), its outcome given with its angle file
+					const force = bufferForce(file, info, angleFile);
+					force.catch(() => {});
+					previous({ angleFile, force });
+					chain = chain.then(async () => {
+						if (chainError) return;
+						try {
+							const f = await force;
+							if (claimed.has(f)) return;
+							const status = angleStatus.get(angleFile);
+							if (status === undefined) return void waiting.set(angleFile, f);
+							const outcome: UploadOutcome = {
+								fileName: f.fileName,
+								status: 422,
+								byteSize: f.bytes.length,
+								pairedWith: { role: 'angle', fileName: angleFile },
+								message:
+									status === 201
+										? `${f.fileName} was not stored: a force file must come right after its angle file ${angleFile} in the form (or before it); upload the two again together.`
+										: `${f.fileName} was not stored: its angle file ${angleFile} was refused.`
+							};
+							await auditRefusal(ctx, outcome, f.fileName);
+							outcomes.push(outcome);
+						} catch (err) {
+							chainError = err;
+						}
+					});
+					return;
+				}
+				previous(null);
 				chain = chain.then(async () => {
 					if (chainError) return void file.resume();
 					try {
-						outcomes.push(await receiveFile(ctx, file, info));
+						const got = await receiveFile(ctx, file, info, next);
+						angleStatus.set(got[0].fileName, got[0].status);
+						outcomes.push(...got);
 					} catch (err) {
 						chainError = err;
 						file.resume();
@@ -484,7 +689,10 @@ export async function receiveTrials(
 			});
 			bb.on('filesLimit', () => (tooMany = true));
 			bb.on('error', (err) => reject(err));
-			bb.on('close', () => resolve());
+			bb.on('close', () => {
+				resolveNext(null);
+				resolve();
+			});
 		});
 		const source = Readable.fromWeb(body as import('node:stream/web').ReadableStream<Uint8Array>);
 		source.on('error', (err) => bb.destroy(err));
@@ -499,8 +707,28 @@ export async function receiveTrials(
 				`The upload is not a well-formed multipart form (${(err as Error).message}); nothing more was read.${outcomes.length ? ` ${outcomes.length} file(s) before the fault were handled.` : ''}`
 			);
 		}
+		resolveNext(null);
 		await chain;
 		if (chainError) throw chainError;
+		for (const [angleFile, f] of waiting) {
+			const outcome: UploadOutcome = {
+				fileName: f.fileName,
+				status: 422,
+				byteSize: f.bytes.length,
+				message: `${f.fileName} was not stored: it is a force file for ${angleFile}, but no angle file of that name came with it. Upload the two together (name the force file "<angle file name>.forces.csv", or choose its angle file).`,
+				problems: [
+					{
+						file: f.fileName,
+						code: 'force-without-angle',
+						field: `forcesFor.${f.fileName}`,
+						message: `No angle file named ${angleFile} came with the force file ${f.fileName}.`,
+						severity: 'error'
+					}
+				]
+			};
+			await auditRefusal(ctx, outcome, f.fileName);
+			outcomes.push(outcome);
+		}
 		if (outcomes.length === 0) throw invalid('No file was sent: choose at least one recording file (form field "file").');
 		if (tooMany)
 			outcomes.push({

@@ -10,6 +10,7 @@ import * as m0007 from './0007-cycle-events';
 import * as m0008 from './0008-run-edge-zones';
 import * as m0009 from './0009-run-job-id';
 import * as m0010 from './0010-force-plates';
+import * as m0011 from './0011-trial-forces-and-gait';
 
 export const migrations: { name: string; up: Migration; down: Migration }[] = [
 	{ name: '0001-lab-foundation', ...m0001 },
@@ -21,5 +22,6 @@ export const migrations: { name: string; up: Migration; down: Migration }[] = [
 	{ name: '0007-cycle-events', ...m0007 },
 	{ name: '0008-run-edge-zones', ...m0008 },
 	{ name: '0009-run-job-id', ...m0009 },
-	{ name: '0010-force-plates', ...m0010 }
+	{ name: '0010-force-plates', ...m0010 },
+	{ name: '0011-trial-forces-and-gait', ...m0011 }
 ];
