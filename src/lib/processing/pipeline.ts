@@ -1,8 +1,11 @@
 // From a parsed recording to joint moments: filter, differentiate, batch inverse dynamics, per-DOF summary.
 import { z } from 'zod';
-import { compileModel, createWorkspace, inverseDynamicsBatch, PRISMATIC, type Vec3 } from '../dynamics/index';
+import { compileModel, createWorkspace, inverseDynamicsBatch, PRISMATIC, type ExternalLoad, type Vec3 } from '../dynamics/index';
 import type { Recording } from './recording';
 import type { SessionModel } from './session-model';
+import type { Contact, ForcePlate, LabLoads } from './forces/index';
+import { assignContacts, footBodies, footPoints, type AssignedContact } from './foot-contacts';
+import type { Foot, GaitPaths } from './gait';
 import {
 	DEFAULT_END_TREATMENT,
 	END_TREATMENTS,
@@ -35,7 +38,17 @@ export const runOptionsSchema = z.object({
 	/** Fill short gaps (empty cells) by cubic interpolation before filtering. */
 	fillGaps: z.boolean().default(false),
 	/** Gravity in lab axes, m/s²; default the session set-up's. */
-	gravity: z.tuple([finite, finite, finite]).optional()
+	gravity: z.tuple([finite, finite, finite]).optional(),
+	/**
+	 * Low-pass cutoff for the force-plate signals, Hz, or null for none (then only the anti-alias filter of a rate
+	 * above the angles'); absent: the angles' cutoffHz (common practice, to keep impact artefacts out of the moments).
+	 * Applied before the run by whoever brings the forces to the angle rate: groundCutoffHz(options).
+	 */
+	forceCutoffHz: cutoff.nullable().optional(),
+	/** Use contacts flagged off the plate or shared (when a foot is set) for the moments too; default false. */
+	useFlaggedContacts: z.boolean().optional(),
+	/** Feet set by hand, by contact id `<plate>#<k>` (k: the plate's contacts in time order, from 0); null = no foot. */
+	contactFeet: z.record(z.string(), z.enum(['left', 'right']).nullable()).optional()
 });
 export type RunOptions = z.infer<typeof runOptionsSchema>;
 
@@ -48,6 +61,56 @@ export function storedRunOptions(stored: unknown) {
 	return runOptionsSchema.safeParse(legacy ? { ...stored, endTreatment: 'reflect-9' } : stored);
 }
 export type RunOptionsInput = z.input<typeof runOptionsSchema>;
+
+/** The cutoff (Hz, null: none) at which a run filters its force-plate signals: forceCutoffHz, else the angles' cutoffHz. */
+export function groundCutoffHz(options: Pick<RunOptions, 'cutoffHz' | 'forceCutoffHz'>): number | null {
+	return options.forceCutoffHz === undefined ? options.cutoffHz : options.forceCutoffHz;
+}
+
+/** A plate's loads on the person at the angle rate (one sample per angle sample): plateToLab / plateLoadsAtAngleRate. */
+export interface GroundPlate {
+	plate: ForcePlate;
+	loads: LabLoads;
+}
+
+/** Force-plate data for a run, at the angle rate. */
+export interface GroundInput {
+	plates: GroundPlate[];
+	/** The plates' contacts (findContacts), any order. */
+	contacts: Contact[];
+	/**
+	 * true (default): feet assigned by the run from its filtered kinematics (assignContacts, with options.contactFeet
+	 * as overrides); false: the contacts' foot and shared are used as given.
+	 */
+	assign?: boolean;
+	/** Foot margin of the assignment (m); default DEFAULT_FOOT_MARGIN_M. */
+	marginM?: number;
+}
+
+/** A contact as the run used it. */
+export interface GroundContact extends AssignedContact {
+	/** Its GRF and free moment acted on the foot for the moments. */
+	used: boolean;
+	/** Why not, in words (null when used). */
+	reason: string | null;
+}
+
+/** Ground results of a run with force plates. */
+export interface GroundResult {
+	/** Body weight (N) the % figures use: body mass × |gravity|. */
+	bodyWeightN: number;
+	plates: {
+		name: string;
+		/** GRF on the person (N) and as % of body weight, lab axes, interleaved x y z. */
+		grf: Float64Array;
+		grfPercentBW: Float64Array;
+		/** CoP (m, lab), NaN where unloaded; free moment on the person (N·m, lab vector). */
+		cop: Float64Array;
+		freeMoment: Float64Array;
+		loaded: Uint8Array;
+	}[];
+	contacts: GroundContact[];
+}
 
 export const PIPELINE_STAGES = ['filter', 'differentiate', 'dynamics', 'summary'] as const;
 export type PipelineStage = (typeof PIPELINE_STAGES)[number];
@@ -123,6 +186,10 @@ export interface PipelineResult {
 	timings: Record<string, number>;
 	/** What was applied, for provenance: cutoff per channel (null = unfiltered), gravity. */
 	applied: { cutoffHz: Record<string, number | null>; gravity: Vec3; filledGaps: Record<string, number> };
+	/** Lab paths of the pelvis and each foot's ankle ("heel") and toe from the filtered angles: for models with legs on a pelvis or with ground data. */
+	feet?: GaitPaths;
+	/** Plates, contacts and which were used: present when ground data were given. */
+	ground?: GroundResult;
 }
 
 export class PipelineError extends Error {
@@ -145,8 +212,12 @@ export function runPipeline(
 	rec: Recording,
 	optionsInput: RunOptionsInput | RunOptions = {},
 	onProgress?: (fraction: number, stage: string) => void,
-	/** reuseInput: the recording's channel arrays may become the filtered angles (filtered in place), saving one copy. */
-	{ reuseInput = false }: { reuseInput?: boolean } = {}
+	/**
+	 * reuseInput: the recording's channel arrays may become the filtered angles (filtered in place), saving one copy.
+	 * ground: force-plate loads at the angle rate and their contacts; during each usable contact the GRF and free
+	 * moment act on the contact's foot at the CoP.
+	 */
+	{ reuseInput = false, ground }: { reuseInput?: boolean; ground?: GroundInput } = {}
 ): PipelineResult {
 	const parsed = runOptionsSchema.safeParse(optionsInput);
 	if (!parsed.success)
@@ -264,6 +335,9 @@ export function runPipeline(
 	const model = compileModel(built.model);
 	const gravity = (options.gravity ?? built.setup.gravity) as Vec3;
 	const ws = createWorkspace(model);
+	const hasLegs = built.model.bodies.some((b) => b.name === 'right.foot' || b.name === 'left.foot');
+	const feet = hasLegs && (built.pelvis || ground) ? footPoints(built, angle, model) : undefined;
+	const groundPlan = ground ? planGround(built, ground, feet, options, frames, Math.hypot(...gravity) * built.bodyMass) : null;
 	const reported = built.dofs.map((d, j) => ({ d, j })).filter(({ d }) => !d.base);
 	const moment = new Map<number, Float64Array>(reported.map(({ j }) => [j, new Float64Array(frames)]));
 	// one reaction per joint centre: the load on the first body of the centre's chain (its massless links pass it on unchanged)
@@ -282,9 +356,10 @@ export function runPipeline(
 	const perKg = new Map<number, Float64Array>(reported.map(({ j }) => [j, new Float64Array(frames)]));
 	const power = new Map<number, Float64Array>(reported.map(({ j }) => [j, new Float64Array(frames)]));
 	const batchOut = { Q: QB, force: fB };
-	const batchOpts = { gravity, reactionFrame: 'world' as const };
+	const batchOpts = { gravity, reactionFrame: 'world' as const, loadsAt: undefined as ((k: number) => readonly ExternalLoad[] | null) | undefined };
 	for (let k0 = 0; k0 < frames; k0 += B) {
 		const len = Math.min(B, frames - k0);
+		if (groundPlan) batchOpts.loadsAt = (k) => groundPlan.loadsAt(k0 + k);
 		for (let j = 0; j < n; j++) {
 			interleave(angle[j], qB, k0, len, n, j);
 			interleave(velocity[j], qdB, k0, len, n, j);
@@ -337,8 +412,116 @@ export function runPipeline(
 		reactions: centres.map((c) => ({ joint: c.joint, force: c.force })),
 		summary,
 		timings,
-		applied: { cutoffHz: cutoffs, gravity: [...gravity] as Vec3, filledGaps }
+		applied: { cutoffHz: cutoffs, gravity: [...gravity] as Vec3, filledGaps },
+		...(feet ? { feet } : {}),
+		...(groundPlan ? { ground: groundPlan.result } : {})
 	};
+}
+
+/**
+ * Which plate loads act on which foot at each sample, and the ground results. A contact is used when it has a foot the
+ * model has, is not shared and not off the plate (either allowed with options.useFlaggedContacts); over its samples
+ * start…end the plate's GRF and free moment act on that foot's body at the CoP (a lab point). One load per plate and
+ * sample, refilled in place.
+ */
+function planGround(
+	built: SessionModel,
+	ground: GroundInput,
+	feet: GaitPaths | undefined,
+	options: RunOptions,
+	frames: number,
+	bodyWeightN: number
+): { loadsAt: (k: number) => readonly ExternalLoad[]; result: GroundResult } {
+	const P = ground.plates.length;
+	ground.plates.forEach(({ plate, loads }) => {
+		if (loads.grf.length !== 3 * frames || loads.cop.length !== 3 * frames || loads.freeMoment.length !== 3 * frames || loads.loaded.length !== frames)
+			throw new PipelineError(
+				`plate ${plate.name}: its loads hold ${loads.loaded.length} samples; the recording has ${frames} (forces must be brought to the angle rate first)`
+			);
+	});
+	const names = ground.plates.map((g) => g.plate.name);
+	for (const c of ground.contacts) {
+		if (!names.includes(c.plate)) throw new PipelineError(`a contact is on plate "${c.plate}", which has no loads in this run (${names.join(', ')})`);
+		if (!(c.start >= 0 && c.end < frames && c.start <= c.end))
+			throw new PipelineError(`a contact on plate ${c.plate} runs from sample ${c.start + 1} to ${c.end + 1}; the recording has ${frames}`);
+	}
+	let assigned: AssignedContact[];
+	try {
+		assigned =
+			ground.assign === false
+				? ground.contacts.map((c, i, all) => ({
+						...c,
+						id: `${c.plate}#${all.filter((o) => o.plate === c.plate && o.start < c.start).length}`,
+						assignedBy: c.foot ? ('user' as const) : null,
+						overShare: { left: NaN, right: NaN },
+						bothShare: NaN
+					}))
+				: assignContacts(
+						ground.contacts,
+						ground.plates.map((g) => g.plate),
+						{ left: feet?.left, right: feet?.right },
+						{ marginM: ground.marginM, overrides: options.contactFeet }
+					);
+	} catch (e) {
+		throw new PipelineError(e instanceof Error ? e.message : String(e));
+	}
+	const bodies = footBodies(built);
+	const active = new Int32Array(frames * Math.max(P, 1)).fill(-1);
+	const contacts: GroundContact[] = assigned.map((c) => {
+		const p = names.indexOf(c.plate);
+		let reason: string | null = null;
+		if (c.foot === null) reason = c.shared ? 'two feet share it' : 'no foot assigned';
+		else if (bodies[c.foot] < 0) reason = `the model has no ${c.foot} foot`;
+		else if (c.shared && !options.useFlaggedContacts) reason = 'two feet share it (flagged; not used unless flagged contacts are used)';
+		else if (c.offPlate && !options.useFlaggedContacts) reason = 'its CoP runs off the plate (flagged; not used unless flagged contacts are used)';
+		if (reason === null) {
+			const cop = ground.plates[p].loads.cop;
+			for (let k = c.start; k <= c.end; k++) {
+				if (!(Number.isFinite(cop[3 * k]) && Number.isFinite(cop[3 * k + 1]) && Number.isFinite(cop[3 * k + 2])))
+					throw new PipelineError(`contact ${c.id} (plate ${c.plate}, ${c.foot} foot) has no centre of pressure at sample ${k + 1}, inside the contact`);
+				if (active[k * P + p] >= 0) throw new PipelineError(`contacts on plate ${c.plate} overlap at sample ${k + 1}`);
+				active[k * P + p] = bodies[c.foot as Foot];
+			}
+		}
+		return { ...c, used: reason === null, reason };
+	});
+	const own: ExternalLoad[] = ground.plates.map(() => ({
+		body: 0,
+		point: [0, 0, 0],
+		force: [0, 0, 0],
+		torque: [0, 0, 0],
+		frame: 'world',
+		pointFrame: 'world'
+	}));
+	const now: ExternalLoad[] = [];
+	const loadsAt = (k: number): readonly ExternalLoad[] => {
+		now.length = 0;
+		for (let p = 0; p < P; p++) {
+			const b = active[k * P + p];
+			if (b < 0) continue;
+			const L = own[p],
+				{ grf, cop, freeMoment } = ground.plates[p].loads,
+				k3 = 3 * k;
+			L.body = b;
+			for (let c = 0; c < 3; c++) {
+				L.point[c] = cop[k3 + c];
+				L.force[c] = grf[k3 + c];
+				L.torque![c] = freeMoment[k3 + c];
+			}
+			now.push(L);
+		}
+		return now;
+	};
+	const result: GroundResult = {
+		bodyWeightN,
+		plates: ground.plates.map(({ plate, loads }) => {
+			const pct = new Float64Array(3 * frames);
+			for (let i = 0; i < 3 * frames; i++) pct[i] = (100 * loads.grf[i]) / bodyWeightN;
+			return { name: plate.name, grf: loads.grf, grfPercentBW: pct, cop: loads.cop, freeMoment: loads.freeMoment, loaded: loads.loaded };
+		}),
+		contacts
+	};
+	return { loadsAt, result };
 }
 
 /**

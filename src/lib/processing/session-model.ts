@@ -2,7 +2,7 @@
 import { z } from 'zod';
 import { rotationSchema, type BodyInput, type Mat3, type ModelInput, type Vec3 } from '../dynamics/model';
 import { LIMBS, scaleLimbs, type DofInfo, type Limb, type ParticipantBody, type ScaledModel } from '../anthropometry/scale';
-import { SEGMENT_TABLE_IDS, type SegmentTableId } from '../anthropometry/tables';
+import { SEGMENT_TABLE_IDS, tables, type SegmentTableId } from '../anthropometry/tables';
 import type { ExpectedChannel } from './recording';
 
 const finite = z.number({ error: 'must be a number' }).refine(Number.isFinite, 'must be a finite number');
@@ -75,6 +75,23 @@ export const loadSchema = z.object({
 });
 export type LoadSetup = z.infer<typeof loadSchema>;
 
+/** Accepted distance between the hip joint centres (m) when given: anything outside is a typing error, not a pelvis (our choice). */
+export const HIP_WIDTH_RANGE_M = { min: 0.1, max: 0.5 } as const;
+
+/**
+ * Gait set-up: both legs hang from one pelvis that moves as the recording's `pelvis.px … pelvis.rz` columns prescribe.
+ * `hipWidthM`: distance between the hip joint centres (m); default the stature proportion the limb roots use
+ * (PELVIS_HIP_WIDTH_SOURCE).
+ */
+export const pelvisSchema = z.object({
+	hipWidthM: finite
+		.refine((v) => v >= HIP_WIDTH_RANGE_M.min && v <= HIP_WIDTH_RANGE_M.max, {
+			message: `must be from ${HIP_WIDTH_RANGE_M.min} to ${HIP_WIDTH_RANGE_M.max} m (the distance between the hip joint centres)`
+		})
+		.optional()
+});
+export type PelvisSetup = z.infer<typeof pelvisSchema>;
+
 export const sessionSetupSchema = z
 	.object({
 		table: z.enum(SEGMENT_TABLE_IDS as [SegmentTableId, ...SegmentTableId[]], {
@@ -83,12 +100,29 @@ export const sessionSetupSchema = z
 		limbs: z.array(z.enum(LIMBS, { error: `limb must be one of ${LIMBS.join(', ')}` })).min(1, 'choose at least one limb'),
 		bases: z.partialRecord(z.enum(LIMBS), baseSchema).default({}),
 		loads: z.array(loadSchema).default([]),
+		/** Both legs on one moving pelvis (gait); then the limbs are legs and per-limb bases are not used. */
+		pelvis: pelvisSchema.optional(),
 		/** Acceleration due to gravity in lab axes (X anterior, Y superior, Z right), m/s². */
 		gravity: vec3.default([0, -9.81, 0])
 	})
 	.superRefine((s, ctx) => {
 		if (new Set(s.limbs).size !== s.limbs.length)
 			ctx.addIssue({ code: 'custom', path: ['limbs'], message: 'each limb may be listed once' });
+		if (s.pelvis) {
+			const arms = s.limbs.filter((l) => !l.endsWith('.leg'));
+			if (arms.length)
+				ctx.addIssue({
+					code: 'custom',
+					path: ['limbs'],
+					message: `a pelvis set-up carries legs only (right.leg, left.leg); remove ${arms.join(', ')}`
+				});
+			for (const limb of Object.keys(s.bases))
+				ctx.addIssue({
+					code: 'custom',
+					path: ['bases', limb],
+					message: `with a pelvis both legs hang from it, so ${limb} takes no base of its own: remove bases.${limb} (the pelvis moves as the pelvis.px … pelvis.rz columns say)`
+				});
+		}
 		for (const [limb, base] of Object.entries(s.bases)) {
 			if (!s.limbs.includes(limb as Limb))
 				ctx.addIssue({
@@ -120,10 +154,11 @@ export type SessionSetupInput = z.input<typeof sessionSetupSchema>;
 
 /** One DOF of the session model (one per engine body), anatomical or a limb-base coordinate. */
 export interface SessionDof {
-	/** The column name: `<side>.<joint>.<motion>` or `<limb>.base.<px|py|pz|rx|ry|rz>`. */
+	/** The column name: `<side>.<joint>.<motion>`, `<limb>.base.<px|py|pz|rx|ry|rz>` or `pelvis.<px|…|rz>`. */
 	name: string;
-	limb: Limb;
-	side: DofInfo['side'];
+	/** The limb, or 'pelvis' for the shared pelvis's coordinates of a gait set-up. */
+	limb: Limb | 'pelvis';
+	side: DofInfo['side'] | 'midline';
 	joint: DofInfo['joint'] | 'base';
 	motion: string;
 	/** rad for revolute joints, m for the prismatic base coordinates. */
@@ -152,6 +187,8 @@ export interface LoadApplied {
 
 export interface SessionModel {
 	model: ModelInput;
+	/** Gait set-up: the distance between the hip joint centres used and where it comes from; null without a pelvis. */
+	pelvis: { hipWidthM: number; source: string } | null;
 	dofs: SessionDof[];
 	/** The channels a recording must contain, in model order (angles and base positions; plate channels come from the trial's plates). */
 	expected: (ExpectedChannel & { kind: 'angle' | 'position' })[];
@@ -238,6 +275,24 @@ const ZERO3 = (): Mat3 => [
 	[0, 0, 0]
 ];
 const BASE_AXIS: Record<BaseDof, Vec3> = { px: [1, 0, 0], py: [0, 1, 0], pz: [0, 0, 1], rx: [1, 0, 0], ry: [0, 1, 0], rz: [0, 0, 1] };
+const PELVIS_POSITIVE: Record<BaseDof, string> = {
+	px: 'pelvis (midpoint of the hip joint centres) position along lab X (anterior), m',
+	py: 'pelvis position along lab Y (superior), m',
+	pz: 'pelvis position along lab Z (right), m',
+	rx: 'pelvis rotation about lab X, first of the Cardan X-Y-Z sequence',
+	ry: 'pelvis rotation about the once-rotated Y axis, second of the Cardan X-Y-Z sequence',
+	rz: 'pelvis rotation about the twice-rotated Z axis, third of the Cardan X-Y-Z sequence'
+};
+
+/** Where the default distance between the hip joint centres comes from (the stature proportion the limb roots use). */
+export const PELVIS_HIP_WIDTH_SOURCE = `${tables.drillis.lengths.hipWidth.fraction.value} × stature: ${tables.drillis.lengths.hipWidth.fraction.source}, taken as the distance between the hip joint centres as for the limb roots (our reading)`;
+
+/** The distance between the hip joint centres of a gait set-up (m) and its source. */
+export function pelvisHipWidth(body: ParticipantBody, pelvis: PelvisSetup): { hipWidthM: number; source: string } {
+	if (pelvis.hipWidthM !== undefined) return { hipWidthM: pelvis.hipWidthM, source: 'entered in the session set-up' };
+	return { hipWidthM: tables.drillis.lengths.hipWidth.fraction.value * body.stature, source: PELVIS_HIP_WIDTH_SOURCE };
+}
+
 const BASE_POSITIVE: Record<BaseDof, string> = {
 	px: 'limb base (proximal joint centre) position along lab X (anterior), m',
 	py: 'limb base position along lab Y (superior), m',
@@ -292,12 +347,43 @@ export function buildSessionModel(body: ParticipantBody, setupInput: SessionSetu
 	const dofs: SessionDof[] = [];
 	const newIndex = new Int32Array(limbBodies.length).fill(-1);
 	let currentJoint = '';
+	// gait: six massless pelvis coordinates first (as a moving base's), both legs' hip joint centres on its Z axis
+	const pelvis = setup.pelvis ? pelvisHipWidth(body, setup.pelvis) : null;
+	if (pelvis) {
+		for (const dof of BASE_DOFS) {
+			const prismatic = dof.startsWith('p');
+			bodies.push({
+				name: `pelvis.${dof}`,
+				parent: bodies.length - 1,
+				joint: { type: prismatic ? 'prismatic' : 'revolute', axis: BASE_AXIS[dof] },
+				anchor: [0, 0, 0],
+				mass: 0,
+				com: [0, 0, 0],
+				inertia: ZERO3(),
+				description: PELVIS_POSITIVE[dof]
+			});
+			dofs.push({
+				name: `pelvis.${dof}`,
+				limb: 'pelvis',
+				side: 'midline',
+				joint: 'base',
+				motion: dof,
+				unit: prismatic ? 'm' : 'rad',
+				kind: prismatic ? 'position' : 'angle',
+				base: true,
+				positive: PELVIS_POSITIVE[dof],
+				body: bodies.length - 1,
+				jointCentre: 'pelvis'
+			});
+		}
+	}
 	for (const limb of setup.limbs) {
 		const base = setup.bases[limb] ?? { kind: 'fixed' as const, orientation: 'upright' as const };
-		const side = limb.split('.')[0] as SessionDof['side'];
+		const side = limb.split('.')[0] as 'right' | 'left';
 		const members = scaled.dofs.map((d, i) => ({ d, i })).filter(({ i }) => limbOf(scaled, i) === limb);
 		let rootParent = -1;
-		if (base.kind === 'moving') {
+		if (pelvis) rootParent = BASE_DOFS.length - 1;
+		else if (base.kind === 'moving') {
 			for (const dof of BASE_DOFS) {
 				const prismatic = dof.startsWith('p');
 				bodies.push({
@@ -330,8 +416,10 @@ export function buildSessionModel(body: ParticipantBody, setupInput: SessionSetu
 			const b = limbBodies[i];
 			const isRoot = b.parent < 0;
 			const nb: BodyInput = { ...b, parent: isRoot ? rootParent : newIndex[b.parent] };
-			if (isRoot && base.kind === 'moving') nb.anchor = [0, 0, 0];
-			if (isRoot && base.kind === 'fixed') {
+			// the hip joint centre half the hip width to the side of the pelvis origin, along its Z axis (right at +Z)
+			if (isRoot && pelvis) nb.anchor = [0, 0, ((side === 'right' ? 1 : -1) * pelvis.hipWidthM) / 2];
+			else if (isRoot && base.kind === 'moving') nb.anchor = [0, 0, 0];
+			else if (isRoot && base.kind === 'fixed') {
 				const R = fixedBaseRotation(base);
 				if (R) nb.rotation = R;
 				if (base.positionM) nb.anchor = [...base.positionM];
@@ -358,6 +446,8 @@ export function buildSessionModel(body: ParticipantBody, setupInput: SessionSetu
 
 	const baseNotes = setup.limbs.map((limb) => {
 		const base = setup.bases[limb];
+		if (pelvis)
+			return `${limb}: hangs from the pelvis, its hip joint centre ${(pelvis.hipWidthM / 2).toFixed(4)} m to the ${limb.startsWith('right') ? 'right (+Z)' : 'left (−Z)'} of the pelvis origin along the pelvis Z axis.`;
 		if (!base || base.kind === 'fixed') {
 			const o = base?.orientation ?? 'upright';
 			const where = base?.positionM ? ` with its proximal joint centre at [${base.positionM.join(', ')}] m` : '';
@@ -371,14 +461,22 @@ export function buildSessionModel(body: ParticipantBody, setupInput: SessionSetu
 		return `${limb}: base moving as prescribed by the recording's ${limb}.base.px…rz columns (proximal joint centre position, then Cardan X-Y-Z rotation); its six coordinates are massless and their forces are not reported.`;
 	});
 
-	const model: ModelInput = { name: `${scaled.model.name}${setup.loads.length ? ' with loads' : ''}`, bodies };
+	const pelvisNotes = pelvis
+		? [
+				`Pelvis: both legs hang from one pelvis moving as prescribed by the recording's pelvis.px…pz (the midpoint of the hip joint centres, lab axes, m) and pelvis.rx…rz (Cardan X-Y-Z) columns; hip joint centres ${pelvis.hipWidthM.toFixed(4)} m apart (${pelvis.source}). The pelvis is massless and its six coordinates are not reported: hip, knee and ankle moments depend only on the segments beyond each joint, the external loads on them and the pelvis's motion, so they are the same as with each leg on its own moving base.`
+			]
+		: [];
+	const model: ModelInput = {
+		name: `${pelvis ? 'pelvis + ' : ''}${scaled.model.name}${setup.loads.length ? ' with loads' : ''}`,
+		bodies
+	};
 	const parameters: ScaledModel = {
 		...scaled,
 		model: { name: scaled.model.name, bodies: limbBodies },
-		notes: [...scaled.notes, ...baseNotes, ...loadNotes]
+		notes: [...scaled.notes, ...pelvisNotes, ...baseNotes, ...loadNotes]
 	};
 	const expected: SessionModel['expected'] = dofs.map((d) => ({ name: d.name, kind: d.kind }));
-	return { model, dofs, expected, parameters, loadsApplied, setup, bodyMass: scaled.bodyMass };
+	return { model, dofs, expected, parameters, loadsApplied, setup, bodyMass: scaled.bodyMass, pelvis };
 }
 
 /** Which limb body i of a scaled model belongs to (bodies of one limb are consecutive from its root). */

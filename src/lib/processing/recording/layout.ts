@@ -28,6 +28,8 @@ export const PHYSIOLOGICAL_RANGES: Record<string, { min: number; max: number }> 
 
 export const DOF_RE = /^(right|left)\.(hip|knee|ankle|shoulder|elbow|forearm|wrist)\.([A-Za-z]+)$/;
 export const BASE_RE = /^(right|left)\.(arm|leg)\.base\.(px|py|pz|rx|ry|rz)$/;
+/** The pelvis both legs hang from (a gait set-up): position of the hip joint centres' midpoint (m, lab axes) and Cardan X-Y-Z angles. */
+export const PELVIS_RE = /^pelvis\.(px|py|pz|rx|ry|rz)$/;
 
 /** The usual range (°) of a DOF channel of our layout ("right.knee.flexion" → knee.flexion's), or undefined. */
 export function usualRange(name: string): { min: number; max: number } | undefined {
@@ -53,7 +55,7 @@ export function plateChannelParts(name: string): { plate: string; quantity: 'for
 
 /** Whether a name belongs to our column scheme (a known DOF, a base column or a plate channel), whatever the session expects. */
 export function isSchemeName(name: string): boolean {
-	return usualRange(name) !== undefined || BASE_RE.test(name) || plateChannelParts(name) !== undefined;
+	return usualRange(name) !== undefined || BASE_RE.test(name) || PELVIS_RE.test(name) || plateChannelParts(name) !== undefined;
 }
 
 /**
@@ -63,5 +65,5 @@ export function isSchemeName(name: string): boolean {
 export function schemeKind(name: string): 'angle' | 'position' | 'force' | 'moment' | 'length' {
 	const plate = plateChannelParts(name);
 	if (plate) return plate.quantity === 'force' ? 'force' : plate.quantity === 'cop' ? 'length' : 'moment';
-	return /\.base\.p[xyz]$/.test(name) ? 'position' : 'angle';
+	return /(\.base|^pelvis)\.p[xyz]$/.test(name) ? 'position' : 'angle';
 }
