@@ -3,6 +3,8 @@
 // empty cells during contact, hard limits, the mapping of a foreign header, one file with angles and forces, and the
 // pairing of a separate force file with its angle recording (rate ratio, start, length).
 import { create, unitDependencies } from 'mathjs';
+import { readFileSync } from 'node:fs';
+import { join } from 'node:path';
 import { describe, expect, test } from 'vitest';
 import { resamplePlateSignals, type ForcePlate } from '../../../src/lib/processing/forces';
 import {
@@ -41,7 +43,10 @@ const floor = {
 const P1: ForcePlate = { ...floor, name: 'plate1', output: 'forces-moments' };
 const P2: ForcePlate = { ...floor, name: 'plate2', output: 'forces-cop' };
 
-const LEG: ExpectedChannel[] = ['right.hip.flexion', 'right.knee.flexion', 'right.ankle.dorsiflexion'].map((name) => ({ name, kind: 'angle' }));
+const LEG: ExpectedChannel[] = ['right.hip.flexion', 'right.knee.flexion', 'right.ankle.dorsiflexion'].map((name) => ({
+	name,
+	kind: 'angle'
+}));
 
 function recording(r: ParseResult): Recording {
 	if (!r.ok) throw new Error(`expected a recording, got ${JSON.stringify(r.problems, null, 1)}`);
@@ -56,8 +61,10 @@ function problems(r: ParseResult) {
 const p1 = (i: number) => [10 + 0.01 * i, -20 + 0.02 * i, 800 + i, 60, -100 + 0.1 * i, 5];
 /** Plate 2 (forces-cop) cells: unloaded (Fz = 3 N, CoP and free moment empty) for i < 20, then loaded at 700 N. */
 const p2 = (i: number) => (i < 20 ? [0, 0, 3, '', '', '', ''] : [5, -7, 700, 0.1 + 0.001 * i, -0.05, -0.04, 1.5]);
-const P1_HEADER = 'plate1.force.x (N),plate1.force.y (N),plate1.force.z (N),plate1.moment.x (N·m),plate1.moment.y (N*m),plate1.moment.z (Nm)';
-const P2_HEADER = 'plate2.force.x (N),plate2.force.y (N),plate2.force.z (N),plate2.cop.x (m),plate2.cop.y (m),plate2.cop.z (m),plate2.freemoment (N.m)';
+const P1_HEADER =
+	'plate1.force.x (N),plate1.force.y (N),plate1.force.z (N),plate1.moment.x (N·m),plate1.moment.y (N*m),plate1.moment.z (Nm)';
+const P2_HEADER =
+	'plate2.force.x (N),plate2.force.y (N),plate2.force.z (N),plate2.cop.x (m),plate2.cop.y (m),plate2.cop.z (m),plate2.freemoment (N.m)';
 
 /** A file: header, then n lines at hz of time and cells(i). */
 function file(header: string, n: number, cells: (i: number) => (string | number)[], { hz = 1000, t0 = 0, digits = 3 } = {}): string {
@@ -70,8 +77,7 @@ const forceFile = (n = 200, o?: { hz?: number; t0?: number; digits?: number }) =
 const angleFile = (n = 40, o?: { hz?: number; t0?: number; digits?: number }) =>
 	file('time (s),right.hip.flexion (deg),right.knee.flexion (deg),right.ankle.dorsiflexion (deg)', n, (i) => [10 + i, 20, -5], o);
 
-const parseForces = (text: string, fileName = 'forces.csv') =>
-	parseRecording(text, { fileName, expected: forceChannelsOf([P1, P2]) });
+const parseForces = (text: string, fileName = 'forces.csv') => parseRecording(text, { fileName, expected: forceChannelsOf([P1, P2]) });
 const parseAngles = (text: string, fileName = 'angles.csv') => parseRecording(text, { fileName, expected: LEG });
 
 describe('our column scheme', () => {
@@ -145,10 +151,13 @@ describe('our column scheme', () => {
 		const header =
 			'time (s),plate1.force.x (kN),plate1.force.y (kN),plate1.force.z (kN),plate1.moment.x (N·mm),plate1.moment.y (N·mm),plate1.moment.z (kN·m)';
 		const rec = recording(
-			await parseRecording(file(header, 40, () => [0.0125, -0.5, 0.8123, 60000, -1500, 0.005]), {
-				fileName: 'k.csv',
-				expected: forceChannels(P1)
-			})
+			await parseRecording(
+				file(header, 40, () => [0.0125, -0.5, 0.8123, 60000, -1500, 0.005]),
+				{
+					fileName: 'k.csv',
+					expected: forceChannels(P1)
+				}
+			)
 		);
 		const s = plateSignalsOf(rec, [P1]).get('plate1')!;
 		// 0.8123 kN × 1000: the product of the cell and mathjs's factor (812.3 within one unit in the last place)
@@ -159,7 +168,10 @@ describe('our column scheme', () => {
 		const cop =
 			'time (s),plate2.force.x (N),plate2.force.y (N),plate2.force.z (N),plate2.cop.x (mm),plate2.cop.y (cm),plate2.cop.z (m),plate2.freemoment (N·m)';
 		const r2 = recording(
-			await parseRecording(file(cop, 40, () => [0, 0, 500, 123, 7.6, -0.04, 2]), { fileName: 'c.csv', expected: forceChannels(P2) })
+			await parseRecording(
+				file(cop, 40, () => [0, 0, 500, 123, 7.6, -0.04, 2]),
+				{ fileName: 'c.csv', expected: forceChannels(P2) }
+			)
 		);
 		expect(Array.from(plateSignalsOf(r2, [P2]).get('plate2')!.cop!.subarray(0, 3))).toEqual([0.123, 0.076, -0.04]);
 	});
@@ -168,10 +180,17 @@ describe('our column scheme', () => {
 describe('bad force columns: a precise message, nothing returned', () => {
 	test('a missing component names itself and what the plate needs', async () => {
 		const header = 'time (s),plate1.force.x (N),plate1.force.y (N),plate1.moment.x (N·m),plate1.moment.y (N·m),plate1.moment.z (N·m)';
-		const p = problems(await parseRecording(file(header, 40, () => [1, 2, 3, 4, 5]), { fileName: 'f.csv', expected: forceChannels(P1) }));
+		const p = problems(
+			await parseRecording(
+				file(header, 40, () => [1, 2, 3, 4, 5]),
+				{ fileName: 'f.csv', expected: forceChannels(P1) }
+			)
+		);
 		expect(p).toHaveLength(1);
 		expect(p[0]).toMatchObject({ file: 'f.csv', row: 1, field: 'plate1.force.z', code: 'missing-channel' });
-		expect(p[0].message).toMatch(/^plate1\.force\.z is missing: a forces-moments plate needs plate1\.force\.x, \.y, \.z \(N\) and plate1\.moment\.x/);
+		expect(p[0].message).toMatch(
+			/^plate1\.force\.z is missing: a forces-moments plate needs plate1\.force\.x, \.y, \.z \(N\) and plate1\.moment\.x/
+		);
 		expect(p[0].message).toContain('Add a column "plate1.force.z (N)"');
 	});
 
@@ -190,7 +209,12 @@ describe('bad force columns: a precise message, nothing returned', () => {
 		);
 		// a CoP in degrees, and a moment with no unit
 		const h2 = P2_HEADER.replace('plate2.cop.y (m)', 'plate2.cop.y (deg)').replace('plate2.freemoment (N.m)', 'plate2.freemoment');
-		const q = problems(await parseRecording(file(`time (s),${h2}`, 40, (i) => p2(i + 20)), { fileName: 'g.csv', expected: forceChannels(P2) }));
+		const q = problems(
+			await parseRecording(
+				file(`time (s),${h2}`, 40, (i) => p2(i + 20)),
+				{ fileName: 'g.csv', expected: forceChannels(P2) }
+			)
+		);
 		expect(q.map((x) => [x.column, x.code])).toEqual([
 			['plate2.cop.y (deg)', 'unit-unsupported'],
 			['plate2.freemoment', 'unit-unknown']
@@ -200,7 +224,9 @@ describe('bad force columns: a precise message, nothing returned', () => {
 	});
 
 	test('an empty or NaN force cell during contact is refused with its line and column: force columns are never gap-filled', async () => {
-		const text = file(`time (s),${P1_HEADER}`, 40, (i) => (i === 5 ? [10, -20, 'NaN', 60, -100, 5] : i === 9 ? [10, '', 800, 60, -100, 5] : p1(i)));
+		const text = file(`time (s),${P1_HEADER}`, 40, (i) =>
+			i === 5 ? [10, -20, 'NaN', 60, -100, 5] : i === 9 ? [10, '', 800, 60, -100, 5] : p1(i)
+		);
 		for (const fillGaps of [false, true]) {
 			const p = problems(await parseRecording(text, { fileName: 'f.csv', expected: forceChannels(P1), fillGaps }));
 			expect(p.map((x) => [x.row, x.column, x.code])).toEqual([
@@ -230,7 +256,8 @@ describe('bad force columns: a precise message, nothing returned', () => {
 
 	test('hard limits (our guards): |force| ≤ 100 kN, |moment| ≤ 20 kN·m, |CoP| ≤ 100 m, compared after unit conversion', async () => {
 		expect(HARD_LIMITS).toMatchObject({ forceN: 100_000, momentNm: 20_000, copM: 100 });
-		const header = 'time (s),plate1.force.x (kN),plate1.force.y (N),plate1.force.z (N),plate1.moment.x (N·mm),plate1.moment.y (N·m),plate1.moment.z (N·m)';
+		const header =
+			'time (s),plate1.force.x (kN),plate1.force.y (N),plate1.force.z (N),plate1.moment.x (N·mm),plate1.moment.y (N·m),plate1.moment.z (N·m)';
 		const at = (i: number) => (i === 3 ? [100.001, 1, 1, 20_000_001, 1, 1] : [100, -100_000, 1, -20_000_000, 20_000, 1]);
 		const p = problems(await parseRecording(file(header, 40, at), { fileName: 'f.csv', expected: forceChannels(P1) }));
 		expect(p.map((x) => [x.row, x.column, x.code])).toEqual([
@@ -376,5 +403,51 @@ describe('a separate force file paired with its angle recording', () => {
 		expect(r.problems[0].message).toContain('has 195 samples');
 		expect(r.problems[0].message).toContain('need 196 force samples at 5 per angle sample');
 		expect(r.problems[0].message).toContain('"walk-01.csv"');
+	});
+});
+
+describe('the sample files of the README (tests/fixtures/recordings/forces)', () => {
+	const FIX = join(import.meta.dirname, '../../fixtures/recordings/forces');
+	const read = (name: string) => new Uint8Array(readFileSync(join(FIX, name)));
+
+	test('a 1000 Hz two-plate file pairs with its 200 Hz angle file and, taking every 5th sample, gives the one-file recording’s plate signals', async () => {
+		const angles = recording(await parseRecording(read('walk-angles-200hz.csv'), { fileName: 'walk-angles-200hz.csv', expected: LEG }));
+		const forces = recording(
+			await parseRecording(read('walk-forces-1000hz.csv'), { fileName: 'walk-forces-1000hz.csv', expected: forceChannelsOf([P1, P2]) })
+		);
+		const both = recording(
+			await parseRecording(read('walk-angles-and-forces-200hz.csv'), {
+				fileName: 'walk-angles-and-forces-200hz.csv',
+				expected: [...LEG, ...forceChannelsOf([P1, P2])]
+			})
+		);
+		expect(forces.warnings).toEqual([]);
+		const r = pairForceRecording(angles, forces, { angle: 'walk-angles-200hz.csv', force: 'walk-forces-1000hz.csv' });
+		if (!r.ok) throw new Error(JSON.stringify(r.problems));
+		expect(r.pairing.ratio).toBe(5);
+		const split = splitAngleAndForce(both, [P1, P2]);
+		expect(split.angles.channels).toEqual(angles.channels);
+		const fromFile = plateSignalsOf(r.pairing.force, [P1, P2]);
+		const k = r.pairing.ratio;
+		for (const plate of [P1, P2]) {
+			const a = fromFile.get(plate.name)!;
+			const b = split.plates.get(plate.name)!;
+			// force sample j·k of the 1000 Hz file is the 200 Hz file's sample j (both written at the same time)
+			for (const key of ['force', 'moment', 'cop'] as const) {
+				if (!b[key]) continue;
+				const every = Float64Array.from({ length: b[key].length }, (_, i) => a[key]![3 * k * Math.floor(i / 3) + (i % 3)]);
+				expect(every, `${plate.name}.${key}`).toEqual(b[key]);
+			}
+			// and the forces come to the angle rate (anti-alias filter, then every k-th sample) with one sample per angle sample
+			const at = resamplePlateSignals(plate, a, {
+				forceHz: r.pairing.forceHz,
+				angleHz: r.pairing.angleHz,
+				cutoffHz: 6,
+				angleSamples: angles.time.length
+			});
+			expect(at.force.length).toBe(3 * angles.time.length);
+		}
+		// plate2 is unloaded (0.5 N) until 0.1 s: its CoP cells are empty there and stay NaN
+		expect(fromFile.get('plate2')!.cop![0]).toBeNaN();
 	});
 });

@@ -85,18 +85,19 @@ function interleave(recording: Recording, names: string[], plate: Pick<ForcePlat
  */
 export function plateSignalsOf(recording: Recording, plates: readonly ForcePlate[]): Map<string, PlateSignals> {
 	const out = new Map<string, PlateSignals>();
+	const vector = (plate: ForcePlate, q: 'force' | 'moment' | 'cop') =>
+		interleave(
+			recording,
+			AXES.map((a) => `${plate.name}.${q}.${a}`),
+			plate
+		);
 	for (const plate of plates) {
-		const p = plate.name;
-		const force = interleave(recording, AXES.map((a) => `${p}.force.${a}`), plate);
+		const force = vector(plate, 'force');
 		out.set(
-			p,
+			plate.name,
 			plate.output === 'forces-moments'
-				? { force, moment: interleave(recording, AXES.map((a) => `${p}.moment.${a}`), plate) }
-				: {
-						force,
-						cop: interleave(recording, AXES.map((a) => `${p}.cop.${a}`), plate),
-						freeMoment: channel(recording, `${p}.freemoment`, plate)
-					}
+				? { force, moment: vector(plate, 'moment') }
+				: { force, cop: vector(plate, 'cop'), freeMoment: channel(recording, `${plate.name}.freemoment`, plate) }
 		);
 	}
 	return out;
@@ -170,7 +171,10 @@ export function pairForceRecording(
 	};
 	// rate: over the angle samples, force sample j·k drifts from angle sample j by (nA − 1)·|k − r| force samples
 	if (!(k >= 1) || Math.abs(k - r) * (nA - 1) > 0.5) {
-		return refuse('force-rate-ratio', `The force file ${F} and the angle file ${A} cannot be paired: ${rateMessage() ?? `the ratio is ${fmt(r)}`}`);
+		return refuse(
+			'force-rate-ratio',
+			`The force file ${F} and the angle file ${A} cannot be paired: ${rateMessage() ?? `the ratio is ${fmt(r)}`}`
+		);
 	}
 	if (Math.abs(start) > half + 1e-12) {
 		return refuse(

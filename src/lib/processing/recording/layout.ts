@@ -45,7 +45,9 @@ export function usualRange(name: string): { min: number; max: number } | undefin
 export const PLATE_CHANNEL_RE = /^([A-Za-z][A-Za-z0-9_-]{0,31})\.(?:(force|moment|cop)\.([xyz])|(freemoment))$/;
 
 /** The parts of a force-plate channel name, or undefined when the name is not one. */
-export function plateChannelParts(name: string): { plate: string; quantity: 'force' | 'moment' | 'cop' | 'freemoment'; axis?: 'x' | 'y' | 'z' } | undefined {
+export function plateChannelParts(
+	name: string
+): { plate: string; quantity: 'force' | 'moment' | 'cop' | 'freemoment'; axis?: 'x' | 'y' | 'z' } | undefined {
 	const m = PLATE_CHANNEL_RE.exec(name);
 	if (!m) return undefined;
 	return m[4]

@@ -85,7 +85,8 @@ function target(c: PlannedColumn, keepValues: boolean, all: PlannedColumn[]): Ta
  * numbers of every target in their own units (NaN blank, REPORTED a cell with its own problem).
  */
 function blankCellProblem(tg: Target, targets: Target[], row: Float64Array, line: number): string | null {
-	const never = 'force-plate columns are never gap-filled: a plate gives every sample, and a value filled in during a contact would change the joint moments';
+	const never =
+		'force-plate columns are never gap-filled: a plate gives every sample, and a value filled in during a contact would change the joint moments';
 	const where = `Line ${line}, column ${tg.index + 1} ("${tg.header}")`;
 	if (!tg.unloaded) return `${where} is empty or NaN: ${never}. Re-export the force data with every sample.`;
 	const ref = targets[tg.unloaded.by];

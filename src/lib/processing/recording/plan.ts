@@ -34,7 +34,10 @@ function unitMessage(header: string, unit: string, channel: ExpectedChannel): { 
 			message: `Column "${header}" is ${KIND_NAME[channel.kind]} (${channel.name}), but its unit ${unit} measures ${KIND_NAME[other[0]]}; ${channel.kind} columns take ${takes(channel.kind)}. Check the column and its unit.`
 		};
 	}
-	return { code: 'unit-unsupported', message: `Unknown unit "${unit}" in "${header}"; ${channel.kind} columns take ${takes(channel.kind)}.` };
+	return {
+		code: 'unit-unsupported',
+		message: `Unknown unit "${unit}" in "${header}"; ${channel.kind} columns take ${takes(channel.kind)}.`
+	};
 }
 
 /** One channel column of the plan. */
