@@ -216,6 +216,9 @@ export const MATRIX: MatrixEntry[] = [
 	get('/api/studies/[id]/runs/[rid]/series', teamA(200, 200, 200, API), runA),
 	get('/api/studies/[id]/runs/[rid]/series', notThere(API), runInB),
 	get('/api/studies/[id]/runs/[rid]/summary', teamA(200, 200, 200, API), runA),
+	// a run's ground reaction forces and gait results (the seeded run has no force data: gait false, 200)
+	get('/api/studies/[id]/runs/[rid]/gait', teamA(200, 200, 200, API), runA),
+	get('/api/studies/[id]/runs/[rid]/gait', notThere(API), runInB),
 	post('/api/studies/[id]/runs/[rid]/retry', teamA(409, 409, 409, API), runA),
 	post('/api/studies/[id]/runs/[rid]/retry', notThere(API), runInB),
 	// export of an approved session (pi, researcher; the seeded session is a draft: 409) and the printable report (the team)

@@ -1,5 +1,5 @@
 // Messages between the worker and a run's computation thread.
-import type { ComputedRun } from '../runs/compute';
+import type { ComputedRun, ForceInput } from '../runs/compute';
 import type { SessionSetup } from '../../processing/session-model';
 import type { RunOptions } from '../../processing/pipeline';
 import type { Recording } from '../../processing/recording';
@@ -10,6 +10,8 @@ export interface RunThreadInput {
 	setup: SessionSetup;
 	recording: Recording;
 	options: RunOptions;
+	/** The trial's force recording, paired with the angle recording; absent for a trial without one. */
+	force?: ForceInput | null;
 }
 
 export type RunThreadMessage =

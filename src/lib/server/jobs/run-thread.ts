@@ -7,8 +7,13 @@ import type { RunThreadInput, RunThreadMessage } from './run-thread-types';
 const port = parentPort!;
 const input = workerData as RunThreadInput;
 try {
-	const computed = computeRun(input.body, input.setup, input.recording, input.options, (fraction, stage) =>
-		port.postMessage({ type: 'progress', fraction, stage } satisfies RunThreadMessage)
+	const computed = computeRun(
+		input.body,
+		input.setup,
+		input.recording,
+		input.options,
+		(fraction, stage) => port.postMessage({ type: 'progress', fraction, stage } satisfies RunThreadMessage),
+		input.force
 	);
 	const transfer = computed.series.map((s) => s.data.buffer as ArrayBuffer).filter((b, i, all) => all.indexOf(b) === i);
 	port.postMessage({ type: 'done', computed } satisfies RunThreadMessage, transfer);

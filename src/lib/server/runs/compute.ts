@@ -2,11 +2,37 @@
 import os from 'node:os';
 import { decodeFloat64, encodeFloat64 } from './results-codec';
 import { buildSessionModel, type SessionModel, type SessionSetup } from '../../processing/session-model';
-import { NonFiniteResultError, runPipeline, type PipelineResult, type RunOptions } from '../../processing/pipeline';
-import type { Recording } from '../../processing/recording';
+import { groundCutoffHz, NonFiniteResultError, runPipeline, type PipelineResult, type RunOptions } from '../../processing/pipeline';
+import { plateSignalsOf, type Recording } from '../../processing/recording';
+import { DEFAULT_CONTACT_THRESHOLD_N, findContacts, forceCutoffHz, plateLoadsAtAngleRate, type ForcePlate } from '../../processing/forces';
+import { gaitCycles, gaitEvents, spatiotemporal, type PlateContact } from '../../processing/gait';
+import { storedGait, type StoredGait } from './gait-record';
 import type { ParticipantBody } from '../../anthropometry/scale';
 
-export type SeriesQuantity = 'time' | 'angle' | 'velocity' | 'acceleration' | 'moment' | 'moment_per_kg' | 'power' | 'reaction_force';
+export type SeriesQuantity =
+	| 'time'
+	| 'angle'
+	| 'velocity'
+	| 'acceleration'
+	| 'moment'
+	| 'moment_per_kg'
+	| 'power'
+	| 'reaction_force'
+	/** per plate (name = the plate's name), lab axes, 3 components: the GRF on the person (N), the CoP (m; NaN where unloaded), the free moment (N·m) */
+	| 'grf'
+	| 'cop'
+	| 'free_moment';
+
+/** A trial's force recording for a run: paired with the angle recording (force sample j·ratio falls on angle sample j). */
+export interface ForceInput {
+	fileName: string;
+	/** ratio · the angle rate (Hz) */
+	forceHz: number;
+	ratio: number;
+	/** the plates as set up in the lab when the run is computed (copied into the model record) */
+	plates: ForcePlate[];
+	recording: Recording;
+}
 
 export interface SeriesRow {
 	name: string;
@@ -24,6 +50,8 @@ export interface ComputedRun {
 	/** What the run used, stored with it: the scaled parameters, loads, set-up, gravity and the DOF sign rules. */
 	model: Record<string, unknown>;
 	timings: Record<string, number>;
+	/** Contacts, gait events, cycles and spatiotemporal table of a run with force data (run_gait), else null. */
+	gait?: StoredGait | null;
 }
 
 const UNITS = {
@@ -94,17 +122,79 @@ export function computeRun(
 	setup: SessionSetup,
 	recording: Recording,
 	options: RunOptions,
-	onProgress?: (fraction: number, stage: string) => void
+	onProgress?: (fraction: number, stage: string) => void,
+	force?: ForceInput | null
 ): ComputedRun {
 	const built = buildSessionModel(body, setup);
-	// the recording was parsed for this run alone: its arrays are filtered in place
-	const result = runPipeline(built, recording, options, onProgress, { reuseInput: true });
+	if (!force) {
+		// the recording was parsed for this run alone: its arrays are filtered in place
+		const result = runPipeline(built, recording, options, onProgress, { reuseInput: true });
+		return {
+			series: seriesRows(result, built),
+			summary: result.summary,
+			edgeZone: result.edgeZone,
+			model: modelRecord(built, options),
+			timings: result.timings,
+			gait: null
+		};
+	}
+	// forces: each plate's signals filtered and resampled to the angle rate (forces/resample.ts: zero-lag Butterworth at
+	// the run's force cutoff, anti-alias capped when the rate is higher), to lab axes, and its contacts
+	const t0 = performance.now();
+	const thresholdN = DEFAULT_CONTACT_THRESHOLD_N;
+	const angleHz = recording.sampleHz;
+	const frames = recording.time.length;
+	const runCutoff = groundCutoffHz(options);
+	const signals = plateSignalsOf(force.recording, force.plates);
+	const plates = force.plates.map((plate) => ({
+		plate,
+		loads: plateLoadsAtAngleRate(plate, signals.get(plate.name)!, {
+			forceHz: force.forceHz,
+			angleHz,
+			cutoffHz: runCutoff,
+			angleSamples: frames,
+			thresholdN
+		})
+	}));
+	const contacts = plates.flatMap(({ plate, loads }) => findContacts(plate, loads, { sampleHz: angleHz, thresholdN }));
+	const forceMs = performance.now() - t0;
+	const result = runPipeline(built, recording, options, onProgress, { reuseInput: true, ground: { plates, contacts } });
+	const t1 = performance.now();
+	const ground = result.ground!;
+	// gait events: plate events of the contacts used (end exclusive in gait.ts), kinematic events where a foot is off the plates
+	const time = result.time;
+	const used: PlateContact[] = ground.contacts
+		.filter((c) => c.used && c.foot)
+		.map((c) => ({ plate: c.plate, foot: c.foot!, start: c.start, end: c.end + 1 }));
+	const events = gaitEvents({ time, contacts: used, paths: result.feet });
+	const cycles = gaitCycles(events, time, { edgeZone: result.edgeZone });
+	const st = spatiotemporal(cycles, events, time, result.feet);
+	const series = seriesRows(result, built);
+	for (const p of ground.plates) {
+		series.push(
+			{ name: p.name, quantity: 'grf', unit: 'N', components: 3, data: encodeFloat64(p.grf) },
+			{ name: p.name, quantity: 'cop', unit: 'm', components: 3, data: encodeFloat64(p.cop) },
+			{ name: p.name, quantity: 'free_moment', unit: 'N·m', components: 3, data: encodeFloat64(p.freeMoment) }
+		);
+	}
+	const cutoffHz = forceCutoffHz(angleHz, force.ratio, runCutoff);
+	const forces = {
+		fileName: force.fileName,
+		sampleHz: force.forceHz,
+		angleHz,
+		ratio: force.ratio,
+		cutoffHz,
+		thresholdN,
+		bodyWeightN: Number.isFinite(ground.bodyWeightN) && ground.bodyWeightN > 0 ? ground.bodyWeightN : null
+	};
 	return {
-		series: seriesRows(result, built),
+		series,
 		summary: result.summary,
 		edgeZone: result.edgeZone,
-		model: modelRecord(built, options),
-		timings: result.timings
+		// the plates' geometry as used: the lab may edit or archive a plate later
+		model: { ...modelRecord(built, options), plates: force.plates, forces },
+		timings: { ...result.timings, forces: forceMs, gait: performance.now() - t1 },
+		gait: storedGait(forces, ground.contacts, time, events, cycles, st)
 	};
 }
 
@@ -132,6 +222,8 @@ export function assertStorable(computed: ComputedRun): void {
 	const timeRow = computed.series.find((s) => s.quantity === 'time');
 	const time = timeRow ? samplesOf(timeRow.data) : new Float64Array(0);
 	for (const s of computed.series) {
+		// a CoP is undefined (NaN) wherever its plate is unloaded, by design
+		if (s.quantity === 'cop') continue;
 		const x = s === timeRow ? time : samplesOf(s.data);
 		for (let i = 0; i < x.length; i++) {
 			const v = x[i];

@@ -3,19 +3,28 @@
 import { Worker } from 'node:worker_threads';
 import { fn, Op, type Transaction } from 'sequelize';
 import { db } from '../db/index';
-import { Run, RunSeries } from '../db/models';
+import { ForcePlate as PlateRecord, Run, RunSeries } from '../db/models';
 import { DomainError } from '../errors';
 import { record } from '../audit/record';
 import { requireValidConsent } from '../consent/check';
 import { participantBodyOf } from '../sessions/sessions';
 import { readRaw } from '../trials/raw-store';
 import { pendingRunJob } from '../jobs/queue';
-import { assertStorable, computeRun, type ComputedRun } from './compute';
+import { assertStorable, computeRun, type ComputedRun, type ForceInput } from './compute';
+import { writeGait } from './gait-results';
 import { claimRun, insertSeries, trialContextOfRun } from './queries';
 import type { RunThreadInput, RunThreadMessage } from '../jobs/run-thread-types';
 import { buildSessionModel, sessionSetupSchema, type SessionSetup } from '../../processing/session-model';
 import { storedRunOptions } from '../../processing/pipeline';
-import { parseRecording, columnMappingSchema, type Recording, type Problem } from '../../processing/recording';
+import {
+	parseRecording,
+	columnMappingSchema,
+	forceChannelsOf,
+	pairForceRecording,
+	type Recording,
+	type Problem
+} from '../../processing/recording';
+import { DEFAULT_CONTACT_THRESHOLD_N } from '../../processing/forces';
 import type { ParticipantBody } from '../../anthropometry/scale';
 
 /** A failure that another attempt would repeat (consent, an unreadable file, an impossible model): no retry. */
@@ -27,7 +36,7 @@ export class RunFailure extends Error {
 }
 
 /** Errors of the pipeline that the same input always repeats. */
-const DETERMINISTIC = ['SessionModelError', 'ScalingError', 'SignalError', 'PipelineError', 'ZodError'];
+const DETERMINISTIC = ['SessionModelError', 'ScalingError', 'SignalError', 'PipelineError', 'ZodError', 'ForceError', 'GaitError'];
 
 /** A refusal of a check the run depends on (consent) fails the run with its message; anything else is rethrown. */
 async function asRunFailure<T>(work: () => Promise<T>): Promise<T> {
@@ -73,6 +82,43 @@ export async function readRecording(
 	return parsed.recording;
 }
 
+/**
+ * Reads a trial's force file for a run: the plates it names as set up in the lab now (refused when one is no longer
+ * in use), parsed again from the stored bytes and paired with the angle recording. Null for a trial without one.
+ */
+export async function readForces(
+	trial: {
+		forceRawUploadId: string | null;
+		forceFileName: string | null;
+		forceSha256: string | null;
+		forcePlates: string[] | null;
+		forceMapping: unknown;
+		fileName: string;
+	},
+	angles: Recording
+): Promise<ForceInput | null> {
+	if (!trial.forceRawUploadId || !trial.forceFileName || !trial.forceSha256) return null;
+	const names = trial.forcePlates ?? [];
+	const rows = await PlateRecord.findAll({ where: { name: names, archivedAt: null } });
+	const missing = names.filter((n) => !rows.some((r) => r.name === n));
+	if (missing.length)
+		throw new RunFailure(
+			`The force file ${trial.forceFileName} names ${missing.length === 1 ? 'the plate' : 'the plates'} ${missing.join(', ')}, no longer set up in the lab (archived or renamed); set ${missing.length === 1 ? 'it' : 'them'} up again to run this trial.`
+		);
+	const plates = names.map((n) => rows.find((r) => r.name === n)!.plate);
+	const mapping = trial.forceMapping ? columnMappingSchema.parse(trial.forceMapping) : undefined;
+	const parsed = await parseRecording(readRaw(trial.forceRawUploadId, { expectSha256: trial.forceSha256 }), {
+		fileName: trial.forceFileName,
+		expected: forceChannelsOf(plates, { thresholdN: DEFAULT_CONTACT_THRESHOLD_N }),
+		mapping
+	});
+	if (!parsed.ok) throw new RunFailure(`The force recording could not be read: ${problemText(parsed.problems)}`);
+	const paired = pairForceRecording(angles, parsed.recording, { angle: trial.fileName, force: trial.forceFileName });
+	if (!paired.ok) throw new RunFailure(`The force recording cannot be used: ${problemText(paired.problems)}`);
+	const { pairing } = paired;
+	return { fileName: trial.forceFileName, forceHz: pairing.forceHz, ratio: pairing.ratio, plates, recording: pairing.force };
+}
+
 /** How the computation of a run is done: in a worker thread (the worker; keeps progress flowing) or inline (seed, tests). */
 export type ComputeMode = 'thread' | 'inline';
 
@@ -109,7 +155,7 @@ function computeInThread(input: RunThreadInput, onProgress: (fraction: number, s
 
 function computeInline(input: RunThreadInput, onProgress: (fraction: number, stage: string) => void): ComputedRun {
 	try {
-		return computeRun(input.body, input.setup, input.recording, input.options, onProgress);
+		return computeRun(input.body, input.setup, input.recording, input.options, onProgress, input.force);
 	} catch (err) {
 		if (DETERMINISTIC.includes((err as Error).name)) throw new RunFailure((err as Error).message);
 		throw err;
@@ -195,7 +241,9 @@ export async function processRun(
 		}
 		progress.update(0.01, 'reading the recording');
 		const recording = await readRecording(trial, built, options.fillGaps);
-		const input: RunThreadInput = { body, setup, recording, options };
+		if (trial.forceRawUploadId) progress.update(0.015, 'reading the force recording');
+		const force = await readForces(trial, recording);
+		const input: RunThreadInput = { body, setup, recording, options, force };
 		const onProgress = (f: number, stage: string) => progress.update(0.02 + 0.93 * f, stage);
 		const computed = (opts.mode ?? 'thread') === 'thread' ? await computeInThread(input, onProgress) : computeInline(input, onProgress);
 		await progress.settle();
@@ -267,6 +315,7 @@ export async function writeResults(runId: string, computed: ComputedRun, transac
 	}
 	await RunSeries.destroy({ where: { runId }, transaction });
 	await insertSeries(runId, computed.series, transaction);
+	await writeGait(runId, computed.gait ?? null, transaction);
 	await Run.update(
 		{
 			state: 'done',

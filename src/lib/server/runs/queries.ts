@@ -56,10 +56,17 @@ export interface TrialContext {
 	sessionState: string;
 	sampleHz: number;
 	channels: string[];
+	/** The trial's force file (migration 0011), all null without one. */
+	forceRawUploadId: string | null;
+	forceFileName: string | null;
+	forceSha256: string | null;
+	forcePlates: string[] | null;
+	forceMapping: unknown;
 }
 
 const TRIAL_CONTEXT = `SELECT t.id AS "trialId", s.id AS "sessionId", s.study_id AS "studyId", s.participant_id AS "participantId", p.code AS "participantCode",
-	t.raw_upload_id AS "rawUploadId", t.file_name AS "fileName", t.sha256, t.mapping, s.setup, s.state AS "sessionState", t.sample_hz AS "sampleHz", t.channels
+	t.raw_upload_id AS "rawUploadId", t.file_name AS "fileName", t.sha256, t.mapping, s.setup, s.state AS "sessionState", t.sample_hz AS "sampleHz", t.channels,
+	t.force_raw_upload_id AS "forceRawUploadId", t.force_file_name AS "forceFileName", t.force_sha256 AS "forceSha256", t.force_plates AS "forcePlates", t.force_mapping AS "forceMapping"
 	FROM trials t JOIN sessions s ON s.id = t.session_id JOIN participants p ON p.id = s.participant_id`;
 
 /** The trial's context when it belongs to the study, else null. */
