@@ -10,15 +10,7 @@ import { DomainError } from '../errors';
 import { runIn } from './runs';
 import { component, decodeFloat64 } from './results-codec';
 import type { StoredForces, StoredGait } from './gait-record';
-import type {
-	ContactView,
-	FootSpatiotemporalView,
-	GaitAnswer,
-	GaitCycleView,
-	GaitEventView,
-	GaitPlateView,
-	StatView
-} from '../../types/gait';
+import type { ContactView, GaitAnswer, GaitCycleView, GaitEventView, GaitPlateView } from '../../types/gait';
 
 /** Inside the results' transaction: replaces the run's gait row (a second attempt overwrites the first's). */
 export async function writeGait(runId: string, gait: StoredGait | null, transaction: Transaction): Promise<void> {
