@@ -4,7 +4,17 @@
 // Rules: docs/processing.md ("Ground reaction forces in the moments").
 import { compileModel, createWorkspace, type Model } from '../dynamics/index';
 import { placeBodies } from '../dynamics/kinematics';
-import { ForceError, plateContains, type Contact, type ForcePlate } from './forces/index';
+import {
+	ForceError,
+	findContacts,
+	plateContains,
+	plateLoadsAtAngleRate,
+	type Contact,
+	type ContactOptions,
+	type ForcePlate,
+	type LabLoads,
+	type PlateSignals
+} from './forces/index';
 import type { Foot, FootPath, GaitPaths } from './gait';
 import type { SessionModel } from './session-model';
 
@@ -182,4 +192,30 @@ export function assignContacts(
 		}
 		return { ...c, id: ids[i], foot, shared, assignedBy, overShare, bothShare };
 	});
+}
+
+/**
+ * From the plates' measured signals (plate axes, at forceHz) to a run's ground data at the angle rate: each plate's
+ * signals filtered at cutoffHz (the run's groundCutoffHz; capped against aliasing when forceHz > angleHz) and resampled
+ * (plateLoadsAtAngleRate), turned into loads on the person (plateToLab), and its contacts found (findContacts). The feet
+ * are assigned by runPipeline from the filtered kinematics.
+ */
+export function groundFromSignals(
+	plates: readonly { plate: ForcePlate; signals: PlateSignals }[],
+	opts: { forceHz: number; angleHz: number; frames: number; cutoffHz: number | null; thresholdN?: number } & Omit<ContactOptions, 'sampleHz' | 'thresholdN'>
+): { plates: { plate: ForcePlate; loads: LabLoads }[]; contacts: Contact[] } {
+	const out = plates.map(({ plate, signals }) => ({
+		plate,
+		loads: plateLoadsAtAngleRate(plate, signals, {
+			forceHz: opts.forceHz,
+			angleHz: opts.angleHz,
+			cutoffHz: opts.cutoffHz,
+			angleSamples: opts.frames,
+			thresholdN: opts.thresholdN
+		})
+	}));
+	const contacts = out.flatMap(({ plate, loads }) =>
+		findContacts(plate, loads, { sampleHz: opts.angleHz, thresholdN: opts.thresholdN, minDurationS: opts.minDurationS, marginM: opts.marginM })
+	);
+	return { plates: out, contacts };
 }

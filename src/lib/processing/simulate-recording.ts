@@ -1,5 +1,5 @@
 // Recordings with known joint moments: forward simulation of a session model under smooth tracking torques, written in our file layout.
-import { compileModel, createWorkspace, inverseDynamics, simulate, type Model } from '../dynamics/index';
+import { compileModel, createWorkspace, inverseDynamics, simulate, type ExternalLoad, type Mat3, type Model, type Vec3 } from '../dynamics/index';
 import type { ParticipantBody } from '../anthropometry/scale';
 import { buildSessionModel, type SessionModel, type SessionSetupInput } from './session-model';
 
@@ -45,6 +45,19 @@ export interface RecordingSpec {
 	damping?: number;
 	/** RK4 step, s; default 0.5 ms. */
 	step?: number;
+	/**
+	 * Known external loads (e.g. a ground reaction force): on the named engine body, a force and a free torque in lab
+	 * axes through a LAB point (the body's particle there, as a centre of pressure), as functions of time; null when none.
+	 * They act in the forward simulation, and the tracking law's joint forces (the known moments) include them.
+	 */
+	externalLoads?: { body: string; at: (t: number) => { force: Vec3; point: Vec3; torque?: Vec3 } | null }[];
+	/**
+	 * Mass, centre of mass and inertia given to named bodies for the simulation only: prescribed coordinates can be
+	 * redundant for a massless body (a pelvis turning about the line through both hips moves nothing the hip flexions do
+	 * not), which leaves M(q) singular. A body's own mass changes no joint force of the bodies beyond it; the joint forces
+	 * of its own and earlier coordinates (prescribed, not reported) then include it.
+	 */
+	simulationMasses?: Record<string, { mass: number; com: Vec3; inertia: Mat3 }>;
 }
 
 export interface SimulatedRecording {
@@ -69,7 +82,13 @@ export interface SimulatedRecording {
  */
 export function simulateRecording(spec: RecordingSpec): SimulatedRecording {
 	const built = buildSessionModel(spec.body, spec.setup);
-	const model = compileModel(built.model);
+	const masses = spec.simulationMasses ?? {};
+	for (const name of Object.keys(masses))
+		if (!built.model.bodies.some((b) => b.name === name)) throw new Error(`simulation mass for "${name}", which is not a body of the model`);
+	const model = compileModel({
+		...built.model,
+		bodies: built.model.bodies.map((b) => (masses[b.name] ? { ...b, ...masses[b.name] } : b))
+	});
 	const n = model.n;
 	const gravity = built.setup.gravity;
 	const targets: (Waypoints | TargetPath)[] = built.dofs.map((d) => spec.targets[d.name] ?? [{ t: 0, value: 0 }]);
@@ -82,18 +101,38 @@ export function simulateRecording(spec: RecordingSpec): SimulatedRecording {
 		Kd = 2 * zeta * wn;
 	const ws = createWorkspace(model);
 	const a = new Float64Array(n);
+	// one load per entry, refilled at each time the law is asked for (simulate calls the law, then forward dynamics with
+	// these same load objects, at the same time and state)
+	const extra = (spec.externalLoads ?? []).map((e) => {
+		const body = built.model.bodies.findIndex((b) => b.name === e.body);
+		if (body < 0) throw new Error(`external load on "${e.body}", which is not a body of the model`);
+		const load: ExternalLoad = { body, point: [0, 0, 0], force: [0, 0, 0], torque: [0, 0, 0], frame: 'world', pointFrame: 'world' };
+		return { load, at: e.at };
+	});
+	const loads = extra.map((e) => e.load);
+	const setLoads = (t: number) => {
+		for (const { load, at } of extra) {
+			const v = at(t);
+			for (let c = 0; c < 3; c++) {
+				load.force[c] = v ? v.force[c] : 0;
+				load.torque![c] = v?.torque ? v.torque[c] : 0;
+				load.point[c] = v ? v.point[c] : 0;
+			}
+		}
+	};
 	const law = (t: number, q: ArrayLike<number>, qd: ArrayLike<number>, out: Float64Array) => {
 		for (let i = 0; i < n; i++) {
 			const [r, rd, rdd] = targetAt(targets[i], t);
 			a[i] = rdd + Kp * (r - q[i]) + Kd * (rd - qd[i]);
 		}
-		out.set(inverseDynamics(model, q, qd, a, { gravity }, ws).Q);
+		setLoads(t);
+		out.set(inverseDynamics(model, q, qd, a, { gravity, loads }, ws).Q);
 	};
 	const frames = Math.round(spec.duration * spec.sampleHz) + 1;
 	const times = Float64Array.from({ length: frames }, (_, k) => k / spec.sampleHz);
 	const q0 = targets.map((w) => targetAt(w, 0)[0]);
 	const qd0 = targets.map((w) => targetAt(w, 0)[1]);
-	const sim = simulate(model, { q0, qd0, times, torque: law, method: 'rk4', step: spec.step ?? 5e-4, gravity });
+	const sim = simulate(model, { q0, qd0, times, torque: law, method: 'rk4', step: spec.step ?? 5e-4, gravity, loads });
 	const Q = new Float64Array(frames * n);
 	const Qk = new Float64Array(n);
 	for (let k = 0; k < frames; k++) {
@@ -105,7 +144,7 @@ export function simulateRecording(spec: RecordingSpec): SimulatedRecording {
 
 const DEG = 180 / Math.PI;
 
-/** The simulated angles as a recording file in our layout: `time (s)`, then `<dof> (deg)` or `<limb>.base.p* (m)`. */
+/** The simulated angles as a recording file in our layout: `time (s)`, then `<dof> (deg)` or `<limb>.base.p*` / `pelvis.p*` (m). */
 export function recordingCsv(sim: SimulatedRecording, decimals = 6): string {
 	const { built, time, q } = sim;
 	const n = built.dofs.length;
