@@ -27,36 +27,34 @@ export function addCross3(s: number, a: F, ao: number, b: F, bo: number, out: F,
 	out[oo + 2] += s * (ax * by - ay * bx);
 }
 
+/**
+ * out = A·v for the 3×3 A whose entry (r, c) is M[mo + r·rs + c·cs], v and out read and written with strides vs and os:
+ * M itself with (rs, cs) = (3, 1), Mᵀ with (1, 3), and a column of a matrix with stride 3.
+ */
+function mulStrided(M: F, mo: number, rs: number, cs: number, v: F, vo: number, vs: number, out: F, oo: number, os: number): void {
+	const x = v[vo],
+		y = v[vo + vs],
+		z = v[vo + 2 * vs];
+	const m1 = mo + rs,
+		m2 = mo + 2 * rs;
+	out[oo] = M[mo] * x + M[mo + cs] * y + M[mo + 2 * cs] * z;
+	out[oo + os] = M[m1] * x + M[m1 + cs] * y + M[m1 + 2 * cs] * z;
+	out[oo + 2 * os] = M[m2] * x + M[m2 + cs] * y + M[m2 + 2 * cs] * z;
+}
+
 /** out = M·v */
 export function mul3(M: F, mo: number, v: F, vo: number, out: F, oo: number): void {
-	const x = v[vo],
-		y = v[vo + 1],
-		z = v[vo + 2];
-	out[oo] = M[mo] * x + M[mo + 1] * y + M[mo + 2] * z;
-	out[oo + 1] = M[mo + 3] * x + M[mo + 4] * y + M[mo + 5] * z;
-	out[oo + 2] = M[mo + 6] * x + M[mo + 7] * y + M[mo + 8] * z;
+	mulStrided(M, mo, 3, 1, v, vo, 1, out, oo, 1);
 }
 
 /** out = Mᵀ·v */
 export function mulT3(M: F, mo: number, v: F, vo: number, out: F, oo: number): void {
-	const x = v[vo],
-		y = v[vo + 1],
-		z = v[vo + 2];
-	out[oo] = M[mo] * x + M[mo + 3] * y + M[mo + 6] * z;
-	out[oo + 1] = M[mo + 1] * x + M[mo + 4] * y + M[mo + 7] * z;
-	out[oo + 2] = M[mo + 2] * x + M[mo + 5] * y + M[mo + 8] * z;
+	mulStrided(M, mo, 1, 3, v, vo, 1, out, oo, 1);
 }
 
 /** out = A·B (3×3), a column at a time; `out` may be B but not A. */
 export function matMul3(A: F, ao: number, B: F, bo: number, out: F, oo: number): void {
-	for (let c = 0; c < 3; c++) {
-		const x = B[bo + c],
-			y = B[bo + 3 + c],
-			z = B[bo + 6 + c];
-		out[oo + c] = A[ao] * x + A[ao + 1] * y + A[ao + 2] * z;
-		out[oo + 3 + c] = A[ao + 3] * x + A[ao + 4] * y + A[ao + 5] * z;
-		out[oo + 6 + c] = A[ao + 6] * x + A[ao + 7] * y + A[ao + 8] * z;
-	}
+	for (let c = 0; c < 3; c++) mulStrided(A, ao, 3, 1, B, bo + c, 3, out, oo + c, 3);
 }
 
 /**
@@ -81,19 +79,12 @@ export function axisRotation(u: F, uo: number, c: number, s: number, out: F, oo:
 
 /**
  * out = a + α × r + ω × (ω × r): the acceleration of the point r of a rigid body whose reference point moves with
- * acceleration a while the body turns at ω with angular acceleration α (a, α, ω at offset `o` of their arrays).
+ * acceleration a while the body turns at ω with angular acceleration α (a, α, ω at offset `o` of their arrays); the last
+ * term as (ω·r) ω − (ω·ω) r. `out` must not be one of the inputs.
  */
 export function pointAcceleration(a: F, al: F, w: F, o: number, r: F, ro: number, out: F, oo: number): void {
-	const wx = w[o],
-		wy = w[o + 1],
-		wz = w[o + 2],
-		rx = r[ro],
-		ry = r[ro + 1],
-		rz = r[ro + 2];
-	const ux = wy * rz - wz * ry,
-		uy = wz * rx - wx * rz,
-		uz = wx * ry - wy * rx;
-	out[oo] = a[o] + (al[o + 1] * rz - al[o + 2] * ry) + (wy * uz - wz * uy);
-	out[oo + 1] = a[o + 1] + (al[o + 2] * rx - al[o] * rz) + (wz * ux - wx * uz);
-	out[oo + 2] = a[o + 2] + (al[o] * ry - al[o + 1] * rx) + (wx * uy - wy * ux);
+	const wr = dot3(w, o, r, ro),
+		ww = dot3(w, o, w, o);
+	for (let k = 0; k < 3; k++) out[oo + k] = a[o + k] + wr * w[o + k] - ww * r[ro + k];
+	addCross3(1, al, o, r, ro, out, oo);
 }
