@@ -1,6 +1,6 @@
 // The two joint kinds: each supplies its transform (rotation body → parent, origin in the parent) and how its rate moves the body.
 import { PRISMATIC, type Model } from './model';
-import { addCross3, addScaled3, axisRotation, matMul3, mul3, mulT3 } from './vec';
+import { addCross3, addScaled3, axisRotation, matMul3, mul3, mulT3, pointAcceleration } from './vec';
 import type { Workspace } from './workspace';
 
 /**
@@ -70,4 +70,31 @@ export function addJointRate(m: Model, ws: Workspace, i: number, qd: number, qdd
 		addScaled3(qdd, m.axis, i3, ws.al, i3);
 		addScaled3(qd, m.axis, i3, ws.w, i3);
 	}
+}
+
+/**
+ * Body i's motion from that of its parent (slot p; the ground's slot n for a root), in body axes: Eᵀω_p, Eᵀω̇_p and
+ * Eᵀ(acceleration of the joint point), then the joint's own rate.
+ */
+export function propagateMotion(m: Model, ws: Workspace, i: number, p: number, qd: number, qdd: number): void {
+	const { w, al, acc, tmp } = ws;
+	const i3 = 3 * i,
+		p3 = 3 * p;
+	pointAcceleration(acc, al, w, p3, ws.rp, i3, tmp, 0);
+	toBody(ws, i, tmp, 0, acc, i3);
+	toBody(ws, i, w, p3, w, i3);
+	toBody(ws, i, al, p3, al, i3);
+	addJointRate(m, ws, i, qd, qdd);
+}
+
+/** Adds body i's joint load (ws.f / ws.t) to its parent p's, turned into the parent's axes and moved to the parent's origin. */
+export function addToParent(ws: Workspace, i: number, p: number): void {
+	const { f, t, tmp } = ws;
+	const i3 = 3 * i,
+		p3 = 3 * p;
+	toParent(ws, i, f, i3, tmp, 0);
+	toParent(ws, i, t, i3, tmp, 3);
+	addScaled3(1, tmp, 0, f, p3);
+	addScaled3(1, tmp, 3, t, p3);
+	addCross3(1, ws.rp, i3, tmp, 0, t, p3);
 }

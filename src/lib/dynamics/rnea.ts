@@ -1,18 +1,19 @@
 // Inverse dynamics by the recursive Newton–Euler method (Luh, Walker & Paul 1980), in body-fixed frames. rneaFrame is the
 // readable form; the public functions below (and bias) run the tuned copy in rnea-fast.ts, which a test holds to this one.
 import { PRISMATIC, STANDARD_GRAVITY, type Model, type Vec3 } from './model';
-import { addJointRate, jointTransform, toBody, toParent, worldRotations } from './joints';
+import { addToParent, jointTransform, propagateMotion, worldRotations } from './joints';
 import { reduceLoads } from './loads';
 import { rneaFrameFast } from './rnea-fast';
 import { addCross3, addScaled3, dot3, mul3, pointAcceleration } from './vec';
 import { createWorkspace, type ExternalLoad, type Workspace } from './workspace';
 
 /**
- * One frame of recursive Newton–Euler. Reads q, q̇, q̈ at offset `o`, writes Q at `Q[qo…qo+n)`, and leaves
- * each joint's reaction (parent on body, at the joint point, body axes) in ws.f / ws.t.
- * Gravity enters as an upward acceleration of the ground, so the reactions include it.
+ * One frame of recursive Newton–Euler, the signature both passes share. Reads q, q̇, q̈ at offset `o` (null q̇ or q̈ for
+ * zero), writes Q at `Q[qo…qo+n)`, and leaves each joint's reaction (parent on body, at the joint point, body axes) in
+ * ws.f / ws.t. Gravity enters as an upward acceleration of the ground, so the reactions include it. `fullTransforms`
+ * (tuned passes only) also fills ws.E of the joints they turn by cos q and sin q, for world rotations afterwards.
  */
-export function rneaFrame(
+export type NewtonEulerFrame = (
 	m: Model,
 	ws: Workspace,
 	q: ArrayLike<number>,
@@ -22,8 +23,12 @@ export function rneaFrame(
 	gravity: Vec3,
 	loads: readonly ExternalLoad[] | null,
 	Q: Float64Array,
-	qo: number
-): void {
+	qo: number,
+	fullTransforms?: boolean
+) => void;
+
+/** The readable passes. */
+export const rneaFrame: NewtonEulerFrame = (m, ws, q, qd, qdd, o, gravity, loads, Q, qo) => {
 	const { n, parent, kind, axis } = m;
 	const { f, t } = ws;
 	// slot n is the ground, parent of the roots: ω = α = 0 (never written), a = −g
@@ -49,24 +54,9 @@ export function rneaFrame(
 	for (let i = n - 1; i >= 0; i--) {
 		bodyWrench(m, ws, i);
 		Q[qo + i] = dot3(axis, 3 * i, kind[i] === PRISMATIC ? f : t, 3 * i); // onto the joint's axis
-		if (parent[i] >= 0) addToParent(m, ws, i, parent[i]);
+		if (parent[i] >= 0) addToParent(ws, i, parent[i]);
 	}
-}
-
-/**
- * Body i's motion from that of its parent (slot p), in body axes: Eᵀω_p, Eᵀα_p and Eᵀ(acceleration of the
- * joint point), then the joint's own rate.
- */
-function propagateMotion(m: Model, ws: Workspace, i: number, p: number, qd: number, qdd: number): void {
-	const { w, al, acc, tmp } = ws;
-	const i3 = 3 * i,
-		p3 = 3 * p;
-	pointAcceleration(acc, al, w, p3, ws.rp, i3, tmp, 0);
-	toBody(ws, i, tmp, 0, acc, i3);
-	toBody(ws, i, w, p3, w, i3);
-	toBody(ws, i, al, p3, al, i3);
-	addJointRate(m, ws, i, qd, qdd);
-}
+};
 
 /**
  * Adds body i's own load to ws.f / ws.t, which hold what its children need: about the joint point,
@@ -89,18 +79,6 @@ function bodyWrench(m: Model, ws: Workspace, i: number): void {
 	}
 	addScaled3(-1, ws.loadF, i3, f, i3);
 	addScaled3(-1, ws.loadT, i3, t, i3);
-}
-
-/** Adds body i's joint load to its parent p's, turned into the parent's axes and moved to the parent's origin. */
-function addToParent(m: Model, ws: Workspace, i: number, p: number): void {
-	const { f, t, tmp } = ws;
-	const i3 = 3 * i,
-		p3 = 3 * p;
-	toParent(ws, i, f, i3, tmp, 0);
-	toParent(ws, i, t, i3, tmp, 3);
-	addScaled3(1, tmp, 0, f, p3);
-	addScaled3(1, tmp, 3, t, p3);
-	addCross3(1, ws.rp, i3, tmp, 0, t, p3);
 }
 
 export interface DynamicsOptions {

@@ -33,10 +33,7 @@ export interface Workspace {
 	readonly w: Float64Array;
 	readonly al: Float64Array;
 	readonly acc: Float64Array;
-	/** Sums of the children's joint loads, in the parent's frame (rnea-fast.ts; zero between frames). */
-	readonly fa: Float64Array;
-	readonly na: Float64Array;
-	/** Joint reaction force and torque on each body at its joint point, body frame. */
+	/** Joint reaction force and torque on each body at its joint point, body frame (its children's sums during the inward pass). */
 	readonly f: Float64Array;
 	readonly t: Float64Array;
 	/** A few 3-vectors of scratch for the Newton–Euler passes. */
@@ -72,8 +69,6 @@ export function createWorkspace(model: Model): Workspace {
 		w: new Float64Array(3 * n + 3),
 		al: new Float64Array(3 * n + 3),
 		acc: new Float64Array(3 * n + 3),
-		fa: v3(),
-		na: v3(),
 		f: v3(),
 		t: v3(),
 		tmp: new Float64Array(12),
