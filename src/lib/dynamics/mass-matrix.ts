@@ -3,6 +3,7 @@ import { PRISMATIC, STANDARD_GRAVITY, type Model } from './model';
 import { placeBodies } from './kinematics';
 import type { DynamicsOptions } from './rnea';
 import { rneaFrameFast } from './rnea-fast';
+import { addCross3, addScaled3, mul3 } from './vec';
 import { createWorkspace, type Workspace } from './workspace';
 
 /**
@@ -14,52 +15,27 @@ export function massMatrixInto(m: Model, q: ArrayLike<number>, M: Float64Array, 
 	const { n, parent, kind, axis, mass, com, inertia } = m;
 	placeBodies(m, ws, q, o);
 	const { Rw, pw, cm, ch, cI, S } = ws;
+	const c = ws.scratchCom; // centres of mass in ground coordinates
 	for (let i = 0; i < n; i++) {
 		const i3 = 3 * i,
 			i9 = 9 * i,
 			i6 = 6 * i;
-		const r0 = Rw[i9],
-			r1 = Rw[i9 + 1],
-			r2 = Rw[i9 + 2],
-			r3 = Rw[i9 + 3],
-			r4 = Rw[i9 + 4],
-			r5 = Rw[i9 + 5],
-			r6 = Rw[i9 + 6],
-			r7 = Rw[i9 + 7],
-			r8 = Rw[i9 + 8];
-		// joint axis in ground axes; spatial axis [z; p × z] (revolute) or [0; z] (prismatic)
-		const sx = axis[i3],
-			sy = axis[i3 + 1],
-			sz = axis[i3 + 2];
-		const zx = r0 * sx + r1 * sy + r2 * sz,
-			zy = r3 * sx + r4 * sy + r5 * sz,
-			zz = r6 * sx + r7 * sy + r8 * sz;
+		// joint axis z in ground axes; spatial axis [z; p × z] (revolute) or [0; z] (prismatic)
 		if (kind[i] === PRISMATIC) {
-			S[i6] = 0;
-			S[i6 + 1] = 0;
-			S[i6 + 2] = 0;
-			S[i6 + 3] = zx;
-			S[i6 + 4] = zy;
-			S[i6 + 5] = zz;
+			S[i6] = S[i6 + 1] = S[i6 + 2] = 0;
+			mul3(Rw, i9, axis, i3, S, i6 + 3);
 		} else {
-			const px = pw[i3],
-				py = pw[i3 + 1],
-				pz = pw[i3 + 2];
-			S[i6] = zx;
-			S[i6 + 1] = zy;
-			S[i6 + 2] = zz;
-			S[i6 + 3] = py * zz - pz * zy;
-			S[i6 + 4] = pz * zx - px * zz;
-			S[i6 + 5] = px * zy - py * zx;
+			mul3(Rw, i9, axis, i3, S, i6);
+			S[i6 + 3] = S[i6 + 4] = S[i6 + 5] = 0;
+			addCross3(1, pw, i3, S, i6, S, i6 + 3);
 		}
 		// this body's own spatial inertia about the ground origin
 		const mi = mass[i];
-		const bx = com[i3],
-			by = com[i3 + 1],
-			bz = com[i3 + 2];
-		const cx = pw[i3] + r0 * bx + r1 * by + r2 * bz;
-		const cy = pw[i3 + 1] + r3 * bx + r4 * by + r5 * bz;
-		const cz = pw[i3 + 2] + r6 * bx + r7 * by + r8 * bz;
+		mul3(Rw, i9, com, i3, c, i3);
+		addScaled3(1, pw, i3, c, i3);
+		const cx = c[i3],
+			cy = c[i3 + 1],
+			cz = c[i3 + 2];
 		cm[i] = mi;
 		ch[i3] = mi * cx;
 		ch[i3 + 1] = mi * cy;
