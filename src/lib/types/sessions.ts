@@ -48,6 +48,8 @@ export interface SessionFormChoices {
 	baseChoices: readonly string[];
 	loadSegments: readonly string[];
 	loadRows: number;
+	/** The gait set-up (both legs on one moving pelvis): its columns, the default hip width's rule, the accepted range (mm). */
+	pelvis: { columns: readonly string[]; hipWidthSource: string; hipWidthMm: { min: number; max: number } };
 }
 
 /** The session form's fields as the page shows them again (limbs is the one list). */

@@ -23,7 +23,15 @@ import type {
 } from '../../types/sessions';
 import { LIMBS, type ParticipantBody } from '../../anthropometry/scale';
 import { SEGMENT_TABLES, SEGMENT_TABLE_IDS, type SegmentTableId } from '../../anthropometry/tables';
-import { buildSessionModel, LOAD_SEGMENTS, sessionSetupSchema, type SessionSetup } from '../../processing/session-model';
+import {
+	BASE_DOFS,
+	buildSessionModel,
+	HIP_WIDTH_RANGE_M,
+	LOAD_SEGMENTS,
+	PELVIS_HIP_WIDTH_SOURCE,
+	sessionSetupSchema,
+	type SessionSetup
+} from '../../processing/session-model';
 
 /** States in which the session's record and trials may still change (approved sessions are locked). */
 export const EDITABLE_STATES: readonly SessionState[] = ['draft', 'returned'];
@@ -92,8 +100,20 @@ export function parseSessionForm(form: FormData): { meta: SessionMeta; setup: Se
 	const unknownLimb = limbs.find((l) => !(LIMBS as readonly string[]).includes(l));
 	if (unknownLimb) errors.limbs = `Unknown limb "${unknownLimb}": choose from the list.`;
 
+	// gait: both legs on one moving pelvis (setupKind=pelvis); per-limb bases are then not read
+	const gait = str(form, 'setupKind') === 'pelvis';
+	let pelvis: Record<string, number> | undefined;
+	if (gait) {
+		const mmText = str(form, 'hipWidthMm').replace(',', '.');
+		const mm = Number(mmText);
+		if (!mmText) pelvis = {};
+		else if (!Number.isFinite(mm))
+			errors.hipWidthMm = 'Enter the distance between the hip joint centres in mm (e.g. 180), or leave it empty.';
+		else pelvis = { hipWidthM: mm / 1000 };
+	}
+
 	const bases: Record<string, unknown> = {};
-	for (const limb of limbs) {
+	for (const limb of gait ? [] : limbs) {
 		const choice = str(form, `base.${limb}`) || 'upright';
 		if (!(BASE_CHOICES as readonly string[]).includes(choice)) {
 			errors[`base.${limb}`] = 'Choose how the base of this limb is held.';
@@ -142,7 +162,7 @@ export function parseSessionForm(form: FormData): { meta: SessionMeta; setup: Se
 		loadRow.push(i);
 	}
 
-	const raw = { table: str(form, 'table'), limbs, bases, loads };
+	const raw = { table: str(form, 'table'), limbs, bases, loads, ...(pelvis ? { pelvis } : {}) };
 	const s = sessionSetupSchema.safeParse(raw);
 	if (!s.success) {
 		for (const i of s.error.issues) {
@@ -150,6 +170,11 @@ export function parseSessionForm(form: FormData): { meta: SessionMeta; setup: Se
 			let key = String(head ?? 'form');
 			if (head === 'bases' && a !== undefined) key = b === 'cardanXYZDeg' || b === 'rotationMatrix' ? `cardan.${a}` : `base.${a}`;
 			if (head === 'loads' && typeof a === 'number') key = `load.${loadRow[a]}.${b === 'pointM' ? 'point' : String(b ?? 'massKg')}`;
+			if (head === 'pelvis') {
+				// the form takes millimetres
+				errors.hipWidthMm ??= `Enter the distance between the hip joint centres from ${HIP_WIDTH_RANGE_M.min * 1000} to ${HIP_WIDTH_RANGE_M.max * 1000} mm, or leave it empty for the default.`;
+				continue;
+			}
 			// sentence case, except a message that opens with a name such as right.leg
 			const msg = /^[a-z]+ /.test(i.message) ? i.message.charAt(0).toUpperCase() + i.message.slice(1) : i.message;
 			errors[key] ??= msg.endsWith('.') ? msg : `${msg}.`;
@@ -170,6 +195,10 @@ export function formValuesOf(meta: Partial<SessionMeta>, setup: SessionSetup | n
 	if (!setup) return v;
 	v.table = setup.table;
 	v.limbs = [...setup.limbs];
+	if (setup.pelvis) {
+		v.setupKind = 'pelvis';
+		if (setup.pelvis.hipWidthM !== undefined) v.hipWidthMm = String(Number((setup.pelvis.hipWidthM * 1000).toFixed(3)));
+	}
 	for (const limb of setup.limbs) {
 		const b = setup.bases[limb];
 		v[`base.${limb}`] = !b ? 'upright' : b.kind === 'moving' ? 'moving' : b.orientation;
@@ -204,7 +233,12 @@ export function formChoices(): SessionFormChoices {
 		tables: SEGMENT_TABLE_IDS.map((id) => ({ id, title: SEGMENT_TABLES[id].title })),
 		baseChoices: BASE_CHOICES as readonly string[],
 		loadSegments: LOAD_SEGMENTS as readonly string[],
-		loadRows: LOAD_ROWS
+		loadRows: LOAD_ROWS,
+		pelvis: {
+			columns: BASE_DOFS.map((d) => `pelvis.${d}`),
+			hipWidthSource: PELVIS_HIP_WIDTH_SOURCE,
+			hipWidthMm: { min: HIP_WIDTH_RANGE_M.min * 1000, max: HIP_WIDTH_RANGE_M.max * 1000 }
+		}
 	};
 }
 
