@@ -52,9 +52,10 @@ export const SPATIOTEMPORAL_ROWS = [
 /** How step and stride lengths were measured, in words. */
 export function lengthBasisWords(basis: SpatiotemporalTable['lengthBasis']): string {
 	if (basis === 'heel')
-		return 'Step and stride lengths: the distance along the direction of travel between the ankle joint centres at the foot strikes.';
-	if (basis === 'pelvis') return 'Step and stride lengths: how far the pelvis travelled between the foot strikes.';
-	return 'Step and stride lengths are not given: the pelvis did not progress, so no length could be measured.';
+		return 'Length basis: step and stride lengths are the distances between the ankle joint centres at the foot strikes, along the pelvis’s mean direction of travel.';
+	if (basis === 'pelvis')
+		return 'Length basis: step and stride lengths are how far the pelvis travelled along its mean direction of travel between the foot strikes.';
+	return 'Length basis: none — step and stride lengths and speed are not given, because the run has no pelvis path or the pelvis did not progress.';
 }
 
 export type GrfUnit = 'N' | 'bw';

@@ -1,16 +1,54 @@
-// One run's results: moment curves, summary per DOF and what produced them (options, model, raw file hash, software version).
+// One run's results: moment curves, summary per DOF and what produced them (options, model, raw file hash, software
+// version); for a done run with force data its ground reaction forces, CoP, contacts and gait results (GaitAnswer).
 import { redirect } from '@sveltejs/kit';
-import { callerOf, edge } from '$lib/server/http/edge';
-import { loadRunPage, retryRun } from '$lib/server/runs/runs';
+import { contactFeetFromForm } from '$lib/components/gait/gait-plot';
+import { FormProblem } from '$lib/server/errors';
+import { callerOf, edge, formEdge, formValues } from '$lib/server/http/edge';
+import { loadGait } from '$lib/server/runs/gait-results';
+import { loadRunPage, readRun, retryRun, startRun } from '$lib/server/runs/runs';
 import type { Actions, PageServerLoad } from './$types';
 
 export const load: PageServerLoad = (event) =>
-	edge(event, async () => ({
-		...(await loadRunPage(...callerOf(event), { studyId: event.params.id, runId: event.params.rid, query: event.url.searchParams })),
-		perKg: event.url.searchParams.get('perKg') === '1'
-	}));
+	edge(event, async () => {
+		const ref = { studyId: event.params.id, runId: event.params.rid };
+		const page = await loadRunPage(...callerOf(event), { ...ref, query: event.url.searchParams });
+		return {
+			...page,
+			perKg: event.url.searchParams.get('perKg') === '1',
+			gait: page.run.state === 'done' ? await loadGait(...callerOf(event), ref) : null
+		};
+	});
 
 export const actions: Actions = {
+	/**
+	 * "Re-run with these feet": a new run of the trial with this run's options plus contactFeet (the contacts' foot
+	 * choices, foot.<plate>#<k> = auto | left | right | none) and useFlaggedContacts; then to the new run's page.
+	 */
+	rerunFeet: async (event) => {
+		const form = await event.request.formData();
+		return formEdge(
+			event,
+			async () => {
+				const ref = { studyId: event.params.id, runId: event.params.rid };
+				const run = await readRun(...callerOf(event), ref);
+				const gait = run.state === 'done' ? await loadGait(...callerOf(event), ref) : null;
+				if (!gait?.gait) throw new FormProblem({ form: `Run ${run.number} has no foot contacts to re-run with.` });
+				const feet = contactFeetFromForm(
+					form.entries(),
+					gait.contacts.map((c) => c.id)
+				);
+				if (!feet.ok) throw new FormProblem({ form: feet.problem });
+				const options = {
+					...run.options,
+					contactFeet: feet.contactFeet,
+					useFlaggedContacts: form.get('useFlaggedContacts') === 'on'
+				};
+				const started = await startRun(...callerOf(event), { studyId: event.params.id, trialId: run.trialId, options });
+				redirect(303, `/studies/${event.params.id}/runs/${started.id}`);
+			},
+			{ values: formValues(form) }
+		);
+	},
 	/** A failed run back to the queue (same run row); then back to the session page at the trial's runs. */
 	retry: (event) =>
 		edge(event, async () => {
