@@ -7,6 +7,11 @@ import { createWorkspace, type Workspace } from './workspace';
 export function placeBodies(m: Model, ws: Workspace, q: ArrayLike<number>, o = 0): void {
 	relativeTransforms(m, ws, q, o);
 	worldRotations(m, ws);
+	worldOrigins(m, ws);
+}
+
+/** World position of every body's origin, its joint point (ws.pw), from this frame's joint transforms (ws.rp) and world rotations (ws.Rw). */
+export function worldOrigins(m: Model, ws: Workspace): void {
 	const { n, parent } = m;
 	const { rp, Rw, pw } = ws;
 	for (let i = 0; i < n; i++) {

@@ -1,5 +1,6 @@
 // External loads reduced, once per frame, to a force and a torque at each body's joint point in body axes.
 import type { Model } from './model';
+import { worldOrigins } from './kinematics';
 import { addCross3, addScaled3, mulT3 } from './vec';
 import type { ExternalLoad, Workspace } from './workspace';
 
@@ -36,29 +37,5 @@ export function reduceLoads(m: Model, ws: Workspace, loads: readonly ExternalLoa
 		addScaled3(1, v, 0, loadF, b3);
 		addScaled3(1, v, 3, loadT, b3);
 		addCross3(1, v, 6, v, 0, loadT, b3); // + p × F: the force moved to the joint point
-	}
-}
-
-/** World position of every body's origin (ws.pw) from this frame's joint transforms (ws.rp) and world rotations (ws.Rw). */
-function worldOrigins(m: Model, ws: Workspace): void {
-	const { parent, n } = m;
-	const { rp, Rw, pw } = ws;
-	for (let i = 0; i < n; i++) {
-		const i3 = 3 * i,
-			p = parent[i];
-		const rx = rp[i3],
-			ry = rp[i3 + 1],
-			rz = rp[i3 + 2];
-		if (p < 0) {
-			pw[i3] = rx;
-			pw[i3 + 1] = ry;
-			pw[i3 + 2] = rz;
-			continue;
-		}
-		const p3 = 3 * p,
-			p9 = 9 * p;
-		pw[i3] = pw[p3] + Rw[p9] * rx + Rw[p9 + 1] * ry + Rw[p9 + 2] * rz;
-		pw[i3 + 1] = pw[p3 + 1] + Rw[p9 + 3] * rx + Rw[p9 + 4] * ry + Rw[p9 + 5] * rz;
-		pw[i3 + 2] = pw[p3 + 2] + Rw[p9 + 6] * rx + Rw[p9 + 7] * ry + Rw[p9 + 8] * rz;
 	}
 }
