@@ -158,6 +158,8 @@ export interface FlashOutcome {
 	duplicateOf?: { trialId: string; fileName: string; uploadedAt: string };
 	needsMapping?: { headers: string[]; suggested?: ColumnMapping };
 	trialId?: string;
+	/** The file sent with it: its force file (role 'force') or, for a force file, its angle file (role 'angle'). */
+	pairedWith?: { role: 'angle' | 'force'; fileName: string };
 }
 
 /** A file's outcome as the upload area shows it: an upload answer (UploadOutcome) or one carried in the cookie (FlashOutcome). */

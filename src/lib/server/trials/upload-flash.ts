@@ -26,6 +26,7 @@ export function encodeFlash(outcomes: UploadOutcome[]): string {
 				.map((p) => ({ code: p.code, message: p.message.slice(0, cut), row: p.row, column: p.column?.slice(0, 60), severity: p.severity })),
 			moreProblems: Math.max(0, (o.problems ?? []).length - nProblems),
 			...(o.duplicateOf ? { duplicateOf: o.duplicateOf } : {}),
+			...(o.pairedWith ? { pairedWith: { role: o.pairedWith.role, fileName: o.pairedWith.fileName.slice(0, 120) } } : {}),
 			...(o.needsMapping
 				? {
 						needsMapping: {
