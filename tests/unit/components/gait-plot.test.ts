@@ -9,6 +9,7 @@ import {
 	contactFeetFromForm,
 	copTrails,
 	cycleBands,
+	drawnIndices,
 	FOOT_STYLE,
 	footVerticalGrf,
 	initialChoice,
@@ -176,5 +177,20 @@ describe('contactFeetFromForm', () => {
 		expect(initialChoice(contact({ id: 'p1#0', start: 0, end: 1, assignedBy: 'user', foot: 'right' }))).toBe('right');
 		expect(initialChoice(contact({ id: 'p1#0', start: 0, end: 1, assignedBy: 'user', foot: null }))).toBe('none');
 		expect(initialChoice(contact({ id: 'p1#0', start: 0, end: 1 }))).toBe('auto');
+	});
+});
+
+describe('drawnIndices', () => {
+	it('keeps every sample of a short series, and each bucket’s smallest and largest of a long one (peaks kept)', () => {
+		expect(drawnIndices([1, 2, 3], 10)).toEqual([0, 1, 2]);
+		const v = Array.from({ length: 1000 }, (_, k) => (k === 637 ? 5000 : k === 100 ? -300 : Math.sin(k / 50)));
+		const idx = drawnIndices(v, 100);
+		expect(idx.length).toBeLessThanOrEqual(100);
+		expect(idx).toContain(637);
+		expect(idx).toContain(100);
+		expect([...idx].sort((a, b) => a - b)).toEqual(idx);
+		// a bucket with no value (null) keeps its first sample, so the drawing shows the gap
+		const gap = drawnIndices([...new Array(50).fill(null), ...new Array(50).fill(1)], 10);
+		expect(gap[0]).toBe(0);
 	});
 });

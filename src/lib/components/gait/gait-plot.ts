@@ -253,3 +253,31 @@ export function contactFeetFromForm(
 	}
 	return { ok: true, contactFeet: out };
 }
+
+/**
+ * The samples a long series is drawn with: every sample up to `max`, else the smallest and largest of each of max/2
+ * equal buckets (in time order), so an impact peak is never dropped from the drawing.
+ */
+export function drawnIndices(v: readonly (number | null)[], max = 2000): number[] {
+	const n = v.length;
+	if (n <= max) return Array.from({ length: n }, (_, k) => k);
+	const buckets = Math.max(1, Math.floor(max / 2));
+	const out: number[] = [];
+	for (let b = 0; b < buckets; b++) {
+		const from = Math.floor((b * n) / buckets);
+		const to = Math.floor(((b + 1) * n) / buckets);
+		let lo = -1;
+		let hi = -1;
+		for (let k = from; k < to; k++) {
+			const x = v[k];
+			if (x === null || !Number.isFinite(x)) continue;
+			if (lo < 0 || x < (v[lo] as number)) lo = k;
+			if (hi < 0 || x > (v[hi] as number)) hi = k;
+		}
+		if (lo < 0)
+			out.push(from); // a gap: keep it a gap
+		else if (lo === hi) out.push(lo);
+		else out.push(Math.min(lo, hi), Math.max(lo, hi));
+	}
+	return out;
+}
