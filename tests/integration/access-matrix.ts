@@ -207,6 +207,9 @@ export const MATRIX: MatrixEntry[] = [
 	get('/studies/[id]/runs/[rid]', teamA(200, 200, 200), runA),
 	get('/studies/[id]/runs/[rid]', notThere(), runInB),
 	act('/studies/[id]/runs/[rid]', 'retry', teamA(409, 409, 409), runA),
+	// "Re-run with these feet" on a run's foot contacts: the seeded run has no force data, so it is refused with 400
+	act('/studies/[id]/runs/[rid]', 'rerunFeet', teamA(400, 400, 400), runA),
+	act('/studies/[id]/runs/[rid]', 'rerunFeet', notThere(), runInB),
 	post('/api/studies/[id]/trials/[tid]/runs', teamA(415, 415, 415, API), trialA),
 	post('/api/studies/[id]/trials/[tid]/runs', notThere(API), trialInB),
 	get('/api/studies/[id]/trials/[tid]/residuals', teamA(200, 200, 200, API), trialA),

@@ -51,6 +51,7 @@ export const LOCK_MATRIX: LockEntry[] = [
 	lockedPost('/api/studies/[id]/runs/[rid]/retry', runA, 'technicianA'),
 	lockedAction('/studies/[id]/trials/[tid]', 'start', trialA, 'technicianA', { form: { filter: 'lowpass', cutoffHz: '6' } }),
 	lockedAction('/studies/[id]/runs/[rid]', 'retry', runA, 'piA'),
+	lockedAction('/studies/[id]/runs/[rid]', 'rerunFeet', runA, 'researcherA'),
 	lockedAction('/studies/[id]/sessions/[sid]/edit', 'default', sessionA, 'technicianA', { form: { operator: 'x', task: 'y' } }),
 	// review data: a run's cycle events
 	lockedPost('/api/studies/[id]/runs/[rid]/events', runA, 'researcherA', { json: { times: [0.5, 1] } }),

@@ -5,7 +5,8 @@ import { contactFeetFromForm } from '$lib/components/gait/gait-plot';
 import { FormProblem } from '$lib/server/errors';
 import { callerOf, edge, formEdge, formValues } from '$lib/server/http/edge';
 import { loadGait } from '$lib/server/runs/gait-results';
-import { loadRunPage, readRun, retryRun, startRun } from '$lib/server/runs/runs';
+import { loadRunPage, readRun, retryRun, sessionOfTrial, startRun } from '$lib/server/runs/runs';
+import { assertSessionUnlocked } from '$lib/server/sessions/lock';
 import type { Actions, PageServerLoad } from './$types';
 
 export const load: PageServerLoad = (event) =>
@@ -31,6 +32,9 @@ export const actions: Actions = {
 			async () => {
 				const ref = { studyId: event.params.id, runId: event.params.rid };
 				const run = await readRun(...callerOf(event), ref);
+				// an approved session answers with the lock's message before anything about its contacts
+				const sessionId = await sessionOfTrial(event.params.id, run.trialId);
+				if (sessionId) await assertSessionUnlocked(sessionId);
 				const gait = run.state === 'done' ? await loadGait(...callerOf(event), ref) : null;
 				if (!gait?.gait) throw new FormProblem({ form: `Run ${run.number} has no foot contacts to re-run with.` });
 				const feet = contactFeetFromForm(
