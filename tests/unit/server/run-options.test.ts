@@ -33,3 +33,27 @@ describe('the end treatment of a run', () => {
 		expect(now.success && now.data.endTreatment).toBe('prediction');
 	});
 });
+
+describe('the force options of the form (a trial with a force recording)', () => {
+	const f = (extra: Record<string, string>) => runOptionsFromForm(form({ filter: 'lowpass', cutoffHz: '6', ...extra }));
+	it('leave the options as they were when the form has no force fields', () => {
+		const o = f({});
+		expect('forceCutoffHz' in o).toBe(false);
+		expect('useFlaggedContacts' in o).toBe(false);
+	});
+	it('"same as the angles" leaves forceCutoffHz out (then the angles’ cutoff applies); none is null; another is its number', () => {
+		const same = f({ forceCutoff: 'same' });
+		expect('forceCutoffHz' in same).toBe(false);
+		expect(same.useFlaggedContacts).toBe(false);
+		expect(f({ forceCutoff: 'none', useFlaggedContacts: 'on' })).toMatchObject({ forceCutoffHz: null, useFlaggedContacts: true });
+		expect(f({ forceCutoff: 'custom', forceCutoffHz: '12' }).forceCutoffHz).toBe(12);
+	});
+	it('refuse another cutoff left empty, under its field', () => {
+		try {
+			f({ forceCutoff: 'custom', forceCutoffHz: '' });
+			expect.unreachable();
+		} catch (e) {
+			expect((e as { errors: Record<string, string> }).errors.forceCutoffHz).toMatch(/cutoff for the forces in Hz/);
+		}
+	});
+});

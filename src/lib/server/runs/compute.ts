@@ -116,6 +116,30 @@ export function seriesRows(result: PipelineResult, built: SessionModel): SeriesR
 	return rows;
 }
 
+/**
+ * Each plate's loads on the person at the angle rate and its contacts, as a run finds them: the plate's signals
+ * filtered at the run's force cutoff (groundCutoffHz; anti-alias capped when the rate is higher), resampled
+ * (forces/resample.ts), to lab axes, then findContacts. Used by the run and, to check contactFeet, when one starts.
+ */
+export function groundAtAngleRate(recording: Pick<Recording, 'sampleHz' | 'time'>, force: ForceInput, options: RunOptions) {
+	const thresholdN = DEFAULT_CONTACT_THRESHOLD_N;
+	const angleHz = recording.sampleHz;
+	const runCutoff = groundCutoffHz(options);
+	const signals = plateSignalsOf(force.recording, force.plates);
+	const plates = force.plates.map((plate) => ({
+		plate,
+		loads: plateLoadsAtAngleRate(plate, signals.get(plate.name)!, {
+			forceHz: force.forceHz,
+			angleHz,
+			cutoffHz: runCutoff,
+			angleSamples: recording.time.length,
+			thresholdN
+		})
+	}));
+	const contacts = plates.flatMap(({ plate, loads }) => findContacts(plate, loads, { sampleHz: angleHz, thresholdN }));
+	return { thresholdN, runCutoff, plates, contacts };
+}
+
 /** Builds the model, runs the pipeline and encodes what is stored. Throws the pipeline's own errors unchanged. */
 export function computeRun(
 	body: ParticipantBody,
@@ -141,22 +165,8 @@ export function computeRun(
 	// forces: each plate's signals filtered and resampled to the angle rate (forces/resample.ts: zero-lag Butterworth at
 	// the run's force cutoff, anti-alias capped when the rate is higher), to lab axes, and its contacts
 	const t0 = performance.now();
-	const thresholdN = DEFAULT_CONTACT_THRESHOLD_N;
 	const angleHz = recording.sampleHz;
-	const frames = recording.time.length;
-	const runCutoff = groundCutoffHz(options);
-	const signals = plateSignalsOf(force.recording, force.plates);
-	const plates = force.plates.map((plate) => ({
-		plate,
-		loads: plateLoadsAtAngleRate(plate, signals.get(plate.name)!, {
-			forceHz: force.forceHz,
-			angleHz,
-			cutoffHz: runCutoff,
-			angleSamples: frames,
-			thresholdN
-		})
-	}));
-	const contacts = plates.flatMap(({ plate, loads }) => findContacts(plate, loads, { sampleHz: angleHz, thresholdN }));
+	const { thresholdN, runCutoff, plates, contacts } = groundAtAngleRate(recording, force, options);
 	const forceMs = performance.now() - t0;
 	const result = runPipeline(built, recording, options, onProgress, { reuseInput: true, ground: { plates, contacts } });
 	const t1 = performance.now();

@@ -17,7 +17,9 @@ import { assertSessionUnlocked, refuseIfLocked } from '../sessions/lock';
 import { isUuid, may, studyFor, type Actor, type StudyAction } from '../access/guard';
 import type { RequestContext } from '../access/context';
 import { component, decodeFloat64 } from './results-codec';
-import { participantBody, readRecording } from './process';
+import { participantBody, readForces, readRecording } from './process';
+import { groundAtAngleRate } from './compute';
+import { contactIds } from '../../processing/foot-contacts';
 import {
 	latestDoneRunPerTrial,
 	runRowById,
@@ -141,7 +143,9 @@ function optionProblems(issues: z.core.$ZodIssue[]): Record<string, string> {
 	const out: Record<string, string> = {};
 	for (const i of issues) {
 		const k = i.path[0] === 'perChannelCutoffHz' ? `channelCutoff.${String(i.path[1] ?? '')}` : String(i.path[0] ?? 'form');
-		out[k] ??= i.message;
+		if (i.path[0] === 'contactFeet' && i.path.length > 1)
+			out[k] ??= `contactFeet["${String(i.path[1])}"]: the foot must be "left", "right" or null (no foot).`;
+		else out[k] ??= i.message;
 	}
 	return out;
 }
@@ -178,8 +182,21 @@ export function runOptionsFromForm(form: FormData): RunOptions {
 			errors.gravity = 'Enter all three components of gravity in m/s² (lab X anterior, Y superior, Z right).';
 		else gravity = g as [number, number, number];
 	}
+	// force-plate options: only offered (and sent) for a trial with a force recording
+	let force: { forceCutoffHz?: number | null; useFlaggedContacts: boolean } | null = null;
+	const forceCutoff = form.get('forceCutoff');
+	if (forceCutoff !== null) {
+		force = { useFlaggedContacts: form.get('useFlaggedContacts') === 'on' };
+		if (forceCutoff === 'none') force.forceCutoffHz = null;
+		else if (forceCutoff === 'custom') {
+			const hz = numberOrNull(form.get('forceCutoffHz'));
+			if (hz === null) errors.forceCutoffHz = 'Enter the cutoff for the forces in Hz, or choose “same as the angles”.';
+			else force.forceCutoffHz = hz;
+		} else if (forceCutoff !== 'same') errors.forceCutoff = 'Choose how the forces are filtered.';
+	}
 	if (Object.keys(errors).length) throw new FormProblem(errors);
 	return parseRunOptions({
+		...(force ?? {}),
 		cutoffHz: filter === 'none' ? null : cutoff,
 		...(filter === 'lowpass' && Object.keys(perChannel).length ? { perChannelCutoffHz: perChannel } : {}),
 		fillGaps: form.get('fillGaps') === 'on',
@@ -247,6 +264,48 @@ async function mayProcess(trial: TrialContext, transaction: Transaction): Promis
 	await requireValidConsent(trial.participantId, 'run', transaction);
 }
 
+/**
+ * The feet set by hand (contactFeet) checked when a run starts: the trial must have a force recording, each id must
+ * be `<plate>#<k>` of one of its plates and, the contacts being found here as the run will find them (the same force
+ * cutoff), name one of them; FormProblem (400) under contactFeet naming the id and the contacts there are. When the
+ * recordings cannot be read now the run starts and fails with the reading's reason, and the ids are checked when it
+ * finds the contacts.
+ */
+async function checkContactFeet(trial: TrialContext, opts: RunOptions): Promise<void> {
+	const ids = Object.keys(opts.contactFeet ?? {});
+	if (!ids.length) return;
+	const refuse = (message: string) => {
+		throw new FormProblem({ contactFeet: message });
+	};
+	if (!trial.forceRawUploadId)
+		refuse(`Trial ${trial.fileName} has no force recording, so it has no foot contacts; remove contactFeet (${ids.join(', ')}).`);
+	const plates = trial.forcePlates ?? [];
+	for (const id of ids) {
+		const m = /^(.+)#(\d+)$/.exec(id);
+		if (!m || !plates.includes(m[1]))
+			refuse(
+				`contactFeet: "${id}" is not a contact of trial ${trial.fileName}: a contact is named <plate>#<k> (k from 0 in time order) with a plate of its force file (${plates.join(', ')}).`
+			);
+	}
+	let known: string[];
+	try {
+		const built = buildSessionModel(await participantBody(trial.participantId), sessionSetupSchema.parse(trial.setup));
+		const recording = await readRecording(trial, built, opts.fillGaps);
+		const force = await readForces(trial, recording);
+		if (!force) return;
+		known = contactIds(groundAtAngleRate(recording, force, opts).contacts);
+	} catch {
+		// the recordings or the model cannot be used now: the run itself fails with the reason (RunFailure, the model's
+		// or the plates' own errors), and the ids are checked by the run when it finds the contacts (assignContacts)
+		return;
+	}
+	const unknown = ids.filter((id) => !known.includes(id));
+	if (unknown.length)
+		refuse(
+			`contactFeet: ${unknown.map((id) => `"${id}"`).join(', ')} ${unknown.length === 1 ? 'is not a contact' : 'are not contacts'} of trial ${trial.fileName}; at this force cutoff its contacts are ${known.length ? known.join(', ') : 'none'}.`
+		);
+}
+
 export interface StartRunInput {
 	studyId: string;
 	trialId: string;
@@ -261,6 +320,7 @@ export async function startRun(actor: Actor | null, ctx: RequestContext, input: 
 	const options = input.options;
 	const opts =
 		options instanceof FormData ? runOptionsFromForm(options) : parseRunOptions(typeof options === 'function' ? await options() : options);
+	await checkContactFeet(trial, opts);
 	const runId = await db().transaction(async (transaction) => {
 		await mayProcess(trial, transaction);
 		const run = await Run.create(
@@ -580,7 +640,12 @@ export async function loadTrialPage(actor: Actor | null, ctx: RequestContext, in
 	const fillGaps = input.query.get('fillGaps') === 'on';
 	return {
 		study: { id: study.id, code: study.code, title: study.title },
-		trial: { ...trialHeading(trial), channels: trial.channels, sessionState: trial.sessionState },
+		trial: {
+			...trialHeading(trial),
+			channels: trial.channels,
+			sessionState: trial.sessionState,
+			force: trial.forceFileName ? { fileName: trial.forceFileName, plates: trial.forcePlates ?? [] } : null
+		},
 		runs,
 		canStart: may(a, 'run.start', study.id),
 		residuals: wantResiduals ? await trialResiduals(trial, fillGaps) : null,
