@@ -144,7 +144,7 @@ const data: GaitData = {
 	spatiotemporal: { left: foot('left', 1), right: foot('right', 1), lengthBasis: null }
 };
 
-const props = { data, seriesUrl: '/api/studies/s/runs/r1/series', dofs: ['left.knee.flexion'], canRerun: true };
+const props = { data, seriesUrl: '/api/studies/s/runs/r1/series', dofs: [] as string[], canRerun: true };
 const html = render(GaitReview, { props }).body.replace(/<!--.*?-->/g, '');
 const section = (id: string) => {
 	const at = html.indexOf(`data-testid="${id}"`);
@@ -212,6 +212,12 @@ describe('GaitReview', () => {
 		const ro = render(GaitReview, { props: { ...props, canRerun: false } }).body;
 		expect(ro).not.toContain('Re-run with these feet');
 		expect(ro).not.toContain('contact-foot-select');
+	});
+
+	it('opens the gait cycles on the joint moment of the first DOF where the run has joint results', () => {
+		const withDofs = render(GaitReview, { props: { ...props, dofs: ['left.knee.flexion'] } }).body.replace(/<!--.*?-->/g, '');
+		expect(withDofs).toMatch(/<option value="moment" selected="">Joint moment<\/option>/);
+		expect(withDofs).toContain('Reading the moment of Left knee flexion…');
 	});
 
 	it('shows an empty state without plate data', () => {
