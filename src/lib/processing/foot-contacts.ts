@@ -9,6 +9,7 @@ import {
 	findContacts,
 	plateContains,
 	plateLoadsAtAngleRate,
+	plateNormal,
 	type Contact,
 	type ContactOptions,
 	type ForcePlate,
@@ -28,6 +29,13 @@ export const FOOT_OVER_SHARE = 0.5;
  * one plate stay there much longer).
  */
 export const SHARED_SHARE = 0.1;
+/**
+ * Where the plate's centre of pressure is known, a foot over the plate bears the load only if the CoP lies within this
+ * distance (m) of its ankle-to-toe line, measured across the plate's surface (our choice: the CoP of one foot's stance
+ * stays under that foot, within about half a foot's width of the line; a swinging foot passing beside it is a step
+ * width away, some 0.1–0.3 m).
+ */
+export const DEFAULT_COP_MARGIN_M = 0.08;
 
 /** The engine bodies of one foot and its length (the model's foot runs from the ankle joint centre along its +X). */
 function footOf(built: SessionModel, side: Foot): { body: number; lengthM: number } | null {
@@ -63,7 +71,13 @@ export function footPoints(built: SessionModel, angles: readonly ArrayLike<numbe
 	const hips = feet.filter((f) => f.hip >= 0).map((f) => f.hip);
 	const paths: { side: Foot; body: number; L: number; heel: Float64Array; toe: Float64Array }[] = feet
 		.filter((f) => f.foot !== null)
-		.map((f) => ({ side: f.side, body: f.foot!.body, L: f.foot!.lengthM, heel: new Float64Array(3 * frames), toe: new Float64Array(3 * frames) }));
+		.map((f) => ({
+			side: f.side,
+			body: f.foot!.body,
+			L: f.foot!.lengthM,
+			heel: new Float64Array(3 * frames),
+			toe: new Float64Array(3 * frames)
+		}));
 	const pelvis = new Float64Array(3 * frames);
 	const ws = createWorkspace(model);
 	const q = new Float64Array(n);
@@ -99,7 +113,10 @@ export interface AssignedContact extends Contact {
 	id: string;
 	/** Who decided the foot: the model (feet over the plate), the person (an override), or nobody (foot null). */
 	assignedBy: 'model' | 'user' | null;
-	/** Share of the contact's samples each foot's ankle-to-toe segment lay over the plate (NaN: the model has no such foot). */
+	/**
+	 * Share of the contact's samples each foot bore it: its ankle-to-toe segment over the plate and, where the CoP is
+	 * known and given, the CoP near that segment (NaN: the model has no such foot).
+	 */
 	overShare: Record<Foot, number>;
 	/** Share of the samples with both feet over it at once. */
 	bothShare: number;
@@ -110,6 +127,25 @@ export interface AssignOptions {
 	marginM?: number;
 	/** Manual feet by contact id (`<plate>#<k>`): a foot, or null for "no foot" (the contact is then not used). */
 	overrides?: Readonly<Record<string, Foot | null>>;
+	/** Each plate's CoP in lab axes at the angle rate (x y z per sample, NaN where unloaded), by plate name. */
+	cop?: Readonly<Record<string, ArrayLike<number>>>;
+	/** Default DEFAULT_COP_MARGIN_M (8 cm). */
+	copMarginM?: number;
+}
+
+/** Distance (m) from point c to the segment a–b, across the surface whose unit normal is nrm (the normal part left out). */
+function distanceAcross(c: ArrayLike<number>, a: ArrayLike<number>, b: ArrayLike<number>, k3: number, nrm: readonly number[]): number {
+	const d = [0, 1, 2].map((j) => b[k3 + j] - a[k3 + j]);
+	const e = [0, 1, 2].map((j) => c[k3 + j] - a[k3 + j]);
+	const flat = (v: number[]) => {
+		const s = v[0] * nrm[0] + v[1] * nrm[1] + v[2] * nrm[2];
+		return v.map((x, j) => x - s * nrm[j]);
+	};
+	const df = flat(d),
+		ef = flat(e);
+	const dd = df[0] ** 2 + df[1] ** 2 + df[2] ** 2;
+	const t = dd > 0 ? Math.min(1, Math.max(0, (ef[0] * df[0] + ef[1] * df[1] + ef[2] * df[2]) / dd)) : 0;
+	return Math.hypot(ef[0] - t * df[0], ef[1] - t * df[1], ef[2] - t * df[2]);
 }
 
 /** The contact ids `<plate>#<k>` in the order given (k counts each plate's contacts by start). */
@@ -126,9 +162,12 @@ export function contactIds(contacts: readonly Contact[]): string[] {
 
 /**
  * Which foot made each contact. Over its samples start…end (inclusive), a foot is over the plate where its ankle and its
- * toe both lie over the plate's outline grown by marginM (plateContains). The contact goes to the one foot over it for at
- * least FOOT_OVER_SHARE of the samples; when both feet are over it at once for at least SHARED_SHARE of them it is
- * shared (foot null, shared true); when neither foot qualifies the foot stays null for the person to choose. An
+ * toe both lie over the plate's outline grown by marginM (plateContains), and it bears the load where it is over the plate
+ * and, if the CoP is given and known there, the CoP lies within copMarginM of its ankle-to-toe line. The contact goes to
+ * the one foot bearing it for at least FOOT_OVER_SHARE of the samples. It is shared (foot null, shared true) when, for at
+ * least SHARED_SHARE of the samples, both feet are over the plate and the CoP does not single out one of them (both feet
+ * or neither near it, or no CoP given): so a swinging foot passing over the plate beside the standing one does not make
+ * the contact shared, two feet standing on it do. When neither foot qualifies the foot stays null for the person to choose. An
  * override sets the foot whatever the model says (assignedBy 'user'); the shared flag stays as measured.
  * Refused (ForceError) with the contact named: a plate the list lacks, an override for a contact that does not exist, a
  * foot path shorter than a contact.
@@ -140,6 +179,7 @@ export function assignContacts(
 	opts: AssignOptions = {}
 ): AssignedContact[] {
 	const margin = opts.marginM ?? DEFAULT_FOOT_MARGIN_M;
+	const copMargin = opts.copMarginM ?? DEFAULT_COP_MARGIN_M;
 	if (!Number.isFinite(margin)) throw new ForceError('invalid-argument', `The foot margin must be a number of metres; got ${margin}.`);
 	const ids = contactIds(contacts);
 	const overrides = opts.overrides ?? {};
@@ -150,18 +190,31 @@ export function assignContacts(
 				`The foot set by hand for contact "${id}" names no contact of this trial (${ids.length ? ids.join(', ') : 'it has none'}).`
 			);
 		if (foot !== null && foot !== 'left' && foot !== 'right')
-			throw new ForceError('invalid-argument', `The foot set by hand for contact "${id}" must be "left", "right" or null; got ${JSON.stringify(foot)}.`);
+			throw new ForceError(
+				'invalid-argument',
+				`The foot set by hand for contact "${id}" must be "left", "right" or null; got ${JSON.stringify(foot)}.`
+			);
 	}
 	const p = new Float64Array(3);
 	return contacts.map((c, i) => {
 		const plate = plates.find((pl) => pl.name === c.plate);
-		if (!plate) throw new ForceError('invalid-argument', `Contact ${ids[i]} is on plate "${c.plate}", which is not among the plates given (${plates.map((pl) => pl.name).join(', ')}).`);
+		if (!plate)
+			throw new ForceError(
+				'invalid-argument',
+				`Contact ${ids[i]} is on plate "${c.plate}", which is not among the plates given (${plates.map((pl) => pl.name).join(', ')}).`
+			);
 		const over: Record<Foot, Uint8Array | null> = { left: null, right: null };
+		const bears: Record<Foot, Uint8Array | null> = { left: null, right: null };
+		const cop = opts.cop?.[c.plate];
+		const nrm = plateNormal(plate);
 		for (const side of ['left', 'right'] as const) {
 			const path = feet[side];
 			if (!path) continue;
 			if (path.heel.length < 3 * (c.end + 1) || path.toe.length < 3 * (c.end + 1))
-				throw new ForceError('length-mismatch', `Contact ${ids[i]} runs to sample ${c.end + 1}; the ${side} foot's path has ${Math.floor(Math.min(path.heel.length, path.toe.length) / 3)} samples.`);
+				throw new ForceError(
+					'length-mismatch',
+					`Contact ${ids[i]} runs to sample ${c.end + 1}; the ${side} foot's path has ${Math.floor(Math.min(path.heel.length, path.toe.length) / 3)} samples.`
+				);
 			const o = new Uint8Array(c.end - c.start + 1);
 			for (let k = c.start; k <= c.end; k++) {
 				const k3 = 3 * k;
@@ -175,12 +228,19 @@ export function assignContacts(
 				if (plateContains(plate, p, margin)) o[k - c.start] = 1;
 			}
 			over[side] = o;
+			const b = o.slice();
+			if (cop)
+				for (let k = c.start; k <= c.end; k++)
+					if (b[k - c.start] && cop[3 * k] === cop[3 * k] && distanceAcross(cop, path.heel, path.toe, 3 * k, nrm) > copMargin)
+						b[k - c.start] = 0;
+			bears[side] = b;
 		}
 		const len = c.end - c.start + 1;
 		const share = (o: Uint8Array | null) => (o ? o.reduce((s, v) => s + v, 0) / len : NaN);
 		let both = 0;
-		if (over.left && over.right) for (let k = 0; k < len; k++) both += over.left[k] & over.right[k];
-		const overShare = { left: share(over.left), right: share(over.right) };
+		if (over.left && over.right && bears.left && bears.right)
+			for (let k = 0; k < len; k++) both += over.left[k] & over.right[k] & (bears.left[k] === bears.right[k] ? 1 : 0);
+		const overShare = { left: share(bears.left), right: share(bears.right) };
 		const bothShare = both / len;
 		const shared = bothShare >= SHARED_SHARE;
 		const qualifies = (['left', 'right'] as const).filter((s) => overShare[s] >= FOOT_OVER_SHARE);
@@ -202,7 +262,10 @@ export function assignContacts(
  */
 export function groundFromSignals(
 	plates: readonly { plate: ForcePlate; signals: PlateSignals }[],
-	opts: { forceHz: number; angleHz: number; frames: number; cutoffHz: number | null; thresholdN?: number } & Omit<ContactOptions, 'sampleHz' | 'thresholdN'>
+	opts: { forceHz: number; angleHz: number; frames: number; cutoffHz: number | null; thresholdN?: number } & Omit<
+		ContactOptions,
+		'sampleHz' | 'thresholdN'
+	>
 ): { plates: { plate: ForcePlate; loads: LabLoads }[]; contacts: Contact[] } {
 	const out = plates.map(({ plate, signals }) => ({
 		plate,
@@ -215,7 +278,12 @@ export function groundFromSignals(
 		})
 	}));
 	const contacts = out.flatMap(({ plate, loads }) =>
-		findContacts(plate, loads, { sampleHz: opts.angleHz, thresholdN: opts.thresholdN, minDurationS: opts.minDurationS, marginM: opts.marginM })
+		findContacts(plate, loads, {
+			sampleHz: opts.angleHz,
+			thresholdN: opts.thresholdN,
+			minDurationS: opts.minDurationS,
+			marginM: opts.marginM
+		})
 	);
 	return { plates: out, contacts };
 }

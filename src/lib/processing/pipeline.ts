@@ -356,7 +356,11 @@ export function runPipeline(
 	const perKg = new Map<number, Float64Array>(reported.map(({ j }) => [j, new Float64Array(frames)]));
 	const power = new Map<number, Float64Array>(reported.map(({ j }) => [j, new Float64Array(frames)]));
 	const batchOut = { Q: QB, force: fB };
-	const batchOpts = { gravity, reactionFrame: 'world' as const, loadsAt: undefined as ((k: number) => readonly ExternalLoad[] | null) | undefined };
+	const batchOpts = {
+		gravity,
+		reactionFrame: 'world' as const,
+		loadsAt: undefined as ((k: number) => readonly ExternalLoad[] | null) | undefined
+	};
 	for (let k0 = 0; k0 < frames; k0 += B) {
 		const len = Math.min(B, frames - k0);
 		if (groundPlan) batchOpts.loadsAt = (k) => groundPlan.loadsAt(k0 + k);
@@ -434,14 +438,20 @@ function planGround(
 ): { loadsAt: (k: number) => readonly ExternalLoad[]; result: GroundResult } {
 	const P = ground.plates.length;
 	ground.plates.forEach(({ plate, loads }) => {
-		if (loads.grf.length !== 3 * frames || loads.cop.length !== 3 * frames || loads.freeMoment.length !== 3 * frames || loads.loaded.length !== frames)
+		if (
+			loads.grf.length !== 3 * frames ||
+			loads.cop.length !== 3 * frames ||
+			loads.freeMoment.length !== 3 * frames ||
+			loads.loaded.length !== frames
+		)
 			throw new PipelineError(
 				`plate ${plate.name}: its loads hold ${loads.loaded.length} samples; the recording has ${frames} (forces must be brought to the angle rate first)`
 			);
 	});
 	const names = ground.plates.map((g) => g.plate.name);
 	for (const c of ground.contacts) {
-		if (!names.includes(c.plate)) throw new PipelineError(`a contact is on plate "${c.plate}", which has no loads in this run (${names.join(', ')})`);
+		if (!names.includes(c.plate))
+			throw new PipelineError(`a contact is on plate "${c.plate}", which has no loads in this run (${names.join(', ')})`);
 		if (!(c.start >= 0 && c.end < frames && c.start <= c.end))
 			throw new PipelineError(`a contact on plate ${c.plate} runs from sample ${c.start + 1} to ${c.end + 1}; the recording has ${frames}`);
 	}
@@ -460,7 +470,11 @@ function planGround(
 						ground.contacts,
 						ground.plates.map((g) => g.plate),
 						{ left: feet?.left, right: feet?.right },
-						{ marginM: ground.marginM, overrides: options.contactFeet }
+						{
+							marginM: ground.marginM,
+							overrides: options.contactFeet,
+							cop: Object.fromEntries(ground.plates.map((g) => [g.plate.name, g.loads.cop]))
+						}
 					);
 	} catch (e) {
 		throw new PipelineError(e instanceof Error ? e.message : String(e));
@@ -473,12 +487,15 @@ function planGround(
 		if (c.foot === null) reason = c.shared ? 'two feet share it' : 'no foot assigned';
 		else if (bodies[c.foot] < 0) reason = `the model has no ${c.foot} foot`;
 		else if (c.shared && !options.useFlaggedContacts) reason = 'two feet share it (flagged; not used unless flagged contacts are used)';
-		else if (c.offPlate && !options.useFlaggedContacts) reason = 'its CoP runs off the plate (flagged; not used unless flagged contacts are used)';
+		else if (c.offPlate && !options.useFlaggedContacts)
+			reason = 'its CoP runs off the plate (flagged; not used unless flagged contacts are used)';
 		if (reason === null) {
 			const cop = ground.plates[p].loads.cop;
 			for (let k = c.start; k <= c.end; k++) {
 				if (!(Number.isFinite(cop[3 * k]) && Number.isFinite(cop[3 * k + 1]) && Number.isFinite(cop[3 * k + 2])))
-					throw new PipelineError(`contact ${c.id} (plate ${c.plate}, ${c.foot} foot) has no centre of pressure at sample ${k + 1}, inside the contact`);
+					throw new PipelineError(
+						`contact ${c.id} (plate ${c.plate}, ${c.foot} foot) has no centre of pressure at sample ${k + 1}, inside the contact`
+					);
 				if (active[k * P + p] >= 0) throw new PipelineError(`contacts on plate ${c.plate} overlap at sample ${k + 1}`);
 				active[k * P + p] = bodies[c.foot as Foot];
 			}

@@ -65,6 +65,23 @@ describe('assignContacts', () => {
 		const a = assignContacts([contact('plate1', 10, 60)], [p1], { left: both, right });
 		expect(a[0]).toMatchObject({ foot: null, shared: true, assignedBy: null, bothShare: 1 });
 	});
+	it('with the CoP given: a foot swinging past the standing one does not share the contact; two feet standing on it do', () => {
+		// plate1 is x 0…0.6, z 0…0.4. The right foot stands at z 0.2 (ankle x 0.1, toe x 0.35); the left swings past at z 0.05
+		// (0.15 m across: a narrow step), over the plate for samples 20…50. The CoP lies under the right foot: (0.2, 0, 0.2),
+		// 0 m from its ankle-to-toe line and 0.15 m from the left's (plane geometry) — only the right foot bears it.
+		const stand = path(n, () => 0.1, 0.2);
+		const swing = path(n, (k) => (k >= 20 && k <= 50 ? 0.1 : -2), 0.05);
+		const under = (z: number) => Float64Array.from({ length: 3 * n }, (_, i) => [0.2, 0, z][i % 3]);
+		const alone = assignContacts([contact('plate1', 10, 60)], [p1], { left: swing, right: stand }, { cop: { plate1: under(0.2) } });
+		expect(alone[0]).toMatchObject({ foot: 'right', shared: false, assignedBy: 'model', bothShare: 0 });
+		// without the CoP the same geometry is flagged shared (both feet over the plate for 31 of 51 samples)
+		const blind = assignContacts([contact('plate1', 10, 60)], [p1], { left: swing, right: stand });
+		expect(blind[0]).toMatchObject({ foot: null, shared: true });
+		// both feet standing on the plate with the CoP between them (z 0.125: 0.075 m from each line, both within 8 cm) → shared
+		const pair = path(n, () => 0.1, 0.05);
+		const two = assignContacts([contact('plate1', 10, 60)], [p1], { left: pair, right: stand }, { cop: { plate1: under(0.125) } });
+		expect(two[0]).toMatchObject({ foot: null, shared: true });
+	});
 	it('a foot over the plate for less than half the contact does not get it', () => {
 		const passing = path(n, (k) => (k < 40 ? 0.2 : 3), 0.2);
 		const a = assignContacts([contact('plate1', 10, 89)], [p1], { right: passing });
@@ -80,7 +97,9 @@ describe('assignContacts', () => {
 		expect(() => assignContacts([contact('plate1', 10, 60)], [p1], { right }, { overrides: { 'plate1#0': 'both' as never } })).toThrow(
 			/must be "left", "right" or null/
 		);
-		expect(() => assignContacts([contact('plate9', 10, 60)], [p1], { right })).toThrow(/plate "plate9", which is not among the plates given \(plate1\)/);
+		expect(() => assignContacts([contact('plate9', 10, 60)], [p1], { right })).toThrow(
+			/plate "plate9", which is not among the plates given \(plate1\)/
+		);
 	});
 	it('ids count each plate’s contacts in time order', () => {
 		expect(contactIds([contact('b', 50, 60), contact('a', 5, 9), contact('b', 1, 3)])).toEqual(['b#1', 'a#0', 'b#0']);
@@ -93,9 +112,9 @@ describe('gait set-up: both legs on one pelvis', () => {
 		expect(sessionSetupProblems({ table: 'de-leva-1996', limbs: ['right.leg', 'right.arm'], pelvis: {} })).toEqual([
 			'limbs: a pelvis set-up carries legs only (right.leg, left.leg); remove right.arm'
 		]);
-		expect(sessionSetupProblems({ table: 'de-leva-1996', limbs: ['right.leg'], pelvis: {}, bases: { 'right.leg': { kind: 'moving' } } })[0]).toMatch(
-			/^bases\.right\.leg: with a pelvis both legs hang from it, so right\.leg takes no base of its own/
-		);
+		expect(
+			sessionSetupProblems({ table: 'de-leva-1996', limbs: ['right.leg'], pelvis: {}, bases: { 'right.leg': { kind: 'moving' } } })[0]
+		).toMatch(/^bases\.right\.leg: with a pelvis both legs hang from it, so right\.leg takes no base of its own/);
 		expect(sessionSetupProblems({ table: 'de-leva-1996', limbs: ['right.leg'], pelvis: { hipWidthM: 2 } })).toEqual([
 			'pelvis.hipWidthM: must be from 0.1 to 0.5 m (the distance between the hip joint centres)'
 		]);
@@ -114,7 +133,10 @@ describe('gait set-up: both legs on one pelvis', () => {
 		expect(b.pelvis).toEqual({ hipWidthM: 0.2, source: 'entered in the session set-up' });
 		// pelvis at (1, 0.9, 0.5) turned 90° about Y (ry): its Z axis points along lab +X... Rx·Ry(90°)·Rz: z → (1, 0, 0)
 		const q = b.dofs.map((d) => ({ 'pelvis.px': 1, 'pelvis.py': 0.9, 'pelvis.pz': 0.5, 'pelvis.ry': Math.PI / 2 })[d.name] ?? 0);
-		const feet = footPoints(b, q.map((v) => [v]));
+		const feet = footPoints(
+			b,
+			q.map((v) => [v])
+		);
 		const legs = b.parameters.segments;
 		const L = (k: string) => legs.find((s) => s.key === k)!.length.value;
 		// right hip at pelvis + 0.1 × (1, 0, 0); ankle straight below by thigh + shank; toe one foot length along the
