@@ -16,7 +16,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { startApp, type AppUnderTest } from './app-under-test';
 import { waitForMail } from './helpers';
 import { start, stop, type Child } from '../../src/cli/lib/proc';
-import { simulateWalkingTrial, type WalkingTrial } from '../../src/lib/processing/simulate-walking';
+import { forcesCsv, simulateWalkingTrial, type WalkingTrial } from '../../src/lib/processing/simulate-walking';
 import { sessionSetupSchema } from '../../src/lib/processing/session-model';
 import { DEFAULT_CONTACT_THRESHOLD_N } from '../../src/lib/processing/forces';
 
@@ -133,18 +133,47 @@ async function gaitSession(pid: string, t: WalkingTrial): Promise<string> {
 	return sid;
 }
 
-async function uploadPair(sid: string, t: WalkingTrial): Promise<any> {
+async function uploadFiles(sid: string, files: { name: string; text: string }[]): Promise<{ status: number; json: any }> {
 	const fd = new FormData();
-	fd.append('file', new Blob([t.anglesCsv], { type: 'text/csv' }), 'walk01.csv');
-	fd.append('file', new Blob([t.forcesCsv], { type: 'text/csv' }), 'walk01.forces.csv');
+	for (const f of files) fd.append('file', new Blob([f.text], { type: 'text/csv' }), f.name);
 	const res = await fetch(`${app.base}/api/studies/${studyId}/sessions/${sid}/trials`, {
 		method: 'POST',
 		body: fd,
 		headers: { cookie: app.cookies.technicianA, origin: app.base, accept: 'application/json' }
 	});
-	const json = (await res.json()) as any;
-	expect(res.status, JSON.stringify(json).slice(0, 2000)).toBe(201);
-	return json;
+	return { status: res.status, json: (await res.json()) as any };
+}
+async function uploadPair(sid: string, t: WalkingTrial): Promise<any> {
+	const r = await uploadFiles(sid, [
+		{ name: 'walk01.csv', text: t.anglesCsv },
+		{ name: 'walk01.forces.csv', text: t.forcesCsv }
+	]);
+	expect(r.status, JSON.stringify(r.json).slice(0, 2000)).toBe(201);
+	return r.json;
+}
+
+/**
+ * One file with the angles and the plates' columns at the angle rate: every `ratio`-th sample of the simulation's plate
+ * signals (the force sample on each angle sample) appended to the angle file's lines.
+ */
+function anglesWithPlates(t: WalkingTrial, rename: (name: string) => string = (n) => n): string {
+	const ratio = t.forceHz / t.angleHz;
+	const frames = t.sim.time.length;
+	const every = (x: Float64Array | undefined, stride: number) =>
+		x && Float64Array.from({ length: frames * stride }, (_, i) => x[stride * ratio * Math.floor(i / stride) + (i % stride)]);
+	const plates = t.signals.map(({ plate, signals }) => ({
+		plate: { ...plate, name: rename(plate.name) },
+		signals: {
+			force: every(signals.force, 3)!,
+			moment: every(signals.moment, 3),
+			cop: every(signals.cop, 3),
+			freeMoment: every(signals.freeMoment, 1)
+		}
+	}));
+	const forces = forcesCsv(t.sim.time, plates).trim().split('\n');
+	const angles = t.anglesCsv.trim().split('\n');
+	expect(forces.length).toBe(angles.length);
+	return angles.map((line, i) => `${line},${forces[i].split(',').slice(1).join(',')}`).join('\n') + '\n';
 }
 
 async function waitForRun(runId: string, timeoutMs = 120_000) {
@@ -171,6 +200,7 @@ function knownCrossing(t: WalkingTrial, plate: number, from: number, rising: boo
 
 let runId: string;
 let gait: any;
+let sessionId: string;
 
 beforeAll(async () => {
 	trial = simulateWalkingTrial({ name: 'walk01', body: BODY });
@@ -190,7 +220,7 @@ describe('gait round trip through the HTTP API', () => {
 	it('sets up the plates, a consented walker and a gait session, takes the angle and force files, and runs them', async () => {
 		await setUpPlates(trial);
 		const pid = await consentedParticipant();
-		const sid = await gaitSession(pid, trial);
+		const sid = (sessionId = await gaitSession(pid, trial));
 		const up = await uploadPair(sid, trial);
 		const angle = up.results.find((r: any) => r.fileName === 'walk01.csv');
 		expect(angle.trial.force).toMatchObject({ fileName: 'walk01.forces.csv', sampleHz: 1000, plates: ['plate1', 'plate2'] });
@@ -283,4 +313,64 @@ describe('gait round trip through the HTTP API', () => {
 			expect(cop.x[0]).toBeNull();
 		}
 	});
+});
+
+describe('an angle file with its own force-plate columns (one file, the angle rate)', () => {
+	it('refuses plate columns naming a plate that is not set up: 422, the column named, nothing stored', async () => {
+		const count = async () =>
+			Number((await app.sql.query(`SELECT count(*) AS n FROM trials WHERE session_id = $1`, [sessionId])).rows[0].n);
+		const before = await count();
+		const r = await uploadFiles(sessionId, [{ name: 'walk03.csv', text: anglesWithPlates(trial, (n) => n.replace('plate', 'deck')) }]);
+		expect(r.status).toBe(422);
+		const p = r.json.problems.find((x: any) => x.code === 'plate-unknown');
+		expect(p, JSON.stringify(r.json)).toMatchObject({ file: 'walk03.csv', row: 1, column: 'deck1.force.x (N)' });
+		expect(p.message).toMatch(/names the force plate "deck1", which is not set up in the lab; the plates set up in the lab are .*plate1/);
+		expect(await count()).toBe(before);
+	});
+
+	it('stores the trial with its forces from the same file and runs it: contacts assigned, moments within the same rule', async () => {
+		const r = await uploadFiles(sessionId, [{ name: 'walk02.csv', text: anglesWithPlates(trial) }]);
+		expect(r.status, JSON.stringify(r.json).slice(0, 2000)).toBe(201);
+		const t = r.json.trial;
+		expect(t.force).toMatchObject({ fileName: 'walk02.csv', sha256: t.sha256, sampleHz: 200, plates: ['plate1', 'plate2'] });
+		expect(r.json.message).toMatch(/with the force plates plate1, plate2 in the same file/);
+		const channels = (await app.sql.query(`SELECT channels FROM trials WHERE id = $1`, [t.id])).rows[0].channels as string[];
+		expect(channels.some((c) => c.startsWith('plate'))).toBe(false);
+		const started = await api('POST', `/api/studies/${studyId}/trials/${t.id}/runs`, { cutoffHz: 15 });
+		expect(started.status, JSON.stringify(started.json)).toBe(201);
+		const run = await waitForRun(started.json.run.id);
+		expect(run.error).toBeNull();
+		const g = (await api('GET', `/api/studies/${studyId}/runs/${run.id}/gait`)).json;
+		expect(g.forces).toMatchObject({ fileName: 'walk02.csv', sampleHz: 200, angleHz: 200, ratio: 1 });
+		expect(g.contacts.map((c: any) => [c.id, c.foot, c.used])).toEqual([
+			['plate1#0', 'right', true],
+			['plate2#0', 'left', true]
+		]);
+		const s = await api('GET', `/api/studies/${studyId}/runs/${run.id}/series?quantity=moment`);
+		const { sim } = trial;
+		const n = sim.model.n,
+			frames = sim.time.length;
+		const { startSamples, endSamples } = s.json.edgeZone;
+		const nearEdge = (k: number) => g.contacts.some((c: any) => Math.abs(k - c.start) <= 8 || Math.abs(k - c.end) <= 8);
+		const report: string[] = [];
+		for (const c of s.json.curves) {
+			const j = sim.built.dofs.findIndex((d) => d.name === c.name);
+			let peak = 0,
+				worst = 0,
+				worstNear = 0;
+			for (let k = startSamples; k < frames - endSamples; k++) {
+				const want = sim.Q[k * n + j];
+				peak = Math.max(peak, Math.abs(want));
+				const e = Math.abs(c.v[k] - want);
+				if (nearEdge(k)) worstNear = Math.max(worstNear, e);
+				else worst = Math.max(worst, e);
+			}
+			report.push(
+				`${c.name}: worst ${worst.toFixed(3)} N·m of ${peak.toFixed(2)} (away from contact edges), ${worstNear.toFixed(3)} near them`
+			);
+			expect(worst, c.name).toBeLessThan(0.025 * peak + 0.1);
+			expect(worstNear, c.name).toBeLessThan(8);
+		}
+		console.log(report.join('\n'));
+	}, 120_000);
 });

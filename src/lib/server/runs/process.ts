@@ -21,10 +21,11 @@ import {
 	columnMappingSchema,
 	forceChannelsOf,
 	pairForceRecording,
+	plateChannelNames,
 	type Recording,
 	type Problem
 } from '../../processing/recording';
-import { DEFAULT_CONTACT_THRESHOLD_N } from '../../processing/forces';
+import { DEFAULT_CONTACT_THRESHOLD_N, type ForcePlate } from '../../processing/forces';
 import type { ParticipantBody } from '../../anthropometry/scale';
 
 /** A failure that another attempt would repeat (consent, an unreadable file, an impossible model): no retry. */
@@ -65,26 +66,68 @@ function problemText(p: Problem[]): string {
 		.join(' ');
 }
 
-/** Reads and parses a trial's raw file for a model (gaps filled when asked); RunFailure with the problems otherwise. */
+/** The force-file fields of a trial (migration 0011); all null without forces. */
+interface TrialForceFields {
+	forceRawUploadId?: string | null;
+	forceFileName?: string | null;
+	forceSha256?: string | null;
+	forcePlates?: string[] | null;
+	forceMapping?: unknown;
+}
+
+/** A trial whose force-plate columns are in its angle file (one upload, the same rate): its force upload is the angle file's. */
+const forcesInAngleFile = (trial: { rawUploadId: string } & TrialForceFields) =>
+	!!trial.forceRawUploadId && trial.forceRawUploadId === trial.rawUploadId;
+
+/** The plates a trial's forces name, as set up in the lab now; RunFailure when one is no longer in use. */
+async function platesOfTrial(trial: TrialForceFields): Promise<ForcePlate[]> {
+	const names = trial.forcePlates ?? [];
+	const rows = await PlateRecord.findAll({ where: { name: names, archivedAt: null } });
+	const missing = names.filter((n) => !rows.some((r) => r.name === n));
+	if (missing.length)
+		throw new RunFailure(
+			`The force file ${trial.forceFileName} names ${missing.length === 1 ? 'the plate' : 'the plates'} ${missing.join(', ')}, no longer set up in the lab (archived or renamed); set ${missing.length === 1 ? 'it' : 'them'} up again to run this trial.`
+		);
+	return names.map((n) => rows.find((r) => r.name === n)!.plate);
+}
+
+/**
+ * The plate channels of an angle file that carries them, kept by readRecording beside the angle recording it returns
+ * (the angle file is parsed once, with both) for readForces to take.
+ */
+const plateColumnsOf = new WeakMap<Recording, { recording: Recording; plates: ForcePlate[] }>();
+
+/**
+ * Reads and parses a trial's raw file for a model (gaps filled when asked); RunFailure with the problems otherwise.
+ * An angle file with its own force-plate columns is parsed with the plates' channels too; the recording returned holds
+ * the angle channels only (readForces takes the plates').
+ */
 export async function readRecording(
-	trial: { rawUploadId: string; fileName: string; mapping: unknown; sha256: string },
+	trial: { rawUploadId: string; fileName: string; mapping: unknown; sha256: string } & TrialForceFields,
 	built: ReturnType<typeof buildSessionModel>,
 	fillGaps: boolean
 ): Promise<Recording> {
 	const mapping = trial.mapping ? columnMappingSchema.parse(trial.mapping) : undefined;
+	const plates = forcesInAngleFile(trial) ? await platesOfTrial(trial) : [];
 	const parsed = await parseRecording(readRaw(trial.rawUploadId, { expectSha256: trial.sha256 }), {
 		fileName: trial.fileName,
-		expected: built.expected,
+		expected: plates.length ? [...built.expected, ...forceChannelsOf(plates, { thresholdN: DEFAULT_CONTACT_THRESHOLD_N })] : built.expected,
 		mapping,
 		fillGaps
 	});
 	if (!parsed.ok) throw new RunFailure(`The recording could not be read: ${problemText(parsed.problems)}`);
-	return parsed.recording;
+	if (!plates.length) return parsed.recording;
+	const rec = parsed.recording;
+	const names = new Set(plates.flatMap((p) => plateChannelNames(p)));
+	const angles: Recording = { ...rec, channels: rec.channels.filter((c) => !names.has(c.name)) };
+	plateColumnsOf.set(angles, { recording: { ...rec, channels: rec.channels.filter((c) => names.has(c.name)) }, plates });
+	return angles;
 }
 
 /**
  * Reads a trial's force file for a run: the plates it names as set up in the lab now (refused when one is no longer
  * in use), parsed again from the stored bytes and paired with the angle recording. Null for a trial without one.
+ * Forces in the angle file itself come from readRecording's parse (the same samples: ratio 1).
  */
 export async function readForces(
 	trial: {
@@ -94,18 +137,17 @@ export async function readForces(
 		forcePlates: string[] | null;
 		forceMapping: unknown;
 		fileName: string;
+		rawUploadId?: string;
 	},
 	angles: Recording
 ): Promise<ForceInput | null> {
 	if (!trial.forceRawUploadId || !trial.forceFileName || !trial.forceSha256) return null;
-	const names = trial.forcePlates ?? [];
-	const rows = await PlateRecord.findAll({ where: { name: names, archivedAt: null } });
-	const missing = names.filter((n) => !rows.some((r) => r.name === n));
-	if (missing.length)
-		throw new RunFailure(
-			`The force file ${trial.forceFileName} names ${missing.length === 1 ? 'the plate' : 'the plates'} ${missing.join(', ')}, no longer set up in the lab (archived or renamed); set ${missing.length === 1 ? 'it' : 'them'} up again to run this trial.`
-		);
-	const plates = names.map((n) => rows.find((r) => r.name === n)!.plate);
+	if (trial.rawUploadId && forcesInAngleFile({ ...trial, rawUploadId: trial.rawUploadId })) {
+		const own = plateColumnsOf.get(angles);
+		if (!own) throw new Error(`the force-plate columns of ${trial.fileName} were not read with its angles (readRecording first)`);
+		return { fileName: trial.forceFileName, forceHz: angles.sampleHz, ratio: 1, plates: own.plates, recording: own.recording };
+	}
+	const plates = await platesOfTrial(trial);
 	const mapping = trial.forceMapping ? columnMappingSchema.parse(trial.forceMapping) : undefined;
 	const parsed = await parseRecording(readRaw(trial.forceRawUploadId, { expectSha256: trial.forceSha256 }), {
 		fileName: trial.forceFileName,

@@ -40,7 +40,7 @@ export interface BufferedForce {
 }
 
 /** The header cells of a delimited file's first line, without quotes and without a trailing unit "(N)". */
-function headerCells(bytes: Buffer): string[] {
+export function headerCells(bytes: Buffer): string[] {
 	const end = bytes.indexOf(10);
 	let line = bytes.subarray(0, end < 0 ? Math.min(bytes.length, 65536) : end).toString('utf8');
 	if (line.charCodeAt(0) === 0xfeff) line = line.slice(1);
@@ -66,6 +66,86 @@ export interface ForceCheck {
 const problem = (file: string, p: Omit<Problem, 'file' | 'severity'>): Problem => ({ file, severity: 'error', ...p });
 const fmt = (x: number, digits = 6) => String(Number(x.toPrecision(digits)));
 
+/** The columns that name a force plate: our column scheme in the header, or the channels a mapping gives its columns. */
+export function plateColumns(cells: readonly string[], mapping?: ColumnMapping): { column: string; plate: string }[] {
+	const named: { column: string; plate: string }[] = [];
+	if (mapping) {
+		for (const [column, target] of Object.entries(mapping.columns)) {
+			const parts = target.channel ? plateChannelParts(target.channel) : undefined;
+			if (parts) named.push({ column, plate: parts.plate });
+		}
+	} else
+		for (const column of cells) {
+			const parts = plateChannelParts(channelOf(column));
+			if (parts) named.push({ column, plate: parts.plate });
+		}
+	return named;
+}
+
+/**
+ * The plates the named columns use, or one problem per plate that is not set up in the lab (naming its first column
+ * and the plates in use).
+ */
+export function platesOfColumns(
+	file: string,
+	named: readonly { column: string; plate: string }[],
+	platesInUse: readonly ForcePlate[]
+): { ok: true; plates: ForcePlate[] } | { ok: false; problems: Problem[] } {
+	const known = new Map(platesInUse.map((p) => [p.name, p]));
+	const problems: Problem[] = [];
+	const seen = new Set<string>();
+	for (const { column, plate } of named) {
+		if (known.has(plate) || seen.has(plate)) continue;
+		seen.add(plate);
+		problems.push(
+			problem(file, {
+				row: 1,
+				column,
+				code: 'plate-unknown',
+				message: `Column "${column}" of ${file} names the force plate "${plate}", which is not set up in the lab; ${inUseText(platesInUse)}. Rename the columns after a plate in use, or ask a lab administrator to set the plate up.`
+			})
+		);
+	}
+	if (problems.length) return { ok: false, problems };
+	return { ok: true, plates: [...new Set(named.map((n) => n.plate))].map((n) => known.get(n)!) };
+}
+
+const inUseText = (platesInUse: readonly ForcePlate[]) =>
+	platesInUse.length
+		? `the plates set up in the lab are ${platesInUse.map((p) => p.name).join(', ')}`
+		: 'no force plates are set up in the lab';
+
+/**
+ * Every contact's CoP must lie on its plate (within the contacts' margin): a CoP off the plate is a wrong plate
+ * set-up or a bad export. One problem per contact that leaves its plate, naming the line (the file's header is line 1).
+ */
+export function copOffPlateProblems(
+	file: string,
+	recording: Recording,
+	plates: readonly ForcePlate[],
+	opts: { sampleHz: number; thresholdN: number }
+): Problem[] {
+	const problems: Problem[] = [];
+	const signals = plateSignalsOf(recording, plates);
+	const t = recording.time;
+	for (const plate of plates) {
+		const loads = plateToLab(plate, signals.get(plate.name)!, { thresholdN: opts.thresholdN });
+		for (const c of findContacts(plate, loads, { sampleHz: opts.sampleHz, thresholdN: opts.thresholdN })) {
+			if (!c.offPlate || c.offPlateAt === null) continue;
+			const i = c.offPlateAt;
+			problems.push(
+				problem(file, {
+					row: i + 2,
+					field: plate.name,
+					code: 'cop-off-plate',
+					message: `${file}, line ${i + 2} (${fmt(t[i])} s): the centre of pressure of plate "${plate.name}" lies ${fmt(c.maxOutsideM * 1000, 3)} mm outside the plate at most during the contact from ${fmt(t[c.start])} s to ${fmt(t[c.end])} s (lines ${c.start + 2}–${c.end + 2}). Check that the plate's corners, axes and origin depth in the lab match this plate, and that its columns are in the plate's own axes.`
+				})
+			);
+		}
+	}
+	return problems;
+}
+
 /**
  * Every check of a force file against its angle recording and the lab's plates in use; the problems (each naming
  * the file, and the line, column or plate) when it fails.
@@ -78,38 +158,12 @@ export async function checkForceFile(
 ): Promise<ForceCheck | { ok: false; problems: Problem[] }> {
 	const file = force.fileName;
 	const thresholdN = opts.thresholdN ?? DEFAULT_CONTACT_THRESHOLD_N;
-	const known = new Map(platesInUse.map((p) => [p.name, p]));
 	const names = platesInUse.map((p) => p.name);
-	const existing = names.length ? `the plates set up in the lab are ${names.join(', ')}` : 'no force plates are set up in the lab';
 	// which plates the file names: our column scheme in the header, or the channels a mapping gives its columns
-	const cells = headerCells(force.bytes);
-	const named: { column: string; plate: string }[] = [];
-	if (opts.mapping) {
-		for (const [column, target] of Object.entries(opts.mapping.columns)) {
-			const parts = target.channel ? plateChannelParts(target.channel) : undefined;
-			if (parts) named.push({ column, plate: parts.plate });
-		}
-	} else
-		for (const column of cells) {
-			const parts = plateChannelParts(channelOf(column));
-			if (parts) named.push({ column, plate: parts.plate });
-		}
-	const problems: Problem[] = [];
-	const seen = new Set<string>();
-	for (const { column, plate } of named) {
-		if (known.has(plate) || seen.has(plate)) continue;
-		seen.add(plate);
-		problems.push(
-			problem(file, {
-				row: 1,
-				column,
-				code: 'plate-unknown',
-				message: `Column "${column}" of ${file} names the force plate "${plate}", which is not set up in the lab; ${existing}. Rename the columns after a plate in use, or ask a lab administrator to set the plate up.`
-			})
-		);
-	}
-	if (problems.length) return { ok: false, problems };
-	const used = [...new Set(named.map((n) => n.plate))].map((n) => known.get(n)!);
+	const named = plateColumns(headerCells(force.bytes), opts.mapping);
+	const of = platesOfColumns(file, named, platesInUse);
+	if (!of.ok) return of;
+	const used = of.plates;
 	if (!used.length)
 		return {
 			ok: false,
@@ -117,7 +171,7 @@ export async function checkForceFile(
 				problem(file, {
 					row: 1,
 					code: 'no-plate-columns',
-					message: `${file} has no force-plate columns: name them after a plate in use, e.g. "${names[0] ?? 'plate1'}.force.x (N)" (${existing}), or map the columns.`
+					message: `${file} has no force-plate columns: name them after a plate in use, e.g. "${names[0] ?? 'plate1'}.force.x (N)" (${inUseText(platesInUse)}), or map the columns.`
 				})
 			]
 		};
@@ -130,24 +184,7 @@ export async function checkForceFile(
 	const paired = pairForceRecording(angle.recording, parsed.recording, { angle: angle.fileName, force: file });
 	if (!paired.ok) return { ok: false, problems: paired.problems };
 	const { pairing } = paired;
-	// every contact's CoP must lie on its plate (within the contacts' margin): a CoP off the plate is a wrong plate set-up or a bad export
-	const signals = plateSignalsOf(pairing.force, used);
-	for (const plate of used) {
-		const loads = plateToLab(plate, signals.get(plate.name)!, { thresholdN });
-		for (const c of findContacts(plate, loads, { sampleHz: pairing.forceHz, thresholdN })) {
-			if (!c.offPlate || c.offPlateAt === null) continue;
-			const i = c.offPlateAt;
-			const t = pairing.force.time;
-			problems.push(
-				problem(file, {
-					row: i + 2,
-					field: plate.name,
-					code: 'cop-off-plate',
-					message: `${file}, line ${i + 2} (${fmt(t[i])} s): the centre of pressure of plate "${plate.name}" lies ${fmt(c.maxOutsideM * 1000, 3)} mm outside the plate at most during the contact from ${fmt(t[c.start])} s to ${fmt(t[c.end])} s (lines ${c.start + 2}–${c.end + 2}). Check that the plate's corners, axes and origin depth in the lab match this plate, and that its columns are in the plate's own axes.`
-				})
-			);
-		}
-	}
+	const problems = copOffPlateProblems(file, pairing.force, used, { sampleHz: pairing.forceHz, thresholdN });
 	if (problems.length) return { ok: false, problems };
 	return { ok: true, recording: pairing.force, plates: used, ratio: pairing.ratio };
 }

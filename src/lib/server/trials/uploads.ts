@@ -20,9 +20,25 @@ import { recordPreset } from './mapping-presets';
 import { assertSessionUnlocked, refuseIfLocked } from '../sessions/lock';
 import { buildSessionModel } from '../../processing/session-model';
 import { platesInUse } from '../equipment/plates';
-import { angleFileFor, checkForceFile, type BufferedForce } from './force-files';
-import type { ForcePlate } from '../../processing/forces';
-import { columnMappingSchema, parseRecording, type ColumnMapping, type ExpectedChannel, type Problem } from '../../processing/recording';
+import {
+	angleFileFor,
+	checkForceFile,
+	copOffPlateProblems,
+	headerCells,
+	plateColumns,
+	platesOfColumns,
+	type BufferedForce
+} from './force-files';
+import { DEFAULT_CONTACT_THRESHOLD_N, type ForcePlate } from '../../processing/forces';
+import {
+	columnMappingSchema,
+	forceChannelsOf,
+	parseRecording,
+	plateChannelNames,
+	type ColumnMapping,
+	type ExpectedChannel,
+	type Problem
+} from '../../processing/recording';
 import type { UploadOutcome } from '../../types/sessions';
 
 export type { UploadOutcome, UploadStatus } from '../../types/sessions';
@@ -238,13 +254,48 @@ async function receiveFile(ctx: FileContext, file: Readable, info: busboy.FileIn
 		await requireValidConsent(ctx.session.participantId, 'upload', t);
 		let parsed: Awaited<ReturnType<typeof parseRecording>> | null = null;
 		let parseCrash: Error | null = null;
+		// force-plate columns in the angle file itself (same rate): the plates they name, checked like a force file's
+		let inFile: ForcePlate[] = [];
+		let inFileProblems: Problem[] | null = null;
 		if (mappingProblem) chunks.state.store = false;
 		else {
 			try {
 				// short gaps are bridged only when the person asks for it (field fillGaps); otherwise a blank cell is refused
 				const fillGaps = ['on', 'true', '1'].includes(ctx.fields.get('fillGaps') ?? '');
-				// validation only: the values are not kept here (the worker parses the stored bytes again), so memory stays flat
-				parsed = await parseRecording(chunks.pieces(), { fileName, expected: ctx.expected, mapping, fillGaps, keepValues: false });
+				// the header is in the first piece: plate columns there (or in the mapping) add the plates' channels
+				const pieces = chunks.pieces();
+				const first = await pieces.next();
+				const named = first.done ? [] : plateColumns(headerCells(Buffer.from(first.value)), mapping);
+				if (named.length) {
+					const of = platesOfColumns(fileName, named, await ctx.plates());
+					if (of.ok) inFile = of.plates;
+					else inFileProblems = of.problems;
+				}
+				if (inFileProblems) chunks.state.store = false;
+				else {
+					const replay = async function* () {
+						if (!first.done) yield first.value;
+						yield* pieces;
+					};
+					// validation only: the values are not kept here (the worker parses the stored bytes again), so memory stays
+					// flat; a file with its own plate columns keeps them, to check each contact's CoP on its plate
+					parsed = await parseRecording(replay(), {
+						fileName,
+						expected: inFile.length
+							? [...ctx.expected, ...forceChannelsOf(inFile, { thresholdN: DEFAULT_CONTACT_THRESHOLD_N })]
+							: ctx.expected,
+						mapping,
+						fillGaps,
+						keepValues: inFile.length > 0
+					});
+					if (parsed.ok && inFile.length) {
+						const cop = copOffPlateProblems(fileName, parsed.recording, inFile, {
+							sampleHz: parsed.recording.sampleHz,
+							thresholdN: DEFAULT_CONTACT_THRESHOLD_N
+						});
+						if (cop.length) inFileProblems = cop;
+					}
+				}
 			} catch (err) {
 				// a parser failure on odd input is still bad input to the person, never a server error
 				if (chunks.state.writeError) throw chunks.state.writeError;
@@ -253,7 +304,7 @@ async function receiveFile(ctx: FileContext, file: Readable, info: busboy.FileIn
 				console.error(`[upload] the parser failed on ${fileName}:`, err);
 			}
 		}
-		if (!parsed?.ok || truncated) chunks.state.store = false;
+		if (!parsed?.ok || inFileProblems || truncated) chunks.state.store = false;
 		while (await chunks.next()) {
 			if (truncated) chunks.state.store = false;
 		}
@@ -295,6 +346,14 @@ async function receiveFile(ctx: FileContext, file: Readable, info: busboy.FileIn
 				message: `${fileName}: ${mappingProblem.message}`,
 				problems: [{ file: fileName, ...mappingProblem }]
 			};
+		} else if (inFileProblems) {
+			const n = inFileProblems.length;
+			outcome = {
+				...base,
+				status: 422,
+				message: `${fileName} was rejected: its force-plate columns cannot be used (${n} problem${n === 1 ? '' : 's'}); nothing was stored.`,
+				problems: inFileProblems
+			};
 		} else if (!parsed) {
 			outcome = {
 				...base,
@@ -332,7 +391,16 @@ async function receiveFile(ctx: FileContext, file: Readable, info: busboy.FileIn
 			let forceStored: { uploadId: string; sha256: string; sampleHz: number; plates: string[]; mapping: ColumnMapping | null } | null =
 				null;
 			let forceProblems: Problem[] | null = null;
-			if (force) {
+			if (force && inFile.length) {
+				forceProblems = [
+					{
+						file: force.fileName,
+						code: 'forces-twice',
+						message: `${fileName} carries its own force-plate columns (${inFile.map((p) => p.name).join(', ')}), so the force file ${force.fileName} cannot be used with it: upload the angle file with its plate columns alone, or without them and with the force file.`,
+						severity: 'error'
+					}
+				];
+			} else if (force) {
 				const fm = await resolveMapping(
 					new Map([
 						['mapping', ctx.fields.get('forceMapping') ?? ''],
@@ -377,6 +445,16 @@ async function receiveFile(ctx: FileContext, file: Readable, info: busboy.FileIn
 					}
 				}
 			}
+			// forces in the angle file: the trial's force recording is the angle file's own bytes (same upload, rate ratio 1)
+			if (!force && inFile.length)
+				forceStored = {
+					uploadId,
+					sha256,
+					sampleHz: rec.sampleHz,
+					plates: inFile.map((p) => p.name),
+					mapping: mapping ?? null
+				};
+			const plateChannels = new Set(inFile.flatMap((p) => plateChannelNames(p)));
 			if (force && forceProblems) {
 				const n = forceProblems.filter((p) => p.severity === 'error').length || forceProblems.length;
 				outcome = {
@@ -401,13 +479,13 @@ async function receiveFile(ctx: FileContext, file: Readable, info: busboy.FileIn
 						sampleHz: rec.sampleHz,
 						frameCount: frames,
 						durationS: frames > 1 ? rec.time[frames - 1] - rec.time[0] : 0,
-						channels: rec.channels.map((c) => c.name),
+						channels: rec.channels.map((c) => c.name).filter((c) => !plateChannels.has(c)),
 						warnings: rec.warnings,
 						createdBy: ctx.actor.id,
-						...(forceStored && force
+						...(forceStored
 							? {
 									forceRawUploadId: forceStored.uploadId,
-									forceFileName: force.fileName,
+									forceFileName: force?.fileName ?? fileName,
 									forceSha256: forceStored.sha256,
 									forceSampleHz: forceStored.sampleHz,
 									forcePlates: forceStored.plates,
@@ -454,13 +532,14 @@ async function receiveFile(ctx: FileContext, file: Readable, info: busboy.FileIn
 							mapped: !!mapping,
 							presetId: presetId ?? null,
 							warnings: rec.warnings.length,
-							...(forceStored && force
+							...(forceStored
 								? {
 										forceFile: {
-											fileName: force.fileName,
+											fileName: force?.fileName ?? fileName,
 											sha256: forceStored.sha256,
 											sampleHz: forceStored.sampleHz,
-											plates: forceStored.plates
+											plates: forceStored.plates,
+											...(force ? {} : { sameFile: true })
 										}
 									}
 								: {})
@@ -471,7 +550,7 @@ async function receiveFile(ctx: FileContext, file: Readable, info: busboy.FileIn
 				outcome = {
 					...base,
 					status: 201,
-					message: `${fileName} stored as a trial: ${frames} samples at ${Math.round(rec.sampleHz * 100) / 100} Hz${rec.warnings.length ? `, ${rec.warnings.length} warning${rec.warnings.length === 1 ? '' : 's'}` : ''}.${presetNote}`,
+					message: `${fileName} stored as a trial: ${frames} samples at ${Math.round(rec.sampleHz * 100) / 100} Hz${inFile.length && !force ? `, with the force plates ${inFile.map((p) => p.name).join(', ')} in the same file` : ''}${rec.warnings.length ? `, ${rec.warnings.length} warning${rec.warnings.length === 1 ? '' : 's'}` : ''}.${presetNote}`,
 					trial: trialView(trial),
 					...(presetSaved ? { presetSaved } : {}),
 					...(force ? { pairedWith: { role: 'force' as const, fileName: force.fileName } } : {})
