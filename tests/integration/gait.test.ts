@@ -252,3 +252,99 @@ describe('bad force files', () => {
 		expect(Number((await counts()).t) - Number(before.t)).toBe(1);
 	});
 });
+
+describe('a gait session through the session form', () => {
+	const gaitForm = (extra: Record<string, string>) => {
+		const form = new URLSearchParams({
+			sessionOn: '2026-11-04',
+			operator: 'T. Okafor',
+			task: 'Level walking, comfortable speed',
+			conditions: '',
+			table: 'de-leva-1996',
+			setupKind: 'pelvis',
+			// a per-limb base left in the form is not read with a pelvis
+			'base.right.leg': 'moving',
+			...extra
+		});
+		form.append('limbs', 'right.leg');
+		form.append('limbs', 'left.leg');
+		return fetch(`${app.base}/studies/${studyA}/participants/${app.ids.participantA}/sessions/new`, {
+			method: 'POST',
+			body: form,
+			redirect: 'manual',
+			headers: {
+				cookie: app.cookies.technicianA,
+				origin: app.base,
+				accept: 'text/html',
+				'content-type': 'application/x-www-form-urlencoded'
+			}
+		});
+	};
+
+	it('is created with both legs on one moving pelvis and the hip joint centre distance entered in mm (stored in m)', async () => {
+		const res = await gaitForm({ hipWidthMm: '182' });
+		expect(res.status).toBe(303);
+		const sid = /\/sessions\/([0-9a-f-]{36})/.exec(res.headers.get('location') ?? '')![1];
+		const row = (await app.sql.query(`SELECT setup FROM sessions WHERE id = $1`, [sid])).rows[0];
+		expect(row.setup).toMatchObject({ limbs: ['right.leg', 'left.leg'], bases: {}, pelvis: { hipWidthM: 0.182 } });
+		// the session page lists the pelvis columns among those a file must contain
+		const page = await (await http.get(`/studies/${studyA}/sessions/${sid}`, app.cookies.technicianA)).text();
+		for (const c of ['pelvis.px', 'pelvis.py', 'pelvis.pz', 'pelvis.rx', 'pelvis.ry', 'pelvis.rz'])
+			expect(page).toContain(`<code>${c}</code>`);
+		expect(page).toContain('182 mm apart (entered)');
+	});
+
+	it('refuses a hip joint centre distance out of range under its field, and stores nothing', async () => {
+		const before = (await app.sql.query(`SELECT count(*) n FROM sessions`)).rows[0].n;
+		const res = await gaitForm({ hipWidthMm: '18' });
+		expect(res.status).toBe(400);
+		const html = await res.text();
+		expect(html).toContain('Enter the distance between the hip joint centres from 100 to 500 mm');
+		expect((await app.sql.query(`SELECT count(*) n FROM sessions`)).rows[0].n).toBe(before);
+	});
+});
+
+describe('feet set by hand (contactFeet) when a run starts', () => {
+	let trialId: string;
+	const start = (options: unknown) =>
+		fetch(`${app.base}/api/studies/${studyA}/trials/${trialId}/runs`, {
+			method: 'POST',
+			body: JSON.stringify(options),
+			headers: { cookie: app.cookies.technicianA, origin: app.base, accept: 'application/json', 'content-type': 'application/json' }
+		});
+	const runs = async () => Number((await app.sql.query(`SELECT count(*) n FROM runs WHERE trial_id = $1`, [trialId])).rows[0].n);
+
+	beforeAll(async () => {
+		const r = await upload(session, [
+			{ name: 'walk30.csv', bytes: angleCsv(200, 2, 1.7) },
+			{ name: 'walk30.forces.csv', bytes: forceCsv() }
+		]);
+		expect(r.status, JSON.stringify(r.body)).toBe(201);
+		trialId = r.body.results[0].trial.id;
+	}, 60_000);
+
+	it('refuses a contact id that does not exist, naming it and the contacts there are; nothing is started', async () => {
+		const before = await runs();
+		const res = await start({ cutoffHz: 6, contactFeet: { 'plate1#3': 'left' } });
+		expect(res.status).toBe(400);
+		const body = (await res.json()) as { message: string; errors?: Record<string, string> };
+		const text = body.errors?.contactFeet ?? body.message;
+		// the force file has one contact on plate1 (0.5 s to 1.1 s): its id is plate1#0
+		expect(text).toMatch(/"plate1#3" is not a contact of trial walk30\.csv; at this force cutoff its contacts are plate1#0\./);
+		expect(await runs()).toBe(before);
+	});
+
+	it('refuses an id naming no plate of the trial and a foot that is not left or right', async () => {
+		type Refusal = { errors: Record<string, string> };
+		const bad = await start({ cutoffHz: 6, contactFeet: { 'plate2#0': 'right' } });
+		expect(bad.status).toBe(400);
+		expect(((await bad.json()) as Refusal).errors.contactFeet).toMatch(
+			/"plate2#0" is not a contact of trial walk30\.csv.*a plate of its force file \(plate1\)/
+		);
+		const foot = await start({ cutoffHz: 6, contactFeet: { 'plate1#0': 'middle' } });
+		expect(foot.status).toBe(400);
+		expect(((await foot.json()) as Refusal).errors.contactFeet).toBe(
+			'contactFeet["plate1#0"]: the foot must be "left", "right" or null (no foot).'
+		);
+	});
+});
