@@ -83,3 +83,73 @@ test('drop two files, watch each upload, see one stored and one rejected, then r
 	await expect(panels.first()).toBeVisible();
 	await expect(page.locator('[data-testid=moment-panel][data-dof="right.elbow.flexion"]')).toBeVisible();
 });
+
+test('a gait session from the form, a force file paired with its angle file in the upload area, the force options of a new run', async ({
+	page
+}) => {
+	test.setTimeout(90_000);
+	await technicianAtShelfReachParticipants(page);
+	await page.getByRole('link', { name: 'ALD-002', exact: true }).click();
+	await page.getByRole('link', { name: 'New session' }).click();
+	await page.getByLabel('Operator').fill('E2E operator');
+	await page.getByLabel('Task').fill('Level walking over the plates (browser test)');
+	await page.getByRole('radio', { name: /Both legs on one moving pelvis/ }).check();
+	const pelvis = page.getByTestId('pelvis-setup');
+	await expect(pelvis).toContainText('pelvis.px');
+	await expect(pelvis).toContainText('Entering the measured distance is better');
+	// arms are not part of a pelvis set-up; the legs take no base of their own
+	await expect(page.getByTestId('limb-right.arm')).toBeDisabled();
+	await expect(page.getByLabel('Base', { exact: true })).toHaveCount(0);
+	await page.getByLabel(/Distance between the hip joint centres/).fill('180');
+	for (const limb of ['right.leg', 'left.leg']) await page.getByTestId(`limb-${limb}`).check();
+	await page.getByRole('button', { name: 'Create session' }).click();
+	await expect(page.getByRole('heading', { level: 1, name: /^Session of ALD-002 on / })).toBeVisible();
+	await expect(page.getByTestId('setup-pelvis')).toContainText('180 mm apart (entered)');
+
+	// an angle file with the columns the session lists (pelvis and both legs), 40 samples at 200 Hz as the force sample's 196 at 1000 Hz
+	const columns = (await page.getByTestId('session-setup').locator('details li code').allTextContents()).filter((c) => c !== 'time (s)');
+	expect(columns).toContain('pelvis.px');
+	const value = (c: string, t: number) =>
+		c === 'pelvis.px'
+			? (1.2 + 1.2 * t).toFixed(4)
+			: c === 'pelvis.py'
+				? '0.9500'
+				: c.startsWith('pelvis.')
+					? '0.0000'
+					: (5 + 10 * t).toFixed(3);
+	const rows = [['time (s)', ...columns.map((c) => `${c} (${c.startsWith('pelvis.p') ? 'm' : 'deg'})`)].join(',')];
+	for (let k = 0; k < 40; k++) rows.push([(k / 200).toFixed(3), ...columns.map((c) => value(c, k / 200))].join(','));
+	const forces = readFileSync(join(import.meta.dirname, '../fixtures/recordings/forces/walk-forces-1000hz.csv'));
+
+	// the force file's name does not give its angle file: the upload area asks for it
+	await page.locator('#upload-files').setInputFiles([
+		{ name: 'e2e-walk.csv', mimeType: 'text/csv', buffer: Buffer.from(rows.join('\n') + '\n') },
+		{ name: 'e2e-plates.csv', mimeType: 'text/csv', buffer: forces }
+	]);
+	await page.getByTestId('upload-area').getByRole('button', { name: 'Upload', exact: true }).click();
+	const pairing = page.getByTestId('pairing');
+	await expect(pairing.getByTestId('pairing-problems')).toContainText('Choose the angle file of the force file e2e-plates.csv');
+	const send = pairing.getByRole('button', { name: /^Send 2 files$/ });
+	await expect(send).toBeDisabled();
+	// by keyboard: the select of the force file, then the send button
+	const choose = pairing.getByLabel('Angle file for force file e2e-plates.csv');
+	await choose.focus();
+	await choose.selectOption('e2e-walk.csv');
+	await expect(pairing.getByTestId('pairing-angle')).toContainText('with force file e2e-plates.csv');
+	await send.focus();
+	await page.keyboard.press('Enter');
+
+	const items = page.getByTestId('upload-item');
+	const angle = items.filter({ hasText: 'e2e-walk.csv' }).filter({ hasNotText: 'Force file of' });
+	const force = items.filter({ hasText: 'Force file of e2e-walk.csv' });
+	await expect(angle.getByRole('status')).toContainText('stored');
+	await expect(angle.getByTestId('upload-paired')).toContainText('With its force file e2e-plates.csv');
+	await expect(force.getByRole('status')).toContainText('stored with e2e-walk.csv as its force recording');
+	await expect(page.getByTestId('trial-row')).toHaveCount(1);
+
+	// the new run form of a trial with forces offers the force cutoff and flagged contacts
+	const options = page.getByTestId('trial-runs').getByTestId('force-options');
+	await expect(options).toContainText('plate1, plate2 in e2e-plates.csv');
+	await expect(options.getByRole('radio', { name: /Same cutoff as the angles/ })).toBeChecked();
+	await expect(options.getByRole('checkbox', { name: /Use flagged contacts/ })).not.toBeChecked();
+});
