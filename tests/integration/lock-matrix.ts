@@ -92,6 +92,13 @@ export const LOCK_MATRIX: LockEntry[] = [
 	...exempt(notSession, '/account', 'password'),
 	...exempt(notSession, '/invitation/[token]', 'default'),
 	...exempt(notSession, '/people/[id]', 'role', 'admin', 'deactivate', 'reactivate'),
+	...exempt(
+		'lab equipment; runs copy the plate geometry they used into their own record',
+		'/lab/force-plates',
+		'create',
+		'update',
+		'archive'
+	),
 	...exempt(notSession, '/people/invite', 'default'),
 	...exempt(notSession, '/reset-password/[token]', 'default'),
 	...exempt(notSession, '/signin', 'link', 'password'),
