@@ -13,7 +13,12 @@
 // angles are written as degrees to 6 decimals and the forces to 6 decimals, which that rule leaves room for.
 /* eslint-disable @typescript-eslint/no-explicit-any -- JSON answers are read loosely here; their shapes are what the assertions check */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { startApp, type AppUnderTest } from './app-under-test';
+import { execFileSync } from 'node:child_process';
+import { createHash } from 'node:crypto';
+import fs from 'node:fs';
+import os from 'node:os';
+import path from 'node:path';
+import { DEMO_PASSWORD, startApp, type AppUnderTest } from './app-under-test';
 import { waitForMail } from './helpers';
 import { start, stop, type Child } from '../../src/cli/lib/proc';
 import { forcesCsv, simulateWalkingTrial, type WalkingTrial } from '../../src/lib/processing/simulate-walking';
@@ -372,5 +377,92 @@ describe('an angle file with its own force-plate columns (one file, the angle ra
 			expect(worstNear, c.name).toBeLessThan(8);
 		}
 		console.log(report.join('\n'));
+	}, 120_000);
+});
+
+describe('the export of the approved gait session', () => {
+	it('holds the force file, the plates’ loads, contacts, events, cycles and spatiotemporal table as CSV; results.csv only per-DOF rows', async () => {
+		const page = `/studies/${studyId}/sessions/${sessionId}`;
+		const submitted = await formPost(app.cookies.researcherA, `${page}?/submit`, { note: 'Two walks over the plates.', confirm: 'yes' });
+		expect(submitted.status, submitted.text.slice(0, 400)).toBe(303);
+		const approved = await formPost(app.cookies.piA, `${page}?/approve`, { meaning: 'approved for analysis', password: DEMO_PASSWORD });
+		expect(approved.status, approved.text.slice(0, 400)).toBe(303);
+		const res = await fetch(`${app.base}/api/studies/${studyId}/sessions/${sessionId}/export`, {
+			headers: { cookie: app.cookies.researcherA, accept: 'application/zip' }
+		});
+		expect(res.status, res.status === 200 ? '' : await res.text()).toBe(200);
+		const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'momentry-gait-export-'));
+		try {
+			fs.writeFileSync(path.join(dir, 'x.zip'), Buffer.from(await res.arrayBuffer()));
+			// python's zipfile checks every entry's CRC while extracting
+			execFileSync('/usr/bin/python3', ['-m', 'zipfile', '-e', path.join(dir, 'x.zip'), path.join(dir, 'x')]);
+			const read = (f: string) => fs.readFileSync(path.join(dir, 'x', f), 'utf8');
+			const sha = (f: string) =>
+				createHash('sha256')
+					.update(fs.readFileSync(path.join(dir, 'x', f)))
+					.digest('hex');
+			// the raw files: both of the pair; the one-file trial once
+			expect(read('raw/walk01.forces.csv')).toBe(trial.forcesCsv);
+			expect(read('raw/walk01.csv')).toBe(trial.anglesCsv);
+			expect(fs.existsSync(path.join(dir, 'x', 'raw/walk02.csv'))).toBe(true);
+			const prov = JSON.parse(read('provenance.json'));
+			const t1 = prov.trials.find((t: any) => t.fileName === 'walk01.csv');
+			const t2 = prov.trials.find((t: any) => t.fileName === 'walk02.csv');
+			expect(t1.forceFile).toMatchObject({ fileName: 'walk01.forces.csv', sampleHz: 1000, plates: ['plate1', 'plate2'], sameFile: false });
+			expect(t1.forceFile.sha256).toBe(sha('raw/walk01.forces.csv'));
+			expect(t2.forceFile).toMatchObject({ fileName: 'walk02.csv', sampleHz: 200, sameFile: true, archivePath: 'raw/walk02.csv' });
+			expect(t1.run.gait.files).toEqual(
+				['ground.csv', 'contacts.csv', 'events.csv', 'cycles.csv', 'spatiotemporal.csv'].map((f) => `gait/walk01/${f}`)
+			);
+			expect(t1.run.gait.forces).toMatchObject({ sampleHz: 1000, angleHz: 200, ratio: 5, thresholdN: DEFAULT_CONTACT_THRESHOLD_N });
+			// results.csv: per-DOF rows only, every value a number
+			const results = read('results.csv').trim().split('\n');
+			expect(results.some((l) => /,(grf|cop|free_moment)_[xyz],/.test(l))).toBe(false);
+			expect(results.slice(1).every((l) => Number.isFinite(Number(l.split(',')[9])))).toBe(true);
+			// ground.csv: the stored loads at the angle rate (the gait answer rounds to 6 significant digits)
+			const ground = read('gait/walk01/ground.csv').trim().split('\n');
+			const head = ground[0].split(',');
+			expect(head.slice(0, 5)).toEqual([
+				'time (s)',
+				'in_edge_zone',
+				'plate1.grf_lab.x (N)',
+				'plate1.grf_lab.y (N)',
+				'plate1.grf_lab.z (N)'
+			]);
+			expect(head).toContain('plate2.cop_lab.z (m)');
+			expect(head).toContain('plate1.free_moment_lab.y (N·m)');
+			expect(ground).toHaveLength(1 + trial.sim.time.length);
+			const col = (name: string) => ground.slice(1).map((l) => l.split(',')[head.indexOf(name)]);
+			const fy = col('plate1.grf_lab.y (N)').map(Number);
+			const answered = gait.grf.find((g: any) => g.plate === 'plate1').y as number[];
+			fy.forEach((v, k) => expect(Math.abs(v - answered[k])).toBeLessThanOrEqual(1e-5 * Math.max(1, Math.abs(v))));
+			const copX = col('plate1.cop_lab.x (m)');
+			expect(copX[0]).toBe(''); // unloaded: not defined
+			const c1 = gait.contacts[0];
+			expect(Number(copX[Math.round((c1.start + c1.end) / 2)])).toBeGreaterThan(0);
+			// contacts, events, cycles, spatiotemporal table: the gait answer's, row for row
+			const contacts = read('gait/walk01/contacts.csv').trim().split('\n');
+			expect(contacts[0]).toBe(
+				'contact,plate,foot,assigned_by,start (s),end (s),start_sample,end_sample,shared,off_plate,clipped,used,not_used_because'
+			);
+			expect(contacts.slice(1).map((l) => l.split(',').slice(0, 3))).toEqual([
+				['plate1#0', 'plate1', 'right'],
+				['plate2#0', 'plate2', 'left']
+			]);
+			const events = read('gait/walk01/events.csv').trim().split('\n');
+			expect(events[0]).toBe('foot,event,time (s),sample,source');
+			expect(events.slice(1).map((l) => l.split(',')[3])).toEqual(gait.events.map((e: any) => String(e.sample)));
+			const cycles = read('gait/walk01/cycles.csv').trim().split('\n');
+			expect(cycles).toHaveLength(1 + gait.cycles.length);
+			expect(cycles[0].split(',').slice(0, 6)).toEqual(['foot', 'cycle', 'start (s)', 'end (s)', 'foot_off (s)', 'cycle_time (s)']);
+			const st = read('gait/walk01/spatiotemporal.csv').trim().split('\n');
+			expect(st[0]).toBe('foot,parameter,unit,mean,sd,cycles');
+			const cadence = st.find((l) => l.startsWith('right,cadence,'))!.split(',');
+			expect(cadence[2]).toBe('steps/min');
+			expect(cadence[3]).toBe(String(gait.spatiotemporal.right.cadence.mean ?? ''));
+			expect(read('README.txt')).toContain('gait/<trial>/');
+		} finally {
+			fs.rmSync(dir, { recursive: true, force: true });
+		}
 	}, 120_000);
 });

@@ -1,6 +1,7 @@
 // Export of an approved session as one ZIP streamed to the client: results.csv (long format, one row per value, each
 // marked in or out of its run's edge zone), provenance.json (with each run's edge zone and its peaks without the
-// edge zones), README.txt and the raw uploads byte for byte. Never any participant's personal data.
+// edge zones), README.txt, the raw uploads byte for byte (force files too) and, for a run with force data, its gait
+// files (export-gait.ts). Never any participant's personal data.
 import { Readable } from 'node:stream';
 import { ZipArchive } from 'archiver';
 import { Participant, RunSeries } from '../db/models';
@@ -14,6 +15,7 @@ import { listRunsForSession, softwareVersion, storedResultsOf, summaryRows, type
 import { component, decodeFloat64 } from '../runs/results-codec';
 import { SEGMENT_TABLES, type SegmentTableId } from '../../anthropometry/tables';
 import { approvalOf } from './workflow';
+import { GAIT_FILES, GROUND_QUANTITIES, runGaitExport, type RunGaitExport } from './export-gait';
 import { eventsOfRun } from '../review/review';
 import { normaliseCycles } from '../../processing/cycles';
 import { EDGE_ZONE_NOT_COMPUTED, inEdgeZone, reliableSpan, timeInEdgeZone, type EdgeZoneView } from '../../processing/zone-exclusion';
@@ -36,6 +38,10 @@ export const RESULT_COLUMNS = [
 export interface ExportTrial {
 	trial: ExportTrialRow;
 	archivePath: string;
+	/** The trial's separate force file in the archive (null without one, or with the forces in the angle file). */
+	forceArchivePath: string | null;
+	/** The folder of the exported run's gait files (used only when the run has force data). */
+	gaitFolder: string;
 	/** The latest done run that is not excluded, or null. */
 	run: RunView | null;
 	others: RunView[];
@@ -56,11 +62,23 @@ export async function exportTrials(sessionId: string): Promise<ExportTrial[]> {
 		const mine = runs.filter((r) => r.trialId === t.id);
 		const run = exportedRunOf(mine);
 		// one safe entry name per file: no folders, no leading dots, unique within the ZIP
-		const base = t.file_name.replace(/[\\/]/g, '_').replace(/^\.+/, '') || 'trial';
-		let name = base;
-		for (let k = 2; used.has(name); k++) name = `${k}-${base}`;
-		used.add(name);
-		return { trial: t, archivePath: `raw/${name}`, run, others: mine.filter((r) => r !== run) };
+		const unique = (fileName: string, prefix: string) => {
+			const base = fileName.replace(/[\\/]/g, '_').replace(/^\.+/, '') || 'trial';
+			let name = base;
+			for (let k = 2; used.has(prefix + name); k++) name = `${k}-${base}`;
+			used.add(prefix + name);
+			return prefix + name;
+		};
+		const archivePath = unique(t.file_name, 'raw/');
+		const separateForce = t.force_raw_upload_id && t.force_file_name && t.force_raw_upload_id !== t.raw_upload_id;
+		return {
+			trial: t,
+			archivePath,
+			forceArchivePath: separateForce ? unique(t.force_file_name!, 'raw/') : null,
+			gaitFolder: unique(archivePath.slice(4).replace(/\.[^.]*$/, '') || 'trial', 'gait/'),
+			run,
+			others: mine.filter((r) => r !== run)
+		};
 	});
 }
 
@@ -95,6 +113,8 @@ export async function refuseNonFinite(trials: ExportTrial[]): Promise<void> {
 			]
 		});
 		for (const s of meta) {
+			// a centre of pressure is undefined (NaN) wherever its plate is unloaded, by design: ground.csv leaves those cells empty
+			if (s.quantity === 'cop') continue;
 			const values = (await seriesValues(run.id, s.name, s.quantity))!;
 			const k = values.findIndex((v) => !Number.isFinite(v));
 			if (k >= 0)
@@ -111,8 +131,9 @@ async function* resultsCsv(participantCode: string, trials: ExportTrial[]): Asyn
 	yield Buffer.from(RESULT_COLUMNS.join(',') + '\n');
 	for (const { trial, run } of trials) {
 		if (!run) continue;
+		// the plates' loads are not per DOF: they go to the trial's gait/…/ground.csv
 		const meta = (await RunSeries.findAll({ where: { runId: run.id }, attributes: ['name', 'quantity', 'unit', 'components'] })).filter(
-			(s) => s.quantity !== 'time'
+			(s) => s.quantity !== 'time' && !GROUND_QUANTITIES.includes(s.quantity)
 		);
 		const timeRow = await RunSeries.findOne({ where: { runId: run.id, quantity: 'time' }, attributes: ['data'] });
 		if (!timeRow) continue;
@@ -205,7 +226,29 @@ provenance.json — software version, export time, the study (code, title, ethic
   parameters, the anthropometric table with its full citation, and the session's approval (approver, time,
   meaning).
 
-raw/ — each trial's file exactly as uploaded; its SHA-256 is in provenance.json (trials[].rawSha256).
+raw/ — each trial's file exactly as uploaded; its SHA-256 is in provenance.json (trials[].rawSha256). A trial's
+  separate force-plate file is there too (trials[].forceFile: archivePath, sha256, sampleHz, plates); a trial whose
+  angle file carries the plate columns itself has forceFile.sameFile true and no second file.
+
+gait/<trial>/ — for a trial whose exported run has force-plate data (provenance.json trials[].run.gait), in lab axes
+  (X anterior, Y superior, Z right), SI units; an empty cell is a value that is not defined there:
+  ground.csv          one row per sample at the angle rate: time (s), in_edge_zone, then per plate
+                      <plate>.grf_lab.x|y|z (N)         ground reaction force on the person
+                      <plate>.cop_lab.x|y|z (m)         centre of pressure on the plate's top surface (empty while
+                                                        the plate is unloaded, below the contact threshold)
+                      <plate>.free_moment_lab.x|y|z (N·m)  free moment on the person about the plate's normal
+                      (the forces low-pass filtered and brought to the angle rate as provenance.json
+                      trials[].run.gait.forces says: sample rate, ratio, cutoff, contact threshold)
+  contacts.csv        each loaded interval of a plate: contact (<plate>#<n>), plate, foot, assigned_by (model or
+                      user), start (s), end (s), start_sample, end_sample (0-based rows of ground.csv, inclusive),
+                      shared, off_plate, clipped, used (its force applied to the foot for the moments),
+                      not_used_because
+  events.csv          foot, event (foot_strike or foot_off), time (s), sample, source (plate or kinematic)
+  cycles.csv          one row per cycle (a foot strike to the next of the same foot): foot, cycle, start (s),
+                      end (s), foot_off (s), cycle_time (s), stance_time (s), swing_time (s), stance (% cycle),
+                      swing (% cycle), the source of each event, in_means, left_out_because
+  spatiotemporal.csv  per foot: parameter (cadence, cycle_time, stance_time, swing_time, stance, swing,
+                      double_support, step_length, stride_length, speed), unit, mean, sd (sample SD), cycles (n)
 
 CAUTION: these results are model-based estimates for research. They are not a clinical diagnosis.
 `;
@@ -241,6 +284,8 @@ export async function exportSession(actor: Actor | null, ctx: RequestContext, re
 	const approval = await approvalOf(s.id);
 	const exportedAt = new Date();
 	const stored = await Promise.all(trials.map((t) => storedResultsOf(t.run?.id ?? null)));
+	const gait: (RunGaitExport | null)[] = [];
+	for (const [i, t] of trials.entries()) gait.push(t.run ? await runGaitExport(t.run.id, stored[i].edgeZone) : null);
 	const provenance = {
 		format: 'momentry-session-export/1',
 		software: { name: 'Momentry', version: softwareVersion() },
@@ -262,6 +307,17 @@ export async function exportSession(actor: Actor | null, ctx: RequestContext, re
 				frames: t.trial.frame_count,
 				durationS: t.trial.duration_s,
 				channels: t.trial.channels,
+				forceFile: t.trial.force_raw_upload_id
+					? {
+							fileName: t.trial.force_file_name,
+							sha256: t.trial.force_sha256,
+							sampleHz: t.trial.force_sample_hz,
+							plates: t.trial.force_plates,
+							sameFile: t.trial.force_raw_upload_id === t.trial.raw_upload_id,
+							archivePath: t.forceArchivePath ?? t.archivePath,
+							byteSize: t.trial.force_byte_size === null ? null : Number(t.trial.force_byte_size)
+						}
+					: null,
 				run: t.run && {
 					number: t.run.number,
 					options: t.run.options,
@@ -280,7 +336,13 @@ export async function exportSession(actor: Actor | null, ctx: RequestContext, re
 						wholeTrial: summaryRows(summary, true)
 					},
 					anthropometricTable: { id: tableId, ...(SEGMENT_TABLES[tableId] ?? {}) },
-					model
+					model,
+					gait: gait[i] && {
+						folder: t.gaitFolder,
+						files: GAIT_FILES.map((f) => `${t.gaitFolder}/${f}`),
+						forces: gait[i]!.forces,
+						lengthBasis: gait[i]!.lengthBasis
+					}
 				},
 				runsNotExported: t.others.map((r) => ({
 					number: r.number,
@@ -309,7 +371,14 @@ export async function exportSession(actor: Actor | null, ctx: RequestContext, re
 			name: t.archivePath,
 			date
 		});
+		if (t.forceArchivePath && t.trial.force_raw_upload_id)
+			archive.append(
+				Readable.from(readRaw(t.trial.force_raw_upload_id, { expectSha256: t.trial.force_sha256 ?? undefined }), { objectMode: false }),
+				{ name: t.forceArchivePath, date }
+			);
 	}
+	for (const [i, t] of trials.entries())
+		for (const [file, text] of gait[i]?.files ?? []) archive.append(text, { name: `${t.gaitFolder}/${file}`, date });
 	archive.finalize().catch((err: unknown) => console.error('session export failed:', err));
 	const safe = (x: string) => x.replace(/[^A-Za-z0-9._-]+/g, '_');
 	const fileName = `${safe(study.code)}-${safe(p.code)}-${safe(s.sessionOn)}-session.zip`;

@@ -225,12 +225,21 @@ export interface ExportTrialRow {
 	frame_count: number;
 	duration_s: number;
 	channels: string[];
+	/** The trial's force recording (all null without one; the angle file's own upload when it carries the plate columns). */
+	force_raw_upload_id: string | null;
+	force_file_name: string | null;
+	force_sha256: string | null;
+	force_sample_hz: number | null;
+	force_plates: string[] | null;
+	force_byte_size: string | number | null;
 }
 
-/** The session's trials, oldest first, with the size of each raw upload. */
+/** The session's trials, oldest first, with the size of each raw upload (and of its force file's). */
 export const exportTrialRows = (sessionId: string) =>
 	select<ExportTrialRow>(
-		`SELECT t.id, t.file_name, t.sha256, t.raw_upload_id, u.byte_size, t.sample_hz, t.frame_count, t.duration_s, t.channels
-		 FROM trials t JOIN raw_uploads u ON u.id = t.raw_upload_id WHERE t.session_id = :sessionId ORDER BY t.created_at, t.id`,
+		`SELECT t.id, t.file_name, t.sha256, t.raw_upload_id, u.byte_size, t.sample_hz, t.frame_count, t.duration_s, t.channels,
+		        t.force_raw_upload_id, t.force_file_name, t.force_sha256, t.force_sample_hz, t.force_plates, fu.byte_size AS force_byte_size
+		 FROM trials t JOIN raw_uploads u ON u.id = t.raw_upload_id LEFT JOIN raw_uploads fu ON fu.id = t.force_raw_upload_id
+		 WHERE t.session_id = :sessionId ORDER BY t.created_at, t.id`,
 		{ sessionId }
 	);
