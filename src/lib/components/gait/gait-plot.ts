@@ -95,7 +95,12 @@ export function assignedWords(c: ContactView): string {
 
 /** The plates as the floor plan takes them (four corners; a plate with another count is left out). */
 export function platesForPlan(plates: GaitData['plates']): ForcePlate[] {
-	return plates.filter((p) => p.corners.length === 4 && p.axes.length === 3) as unknown as ForcePlate[];
+	return plates.flatMap((p): ForcePlate[] => {
+		const [c0, c1, c2, c3] = p.corners;
+		const [a0, a1, a2] = p.axes;
+		if (p.corners.length !== 4 || p.axes.length !== 3) return [];
+		return [{ ...p, corners: [c0, c1, c2, c3], axes: [a0, a1, a2] }];
+	});
 }
 
 export interface CopTrail {

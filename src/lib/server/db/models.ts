@@ -23,6 +23,15 @@ import type { EventSet } from '../../types/review';
 import type { EdgeZone } from '../../processing/pipeline';
 import { sessionSetupSchema, type SessionSetup } from '../../processing/session-model';
 import { columnMappingSchema, type ColumnMapping } from '../../processing/recording';
+import type { ContactView, GaitCycleView, GaitEventView } from '../../types/gait';
+import {
+	contactViewSchema,
+	cycleViewSchema,
+	eventViewSchema,
+	storedForcesSchema,
+	storedSpatiotemporalSchema,
+	type StoredForces
+} from './gait-json';
 import { forcePlateSchema, type ForcePlate as PlateGeometry, type PlateOutput } from '../../processing/forces/plate';
 import {
 	modelFieldsSchema,
@@ -304,13 +313,14 @@ export class CycleEvent extends Keyed<CycleEvent> {
  * contacts, gait events, cycles and spatiotemporal parameters, as the worker computed them (runs/gait-results.ts
  * writes and reads them; shapes in StoredGait there).
  */
+/** A gait run's results (migration 0011); its JSON columns parsed when read with the schemas of gait-json.ts. */
 export class RunGait extends Typed<RunGait> {
 	declare runId: string;
-	declare forces: Record<string, unknown>;
-	declare contacts: unknown[];
-	declare events: unknown[];
-	declare cycles: unknown[];
-	declare spatiotemporal: Record<string, unknown>;
+	declare forces: StoredForces;
+	declare contacts: ContactView[];
+	declare events: GaitEventView[];
+	declare cycles: GaitCycleView[];
+	declare spatiotemporal: z.output<typeof storedSpatiotemporalSchema>;
 	declare createdAt: CreationOptional<Date>;
 }
 
@@ -590,11 +600,11 @@ export function initModels(sequelize: Sequelize): void {
 
 	register(RunGait, 'run_gait', 'RunGait', {
 		runId: keyPart(UUID),
-		forces: required(JSONB),
-		contacts: required(JSONB),
-		events: required(JSONB),
-		cycles: required(JSONB),
-		spatiotemporal: required(JSONB),
+		forces: json('forces', storedForcesSchema, { allowNull: false }),
+		contacts: json('contacts', z.array(contactViewSchema), { allowNull: false }),
+		events: json('events', z.array(eventViewSchema), { allowNull: false }),
+		cycles: json('cycles', z.array(cycleViewSchema), { allowNull: false }),
+		spatiotemporal: json('spatiotemporal', storedSpatiotemporalSchema, { allowNull: false }),
 		createdAt: now()
 	});
 

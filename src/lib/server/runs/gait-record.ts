@@ -3,16 +3,8 @@
 import { CYCLE_EXCLUSION_TEXT, type GaitCycle, type GaitEvent, type Spatiotemporal, type Stat } from '../../processing/gait';
 import type { ContactView, FootSpatiotemporalView, GaitCycleView, GaitEventView, StatView } from '../../types/gait';
 
-/** How the run brought the forces to the angle rate (run_gait.forces). */
-export interface StoredForces {
-	fileName: string;
-	sampleHz: number;
-	angleHz: number;
-	ratio: number;
-	cutoffHz: number | null;
-	thresholdN: number;
-	bodyWeightN: number | null;
-}
+import type { StoredForces } from '../db/gait-json';
+export type { StoredForces } from '../db/gait-json';
 
 /** The gait results the worker stores for a run (run_gait), numbers rounded, NaN as null. */
 export interface StoredGait {

@@ -9,7 +9,7 @@ import { studyFor, type Actor } from '../access/guard';
 import { DomainError } from '../errors';
 import { runIn } from './runs';
 import { component, decodeFloat64 } from './results-codec';
-import type { StoredForces, StoredGait } from './gait-record';
+import type { StoredGait } from './gait-record';
 import type { ContactView, GaitAnswer, GaitCycleView, GaitEventView, GaitPlateView } from '../../types/gait';
 
 /** Inside the results' transaction: replaces the run's gait row (a second attempt overwrites the first's). */
@@ -19,11 +19,11 @@ export async function writeGait(runId: string, gait: StoredGait | null, transact
 	await RunGait.create(
 		{
 			runId,
-			forces: gait.forces as unknown as Record<string, unknown>,
+			forces: gait.forces,
 			contacts: gait.contacts,
 			events: gait.events,
 			cycles: gait.cycles,
-			spatiotemporal: gait.spatiotemporal as unknown as Record<string, unknown>
+			spatiotemporal: gait.spatiotemporal
 		},
 		{ transaction }
 	);
@@ -40,7 +40,7 @@ export async function loadGait(actor: Actor | null, ctx: RequestContext, input: 
 	if (run.state !== 'done') throw new DomainError('conflict', `This run is ${run.state}; its results can be read once it is done.`);
 	const gait = await RunGait.findByPk(run.id);
 	if (!gait) return { runId: run.id, gait: false };
-	const forces = gait.forces as unknown as StoredForces;
+	const forces = gait.forces;
 	const rows = await RunSeries.findAll({ where: { runId: run.id, quantity: ['time', 'grf', 'cop', 'free_moment'] } });
 	const timeRow = rows.find((s) => s.quantity === 'time');
 	const t = timeRow ? Array.from(decodeFloat64(timeRow.data), (v) => Math.round(v * 1e6) / 1e6) : [];
@@ -74,7 +74,7 @@ export async function loadGait(actor: Actor | null, ctx: RequestContext, input: 
 		const c = rows.find((s) => s.quantity === 'cop' && s.name === name);
 		return c ? [{ plate: name, ...xyz(c.data, roundedOrNull) }] : [];
 	});
-	const st = gait.spatiotemporal as unknown as StoredGait['spatiotemporal'];
+	const st = gait.spatiotemporal;
 	return {
 		runId: run.id,
 		gait: true,

@@ -6,7 +6,7 @@ import { RunGait, RunSeries } from '../db/models';
 import { component, decodeFloat64 } from '../runs/results-codec';
 import type { StoredForces, StoredGait } from '../runs/gait-record';
 import { inEdgeZone, type EdgeZoneView } from '../../processing/zone-exclusion';
-import type { ContactView, GaitCycleView, GaitEventView, StatView } from '../../types/gait';
+import type { ContactView, GaitCycleView, GaitEventView } from '../../types/gait';
 
 /** The series quantities of a run's ground data: exported in ground.csv, not in results.csv (they are not per DOF). */
 export const GROUND_QUANTITIES: readonly string[] = ['grf', 'cop', 'free_moment'];
@@ -150,8 +150,7 @@ const PARAMETERS = [
 function spatiotemporalCsv(st: StoredGait['spatiotemporal']): string {
 	const rows: string[][] = [];
 	for (const foot of ['left', 'right'] as const) {
-		const f = st[foot] as unknown as Record<string, StatView | undefined>;
-		if (!f) continue;
+		const f = st[foot];
 		for (const [name, unit, key] of PARAMETERS) {
 			const s = f[key];
 			rows.push([foot, name, csvText(unit), cell(s?.mean), cell(s?.sd), String(s?.n ?? 0)]);
@@ -164,13 +163,13 @@ function spatiotemporalCsv(st: StoredGait['spatiotemporal']): string {
 export async function runGaitExport(runId: string, zone: EdgeZoneView): Promise<RunGaitExport | null> {
 	const g = await RunGait.findByPk(runId);
 	if (!g) return null;
-	const st = g.spatiotemporal as unknown as StoredGait['spatiotemporal'];
+	const st = g.spatiotemporal;
 	const files = new Map<(typeof GAIT_FILES)[number], string>([
 		['ground.csv', await groundCsv(runId, zone)],
-		['contacts.csv', contactsCsv(g.contacts as ContactView[])],
-		['events.csv', eventsCsv(g.events as GaitEventView[])],
-		['cycles.csv', cyclesCsv(g.cycles as GaitCycleView[])],
+		['contacts.csv', contactsCsv(g.contacts)],
+		['events.csv', eventsCsv(g.events)],
+		['cycles.csv', cyclesCsv(g.cycles)],
 		['spatiotemporal.csv', spatiotemporalCsv(st)]
 	]);
-	return { forces: g.forces as unknown as StoredForces, lengthBasis: st?.lengthBasis ?? null, files };
+	return { forces: g.forces, lengthBasis: st?.lengthBasis ?? null, files };
 }
