@@ -3,26 +3,12 @@
 import { describe, expect, it } from 'vitest';
 import { assignContacts, contactIds, footPoints } from '../../../src/lib/processing/foot-contacts';
 import { buildSessionModel, sessionSetupProblems } from '../../../src/lib/processing/session-model';
-import type { Contact, ForcePlate } from '../../../src/lib/processing/forces';
+import type { Contact } from '../../../src/lib/processing/forces';
+import { floorPlate } from './forces/plates';
 
-const plate = (name: string, x0: number, z0: number): ForcePlate => ({
-	name,
-	corners: [
-		[x0, 0, z0],
-		[x0 + 0.6, 0, z0],
-		[x0 + 0.6, 0, z0 + 0.4],
-		[x0, 0, z0 + 0.4]
-	],
-	axes: [
-		[1, 0, 0],
-		[0, 0, -1],
-		[0, 1, 0]
-	],
-	originDepthM: 0.04,
-	output: 'forces-moments'
-});
-const p1 = plate('plate1', 0, 0),
-	p2 = plate('plate2', 1, -0.4);
+// two 0.6 m × 0.4 m plates in the floor, plate x = lab X, y = lab Z, origin 4 cm deep
+const p1 = floorPlate('plate1', { x: [0, 0.6], z: [0, 0.4] }),
+	p2 = floorPlate('plate2', { x: [1, 1.6], z: [-0.4, 0] });
 const contact = (plateName: string, start: number, end: number): Contact => ({
 	plate: plateName,
 	start,

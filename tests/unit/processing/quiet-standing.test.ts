@@ -7,10 +7,14 @@
 import { describe, expect, it } from 'vitest';
 import { buildSessionModel } from '../../../src/lib/processing/session-model';
 import { runPipeline } from '../../../src/lib/processing/pipeline';
-import { plateToLab, labToPlate, findContacts, type ForcePlate } from '../../../src/lib/processing/forces';
+import { plateToLab, labToPlate, findContacts } from '../../../src/lib/processing/forces';
+import { floorPlate } from './forces/plates';
 import { makeRecording } from './helpers';
 
-const built = buildSessionModel({ sex: 'male', bodyMass: 75, stature: 1.8 }, { table: 'dempster-winter-2009', limbs: ['right.leg', 'left.leg'], pelvis: {} });
+const built = buildSessionModel(
+	{ sex: 'male', bodyMass: 75, stature: 1.8 },
+	{ table: 'dempster-winter-2009', limbs: ['right.leg', 'left.leg'], pelvis: {} }
+);
 const seg = (key: string) => built.parameters.segments.find((s) => s.key === key)!;
 
 // Hand numbers (m, kg, N): thigh length Lt = 0.245 H = 0.441, shank Ls = 0.246 H = 0.4428, foot mass mf = 0.0145 × 75 =
@@ -66,23 +70,8 @@ describe('quiet standing: hip, knee and ankle moments against the hand calculati
 	});
 
 	// a plate under the right foot, turned 90° about the vertical and offset, measuring origin 4 cm deep
-	const plate: ForcePlate = {
-		name: 'plate1',
-		corners: [
-			[-0.2, 0, 0.0],
-			[-0.2, 0, 0.6],
-			[0.4, 0, 0.6],
-			[0.4, 0, 0.0]
-		],
-		// columns: plate x = lab Z, plate y = lab X, plate z = x × y = lab −Y (into the floor)
-		axes: [
-			[0, 1, 0],
-			[0, 0, -1],
-			[1, 0, 0]
-		],
-		originDepthM: 0.04,
-		output: 'forces-moments'
-	};
+	// plate x = lab Z, plate y = lab X, plate z = lab −Y (into the floor)
+	const plate = floorPlate('plate1', { x: [-0.2, 0.4], z: [0, 0.6], plateX: [0, 0, 1], plateY: [1, 0, 0] });
 
 	it('through runPipeline with the plate signals, a contact assigned by the model, 1e-9 N·m', () => {
 		const frames = 200,

@@ -6,7 +6,7 @@ import { create, unitDependencies } from 'mathjs';
 import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { describe, expect, test } from 'vitest';
-import { resamplePlateSignals, type ForcePlate } from '../../../src/lib/processing/forces';
+import { resamplePlateSignals } from '../../../src/lib/processing/forces';
 import {
 	forceChannels,
 	forceChannelsOf,
@@ -24,24 +24,11 @@ import {
 } from '../../../src/lib/processing/recording';
 import { isSchemeName } from '../../../src/lib/processing/recording/layout';
 import { conversion, mathjsName, unitOf, UNITS } from '../../../src/lib/processing/recording/units';
+import { floorPlate } from './forces/plates';
 
-const floor = {
-	corners: [
-		[0, 0, 0],
-		[0.6, 0, 0],
-		[0.6, 0, 0.4],
-		[0, 0, 0.4]
-	],
-	// plate x = lab X, plate y = lab Z, plate z = −lab Y (into the floor)
-	axes: [
-		[1, 0, 0],
-		[0, 0, -1],
-		[0, 1, 0]
-	],
-	originDepthM: 0.04
-} satisfies Omit<ForcePlate, 'name' | 'output'>;
-const P1: ForcePlate = { ...floor, name: 'plate1', output: 'forces-moments' };
-const P2: ForcePlate = { ...floor, name: 'plate2', output: 'forces-cop' };
+// 0.6 m × 0.4 m in the floor: plate x = lab X, plate y = lab Z, plate z = −lab Y (into the floor)
+const P1 = floorPlate('plate1', { x: [0, 0.6], z: [0, 0.4] });
+const P2 = floorPlate('plate2', { x: [0, 0.6], z: [0, 0.4], output: 'forces-cop' });
 
 const LEG: ExpectedChannel[] = ['right.hip.flexion', 'right.knee.flexion', 'right.ankle.dorsiflexion'].map((name) => ({
 	name,

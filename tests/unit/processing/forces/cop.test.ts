@@ -15,28 +15,7 @@ import {
 	type Vec3
 } from '../../../../src/lib/processing/forces';
 import { seededUniform } from '../../../../src/lib/processing/edges';
-import { plate1 } from './plates';
-
-/**
- * plate1 turned 90° about lab Y and moved: plate x = lab −Z, y = lab X, z = −lab Y (x × y = z: right-handed);
- * centre (2.5, 0, −1.2), 0.6 m along plate x, 0.4 m along plate y; d = 0.05 m.
- */
-const plate2: ForcePlate = {
-	name: 'plate2',
-	corners: [
-		[2.3, 0, -0.9],
-		[2.3, 0, -1.5],
-		[2.7, 0, -1.5],
-		[2.7, 0, -0.9]
-	],
-	axes: [
-		[0, 1, 0],
-		[0, 0, -1],
-		[-1, 0, 0]
-	],
-	originDepthM: 0.05,
-	output: 'forces-moments'
-};
+import { plate1, plate2 } from './plates';
 
 const v = (...xs: number[]) => Float64Array.from(xs);
 const close = (got: ArrayLike<number>, want: ArrayLike<number>, tol = 1e-12) => {
