@@ -14,7 +14,7 @@ import { writeResults } from '../src/lib/server/runs/process';
 import { computeRun, type ForceInput } from '../src/lib/server/runs/compute';
 import { buildSessionModel, sessionSetupSchema } from '../src/lib/processing/session-model';
 import { forceChannelsOf, pairForceRecording, parseRecording } from '../src/lib/processing/recording';
-import { runOptionsSchema, type RunOptions } from '../src/lib/processing/pipeline';
+import { runOptionsSchema } from '../src/lib/processing/pipeline';
 import { DEFAULT_CONTACT_THRESHOLD_N } from '../src/lib/processing/forces';
 
 const here = path.dirname(fileURLToPath(import.meta.url));
@@ -60,9 +60,6 @@ export const DEMO_WALKING_SESSIONS = (['WLK-001', 'WLK-002'] as const).map((part
 	recordings: speeds.map((speed) => `${participant.toLowerCase()}-walk-${speed}`),
 	createdBy: 'technician@alder-creek.example'
 }));
-
-/** The feet of the demo walks' plate contacts, as the reviewer sets them (contact ids <plate>#<k>). */
-const WALK_CONTACT_FEET: RunOptions['contactFeet'] = { 'plate1#0': 'right', 'plate2#0': 'left' };
 
 interface DemoSession {
 	study: string;
@@ -183,9 +180,8 @@ export async function seedSessionsAndRuns(sequelize: Sequelize, transaction: Tra
 				},
 				{ transaction }
 			);
-			// walking: the swing foot passes over the plate the other foot stands on, so the model alone leaves each contact
-			// to the person; the demo's reviewer has set the feet (and so allowed the flagged contacts)
-			const options = runOptionsSchema.parse(force ? { contactFeet: WALK_CONTACT_FEET, useFlaggedContacts: true } : {});
+			// walking trials take the default options too: the model assigns each contact to the foot under the CoP
+			const options = runOptionsSchema.parse({});
 			const run = await Run.create(
 				{
 					trialId: trial.id,

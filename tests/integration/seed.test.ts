@@ -71,10 +71,11 @@ it('loads the demo once, however often it runs', async () => {
 	const gaits = await RunGait.findAll();
 	expect(gaits).toHaveLength(6);
 	for (const g of gaits) {
-		const used = (g.contacts as { plate: string; foot: string | null; used: boolean }[]).filter((c) => c.used);
-		expect(used.map((c) => [c.plate, c.foot])).toEqual([
-			['plate1', 'right'],
-			['plate2', 'left']
+		// default run options: the feet are assigned by the model (the foot under the CoP), none by hand
+		const used = g.contacts.filter((c) => c.used);
+		expect(used.map((c) => [c.plate, c.foot, c.assignedBy])).toEqual([
+			['plate1', 'right', 'model'],
+			['plate2', 'left', 'model']
 		]);
 		expect(g.cycles.length).toBeGreaterThan(0);
 	}

@@ -1,7 +1,14 @@
 // The multibody engine's public API: model, kinematics, inverse and forward dynamics, integration.
 export * from './model';
 export * from './workspace';
-export { inverseDynamics, inverseDynamicsBatch, type DynamicsOptions, type InverseDynamicsResult, type BatchOutput, type BatchOptions } from './rnea';
+export {
+	inverseDynamics,
+	inverseDynamicsBatch,
+	type DynamicsOptions,
+	type InverseDynamicsResult,
+	type BatchOutput,
+	type BatchOptions
+} from './rnea';
 export { forwardKinematics, type Pose } from './kinematics';
 export { massMatrix, massMatrixInto, bias, biasInto } from './mass-matrix';
 export { forwardDynamics, forwardDynamicsInto, energy } from './forward';
