@@ -16,49 +16,12 @@ import {
 	statText,
 	type GaitData
 } from '../../../src/lib/components/gait/gait-plot';
-import type { ContactView, GaitCycleView } from '../../../src/lib/types/gait';
+import { contactView as contact, cycleView as cycle } from './gait-views';
 
 const toLinear = (c: number) => (c <= 0.04045 ? c / 12.92 : ((c + 0.055) / 1.055) ** 2.4);
 function luminance(hex: string): number {
 	const [r, g, b] = [1, 3, 5].map((i) => toLinear(parseInt(hex.slice(i, i + 2), 16) / 255));
 	return 0.2126 * r + 0.7152 * g + 0.0722 * b;
-}
-
-function contact(p: Partial<ContactView> & Pick<ContactView, 'id' | 'start' | 'end'>): ContactView {
-	return {
-		plate: p.id.split('#')[0],
-		startTime: p.start / 100,
-		endTime: p.end / 100,
-		foot: 'left',
-		assignedBy: 'model',
-		shared: false,
-		offPlate: false,
-		clipped: false,
-		used: true,
-		reason: null,
-		...p
-	};
-}
-
-function cycle(foot: 'left' | 'right', startSample: number, offSample: number, endSample: number, hz = 100): GaitCycleView {
-	const [start, off, end] = [startSample / hz, offSample / hz, endSample / hz];
-	return {
-		foot,
-		start,
-		end,
-		startSample,
-		endSample,
-		off,
-		offSample,
-		cycleTimeS: end - start,
-		stanceTimeS: off - start,
-		swingTimeS: end - off,
-		stancePercent: (100 * (off - start)) / (end - start),
-		swingPercent: (100 * (end - off)) / (end - start),
-		sources: { start: 'plate', off: 'plate', end: 'plate' },
-		excluded: null,
-		excludedText: null
-	};
 }
 
 describe('FOOT_STYLE', () => {
@@ -103,7 +66,7 @@ describe('cycleBands', () => {
 	});
 	it('leaves out excluded cycles and treats null as a gap', () => {
 		const v = t.map((_, k) => (k === 300 ? null : k));
-		const b = cycleBands(t, v, [...cycles, { ...cycle('right', 180, 250, 290), excluded: 'edge-zone', excludedText: 'x' }]);
+		const b = cycleBands(t, v, [...cycles, cycle('right', 180, 250, 290, { excluded: 'edge-zone', excludedText: 'x' })]);
 		expect(b.right.n).toBe(1);
 		// a ramp k over 70…180: at 50 % it is 125
 		expect(b.right.mean[50]).toBeCloseTo(125, 9);
@@ -126,7 +89,7 @@ describe('footVerticalGrf', () => {
 		]
 	} as unknown as Pick<GaitData, 't' | 'grf'>;
 	it('puts each plate vertical force on the foot of its contact and keeps only cycles whose stance is on a plate', () => {
-		const contacts = [contact({ id: 'p1#0', start: 2, end: 4, foot: 'left' }), contact({ id: 'p1#1', start: 6, end: 7, foot: null })];
+		const contacts = [contact('p1#0', 2, 4, { foot: 'left' }), contact('p1#1', 6, 7, { foot: null })];
 		const cycles = [cycle('left', 2, 4, 9), cycle('right', 5, 7, 9)];
 		const r = footVerticalGrf({ ...base, contacts, cycles }, 'N');
 		expect(r.v.left).toEqual([0, 0, 200, 300, 400, 0, 0, 0, 0, 0]);
@@ -143,7 +106,7 @@ describe('copTrails', () => {
 	it('maps lab X across and Z down with the plan origin and scale, breaking at undefined points', () => {
 		const plan = { origin: { x: 100, y: 50 }, scale: 200 };
 		const cop = [{ plate: 'p1', x: [null, 1, 1.1, null, 1.2], y: [null, 0, 0, null, 0], z: [null, 0.1, 0.1, null, -0.05] }];
-		const [trail] = copTrails(plan, cop, [contact({ id: 'p1#0', start: 0, end: 4 })]);
+		const [trail] = copTrails(plan, cop, [contact('p1#0', 0, 4)]);
 		// 100 + 1 × 200 = 300, 50 + 0.1 × 200 = 70; 100 + 1.2 × 200 = 340, 50 − 0.05 × 200 = 40
 		expect(trail.d).toBe('M300.0 70.0L320.0 70.0M340.0 40.0');
 		expect(trail.points).toBe(3);
@@ -174,9 +137,9 @@ describe('contactFeetFromForm', () => {
 		expect(!bad.ok && bad.problem).toMatch(/^foot\.plate1#0: "both"/);
 	});
 	it('starts each select at the hand-set foot, else automatic', () => {
-		expect(initialChoice(contact({ id: 'p1#0', start: 0, end: 1, assignedBy: 'user', foot: 'right' }))).toBe('right');
-		expect(initialChoice(contact({ id: 'p1#0', start: 0, end: 1, assignedBy: 'user', foot: null }))).toBe('none');
-		expect(initialChoice(contact({ id: 'p1#0', start: 0, end: 1 }))).toBe('auto');
+		expect(initialChoice(contact('p1#0', 0, 1, { assignedBy: 'user', foot: 'right' }))).toBe('right');
+		expect(initialChoice(contact('p1#0', 0, 1, { assignedBy: 'user', foot: null }))).toBe('none');
+		expect(initialChoice(contact('p1#0', 0, 1))).toBe('auto');
 	});
 });
 

@@ -6,6 +6,7 @@ import { render } from 'svelte/server';
 import GaitReview from '../../../src/lib/components/gait/GaitReview.svelte';
 import type { GaitData } from '../../../src/lib/components/gait/gait-plot';
 import type { ContactView, GaitCycleView, StatView } from '../../../src/lib/types/gait';
+import { contactView, cycleView } from './gait-views';
 
 const HZ = 100;
 const N = 300;
@@ -14,50 +15,15 @@ const halfSine = (a: number, b: number, peak: number) =>
 	t.map((_, k) => (k >= a && k <= b ? peak * Math.sin((Math.PI * (k - a + 1)) / (b - a + 2)) : 0));
 const zeros = () => new Array<number>(N).fill(0);
 
-function contact(id: string, start: number, end: number, more: Partial<ContactView> = {}): ContactView {
-	return {
-		id,
-		plate: id.split('#')[0],
-		start,
-		end,
-		startTime: start / HZ,
-		endTime: end / HZ,
-		foot: 'left',
-		assignedBy: 'model',
-		shared: false,
-		offPlate: false,
-		clipped: false,
-		used: true,
-		reason: null,
-		...more
-	};
-}
-function cycle(
+const contact = (id: string, start: number, end: number, more: Partial<ContactView> = {}) => contactView(id, start, end, more, HZ);
+const cycle = (
 	foot: 'left' | 'right',
 	a: number,
 	off: number | null,
 	b: number,
 	excluded: GaitCycleView['excluded'] = null,
 	text: string | null = null
-): GaitCycleView {
-	return {
-		foot,
-		start: a / HZ,
-		end: b / HZ,
-		startSample: a,
-		endSample: b,
-		off: off === null ? null : off / HZ,
-		offSample: off,
-		cycleTimeS: (b - a) / HZ,
-		stanceTimeS: off === null ? null : (off - a) / HZ,
-		swingTimeS: off === null ? null : (b - off) / HZ,
-		stancePercent: off === null ? null : (100 * (off - a)) / (b - a),
-		swingPercent: off === null ? null : (100 * (b - off)) / (b - a),
-		sources: { start: 'plate', off: off === null ? null : 'plate', end: 'kinematic' },
-		excluded,
-		excludedText: text
-	};
-}
+) => cycleView(foot, a, off, b, { endSource: 'kinematic', excluded, excludedText: text, hz: HZ });
 const stat = (mean: number | null, sd: number | null, n: number): StatView => ({ mean, sd, n });
 function foot(f: 'left' | 'right', cycles: number) {
 	return {
