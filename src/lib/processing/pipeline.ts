@@ -47,6 +47,12 @@ export const runOptionsSchema = z.object({
 	forceCutoffHz: cutoff.nullable().optional(),
 	/** Use contacts flagged off the plate or shared (when a foot is set) for the moments too; default false. */
 	useFlaggedContacts: z.boolean().optional(),
+	/**
+	 * Vertical force (N) from which a plate counts as loaded: contacts, the CoP and plate events start there; absent:
+	 * 20 N (DEFAULT_CONTACT_THRESHOLD_N, common practice). 5–200 N: below, plate noise makes contacts; above, the
+	 * first and last moments of a stance are lost.
+	 */
+	contactThresholdN: finite.refine((v) => v >= 5 && v <= 200, 'must be from 5 to 200 N').optional(),
 	/** Feet set by hand, by contact id `<plate>#<k>` (k: the plate's contacts in time order, from 0); null = no foot. */
 	contactFeet: z.record(z.string(), z.enum(['left', 'right']).nullable()).optional()
 });

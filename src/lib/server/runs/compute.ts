@@ -122,7 +122,7 @@ export function seriesRows(result: PipelineResult, built: SessionModel): SeriesR
  * (forces/resample.ts), to lab axes, then findContacts. Used by the run and, to check contactFeet, when one starts.
  */
 export function groundAtAngleRate(recording: Pick<Recording, 'sampleHz' | 'time'>, force: ForceInput, options: RunOptions) {
-	const thresholdN = DEFAULT_CONTACT_THRESHOLD_N;
+	const thresholdN = options.contactThresholdN ?? DEFAULT_CONTACT_THRESHOLD_N;
 	const angleHz = recording.sampleHz;
 	const runCutoff = groundCutoffHz(options);
 	const signals = plateSignalsOf(force.recording, force.plates);
