@@ -25,3 +25,26 @@ export function loadReference<T>(
 	}
 	return { fixture: JSON.parse(fs.readFileSync(committed, 'utf8')) as T, regenerated: false };
 }
+
+/** What every sympy.physics.mechanics fixture holds besides its states: the script's note, the model and gravity. */
+export interface SympyModelFixture {
+	source: string;
+	model: unknown;
+	gravity: [number, number, number];
+}
+
+/** A sympy.physics.mechanics fixture (Kane's method is slow: up to 4 min); MOMENTRY_SYMPY=off forces the committed copy. */
+export function loadSympyReference<T extends SympyModelFixture>(script: string, committed: string) {
+	return loadReference<T>(script, committed, { modules: 'sympy, numpy', off: 'MOMENTRY_SYMPY', timeoutMs: 240_000 });
+}
+
+/** Largest difference relative to the largest reference magnitude. */
+export function relErr(got: ArrayLike<number>, want: ArrayLike<number>): number {
+	let d = 0,
+		s = 0;
+	for (let i = 0; i < want.length; i++) {
+		d = Math.max(d, Math.abs(got[i] - want[i]));
+		s = Math.max(s, Math.abs(want[i]));
+	}
+	return d / s;
+}

@@ -11,12 +11,9 @@ import {
 	type ExternalLoad,
 	type Vec3
 } from '../../../src/lib/dynamics';
-import { loadReference } from '../../reference/fixture';
+import { loadSympyReference, relErr, type SympyModelFixture } from '../../reference/fixture';
 
-interface Fixture {
-	source: string;
-	model: unknown;
-	gravity: Vec3;
+interface Fixture extends SympyModelFixture {
 	externalLoads: ExternalLoad[];
 	states: {
 		q: number[];
@@ -33,26 +30,10 @@ interface Fixture {
 
 const committed = 'tests/fixtures/dynamics/sympy-chain.json';
 
-// MOMENTRY_SYMPY=off forces the committed fixture (to check that path without uninstalling sympy).
-const { fixture, regenerated } = loadReference<Fixture>('tests/reference/sympy_chain.py', committed, {
-	modules: 'sympy, numpy',
-	off: 'MOMENTRY_SYMPY',
-	timeoutMs: 240_000
-});
+const { fixture, regenerated } = loadSympyReference<Fixture>('tests/reference/sympy_chain.py', committed);
 const model = compileModel(fixture.model);
 const n = model.n;
 const opts = { gravity: fixture.gravity, loads: fixture.externalLoads };
-
-/** Largest difference relative to the largest reference magnitude. */
-function relErr(got: ArrayLike<number>, want: ArrayLike<number>): number {
-	let d = 0,
-		s = 0;
-	for (let i = 0; i < want.length; i++) {
-		d = Math.max(d, Math.abs(got[i] - want[i]));
-		s = Math.max(s, Math.abs(want[i]));
-	}
-	return d / s;
-}
 
 describe(`sympy reference (${regenerated ? 'regenerated now' : 'committed fixture'}: ${fixture.source})`, () => {
 	it('covers a branched 3-D tree with both joint types', () => {

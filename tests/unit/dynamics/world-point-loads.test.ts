@@ -12,31 +12,66 @@ import {
 	type ExternalLoad,
 	type Vec3
 } from '../../../src/lib/dynamics';
-import { loadReference } from '../../reference/fixture';
+import { loadSympyReference, type SympyModelFixture } from '../../reference/fixture';
 import { body, skewInertia, axisAngle } from './fixtures';
 
-interface Fixture {
-	source: string;
-	model: unknown;
-	gravity: Vec3;
+interface Fixture extends SympyModelFixture {
 	loadBody: number;
 	states: { q: number[]; qd: number[]; qdd: number[]; point: Vec3; force: Vec3; torque: Vec3; Q: number[] }[];
 }
 
-const { fixture, regenerated } = loadReference<Fixture>('tests/reference/sympy_world_point.py', 'tests/fixtures/dynamics/sympy-world-point.json', {
-	modules: 'sympy, numpy',
-	off: 'MOMENTRY_SYMPY',
-	timeoutMs: 240_000
-});
+const { fixture, regenerated } = loadSympyReference<Fixture>(
+	'tests/reference/sympy_world_point.py',
+	'tests/fixtures/dynamics/sympy-world-point.json'
+);
 
 /** A 3-D tree with a prismatic joint, skew axes, a fixed rotation and a branch (invented numbers, not anatomical). */
 const tree = compileModel({
 	bodies: [
-		body({ name: 'slide', parent: -1, joint: { type: 'prismatic', axis: [1, 0, 0] }, mass: 0, inertia: skewInertia(0, 0, 0, [1, 0, 0], 0) }),
-		body({ name: 'a', parent: 0, joint: { type: 'revolute', axis: [0.2, 0.1, 1] }, anchor: [0, 1, 0], mass: 5, com: [0, -0.2, 0.01], inertia: skewInertia(0.1, 0.02, 0.09, [1, 2, 3], 0.4) }),
-		body({ name: 'b', parent: 1, joint: { type: 'revolute', axis: [1, 0, 0] }, anchor: [0, -0.4, 0], rotation: axisAngle([0, 1, 0.3], 0.5), mass: 3, com: [0.01, -0.2, 0], inertia: skewInertia(0.04, 0.005, 0.04, [3, 1, 1], 0.2) }),
-		body({ name: 'c', parent: 2, joint: { type: 'revolute', axis: [0, 0, 1] }, anchor: [0, -0.42, 0], mass: 1.1, com: [0.08, 0, 0], inertia: skewInertia(0.002, 0.006, 0.006, [0, 0, 1], 0.1) }),
-		body({ name: 'd', parent: 1, joint: { type: 'revolute', axis: [0, 1, 0] }, anchor: [0, 0, 0.2], mass: 2, com: [0, 0, 0.1], inertia: skewInertia(0.01, 0.01, 0.004, [1, 0, 0], 0) })
+		body({
+			name: 'slide',
+			parent: -1,
+			joint: { type: 'prismatic', axis: [1, 0, 0] },
+			mass: 0,
+			inertia: skewInertia(0, 0, 0, [1, 0, 0], 0)
+		}),
+		body({
+			name: 'a',
+			parent: 0,
+			joint: { type: 'revolute', axis: [0.2, 0.1, 1] },
+			anchor: [0, 1, 0],
+			mass: 5,
+			com: [0, -0.2, 0.01],
+			inertia: skewInertia(0.1, 0.02, 0.09, [1, 2, 3], 0.4)
+		}),
+		body({
+			name: 'b',
+			parent: 1,
+			joint: { type: 'revolute', axis: [1, 0, 0] },
+			anchor: [0, -0.4, 0],
+			rotation: axisAngle([0, 1, 0.3], 0.5),
+			mass: 3,
+			com: [0.01, -0.2, 0],
+			inertia: skewInertia(0.04, 0.005, 0.04, [3, 1, 1], 0.2)
+		}),
+		body({
+			name: 'c',
+			parent: 2,
+			joint: { type: 'revolute', axis: [0, 0, 1] },
+			anchor: [0, -0.42, 0],
+			mass: 1.1,
+			com: [0.08, 0, 0],
+			inertia: skewInertia(0.002, 0.006, 0.006, [0, 0, 1], 0.1)
+		}),
+		body({
+			name: 'd',
+			parent: 1,
+			joint: { type: 'revolute', axis: [0, 1, 0] },
+			anchor: [0, 0, 0.2],
+			mass: 2,
+			com: [0, 0, 0.1],
+			inertia: skewInertia(0.01, 0.01, 0.004, [1, 0, 0], 0)
+		})
 	]
 });
 
@@ -54,7 +89,14 @@ describe(`world-point loads against sympy (${regenerated ? 'regenerated now' : '
 	const model = compileModel(fixture.model);
 	fixture.states.forEach((s, k) => {
 		it(`state ${k + 1}: Q within 1e-9 of Kane's equations`, () => {
-			const load: ExternalLoad = { body: fixture.loadBody, point: s.point, force: s.force, torque: s.torque, frame: 'world', pointFrame: 'world' };
+			const load: ExternalLoad = {
+				body: fixture.loadBody,
+				point: s.point,
+				force: s.force,
+				torque: s.torque,
+				frame: 'world',
+				pointFrame: 'world'
+			};
 			const { Q } = inverseDynamics(model, s.q, s.qd, s.qdd, { gravity: fixture.gravity, loads: [load] });
 			expect(rel(Q, s.Q)).toBeLessThan(1e-9);
 		});
@@ -78,7 +120,9 @@ describe('a world point is the body point that lies there', () => {
 			// the force and torque in body axes too, for the body-frame variant
 			const toBody = (v: Vec3) => [0, 1, 2].map((c) => R[c] * v[0] + R[3 + c] * v[1] + R[6 + c] * v[2]) as Vec3;
 			const world = inverseDynamics(tree, q, qd, qdd, { loads: [{ body: b, point: P, force, torque, pointFrame: 'world' }] });
-			const inBody = inverseDynamics(tree, q, qd, qdd, { loads: [{ body: b, point: local, force: toBody(force), torque: toBody(torque), frame: 'body' }] });
+			const inBody = inverseDynamics(tree, q, qd, qdd, {
+				loads: [{ body: b, point: local, force: toBody(force), torque: toBody(torque), frame: 'body' }]
+			});
 			expect(rel(world.Q, inBody.Q)).toBeLessThan(1e-12);
 			expect(rel(world.forceWorld, inBody.forceWorld)).toBeLessThan(1e-12);
 			// and bias (c of M q̈ + c = Q) agrees as well
@@ -113,19 +157,30 @@ describe('inverseDynamicsBatch: loads per frame (loadsAt)', () => {
 	it('frame by frame equals inverseDynamics with that frame’s loads (1e-12), with and without fixed loads, none on odd frames', () => {
 		for (const withFixed of [false, true]) {
 			const out = { Q: new Float64Array(frames * n), force: new Float64Array(frames * n * 3) };
-			inverseDynamicsBatch(tree, frames, q, qd, qdd, out, {
-				reactionFrame: 'world',
-				loads: withFixed ? [fixed] : undefined,
-				loadsAt: (k) => {
-					if (k % 2) return null;
-					setFrame(k);
-					return own;
-				}
-			}, createWorkspace(tree));
+			inverseDynamicsBatch(
+				tree,
+				frames,
+				q,
+				qd,
+				qdd,
+				out,
+				{
+					reactionFrame: 'world',
+					loads: withFixed ? [fixed] : undefined,
+					loadsAt: (k) => {
+						if (k % 2) return null;
+						setFrame(k);
+						return own;
+					}
+				},
+				createWorkspace(tree)
+			);
 			for (let k = 0; k < frames; k++) {
 				setFrame(k);
 				const loads = [...(withFixed ? [fixed] : []), ...(k % 2 ? [] : [moving])];
-				const one = inverseDynamics(tree, q.subarray(k * n, k * n + n), qd.subarray(k * n, k * n + n), qdd.subarray(k * n, k * n + n), { loads });
+				const one = inverseDynamics(tree, q.subarray(k * n, k * n + n), qd.subarray(k * n, k * n + n), qdd.subarray(k * n, k * n + n), {
+					loads
+				});
 				expect(rel(out.Q.subarray(k * n, k * n + n), one.Q)).toBeLessThan(1e-12);
 				expect(rel(out.force.subarray(3 * k * n, 3 * k * n + 3 * n), one.forceWorld)).toBeLessThan(1e-12);
 			}

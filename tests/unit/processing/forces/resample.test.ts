@@ -17,7 +17,7 @@ import {
 	type ForcePlate
 } from '../../../../src/lib/processing/forces';
 import { SignalError } from '../../../../src/lib/processing/signal';
-import { loadReference } from '../../../reference/fixture';
+import { loadReference, relErr } from '../../../reference/fixture';
 import { plate1 as plate } from './plates';
 
 interface Fixture {
@@ -36,17 +36,6 @@ interface Fixture {
 
 const committed = 'tests/fixtures/processing/scipy-force-resample.json';
 const { fixture, regenerated } = loadReference<Fixture>('tests/reference/scipy_force_resample.py', committed);
-
-/** Largest difference relative to the largest reference magnitude. */
-function relErr(got: ArrayLike<number>, want: ArrayLike<number>): number {
-	let d = 0,
-		s = 0;
-	for (let i = 0; i < want.length; i++) {
-		d = Math.max(d, Math.abs(got[i] - want[i]));
-		s = Math.max(s, Math.abs(want[i]));
-	}
-	return d / s;
-}
 
 describe(`resampling against scipy.signal (${regenerated ? 'regenerated now' : 'committed fixture'}: ${fixture.source})`, () => {
 	it.runIf(regenerated)('the committed fixture is what the script writes now (else rerun the script with --out ' + committed + ')', () => {
