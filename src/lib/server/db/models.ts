@@ -24,6 +24,7 @@ import type { EdgeZone } from '../../processing/pipeline';
 import { sessionSetupSchema, type SessionSetup } from '../../processing/session-model';
 import { columnMappingSchema, type ColumnMapping } from '../../processing/recording';
 import type { ContactView, GaitCycleView, GaitEventView } from '../../types/gait';
+import type { SeriesQuantity } from '../runs/compute';
 import {
 	contactViewSchema,
 	cycleViewSchema,
@@ -279,18 +280,7 @@ export class Run extends Keyed<Run> {
 export class RunSeries extends Typed<RunSeries> {
 	declare runId: string;
 	declare name: string;
-	declare quantity:
-		| 'time'
-		| 'angle'
-		| 'velocity'
-		| 'acceleration'
-		| 'moment'
-		| 'moment_per_kg'
-		| 'power'
-		| 'reaction_force'
-		| 'grf'
-		| 'cop'
-		| 'free_moment';
+	declare quantity: SeriesQuantity;
 	declare unit: string;
 	declare components: CreationOptional<number>;
 	declare data: Buffer;

@@ -21,19 +21,8 @@ const stat = (s: Stat): StatView => ({ mean: r6(s.mean), sd: r6(s.sd), n: s.n })
 /** The stored shape of a run's gait results, from the pure results (JSON-safe: no NaN). */
 export function storedGait(
 	forces: StoredForces,
-	contacts: {
-		id: string;
-		plate: string;
-		start: number;
-		end: number;
-		foot: 'left' | 'right' | null;
-		assignedBy: 'model' | 'user' | null;
-		shared: boolean;
-		offPlate: boolean;
-		clipped: boolean;
-		used: boolean;
-		reason: string | null;
-	}[],
+	/** The contacts as found and assigned; their times are read off `time`. */
+	contacts: readonly Omit<ContactView, 'startTime' | 'endTime'>[],
 	time: ArrayLike<number>,
 	events: readonly GaitEvent[],
 	cycles: readonly GaitCycle[],
