@@ -1,5 +1,6 @@
 // Starts the built app against a fresh, migrated and seeded database, and signs demo personas in over HTTP.
 import fs from 'node:fs';
+import { createHash } from 'node:crypto';
 import pg from 'pg';
 import { afterAll, beforeAll } from 'vitest';
 import { freshDatabase } from './helpers';
@@ -114,3 +115,16 @@ export function browserRequests(app: AppUnderTest) {
 			})
 	};
 }
+
+/** The six angle channels of a right leg on a fixed base, in the order the upload tests write their columns. */
+export const LEG = [
+	'right.hip.flexion',
+	'right.hip.adduction',
+	'right.hip.internalRotation',
+	'right.knee.flexion',
+	'right.ankle.dorsiflexion',
+	'right.ankle.inversion'
+];
+
+/** The hex SHA-256 of some bytes, as a trial's rawSha256 records them. */
+export const sha = (b: Uint8Array) => createHash('sha256').update(b).digest('hex');

@@ -3,21 +3,10 @@
 // and chunks counted before and after), the refusal audited.
 /* eslint-disable @typescript-eslint/no-explicit-any -- JSON answers are read loosely here; their shapes are what the assertions check */
 import { beforeAll, describe, expect, it } from 'vitest';
-import { createHash } from 'node:crypto';
-import { browserRequests, useApp } from './app-under-test';
+import { browserRequests, LEG, sha, useApp } from './app-under-test';
 
 const app = useApp('gait');
 const http = browserRequests(app);
-
-const LEG = [
-	'right.hip.flexion',
-	'right.hip.adduction',
-	'right.hip.internalRotation',
-	'right.knee.flexion',
-	'right.ankle.dorsiflexion',
-	'right.ankle.inversion'
-];
-const sha = (b: Uint8Array) => createHash('sha256').update(b).digest('hex');
 
 /** A right-leg angle recording at `hz` (degrees), `seconds` long, starting at `t0`. */
 function angleCsv(hz: number, seconds: number, phase = 0, t0 = 0): Buffer {

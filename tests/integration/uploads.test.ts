@@ -3,8 +3,8 @@
 // nothing stored, binary and empty files, the size limit, duplicates, byte-identical storage, mapping presets, consent.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import fs from 'node:fs';
-import { createHash, randomBytes } from 'node:crypto';
-import { startApp, type AppUnderTest } from './app-under-test';
+import { randomBytes } from 'node:crypto';
+import { LEG, sha, startApp, type AppUnderTest } from './app-under-test';
 import { detectDelimiter } from '../../src/lib/processing/recording';
 
 const MALFORMED = 'tests/fixtures/recordings/malformed/';
@@ -15,14 +15,6 @@ const corpus = JSON.parse(fs.readFileSync(MALFORMED + 'index.json', 'utf8')) as 
 /** A real right-leg recording with all six channels (simulated demo trial). */
 const KNEE_FILE = 'seeds/recordings/kne-001-seated-knee-extension.csv';
 const SHELF_FILE = 'seeds/recordings/ald-001-shelf-reach.csv';
-const LEG = [
-	'right.hip.flexion',
-	'right.hip.adduction',
-	'right.hip.internalRotation',
-	'right.knee.flexion',
-	'right.ankle.dorsiflexion',
-	'right.ankle.inversion'
-];
 const LEG_MOVING = [
 	'right.leg.base.px',
 	'right.leg.base.py',
@@ -39,8 +31,6 @@ let studyB: string;
 let ald001: string;
 let legSession: string;
 let movingSession: string;
-
-const sha = (b: Uint8Array) => createHash('sha256').update(b).digest('hex');
 
 /** A form post as a browser sends it without JavaScript. */
 const formPost = (path: string, cookie: string, form: URLSearchParams) =>
