@@ -1,7 +1,7 @@
 // `npm run bench:gait`: a 2-minute walking trial (200 Hz angles, 1000 Hz forces from two plates, both legs on a moving
 // pelvis) from files to results stored in PostgreSQL, with the CPU time of Node and of the database backend.
 import { spawnSync } from 'node:child_process';
-import { chmodSync, readFileSync, rmSync, statSync, mkdtempSync, writeFileSync, createReadStream } from 'node:fs';
+import { readFileSync, rmSync, statSync, mkdtempSync, writeFileSync, createReadStream } from 'node:fs';
 import { fileURLToPath } from 'node:url';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
@@ -15,8 +15,7 @@ import { recordingCsv } from '../lib/processing/simulate-recording';
 import { computeRun } from '../lib/server/runs/compute';
 import { writeResults } from '../lib/server/runs/process';
 import { closeDb, db } from '../lib/server/db/index';
-import { startCluster } from './lib/postgres';
-import { freePort } from './lib/proc';
+import { startScratchCluster } from './lib/postgres';
 import { prepareDatabase } from './lib/prepare-db';
 
 const ANGLE_HZ = 200;
@@ -166,15 +165,7 @@ async function main() {
 		);
 
 		// the store: a throw-away cluster with our schema and the demo data, a new run of a demo walking trial
-		chmodSync(dir, 0o755); // the cluster runs as the postgres user when we are root
-		const cluster = await startCluster({
-			dataDir: join(dir, 'pg'),
-			port: await freePort(),
-			database: 'bench',
-			ephemeral: true,
-			quiet: true,
-			log: () => {}
-		});
+		const cluster = await startScratchCluster(dir, 'bench');
 		try {
 			// schema and demo data (whose seed computes the demo runs) in a child process too, for the same reason
 			const prep = spawnSync(process.execPath, [...process.execArgv, fileURLToPath(import.meta.url), '--prepare', cluster.url], {

@@ -1,6 +1,6 @@
 // `npm run bench:pipeline`: a 10-minute 200 Hz recording of the 26-DOF bilateral tree, stage by stage from file to series stored in PostgreSQL.
 import { spawnSync } from 'node:child_process';
-import { chmodSync, createReadStream, createWriteStream, mkdtempSync, rmSync, statSync } from 'node:fs';
+import { createReadStream, createWriteStream, mkdtempSync, rmSync, statSync } from 'node:fs';
 import { fileURLToPath } from 'node:url';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
@@ -10,8 +10,7 @@ import { runOptionsSchema, runPipeline } from '../lib/processing/pipeline';
 import { modelRecord, seriesRows, type ComputedRun } from '../lib/server/runs/compute';
 import { writeResults } from '../lib/server/runs/process';
 import { closeDb, db } from '../lib/server/db/index';
-import { startCluster } from './lib/postgres';
-import { freePort } from './lib/proc';
+import { startScratchCluster } from './lib/postgres';
 import { prepareDatabase } from './lib/prepare-db';
 
 const sampleHz = 200;
@@ -54,15 +53,7 @@ async function writeRecording(path: string): Promise<void> {
  * series (Float64 little-endian bytes) go into run_series of a new run of a demo trial, in one transaction.
  */
 async function openStore(dir: string) {
-	chmodSync(dir, 0o755); // the cluster runs as the postgres user when we are root
-	const cluster = await startCluster({
-		dataDir: join(dir, 'pg'),
-		port: await freePort(),
-		database: 'bench',
-		ephemeral: true,
-		quiet: true,
-		log: () => {}
-	});
+	const cluster = await startScratchCluster(dir, 'bench');
 	await prepareDatabase(cluster.url, { seed: true, log: () => {} });
 	const sequelize = db(cluster.url);
 	const [[trial]] = (await sequelize.query(`SELECT id, sha256 FROM trials ORDER BY created_at LIMIT 1`)) as [
