@@ -9,6 +9,7 @@ import { buildSessionModel } from '../../../src/lib/processing/session-model';
 import { runPipeline } from '../../../src/lib/processing/pipeline';
 import { plateToLab, labToPlate, findContacts } from '../../../src/lib/processing/forces';
 import { floorPlate } from './forces/plates';
+import { forcePlateSchema } from '../../../src/lib/processing/forces';
 import { makeRecording } from './helpers';
 
 const built = buildSessionModel(
@@ -70,10 +71,11 @@ describe('quiet standing: hip, knee and ankle moments against the hand calculati
 	});
 
 	// a plate under the right foot, turned 90° about the vertical and offset, measuring origin 4 cm deep
-	// plate x = lab Z, plate y = lab X, plate z = lab −Y (into the floor)
-	const plate = floorPlate('plate1', { x: [-0.2, 0.4], z: [0, 0.6], plateX: [0, 0, 1], plateY: [1, 0, 0] });
+	// plate x = lab Z, plate y = lab −X, plate z = x × y = lab −Y (into the floor): right-handed, as the plate schema requires
+	const plate = floorPlate('plate1', { x: [-0.2, 0.4], z: [0, 0.6], plateX: [0, 0, 1], plateY: [-1, 0, 0] });
 
 	it('through runPipeline with the plate signals, a contact assigned by the model, 1e-9 N·m', () => {
+		expect(forcePlateSchema.safeParse(plate).success).toBe(true);
 		const frames = 200,
 			hz = 100;
 		const py = Lt + Ls + ha;
