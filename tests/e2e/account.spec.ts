@@ -10,7 +10,7 @@ test('open Account after a password sign-in, then sign out everywhere', async ({
 	await expect(page).toHaveURL(/\/account$/);
 	await expect(page.getByRole('heading', { level: 1, name: 'Account' })).toBeVisible();
 	await expect(page.getByTestId('account-email')).toHaveText('pi@alder-creek.example');
-	await expect(page.getByTestId('account-role')).toHaveCount(2);
+	await expect(page.getByTestId('account-role')).toHaveCount(3); // SHELF-REACH, KNEE-60 and WALK-3 of the demo
 	await expect(page.getByTestId('account-role').filter({ hasText: 'SHELF-REACH' })).toContainText('Principal investigator');
 
 	const everywhere = page.locator('form', { has: page.getByRole('heading', { name: 'Sign out everywhere' }) });

@@ -108,7 +108,7 @@ async function agree(token: string, pid: string, formVersionId: string, confirma
 }
 
 describe('the demo seed', () => {
-	it('has ALD-001..004 and KNE-001..002 consented under version 1, ALD-005 invited, KNE-003 withdrawn', async () => {
+	it('has ALD-001..004, KNE-001..002 and WLK-001..002 consented under version 1, ALD-005 invited, KNE-003 withdrawn', async () => {
 		const rows = (
 			await app.sql.query(
 				`SELECT p.code, p.consent_state, v.version FROM participants p LEFT JOIN consent_form_versions v ON v.id = p.consent_form_version_id ORDER BY p.code`
@@ -123,7 +123,9 @@ describe('the demo seed', () => {
 			'ALD-005': 'invited/1',
 			'KNE-001': 'consented/1',
 			'KNE-002': 'consented/1',
-			'KNE-003': 'withdrawn/1'
+			'KNE-003': 'withdrawn/1',
+			'WLK-001': 'consented/1',
+			'WLK-002': 'consented/1'
 		});
 		const { consentStateOf } = await import('../../src/lib/server/consent/check');
 		expect((await consentStateOf(app.ids.participantA)).state).toBe('consented');

@@ -216,7 +216,7 @@ describe('direct calls on a fresh database', () => {
 		it('shows each person’s study roles and status', async () => {
 			const page = await listPeople(admin, q('q=okafor'));
 			expect(page.people).toHaveLength(1);
-			expect(page.people[0].roles.map((r) => `${r.code}: ${r.role}`)).toEqual(['KNEE-60: pi', 'SHELF-REACH: pi']);
+			expect(page.people[0].roles.map((r) => `${r.code}: ${r.role}`)).toEqual(['KNEE-60: pi', 'SHELF-REACH: pi', 'WALK-3: pi']);
 			expect(page.people[0].deactivatedAt).toBeNull();
 			expect((await listPeople(admin, q('q=nobody-has-this-name'))).people).toEqual([]);
 		});

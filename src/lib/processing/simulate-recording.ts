@@ -1,5 +1,14 @@
 // Recordings with known joint moments: forward simulation of a session model under smooth tracking torques, written in our file layout.
-import { compileModel, createWorkspace, inverseDynamics, simulate, type ExternalLoad, type Mat3, type Model, type Vec3 } from '../dynamics/index';
+import {
+	compileModel,
+	createWorkspace,
+	inverseDynamics,
+	simulate,
+	type ExternalLoad,
+	type Mat3,
+	type Model,
+	type Vec3
+} from '../dynamics/index';
 import type { ParticipantBody } from '../anthropometry/scale';
 import { buildSessionModel, type SessionModel, type SessionSetupInput } from './session-model';
 
@@ -84,7 +93,8 @@ export function simulateRecording(spec: RecordingSpec): SimulatedRecording {
 	const built = buildSessionModel(spec.body, spec.setup);
 	const masses = spec.simulationMasses ?? {};
 	for (const name of Object.keys(masses))
-		if (!built.model.bodies.some((b) => b.name === name)) throw new Error(`simulation mass for "${name}", which is not a body of the model`);
+		if (!built.model.bodies.some((b) => b.name === name))
+			throw new Error(`simulation mass for "${name}", which is not a body of the model`);
 	const model = compileModel({
 		...built.model,
 		bodies: built.model.bodies.map((b) => (masses[b.name] ? { ...b, ...masses[b.name] } : b))

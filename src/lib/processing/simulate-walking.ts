@@ -67,7 +67,15 @@ const lift = (u: number) => 256 * u ** 4 * (1 - u) ** 4;
 const travel = (u: number) => u ** 4 * (35 - 84 * u + 70 * u ** 2 - 20 * u ** 3);
 
 /** A plate 0.6 m × 0.4 m (long side along `long`), top at Y = 0, centred at (cx, cz), turned `deg` about the vertical. */
-function floorPlate(name: string, cx: number, cz: number, deg: number, long: 'u' | 'v', depth: number, output: ForcePlate['output']): ForcePlate {
+function floorPlate(
+	name: string,
+	cx: number,
+	cz: number,
+	deg: number,
+	long: 'u' | 'v',
+	depth: number,
+	output: ForcePlate['output']
+): ForcePlate {
 	const g = deg * DEG;
 	const u: Vec3 = [Math.cos(g), 0, Math.sin(g)],
 		v: Vec3 = [-Math.sin(g), 0, Math.cos(g)]; // u × v = (0, −1, 0): into the floor
@@ -131,23 +139,25 @@ export function simulateWalkingTrial(spec: WalkingSpec): WalkingTrial {
 			r: [2 * DEG * Math.sin(c * t), 3 * DEG * Math.sin(c * t + 0.5), 1.5 * DEG * Math.sin(2 * c * t)] as Vec3
 		};
 	};
-	const pelvisPath = (k: number): TargetPath => (t) => {
-		const c = (2 * Math.PI) / T;
-		switch (k) {
-			case 0:
-				return [x0 + v * t, v, 0];
-			case 1:
-				return [y0 + 0.008 * Math.cos(2 * c * t), -0.016 * c * Math.sin(2 * c * t), -0.032 * c * c * Math.cos(2 * c * t)];
-			case 2:
-				return [0.01 * Math.sin(c * t), 0.01 * c * Math.cos(c * t), -0.01 * c * c * Math.sin(c * t)];
-			case 3:
-				return [2 * DEG * Math.sin(c * t), 2 * DEG * c * Math.cos(c * t), -2 * DEG * c * c * Math.sin(c * t)];
-			case 4:
-				return [3 * DEG * Math.sin(c * t + 0.5), 3 * DEG * c * Math.cos(c * t + 0.5), -3 * DEG * c * c * Math.sin(c * t + 0.5)];
-			default:
-				return [1.5 * DEG * Math.sin(2 * c * t), 3 * DEG * c * Math.cos(2 * c * t), -6 * DEG * c * c * Math.sin(2 * c * t)];
-		}
-	};
+	const pelvisPath =
+		(k: number): TargetPath =>
+		(t) => {
+			const c = (2 * Math.PI) / T;
+			switch (k) {
+				case 0:
+					return [x0 + v * t, v, 0];
+				case 1:
+					return [y0 + 0.008 * Math.cos(2 * c * t), -0.016 * c * Math.sin(2 * c * t), -0.032 * c * c * Math.cos(2 * c * t)];
+				case 2:
+					return [0.01 * Math.sin(c * t), 0.01 * c * Math.cos(c * t), -0.01 * c * c * Math.sin(c * t)];
+				case 3:
+					return [2 * DEG * Math.sin(c * t), 2 * DEG * c * Math.cos(c * t), -2 * DEG * c * c * Math.sin(c * t)];
+				case 4:
+					return [3 * DEG * Math.sin(c * t + 0.5), 3 * DEG * c * Math.cos(c * t + 0.5), -3 * DEG * c * c * Math.sin(c * t + 0.5)];
+				default:
+					return [1.5 * DEG * Math.sin(2 * c * t), 3 * DEG * c * Math.cos(2 * c * t), -6 * DEG * c * c * Math.sin(2 * c * t)];
+			}
+		};
 	/** The ankle's lab target at time t and whether the foot is in stance (with its step number and phase). */
 	const ankleAt = (f: 'left' | 'right', t: number) => {
 		const j = Math.floor((t - first[f]) / T);
@@ -175,12 +185,14 @@ export function simulateWalkingTrial(spec: WalkingSpec): WalkingTrial {
 	};
 	// targets with derivatives by central differences of the inverse kinematics (h = 0.1 ms; rounding ~1e-8 rad/s²)
 	const h = 1e-4;
-	const legPath = (f: 'left' | 'right', k: number): TargetPath => (t) => {
-		const a = legAngles(f, t - h)[k],
-			b = legAngles(f, t)[k],
-			c = legAngles(f, t + h)[k];
-		return [b, (c - a) / (2 * h), (c - 2 * b + a) / (h * h)];
-	};
+	const legPath =
+		(f: 'left' | 'right', k: number): TargetPath =>
+		(t) => {
+			const a = legAngles(f, t - h)[k],
+				b = legAngles(f, t)[k],
+				c = legAngles(f, t + h)[k];
+			return [b, (c - a) / (2 * h), (c - 2 * b + a) / (h * h)];
+		};
 	const targets: Record<string, TargetPath> = {};
 	['px', 'py', 'pz', 'rx', 'ry', 'rz'].forEach((dof, k) => (targets[`pelvis.${dof}`] = pelvisPath(k)));
 	for (const f of ['right', 'left'] as const) {

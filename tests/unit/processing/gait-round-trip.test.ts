@@ -24,7 +24,12 @@ const rec: Recording = {
 	delimiter: ','
 };
 const options = runOptionsSchema.parse({ cutoffHz: 15 });
-const ground = groundFromSignals(trial.signals, { forceHz: trial.forceHz, angleHz: trial.angleHz, frames, cutoffHz: groundCutoffHz(options) });
+const ground = groundFromSignals(trial.signals, {
+	forceHz: trial.forceHz,
+	angleHz: trial.angleHz,
+	frames,
+	cutoffHz: groundCutoffHz(options)
+});
 const result = runPipeline(sim.built, rec, options, undefined, { ground });
 
 describe('gait round trip: known torques back from angles and plate signals', () => {
@@ -74,7 +79,9 @@ describe('gait round trip: known torques back from angles and plate signals', ()
 				if (nearEdge(k)) worstNear = Math.max(worstNear, e);
 				else worst = Math.max(worst, e);
 			}
-			report.push(`${d.name}: peak ${peak.toFixed(2)} N·m, worst ${worst.toFixed(3)} (away from contact edges), ${worstNear.toFixed(3)} near them`);
+			report.push(
+				`${d.name}: peak ${peak.toFixed(2)} N·m, worst ${worst.toFixed(3)} (away from contact edges), ${worstNear.toFixed(3)} near them`
+			);
 			// away from the contacts' edges: 2.5 % of the trial's peak |Q| + 0.1 N·m (measured 2.1 % at the hip, 0.3 % at the
 			// knee: the 15 Hz low-pass smooths the swing's accelerations); within 8 samples (40 ms) of a plate's threshold
 			// crossing: 8 N·m (measured 5.4 N·m at the hip: the GRF under the 20 N threshold is not applied, and the filter
