@@ -44,7 +44,7 @@ describe('repetitionsOf and peakMeans', () => {
 		expect(m.max.sd).toBeNaN();
 	});
 
-	it('show angles in degrees: a ramp of 1 rad per second peaks at 4 rad = 720/π °', () => {
+	it('show angles in °: a ramp of 1 rad per second peaks at 4 rad = 720/π °', () => {
 		const [r] = repetitionsOf(t, [ramp('rad')], [0, 2, 4], [false, false]);
 		expect(r.du.unit).toBe('°');
 		expect(r.peaks[1].max).toBeCloseTo(720 / Math.PI, 10);

@@ -194,7 +194,7 @@ describe('bad force columns: a precise message, nothing returned', () => {
 		expect(p[0].message).toBe(
 			'Column "plate1.force.x (N·m)" is a force (plate1.force.x), but its unit N·m measures a moment; force columns take " (N)" or " (kN)". Check the column and its unit.'
 		);
-		// a CoP in degrees, and a moment with no unit
+		// a CoP given an angle unit (°), and a moment with no unit
 		const h2 = P2_HEADER.replace('plate2.cop.y (m)', 'plate2.cop.y (deg)').replace('plate2.freemoment (N.m)', 'plate2.freemoment');
 		const q = problems(
 			await parseRecording(

@@ -330,7 +330,7 @@ describe('mapping files from other systems', () => {
 		timeDigits: 0,
 		d: ';'
 	});
-	/** A mapping of `foreign` (time in ms, every column in degrees, the marker in mm, no flips); `changes` replace columns. */
+	/** A mapping of `foreign` (time in ms, every angle column in °, the marker in mm, no flips); `changes` replace columns. */
 	const foreignMapping = (changes: ColumnMapping['columns'] = {}): ColumnMapping => ({
 		timeColumn: 'Time_ms',
 		timeUnit: 'ms',
@@ -348,7 +348,7 @@ describe('mapping files from other systems', () => {
 		expect(r.ok).toBe(false);
 		if (r.ok) return;
 		expect(r.needsMapping?.headers).toEqual(['Time_ms', 'R Hip Flex [deg]', 'R Knee Flex', 'R Ankle DF', 'Marker X']);
-		// an unknown column is suggested in degrees and left unmapped
+		// an unknown column is suggested in ° and left unmapped
 		expect(r.needsMapping?.suggested).toEqual(foreignMapping({ 'Marker X': { channel: null, unit: 'deg', flip: false } }));
 		expect(columnMappingSchema.safeParse(r.needsMapping?.suggested).success).toBe(true);
 		expect(codes(r)).toContain('no-time-column');
