@@ -2,7 +2,7 @@
 // (right) down the page, seen from above (Y up, towards the reader: X × Y = Z holds on the page). Metres are fitted to
 // a viewBox; each plate is its outline, its name at the centre and its x and y axes as arrows (z as a mark when it is
 // vertical).
-import { plateOutline, type ForcePlate } from '../../processing/forces/plate';
+import { plateCentre, plateOutline, type ForcePlate } from '../../processing/forces/plate';
 
 export const FLOOR = { width: 720, maxHeight: 420, margin: 44, minSpanM: 1.5, padM: 0.3 } as const;
 
@@ -77,8 +77,7 @@ export function floorPlan(plates: readonly ForcePlate[]): FloorPlan {
 		step,
 		plates: plates.map((p) => {
 			const outline = plateOutline(p);
-			const cx = outline.reduce((s, c) => s + c.x, 0) / 4;
-			const cz = outline.reduce((s, c) => s + c.z, 0) / 4;
+			const [cx, , cz] = plateCentre(p);
 			// arrows a third of the plate's shorter side long, from its centre
 			const sides = [0, 1].map((i) => Math.hypot(outline[i + 1].x - outline[i].x, outline[i + 1].z - outline[i].z));
 			const length = Math.max(0.05, Math.min(...sides) / 3);
