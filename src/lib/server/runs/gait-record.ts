@@ -15,7 +15,8 @@ export interface StoredGait {
 	spatiotemporal: { left: FootSpatiotemporalView; right: FootSpatiotemporalView; lengthBasis: 'heel' | 'pelvis' | null };
 }
 
-const r6 = (x: number): number | null => (Number.isFinite(x) ? Number(x.toPrecision(6)) : null);
+/** A number to 6 significant digits as stored and answered; null for NaN or ±∞ (JSON has neither). */
+export const r6 = (x: number): number | null => (Number.isFinite(x) ? Number(x.toPrecision(6)) : null);
 const stat = (s: Stat): StatView => ({ mean: r6(s.mean), sd: r6(s.sd), n: s.n });
 
 /** The stored shape of a run's gait results, from the pure results (JSON-safe: no NaN). */

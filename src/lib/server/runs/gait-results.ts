@@ -9,7 +9,7 @@ import { studyFor, type Actor } from '../access/guard';
 import { DomainError } from '../errors';
 import { runIn } from './runs';
 import { component, decodeFloat64 } from './results-codec';
-import type { StoredGait } from './gait-record';
+import { r6, type StoredGait } from './gait-record';
 import type { ContactView, GaitAnswer, GaitCycleView, GaitEventView, GaitPlateView } from '../../types/gait';
 
 /** Inside the results' transaction: replaces the run's gait row (a second attempt overwrites the first's). */
@@ -29,7 +29,6 @@ export async function writeGait(runId: string, gait: StoredGait | null, transact
 	);
 }
 
-const r6 = (x: number): number | null => (Number.isFinite(x) ? Number(x.toPrecision(6)) : null);
 const rounded = (x: Float64Array): number[] => Array.from(x, (v) => r6(v) ?? 0);
 const roundedOrNull = (x: Float64Array): (number | null)[] => Array.from(x, (v) => r6(v));
 
