@@ -347,36 +347,38 @@ export function buildSessionModel(body: ParticipantBody, setupInput: SessionSetu
 	const dofs: SessionDof[] = [];
 	const newIndex = new Int32Array(limbBodies.length).fill(-1);
 	let currentJoint = '';
-	// gait: six massless pelvis coordinates first (as a moving base's), both legs' hip joint centres on its Z axis
-	const pelvis = setup.pelvis ? pelvisHipWidth(body, setup.pelvis) : null;
-	if (pelvis) {
+	/** Six massless base coordinates `<prefix>.<px|…|rz>`, a new root chain (px at the ground, each next on the last). */
+	const pushBase = (prefix: string, limb: SessionDof['limb'], side: SessionDof['side'], positive: Record<BaseDof, string>) => {
 		for (const dof of BASE_DOFS) {
 			const prismatic = dof.startsWith('p');
 			bodies.push({
-				name: `pelvis.${dof}`,
-				parent: bodies.length - 1,
+				name: `${prefix}.${dof}`,
+				parent: dof === 'px' ? -1 : bodies.length - 1,
 				joint: { type: prismatic ? 'prismatic' : 'revolute', axis: BASE_AXIS[dof] },
 				anchor: [0, 0, 0],
 				mass: 0,
 				com: [0, 0, 0],
 				inertia: ZERO3(),
-				description: PELVIS_POSITIVE[dof]
+				description: positive[dof]
 			});
 			dofs.push({
-				name: `pelvis.${dof}`,
-				limb: 'pelvis',
-				side: 'midline',
+				name: `${prefix}.${dof}`,
+				limb,
+				side,
 				joint: 'base',
 				motion: dof,
 				unit: prismatic ? 'm' : 'rad',
 				kind: prismatic ? 'position' : 'angle',
 				base: true,
-				positive: PELVIS_POSITIVE[dof],
+				positive: positive[dof],
 				body: bodies.length - 1,
-				jointCentre: 'pelvis'
+				jointCentre: prefix
 			});
 		}
-	}
+	};
+	// gait: six massless pelvis coordinates first (as a moving base's), both legs' hip joint centres on its Z axis
+	const pelvis = setup.pelvis ? pelvisHipWidth(body, setup.pelvis) : null;
+	if (pelvis) pushBase('pelvis', 'pelvis', 'midline', PELVIS_POSITIVE);
 	for (const limb of setup.limbs) {
 		const base = setup.bases[limb] ?? { kind: 'fixed' as const, orientation: 'upright' as const };
 		const side = limb.split('.')[0] as 'right' | 'left';
@@ -384,32 +386,7 @@ export function buildSessionModel(body: ParticipantBody, setupInput: SessionSetu
 		let rootParent = -1;
 		if (pelvis) rootParent = BASE_DOFS.length - 1;
 		else if (base.kind === 'moving') {
-			for (const dof of BASE_DOFS) {
-				const prismatic = dof.startsWith('p');
-				bodies.push({
-					name: `${limb}.base.${dof}`,
-					parent: bodies.length === 0 || dof === 'px' ? -1 : bodies.length - 1,
-					joint: { type: prismatic ? 'prismatic' : 'revolute', axis: BASE_AXIS[dof] },
-					anchor: [0, 0, 0],
-					mass: 0,
-					com: [0, 0, 0],
-					inertia: ZERO3(),
-					description: BASE_POSITIVE[dof]
-				});
-				dofs.push({
-					name: `${limb}.base.${dof}`,
-					limb,
-					side,
-					joint: 'base',
-					motion: dof,
-					unit: prismatic ? 'm' : 'rad',
-					kind: prismatic ? 'position' : 'angle',
-					base: true,
-					positive: BASE_POSITIVE[dof],
-					body: bodies.length - 1,
-					jointCentre: `${limb}.base`
-				});
-			}
+			pushBase(`${limb}.base`, limb, side, BASE_POSITIVE);
 			rootParent = bodies.length - 1;
 		}
 		for (const { d, i } of members) {
