@@ -91,22 +91,23 @@ async function platesOfTrial(trial: TrialForceFields): Promise<ForcePlate[]> {
 	return names.map((n) => rows.find((r) => r.name === n)!.plate);
 }
 
-/**
- * The plate channels of an angle file that carries them, kept by readRecording beside the angle recording it returns
- * (the angle file is parsed once, with both) for readForces to take.
- */
-const plateColumnsOf = new WeakMap<Recording, { recording: Recording; plates: ForcePlate[] }>();
+/** A trial's angle file as parsed for a run: its angle channels, and the plates' channels when the file carries them. */
+export interface AngleFile {
+	recording: Recording;
+	/** The force-plate channels of an angle file that carries them (parsed with the angles), with their plates; else null. */
+	plateColumns: { recording: Recording; plates: ForcePlate[] } | null;
+}
 
 /**
  * Reads and parses a trial's raw file for a model (gaps filled when asked); RunFailure with the problems otherwise.
- * An angle file with its own force-plate columns is parsed with the plates' channels too; the recording returned holds
- * the angle channels only (readForces takes the plates').
+ * An angle file with its own force-plate columns is parsed once with the plates' channels too, kept apart from the
+ * angle channels (readForces takes them).
  */
-export async function readRecording(
+export async function readAngleFile(
 	trial: { rawUploadId: string; fileName: string; mapping: unknown; sha256: string } & TrialForceFields,
 	built: ReturnType<typeof buildSessionModel>,
 	fillGaps: boolean
-): Promise<Recording> {
+): Promise<AngleFile> {
 	const mapping = trial.mapping ? columnMappingSchema.parse(trial.mapping) : undefined;
 	const plates = forcesInAngleFile(trial) ? await platesOfTrial(trial) : [];
 	const parsed = await parseRecording(readRaw(trial.rawUploadId, { expectSha256: trial.sha256 }), {
@@ -116,18 +117,28 @@ export async function readRecording(
 		fillGaps
 	});
 	if (!parsed.ok) throw new RunFailure(`The recording could not be read: ${problemText(parsed.problems)}`);
-	if (!plates.length) return parsed.recording;
+	if (!plates.length) return { recording: parsed.recording, plateColumns: null };
 	const rec = parsed.recording;
 	const names = new Set(plates.flatMap((p) => plateChannelNames(p)));
-	const angles: Recording = { ...rec, channels: rec.channels.filter((c) => !names.has(c.name)) };
-	plateColumnsOf.set(angles, { recording: { ...rec, channels: rec.channels.filter((c) => names.has(c.name)) }, plates });
-	return angles;
+	return {
+		recording: { ...rec, channels: rec.channels.filter((c) => !names.has(c.name)) },
+		plateColumns: { recording: { ...rec, channels: rec.channels.filter((c) => names.has(c.name)) }, plates }
+	};
+}
+
+/** The angle recording of a trial's raw file (readAngleFile without the plates' channels). */
+export async function readRecording(
+	trial: { rawUploadId: string; fileName: string; mapping: unknown; sha256: string } & TrialForceFields,
+	built: ReturnType<typeof buildSessionModel>,
+	fillGaps: boolean
+): Promise<Recording> {
+	return (await readAngleFile(trial, built, fillGaps)).recording;
 }
 
 /**
  * Reads a trial's force file for a run: the plates it names as set up in the lab now (refused when one is no longer
  * in use), parsed again from the stored bytes and paired with the angle recording. Null for a trial without one.
- * Forces in the angle file itself come from readRecording's parse (the same samples: ratio 1).
+ * Forces in the angle file itself come from readAngleFile's parse (the same samples: ratio 1).
  */
 export async function readForces(
 	trial: {
@@ -139,12 +150,13 @@ export async function readForces(
 		fileName: string;
 		rawUploadId?: string;
 	},
-	angles: Recording
+	angleFile: AngleFile
 ): Promise<ForceInput | null> {
 	if (!trial.forceRawUploadId || !trial.forceFileName || !trial.forceSha256) return null;
+	const angles = angleFile.recording;
 	if (trial.rawUploadId && forcesInAngleFile({ ...trial, rawUploadId: trial.rawUploadId })) {
-		const own = plateColumnsOf.get(angles);
-		if (!own) throw new Error(`the force-plate columns of ${trial.fileName} were not read with its angles (readRecording first)`);
+		const own = angleFile.plateColumns;
+		if (!own) throw new Error(`the force-plate columns of ${trial.fileName} were not read with its angles`);
 		return { fileName: trial.forceFileName, forceHz: angles.sampleHz, ratio: 1, plates: own.plates, recording: own.recording };
 	}
 	const plates = await platesOfTrial(trial);
@@ -282,10 +294,10 @@ export async function processRun(
 			throw new RunFailure(`The model could not be built: ${(err as Error).message}`);
 		}
 		progress.update(0.01, 'reading the recording');
-		const recording = await readRecording(trial, built, options.fillGaps);
+		const angleFile = await readAngleFile(trial, built, options.fillGaps);
 		if (trial.forceRawUploadId) progress.update(0.015, 'reading the force recording');
-		const force = await readForces(trial, recording);
-		const input: RunThreadInput = { body, setup, recording, options, force };
+		const force = await readForces(trial, angleFile);
+		const input: RunThreadInput = { body, setup, recording: angleFile.recording, options, force };
 		const onProgress = (f: number, stage: string) => progress.update(0.02 + 0.93 * f, stage);
 		const computed = (opts.mode ?? 'thread') === 'thread' ? await computeInThread(input, onProgress) : computeInline(input, onProgress);
 		await progress.settle();

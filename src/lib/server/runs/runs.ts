@@ -17,7 +17,7 @@ import { assertSessionUnlocked, refuseIfLocked } from '../sessions/lock';
 import { isUuid, may, studyFor, type Actor, type StudyAction } from '../access/guard';
 import type { RequestContext } from '../access/context';
 import { component, decodeFloat64 } from './results-codec';
-import { participantBody, readForces, readRecording } from './process';
+import { participantBody, readAngleFile, readForces, readRecording } from './process';
 import { groundAtAngleRate } from './compute';
 import { contactIds } from '../../processing/foot-contacts';
 import {
@@ -290,10 +290,10 @@ async function checkContactFeet(trial: TrialContext, opts: RunOptions): Promise<
 	let known: string[];
 	try {
 		const built = buildSessionModel(await participantBody(trial.participantId), sessionSetupSchema.parse(trial.setup));
-		const recording = await readRecording(trial, built, opts.fillGaps);
-		const force = await readForces(trial, recording);
+		const angleFile = await readAngleFile(trial, built, opts.fillGaps);
+		const force = await readForces(trial, angleFile);
 		if (!force) return;
-		known = contactIds(groundAtAngleRate(recording, force, opts).contacts);
+		known = contactIds(groundAtAngleRate(angleFile.recording, force, opts).contacts);
 	} catch {
 		// the recordings or the model cannot be used now: the run itself fails with the reason (RunFailure, the model's
 		// or the plates' own errors), and the ids are checked by the run when it finds the contacts (assignContacts)
