@@ -29,3 +29,14 @@ export function finiteExtent(v: (number | null)[]): [number, number] | null {
 	}
 	return lo <= hi ? [lo, hi] : null;
 }
+
+/**
+ * A plot's value domain that keeps zero in view (the sign is what a reader checks first): the extent stretched to
+ * include 0, then widened by padFraction of its span at each end (of 1 when the span is 0).
+ */
+export function zeroSpanningDomain(ext: [number, number], padFraction: number): [number, number] {
+	const lo = Math.min(0, ext[0]);
+	const hi = Math.max(0, ext[1]);
+	const pad = (hi - lo || 1) * padFraction;
+	return [lo - pad, hi + pad];
+}
