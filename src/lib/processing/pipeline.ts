@@ -84,11 +84,6 @@ export interface GroundInput {
 	plates: GroundPlate[];
 	/** The plates' contacts (findContacts), any order. */
 	contacts: Contact[];
-	/**
-	 * true (default): feet assigned by the run from its filtered kinematics (assignContacts, with options.contactFeet
-	 * as overrides); false: the contacts' foot and shared are used as given.
-	 */
-	assign?: boolean;
 	/** Foot margin of the assignment (m); default DEFAULT_FOOT_MARGIN_M. */
 	marginM?: number;
 }
@@ -463,25 +458,16 @@ function planGround(
 	}
 	let assigned: AssignedContact[];
 	try {
-		assigned =
-			ground.assign === false
-				? ground.contacts.map((c, i, all) => ({
-						...c,
-						id: `${c.plate}#${all.filter((o) => o.plate === c.plate && o.start < c.start).length}`,
-						assignedBy: c.foot ? ('user' as const) : null,
-						overShare: { left: NaN, right: NaN },
-						bothShare: NaN
-					}))
-				: assignContacts(
-						ground.contacts,
-						ground.plates.map((g) => g.plate),
-						{ left: feet?.left, right: feet?.right },
-						{
-							marginM: ground.marginM,
-							overrides: options.contactFeet,
-							cop: Object.fromEntries(ground.plates.map((g) => [g.plate.name, g.loads.cop]))
-						}
-					);
+		assigned = assignContacts(
+			ground.contacts,
+			ground.plates.map((g) => g.plate),
+			{ left: feet?.left, right: feet?.right },
+			{
+				marginM: ground.marginM,
+				overrides: options.contactFeet,
+				cop: Object.fromEntries(ground.plates.map((g) => [g.plate.name, g.loads.cop]))
+			}
+		);
 	} catch (e) {
 		throw new PipelineError(e instanceof Error ? e.message : String(e));
 	}
