@@ -66,6 +66,11 @@ const act = (route: string, action: string, expect: Expect, params?: Params, for
 	...post(route, expect, params, form),
 	action
 });
+/** An entry for a record of study A, then the same request under study B's URL, where the record is not there. */
+const inAAndB = (entry: MatrixEntry, inB: Params): MatrixEntry[] => [
+	entry,
+	{ ...entry, params: inB, expect: notThere(entry.expect.anonymous) }
+];
 
 export const studyA: Params = { id: 'studyA' };
 const studyB: Params = { id: 'studyB' };
@@ -115,8 +120,7 @@ export const MATRIX: MatrixEntry[] = [
 	act('/studies/[id]/participants/new', 'default', teamA(400, 403, 400), studyA, invalidResearchFields),
 	get('/studies/[id]/participants/[pid]', teamA(200, 200, 200), participantA),
 	// a participant asked for under another study's URL does not exist there, even for someone on both teams
-	get('/studies/[id]/participants/[pid]/model', teamA(200, 200, 200), participantA),
-	get('/studies/[id]/participants/[pid]/model', notThere(), participantInB),
+	...inAAndB(get('/studies/[id]/participants/[pid]/model', teamA(200, 200, 200), participantA), participantInB),
 	get('/studies/[id]/participants/[pid]', notThere(), participantInB),
 	act('/studies/[id]/participants/[pid]', 'length', teamA(400, 403, 400), participantA, { segment: 'right.thigh', lengthM: '41' }),
 	act('/studies/[id]/participants/[pid]', 'personal', teamA(400, 403, 400), participantA, { email: 'not-an-address' }),
@@ -160,8 +164,7 @@ export const MATRIX: MatrixEntry[] = [
 	// e-mailed consent (tests/integration/consent.test.ts): the team reads a participant's consent state and history;
 	// PI and technicians send links (ALD-001 has consented, so each send is refused with 409 and nothing is mailed);
 	// the PI decides on flagged runs (an empty form is refused with 400)
-	get('/studies/[id]/participants/[pid]/consent', teamA(200, 200, 200), participantA),
-	get('/studies/[id]/participants/[pid]/consent', notThere(), participantInB),
+	...inAAndB(get('/studies/[id]/participants/[pid]/consent', teamA(200, 200, 200), participantA), participantInB),
 	act('/studies/[id]/participants/[pid]/consent', 'invite', teamA(409, 403, 409), participantA),
 	act('/studies/[id]/participants/[pid]/consent', 'resend', teamA(409, 403, 409), participantA),
 	act('/studies/[id]/participants/[pid]/consent', 'remind', teamA(409, 403, 409), participantA),
@@ -179,13 +182,11 @@ export const MATRIX: MatrixEntry[] = [
 	// a session asked for under another study's URL does not exist there
 	get('/studies/[id]/participants/[pid]/sessions/new', teamA(200, 403, 200), participantA),
 	act('/studies/[id]/participants/[pid]/sessions/new', 'default', teamA(400, 403, 400), participantA, { operator: '', limbs: 'right.arm' }),
-	get('/studies/[id]/sessions/[sid]', teamA(200, 200, 200), sessionA),
-	get('/studies/[id]/sessions/[sid]', notThere(), sessionInB),
+	...inAAndB(get('/studies/[id]/sessions/[sid]', teamA(200, 200, 200), sessionA), sessionInB),
 	// review workflow (tests/integration/workflow.test.ts): researchers and the PI submit, the PI approves, returns, reopens and asks
 	// for a signing code. The seeded session is a draft: an empty submit is refused with 400 (no summary); the PI's other steps
 	// are refused with 409 (wrong state) before any field is read; technicians 403
-	act('/studies/[id]/sessions/[sid]', 'submit', teamA(400, 400, 403), sessionA),
-	act('/studies/[id]/sessions/[sid]', 'submit', notThere(), sessionInB),
+	...inAAndB(act('/studies/[id]/sessions/[sid]', 'submit', teamA(400, 400, 403), sessionA), sessionInB),
 	act('/studies/[id]/sessions/[sid]', 'approve', teamA(409, 403, 403), sessionA),
 	act('/studies/[id]/sessions/[sid]', 'return', teamA(409, 403, 403), sessionA),
 	act('/studies/[id]/sessions/[sid]', 'reopen', teamA(409, 403, 403), sessionA),
@@ -200,41 +201,28 @@ export const MATRIX: MatrixEntry[] = [
 	// runs (tests/integration/runs.test.ts): the team reads trials, runs and results, and every role of the team may start
 	// and retry runs (run.start); an empty "New run" form is refused with 400, the JSON API wants JSON (415 for a form),
 	// and the seeded run is done, so a retry is refused with 409. A trial or run under another study's URL is not there.
-	get('/studies/[id]/trials/[tid]', teamA(200, 200, 200), trialA),
-	get('/studies/[id]/trials/[tid]', notThere(), trialInB),
+	...inAAndB(get('/studies/[id]/trials/[tid]', teamA(200, 200, 200), trialA), trialInB),
 	act('/studies/[id]/trials/[tid]', 'start', teamA(400, 400, 400), trialA),
 	act('/studies/[id]/trials/[tid]', 'start', notThere(), trialInB, { filter: 'none' }),
-	get('/studies/[id]/runs/[rid]', teamA(200, 200, 200), runA),
-	get('/studies/[id]/runs/[rid]', notThere(), runInB),
+	...inAAndB(get('/studies/[id]/runs/[rid]', teamA(200, 200, 200), runA), runInB),
 	act('/studies/[id]/runs/[rid]', 'retry', teamA(409, 409, 409), runA),
 	// "Re-run with these feet" on a run's foot contacts: the seeded run has no force data, so it is refused with 400
-	act('/studies/[id]/runs/[rid]', 'rerunFeet', teamA(400, 400, 400), runA),
-	act('/studies/[id]/runs/[rid]', 'rerunFeet', notThere(), runInB),
-	post('/api/studies/[id]/trials/[tid]/runs', teamA(415, 415, 415, API), trialA),
-	post('/api/studies/[id]/trials/[tid]/runs', notThere(API), trialInB),
-	get('/api/studies/[id]/trials/[tid]/residuals', teamA(200, 200, 200, API), trialA),
-	get('/api/studies/[id]/trials/[tid]/residuals', notThere(API), trialInB),
-	get('/api/studies/[id]/runs/[rid]', teamA(200, 200, 200, API), runA),
-	get('/api/studies/[id]/runs/[rid]', notThere(API), runInB),
-	get('/api/studies/[id]/runs/[rid]/series', teamA(200, 200, 200, API), runA),
-	get('/api/studies/[id]/runs/[rid]/series', notThere(API), runInB),
+	...inAAndB(act('/studies/[id]/runs/[rid]', 'rerunFeet', teamA(400, 400, 400), runA), runInB),
+	...inAAndB(post('/api/studies/[id]/trials/[tid]/runs', teamA(415, 415, 415, API), trialA), trialInB),
+	...inAAndB(get('/api/studies/[id]/trials/[tid]/residuals', teamA(200, 200, 200, API), trialA), trialInB),
+	...inAAndB(get('/api/studies/[id]/runs/[rid]', teamA(200, 200, 200, API), runA), runInB),
+	...inAAndB(get('/api/studies/[id]/runs/[rid]/series', teamA(200, 200, 200, API), runA), runInB),
 	get('/api/studies/[id]/runs/[rid]/summary', teamA(200, 200, 200, API), runA),
 	// a run's ground reaction forces and gait results (the seeded run has no force data: gait false, 200)
-	get('/api/studies/[id]/runs/[rid]/gait', teamA(200, 200, 200, API), runA),
-	get('/api/studies/[id]/runs/[rid]/gait', notThere(API), runInB),
-	post('/api/studies/[id]/runs/[rid]/retry', teamA(409, 409, 409, API), runA),
-	post('/api/studies/[id]/runs/[rid]/retry', notThere(API), runInB),
+	...inAAndB(get('/api/studies/[id]/runs/[rid]/gait', teamA(200, 200, 200, API), runA), runInB),
+	...inAAndB(post('/api/studies/[id]/runs/[rid]/retry', teamA(409, 409, 409, API), runA), runInB),
 	// export of an approved session (pi, researcher; the seeded session is a draft: 409) and the printable report (the team)
-	get('/api/studies/[id]/sessions/[sid]/export', teamA(409, 409, 403, API), sessionA),
-	get('/api/studies/[id]/sessions/[sid]/export', notThere(API), sessionInB),
-	get('/studies/[id]/sessions/[sid]/report', teamA(200, 200, 200), sessionA),
-	get('/studies/[id]/sessions/[sid]/report', notThere(), sessionInB),
+	...inAAndB(get('/api/studies/[id]/sessions/[sid]/export', teamA(409, 409, 403, API), sessionA), sessionInB),
+	...inAAndB(get('/studies/[id]/sessions/[sid]/report', teamA(200, 200, 200), sessionA), sessionInB),
 	// review: plot data of a session, a run's cycle events (marking them: those who may start runs; an empty list is
 	// refused with 400), and the compare page (the team)
-	get('/api/studies/[id]/sessions/[sid]/review', teamA(200, 200, 200, API), sessionA),
-	get('/api/studies/[id]/sessions/[sid]/review', notThere(API), sessionInB),
-	get('/api/studies/[id]/runs/[rid]/events', teamA(200, 200, 200, API), runA),
-	get('/api/studies/[id]/runs/[rid]/events', notThere(API), runInB),
+	...inAAndB(get('/api/studies/[id]/sessions/[sid]/review', teamA(200, 200, 200, API), sessionA), sessionInB),
+	...inAAndB(get('/api/studies/[id]/runs/[rid]/events', teamA(200, 200, 200, API), runA), runInB),
 	post('/api/studies/[id]/runs/[rid]/events', teamA(400, 400, 400, API), runA, { times: '' }),
 	get('/studies/[id]/compare', teamA(200, 200, 200), studyA),
 	get('/studies/[id]/compare', teamB(200), studyB),
