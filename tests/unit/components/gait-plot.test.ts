@@ -110,6 +110,7 @@ describe('copTrails', () => {
 		// 100 + 1 × 200 = 300, 50 + 0.1 × 200 = 70; 100 + 1.2 × 200 = 340, 50 − 0.05 × 200 = 40
 		expect(trail.d).toBe('M300.0 70.0L320.0 70.0M340.0 40.0');
 		expect(trail.points).toBe(3);
+		expect(trail.start).toEqual({ x: 300, y: 70 });
 	});
 });
 

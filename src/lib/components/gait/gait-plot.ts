@@ -109,6 +109,8 @@ export interface CopTrail {
 	d: string;
 	/** Number of points drawn. */
 	points: number;
+	/** The first point drawn, in viewBox units as in `d` (null when none is). */
+	start: { x: number; y: number } | null;
 }
 
 /**
@@ -126,6 +128,7 @@ export function copTrails(
 		let d = '';
 		let points = 0;
 		let pen = false;
+		let start: CopTrail['start'] = null;
 		for (let k = c.start; k <= c.end && k < path.x.length; k++) {
 			const x = path.x[k];
 			const z = path.z[k];
@@ -133,11 +136,14 @@ export function copTrails(
 				pen = false;
 				continue;
 			}
-			d += `${pen ? 'L' : 'M'}${(plan.origin.x + x * plan.scale).toFixed(1)} ${(plan.origin.y + z * plan.scale).toFixed(1)}`;
+			const px = (plan.origin.x + x * plan.scale).toFixed(1);
+			const py = (plan.origin.y + z * plan.scale).toFixed(1);
+			d += `${pen ? 'L' : 'M'}${px} ${py}`;
+			start ??= { x: Number(px), y: Number(py) };
 			pen = true;
 			points++;
 		}
-		return [{ contact: c, d, points }];
+		return [{ contact: c, d, points, start }];
 	});
 }
 
