@@ -135,17 +135,25 @@ export interface AssignOptions {
 
 /** Distance (m) from point c to the segment a–b, across the surface whose unit normal is nrm (the normal part left out). */
 function distanceAcross(c: ArrayLike<number>, a: ArrayLike<number>, b: ArrayLike<number>, k3: number, nrm: readonly number[]): number {
-	const d = [0, 1, 2].map((j) => b[k3 + j] - a[k3 + j]);
-	const e = [0, 1, 2].map((j) => c[k3 + j] - a[k3 + j]);
-	const flat = (v: number[]) => {
-		const s = v[0] * nrm[0] + v[1] * nrm[1] + v[2] * nrm[2];
-		return v.map((x, j) => x - s * nrm[j]);
-	};
-	const df = flat(d),
-		ef = flat(e);
-	const dd = df[0] ** 2 + df[1] ** 2 + df[2] ** 2;
-	const t = dd > 0 ? Math.min(1, Math.max(0, (ef[0] * df[0] + ef[1] * df[1] + ef[2] * df[2]) / dd)) : 0;
-	return Math.hypot(ef[0] - t * df[0], ef[1] - t * df[1], ef[2] - t * df[2]);
+	// runs per loaded sample and foot: scalars only, nothing allocated
+	const [n0, n1, n2] = nrm;
+	const d0 = b[k3] - a[k3],
+		d1 = b[k3 + 1] - a[k3 + 1],
+		d2 = b[k3 + 2] - a[k3 + 2];
+	const e0 = c[k3] - a[k3],
+		e1 = c[k3 + 1] - a[k3 + 1],
+		e2 = c[k3 + 2] - a[k3 + 2];
+	const sd = d0 * n0 + d1 * n1 + d2 * n2,
+		se = e0 * n0 + e1 * n1 + e2 * n2;
+	const df0 = d0 - sd * n0,
+		df1 = d1 - sd * n1,
+		df2 = d2 - sd * n2;
+	const ef0 = e0 - se * n0,
+		ef1 = e1 - se * n1,
+		ef2 = e2 - se * n2;
+	const dd = df0 ** 2 + df1 ** 2 + df2 ** 2;
+	const t = dd > 0 ? Math.min(1, Math.max(0, (ef0 * df0 + ef1 * df1 + ef2 * df2) / dd)) : 0;
+	return Math.hypot(ef0 - t * df0, ef1 - t * df1, ef2 - t * df2);
 }
 
 /** The contact ids `<plate>#<k>` in the order given (k counts each plate's contacts by start). */
