@@ -55,10 +55,13 @@ function samplesOf(name: string, a: Float64Array | undefined, n: number | null, 
 	return m;
 }
 
-function checkThreshold(thresholdN: number): void {
+/** The contact threshold to use (default DEFAULT_CONTACT_THRESHOLD_N), refused unless a force of 0 N or more. */
+function thresholdOf(given: number | undefined): number {
+	const thresholdN = given ?? DEFAULT_CONTACT_THRESHOLD_N;
 	if (!Number.isFinite(thresholdN) || thresholdN < 0) {
 		throw new ForceError('invalid-argument', `The contact threshold must be a force of 0 N or more; got ${thresholdN}.`);
 	}
+	return thresholdN;
 }
 
 /**
@@ -76,8 +79,7 @@ export function plateToLab(
 	signals: PlateSignals,
 	opts?: { thresholdN?: number; out?: LabLoads; output?: PlateOutput }
 ): LabLoads {
-	const threshold = opts?.thresholdN ?? DEFAULT_CONTACT_THRESHOLD_N;
-	checkThreshold(threshold);
+	const threshold = thresholdOf(opts?.thresholdN);
 	const output = opts?.output ?? plate.output;
 	const n = samplesOf('force', signals.force, null, 3);
 	if (output === 'forces-moments') samplesOf('moment', signals.moment, n, 3);
@@ -158,8 +160,7 @@ export function copToMoments(
 	signals: PlateSignals,
 	opts?: { thresholdN?: number; label?: string; out?: Float64Array }
 ): Float64Array {
-	const threshold = opts?.thresholdN ?? DEFAULT_CONTACT_THRESHOLD_N;
-	checkThreshold(threshold);
+	const threshold = thresholdOf(opts?.thresholdN);
 	const n = samplesOf('force', signals.force, null, 3);
 	samplesOf('centre of pressure', signals.cop, n, 3);
 	samplesOf('free moment', signals.freeMoment, n, 1);
@@ -268,7 +269,7 @@ export function loadedMask(
 	normalLab: Vec3 = [0, 1, 0],
 	out?: Uint8Array
 ): Uint8Array {
-	checkThreshold(thresholdN);
+	thresholdOf(thresholdN);
 	const n = samplesOf('force', forceLab, null, 3);
 	const mask = out ?? new Uint8Array(n);
 	if (mask.length !== n) throw new ForceError('length-mismatch', `The output mask must hold ${n} samples, like the force.`);
