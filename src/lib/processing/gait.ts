@@ -20,6 +20,7 @@ import type { ZoneSamples } from './zone-exclusion';
 export type Foot = 'left' | 'right';
 export const FEET: readonly Foot[] = ['left', 'right'];
 export type GaitEventKind = 'strike' | 'off';
+/** Where an event comes from: a plate's threshold crossing or the feet's kinematics (heel/toe ahead of the pelvis). */
 export type GaitEventSource = 'plate' | 'kinematic';
 
 export interface GaitEvent {

@@ -5,10 +5,9 @@
 // indices at the angle rate (0-based). Numbers are rounded to 6 significant digits; null stands for a value that is
 // not defined (a CoP where the plate is unloaded, a figure with no cycle to compute it from).
 
-export type Foot = 'left' | 'right';
-export type GaitEventKind = 'strike' | 'off';
-/** Where an event comes from: a plate's threshold crossing or the feet's kinematics (heel/toe ahead of the pelvis). */
-export type GaitEventSource = 'plate' | 'kinematic';
+// the foot, event and cycle-exclusion types are gait.ts's own (type-only: nothing of processing reaches the page)
+import type { CycleExclusion, Foot, GaitEventKind, GaitEventSource } from '../processing/gait';
+export type { Foot, GaitEventKind, GaitEventSource };
 
 /** The geometry of a plate as the run used it (copied into the run's model record: plates may be edited later). */
 export interface GaitPlateView {
@@ -77,7 +76,7 @@ export interface GaitEventView {
 }
 
 /** Why a cycle is left out of the means: see CYCLE_EXCLUSION_TEXT of processing/gait.ts. */
-export type CycleExclusionView = 'no-foot-off' | 'several-foot-offs' | 'edge-zone' | 'excluded';
+export type CycleExclusionView = CycleExclusion;
 
 /** One gait cycle: a foot strike to the next of the same foot; stance = strike → off, swing = off → next strike. */
 export interface GaitCycleView {
