@@ -24,6 +24,7 @@ import { start, stop, type Child } from '../../src/cli/lib/proc';
 import { forcesCsv, simulateWalkingTrial, type WalkingTrial } from '../../src/lib/processing/simulate-walking';
 import { sessionSetupSchema } from '../../src/lib/processing/session-model';
 import { DEFAULT_CONTACT_THRESHOLD_N } from '../../src/lib/processing/forces';
+import { momentErrors } from '../reference/known-moments';
 
 const BODY = { sex: 'female' as const, bodyMass: 62, stature: 1.68 };
 let app: AppUnderTest;
@@ -269,7 +270,6 @@ describe('gait round trip through the HTTP API', () => {
 		const n = sim.model.n,
 			frames = sim.time.length;
 		const { startSamples, endSamples } = s.json.edgeZone;
-		const nearEdge = (k: number) => gait.contacts.some((c: any) => Math.abs(k - c.start) <= 8 || Math.abs(k - c.end) <= 8);
 		const names = s.json.curves.map((c: any) => c.name);
 		for (const side of ['right', 'left'])
 			for (const dof of ['hip.flexion', 'knee.flexion', 'ankle.dorsiflexion']) expect(names).toContain(`${side}.${dof}`);
@@ -278,16 +278,12 @@ describe('gait round trip through the HTTP API', () => {
 			const j = sim.built.dofs.findIndex((d) => d.name === c.name);
 			expect(j, c.name).toBeGreaterThanOrEqual(0);
 			expect(c.v.length).toBe(frames);
-			let peak = 0,
-				worst = 0,
-				worstNear = 0;
-			for (let k = startSamples; k < frames - endSamples; k++) {
-				const want = sim.Q[k * n + j];
-				peak = Math.max(peak, Math.abs(want));
-				const e = Math.abs(c.v[k] - want);
-				if (nearEdge(k)) worstNear = Math.max(worstNear, e);
-				else worst = Math.max(worst, e);
-			}
+			const { peak, worst, worstNear } = momentErrors(
+				c.v,
+				(k) => sim.Q[k * n + j],
+				{ from: startSamples, to: frames - endSamples },
+				gait.contacts
+			);
 			report.push(
 				`${c.name}: peak ${peak.toFixed(2)} N·m, worst ${worst.toFixed(3)} (away from contact edges), ${worstNear.toFixed(3)} near them`
 			);
@@ -351,20 +347,15 @@ describe('an angle file with its own force-plate columns (one file, the angle ra
 		const n = sim.model.n,
 			frames = sim.time.length;
 		const { startSamples, endSamples } = s.json.edgeZone;
-		const nearEdge = (k: number) => g.contacts.some((c: any) => Math.abs(k - c.start) <= 8 || Math.abs(k - c.end) <= 8);
 		const report: string[] = [];
 		for (const c of s.json.curves) {
 			const j = sim.built.dofs.findIndex((d) => d.name === c.name);
-			let peak = 0,
-				worst = 0,
-				worstNear = 0;
-			for (let k = startSamples; k < frames - endSamples; k++) {
-				const want = sim.Q[k * n + j];
-				peak = Math.max(peak, Math.abs(want));
-				const e = Math.abs(c.v[k] - want);
-				if (nearEdge(k)) worstNear = Math.max(worstNear, e);
-				else worst = Math.max(worst, e);
-			}
+			const { peak, worst, worstNear } = momentErrors(
+				c.v,
+				(k) => sim.Q[k * n + j],
+				{ from: startSamples, to: frames - endSamples },
+				g.contacts
+			);
 			report.push(
 				`${c.name}: worst ${worst.toFixed(3)} N·m of ${peak.toFixed(2)} (away from contact edges), ${worstNear.toFixed(3)} near them`
 			);

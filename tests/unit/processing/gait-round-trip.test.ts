@@ -10,6 +10,7 @@ import { simulateWalkingTrial } from '../../../src/lib/processing/simulate-walki
 import { groundFromSignals } from '../../../src/lib/processing/foot-contacts';
 import { groundCutoffHz, runPipeline, runOptionsSchema } from '../../../src/lib/processing/pipeline';
 import type { Recording } from '../../../src/lib/processing/recording';
+import { momentErrors } from '../../reference/known-moments';
 
 const trial = simulateWalkingTrial({ name: 'walk', body: { sex: 'female', bodyMass: 62, stature: 1.68 } });
 const { sim } = trial;
@@ -64,21 +65,16 @@ describe('gait round trip: known torques back from angles and plate signals', ()
 
 	it('joint moments within the stated tolerance outside the edge zone', () => {
 		const { startSamples, endSamples } = result.edgeZone;
-		// samples near a plate's threshold crossings: there the force under 20 N is not applied (at most 20 N × ~1 m)
-		const nearEdge = (k: number) => result.ground!.contacts.some((c) => Math.abs(k - c.start) <= 8 || Math.abs(k - c.end) <= 8);
 		const report: string[] = [];
 		for (const d of result.dofs) {
 			const j = sim.built.dofs.findIndex((x) => x.name === d.name);
-			let peak = 0,
-				worst = 0,
-				worstNear = 0;
-			for (let k = startSamples; k < frames - endSamples; k++) {
-				const want = sim.Q[k * n + j];
-				peak = Math.max(peak, Math.abs(want));
-				const e = Math.abs(d.moment[k] - want);
-				if (nearEdge(k)) worstNear = Math.max(worstNear, e);
-				else worst = Math.max(worst, e);
-			}
+			// apart: samples within 8 of a plate's threshold crossing, where the force under 20 N is not applied (at most 20 N × ~1 m)
+			const { peak, worst, worstNear } = momentErrors(
+				d.moment,
+				(k) => sim.Q[k * n + j],
+				{ from: startSamples, to: frames - endSamples },
+				result.ground!.contacts
+			);
 			report.push(
 				`${d.name}: peak ${peak.toFixed(2)} N·m, worst ${worst.toFixed(3)} (away from contact edges), ${worstNear.toFixed(3)} near them`
 			);
