@@ -22,6 +22,12 @@ export const FOOT_STYLE: Record<Foot, { colour: string; dash: string; label: str
 export const NO_FOOT_STYLE = { colour: '#7a7a7a', dash: '2 3', label: 'No foot', letter: '?' } as const;
 
 export const footStyle = (foot: Foot | null) => (foot ? FOOT_STYLE[foot] : NO_FOOT_STYLE);
+/** The contact styles a key lists: each foot's, then the one without a foot. */
+export const KEY_STYLES = [...FEET.map(footStyle), NO_FOOT_STYLE];
+
+/** An axis tick as text: "0", else 0, 1 or 2 decimals as the figure is ≥ 100, ≥ 10 or smaller. */
+export const tickText = (n: number) =>
+	n === 0 ? '0' : Math.abs(n) >= 100 ? n.toFixed(0) : Math.abs(n) >= 10 ? n.toFixed(1) : n.toFixed(2);
 
 /** A figure with `digits` decimals; "—" where it is not defined. */
 export function fixed(x: number | null | undefined, digits = 2): string {
