@@ -33,19 +33,15 @@ export interface GaitEvent {
 	source: GaitEventSource;
 }
 
-/** Vertical force below which a plate counts as unloaded (N); common practice. */
-export const CONTACT_THRESHOLD_N = 20;
-
-/** A loaded interval: samples start .. end − 1 are at or above the threshold (end exclusive). */
-export interface LoadedInterval {
-	start: number;
-	end: number;
-}
-
-/** A plate contact assigned to a foot; samples start .. end − 1 (end exclusive, see the top of the file). */
-export interface PlateContact extends LoadedInterval {
+/**
+ * A plate contact assigned to a foot; samples start .. end − 1 are loaded (end exclusive, see the top of the file): a
+ * contact of forces/contacts.ts (findContacts, last loaded sample inclusive) with end + 1.
+ */
+export interface PlateContact {
 	plate: string;
 	foot: Foot;
+	start: number;
+	end: number;
 }
 
 /** Positions of two points of one foot per sample (m, lab axes, interleaved x, y, z). */
@@ -84,26 +80,6 @@ function checkPath(name: string, path: ArrayLike<number>, n: number): void {
 
 // ---------------------------------------------------------------------------------------------------------------
 // 1. Plate events
-
-/**
- * Loaded intervals of one plate's vertical force (N per sample): each run of samples at or above `thresholdN`.
- * NaN counts as below the threshold.
- */
-export function loadedIntervals(verticalForce: ArrayLike<number>, thresholdN = CONTACT_THRESHOLD_N): LoadedInterval[] {
-	if (!Number.isFinite(thresholdN) || thresholdN < 0) throw new GaitError(`thresholdN must be a force of 0 N or more (got ${thresholdN}).`);
-	const out: LoadedInterval[] = [];
-	let start = -1;
-	for (let i = 0; i < verticalForce.length; i++) {
-		const loaded = verticalForce[i] >= thresholdN;
-		if (loaded && start < 0) start = i;
-		else if (!loaded && start >= 0) {
-			out.push({ start, end: i });
-			start = -1;
-		}
-	}
-	if (start >= 0) out.push({ start, end: verticalForce.length });
-	return out;
-}
 
 /** Foot strike and foot off of each contact (see the top of the file), in time order. */
 export function plateEvents(contacts: readonly PlateContact[], time: ArrayLike<number>): GaitEvent[] {

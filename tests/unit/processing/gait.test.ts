@@ -7,12 +7,10 @@
 //    check; the means and sample SDs were checked with Python's statistics.mean / statistics.stdev.
 import { describe, expect, it } from 'vitest';
 import {
-	CONTACT_THRESHOLD_N,
 	GaitError,
 	gaitCycles,
 	gaitEvents,
 	kinematicEvents,
-	loadedIntervals,
 	mergeEvents,
 	normaliseGait,
 	plateEvents,
@@ -23,6 +21,8 @@ import {
 	type GaitPaths,
 	type PlateContact
 } from '../../../src/lib/processing/gait';
+import { DEFAULT_CONTACT_THRESHOLD_N, findContacts } from '../../../src/lib/processing/forces';
+import { plate1 } from './forces/plates';
 
 function thrown(fn: () => unknown): GaitError {
 	try {
@@ -35,6 +35,23 @@ function thrown(fn: () => unknown): GaitError {
 }
 
 const grid = (n: number, hz: number) => Float64Array.from({ length: n }, (_, k) => k / hz);
+
+/**
+ * The loaded intervals of a vertical force (N per sample) as a run finds them: findContacts on a plate in the floor
+ * (no shortest contact), its inclusive last loaded sample made the exclusive end gait.ts takes (as the run does).
+ */
+function loadedIntervals(fy: ArrayLike<number>, thresholdN?: number): { start: number; end: number }[] {
+	const grf = new Float64Array(3 * fy.length);
+	const cop = new Float64Array(3 * fy.length);
+	for (let i = 0; i < fy.length; i++) {
+		grf[3 * i + 1] = fy[i];
+		cop.set([1, 0, 0.5], 3 * i); // plate1's centre
+	}
+	return findContacts(plate1, { grf, cop }, { sampleHz: 100, thresholdN, minDurationS: 0 }).map((c) => ({
+		start: c.start,
+		end: c.end + 1
+	}));
+}
 
 describe('plate events', () => {
 	it('finds the 20 N crossings of a half-sine contact within one sample (closed form)', () => {
@@ -49,7 +66,7 @@ describe('plate events', () => {
 			for (const c of contacts) if (t > c.on && t < c.off) return W * Math.sin((Math.PI * (t - c.on)) / (c.off - c.on));
 			return 0;
 		});
-		expect(CONTACT_THRESHOLD_N).toBe(20);
+		expect(DEFAULT_CONTACT_THRESHOLD_N).toBe(20);
 		const intervals = loadedIntervals(fy);
 		expect(intervals.length).toBe(2);
 		const assigned: PlateContact[] = intervals.map((iv, k) => ({ ...iv, plate: 'plate1', foot: k === 0 ? 'right' : 'left' }));
@@ -99,7 +116,7 @@ describe('plate events', () => {
 		expect(thrown(() => plateEvents([{ plate: 'plate1', foot: 'left', start: 4, end: 11 }], time)).message).toBe(
 			'contacts[0] (plate1, left): start 4 and end 11 must be whole sample numbers with 0 ≤ start < end ≤ 10.'
 		);
-		expect(thrown(() => loadedIntervals([1, 2], -1)).message).toBe('thresholdN must be a force of 0 N or more (got -1).');
+		expect(() => loadedIntervals([1, 2], -1)).toThrow('The contact threshold must be 0 N or more; got -1.');
 	});
 });
 
