@@ -12,6 +12,7 @@ import { groundCutoffHz, runPipeline, runOptionsSchema, type PipelineResult } fr
 import { seededGaussian } from '../../../src/lib/processing/edges';
 import type { PlateSignals } from '../../../src/lib/processing/forces';
 import type { Recording } from '../../../src/lib/processing/recording';
+import { momentErrors } from '../../reference/known-moments';
 
 const trial = simulateWalkingTrial({ name: 'walk', body: { sex: 'female', bodyMass: 62, stature: 1.68 } });
 const { sim } = trial;
@@ -61,23 +62,14 @@ describe('gait round trip with measurement noise, default options', () => {
 
 	it('joint moments within the stated tolerances outside the edge zone', () => {
 		const { startSamples, endSamples } = noisy.edgeZone;
-		const nearEdge = (k: number) => noisy.ground!.contacts.some((c) => Math.abs(k - c.start) <= 8 || Math.abs(k - c.end) <= 8);
+		const span = { from: startSamples, to: frames - endSamples };
 		const report: string[] = [];
 		for (const d of noisy.dofs) {
 			const j = sim.built.dofs.findIndex((x) => x.name === d.name);
 			const base = clean.dofs.find((x) => x.name === d.name)!;
-			let peak = 0,
-				worst = 0,
-				worstNear = 0,
-				fromNoise = 0;
-			for (let k = startSamples; k < frames - endSamples; k++) {
-				const want = sim.Q[k * n + j];
-				peak = Math.max(peak, Math.abs(want));
-				const e = Math.abs(d.moment[k] - want);
-				if (nearEdge(k)) worstNear = Math.max(worstNear, e);
-				else worst = Math.max(worst, e);
-				fromNoise = Math.max(fromNoise, Math.abs(d.moment[k] - base.moment[k]));
-			}
+			const { peak, worst, worstNear } = momentErrors(d.moment, (k) => sim.Q[k * n + j], span, noisy.ground!.contacts);
+			// the noise's own share: the noisy run against the noise-free one (same options), everywhere in the span
+			const fromNoise = momentErrors(d.moment, (k) => base.moment[k], span, []).worst;
 			report.push(
 				`${d.name}: peak ${peak.toFixed(2)} N·m, worst ${worst.toFixed(3)} away from contact edges, ${worstNear.toFixed(3)} near them, noise's share ${fromNoise.toFixed(3)}`
 			);

@@ -4,8 +4,9 @@ import { decodeFloat64, encodeFloat64 } from './results-codec';
 import { buildSessionModel, type SessionModel, type SessionSetup } from '../../processing/session-model';
 import { groundCutoffHz, NonFiniteResultError, runPipeline, type PipelineResult, type RunOptions } from '../../processing/pipeline';
 import { plateSignalsOf, type Recording } from '../../processing/recording';
-import { DEFAULT_CONTACT_THRESHOLD_N, findContacts, forceCutoffHz, plateLoadsAtAngleRate, type ForcePlate } from '../../processing/forces';
+import { DEFAULT_CONTACT_THRESHOLD_N, forceCutoffHz, type ForcePlate } from '../../processing/forces';
 import { gaitCycles, gaitEvents, spatiotemporal, type PlateContact } from '../../processing/gait';
+import { groundFromSignals } from '../../processing/foot-contacts';
 import { storedGait, type StoredGait } from './gait-record';
 import type { ParticipantBody } from '../../anthropometry/scale';
 
@@ -126,17 +127,10 @@ export function groundAtAngleRate(recording: Pick<Recording, 'sampleHz' | 'time'
 	const angleHz = recording.sampleHz;
 	const runCutoff = groundCutoffHz(options);
 	const signals = plateSignalsOf(force.recording, force.plates);
-	const plates = force.plates.map((plate) => ({
-		plate,
-		loads: plateLoadsAtAngleRate(plate, signals.get(plate.name)!, {
-			forceHz: force.forceHz,
-			angleHz,
-			cutoffHz: runCutoff,
-			angleSamples: recording.time.length,
-			thresholdN
-		})
-	}));
-	const contacts = plates.flatMap(({ plate, loads }) => findContacts(plate, loads, { sampleHz: angleHz, thresholdN }));
+	const { plates, contacts } = groundFromSignals(
+		force.plates.map((plate) => ({ plate, signals: signals.get(plate.name)! })),
+		{ forceHz: force.forceHz, angleHz, frames: recording.time.length, cutoffHz: runCutoff, thresholdN }
+	);
 	return { thresholdN, runCutoff, plates, contacts };
 }
 
